@@ -1,0 +1,46 @@
+"""Defaults and thresholds, each with its source or marked as a rule of thumb.
+
+Everything that a scene can override is a default here, never a hard limit.
+"""
+
+#: Standard gravity [m/s^2]; exact by definition (3rd CGPM 1901; ISO 80000-3).
+STANDARD_GRAVITY = 9.80665
+
+#: Sea-level air density [kg/m^3] of the ISO 2533:1975 standard atmosphere (15 degC).
+AIR_DENSITY_SEA_LEVEL = 1.225
+
+#: Drag coefficient of a bare load when the scene gives none [-]; about that of
+#: a cube broadside on (Hoerner, Fluid-Dynamic Drag, 1965; from memory).
+LOAD_DRAG_COEFFICIENT = 1.05
+
+#: Drag coefficient of a wire rope across the flow [-]; circular cylinder at
+#: subcritical Reynolds number (Hoerner, 1965; from memory).
+ROPE_DRAG_COEFFICIENT = 1.2
+
+#: In-service wind limit used for the caution when the crane gives none [m/s].
+#: Rule of thumb: many cranes are designed to about 250 Pa in service, i.e.
+#: about 20 m/s (from memory).  The crane's manufacturer sets the real limit.
+IN_SERVICE_WIND_LIMIT_M_S = 20.0
+
+#: Rope angle from vertical above which a caution is raised [deg].  Rule of
+#: thumb: side loading of a jib or boom is usually limited to a few degrees.
+SWING_CAUTION_DEG = 5.0
+
+#: Swing below which the load counts as settled for landing [deg] (rule of thumb).
+SETTLE_SWING_DEG = 0.5
+
+#: Largest rope angle the point-mass model integrates to [deg].  Beyond it the
+#: rope is near horizontal: outside any crane's working range, and the
+#: coordinate chart of the model (horizontal components of the rope direction)
+#: becomes singular at 90 deg.
+MODEL_ANGLE_LIMIT_DEG = 89.0
+
+#: Shortest rope the motion may reach [m].
+MIN_ROPE_LENGTH_M = 0.2
+
+#: Integrator settings of the single-run solver (DOP853, scipy).
+RTOL = 1e-10
+ATOL = 1e-12
+
+#: Default output sample rate [Hz].
+SAMPLE_HZ = 50.0

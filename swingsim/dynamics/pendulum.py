@@ -1,0 +1,221 @@
+"""Point-mass load on an inextensible rope of varying length from a moving support.
+
+State ``y = (u, v, du, dv)``: the horizontal components of the unit rope
+direction :math:`n = (u, v, -w)`, :math:`w = \\sqrt{1 - u^2 - v^2}` (pointing
+from the suspension point down to the load), and their rates.  The chart is
+regular at the vertical (u = v = 0) -- no gimbal singularity at rest -- and
+covers every rope angle below 90 degrees.
+
+Notes
+-----
+With load position :math:`r = p(t) + L(t)\\,n`, the Newton equation
+:math:`m\\ddot r = m f - T n` (``f``: gravity, damping, drag and wind per unit
+mass; ``T``: rope tension) is projected on the tangent plane with
+:math:`J = \\partial n / \\partial (u, v)`, which removes ``T``:
+
+.. math::
+    L\\, J^T J\\, \\ddot q = J^T\\left(f - \\ddot p - 2\\dot L J\\dot q - L h\\right),
+    \\qquad h = (0, 0, \\frac{\\dot u^2 + \\dot v^2}{w} + \\frac{(u\\dot u + v\\dot v)^2}{w^3}),
+
+and :math:`(J^T J)^{-1} = I - q q^T` (Sherman-Morrison, since
+:math:`w^2 + |q|^2 = 1`).  Along the rope,
+
+.. math:: T = m\\left[n\\cdot(f - \\ddot p) - \\ddot L + L|\\dot n|^2\\right].
+
+Both follow from Lagrange's equations of the constrained point mass in an
+inertial frame (e.g. Goldstein, *Classical Mechanics*, ch. 1-2), so slewing's
+centripetal and Coriolis effects come in through :math:`\\ddot p` by
+themselves.  The equations are checked in the tests against an independent
+sympy derivation and against the published results listed there.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .. import constants as C
+from .forces import drag_coefficient_per_mass
+
+
+def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par):
+    """Applied force per unit mass on the load, gravity included [m/s^2].
+
+    ``par`` is a dict of floats or arrays: g, zeta, kd (load drag), kr (rope
+    drag per unit length), wx, wy (wind).
+    """
+    s1 = u * du + v * dv
+    ndz = s1 / w
+    # velocity of the load
+    rvx = vpx + dL * u + L * du
+    rvy = vpy + dL * v + L * dv
+    rvz = vpz - dL * w + L * ndz
+    g = par["g"]
+    c = 2.0 * par["zeta"] * (g / L) ** 0.5 * L
+    fx = -c * du
+    fy = -c * dv
+    fz = -g - c * ndz
+    kd = par["kd"]
+    wx, wy = par["wx"], par["wy"]
+    ax_ = rvx - wx
+    ay_ = rvy - wy
+    sp = (ax_ * ax_ + ay_ * ay_ + rvz * rvz) ** 0.5
+    fx = fx - kd * sp * ax_
+    fy = fy - kd * sp * ay_
+    fz = fz - kd * sp * rvz
+    kr = par["kr"]
+    # rope: drag of the cross-flow at the rope's mid-point velocity; half the
+    # total acts at the load (the distributed force's moment about the top).
+    mx = 0.5 * (vpx + rvx) - wx
+    my = 0.5 * (vpy + rvy) - wy
+    mz = 0.5 * (vpz + rvz)
+    along = mx * u + my * v - mz * w
+    nx_ = mx - along * u
+    ny_ = my - along * v
+    nz_ = mz + along * w
+    spn = (nx_ * nx_ + ny_ * ny_ + nz_ * nz_) ** 0.5
+    kr_L = 0.5 * kr * L * spn
+    fx = fx - kr_L * nx_
+    fy = fy - kr_L * ny_
+    fz = fz - kr_L * nz_
+    return fx, fy, fz
+
+
+def accelerations(u, v, du, dv, L, dL, apx, apy, apz, fx, fy, fz):
+    """Second derivatives (ddu, ddv) of the rope direction chart (see module Notes)."""
+    w = (1.0 - u * u - v * v) ** 0.5
+    s1 = u * du + v * dv
+    hz = (du * du + dv * dv) / w + s1 * s1 / (w * w * w)
+    x0 = fx - apx - 2.0 * dL * du
+    x1 = fy - apy - 2.0 * dL * dv
+    x2 = fz - apz - 2.0 * dL * s1 / w - L * hz
+    g0 = x0 + u / w * x2
+    g1 = x1 + v / w * x2
+    k = u * g0 + v * g1
+    return (g0 - u * k) / L, (g1 - v * k) / L
+
+
+def tension_per_mass(u, v, du, dv, L, ddL, apx, apy, apz, fx, fy, fz):
+    """Rope tension divided by the load's mass [m/s^2]."""
+    w = (1.0 - u * u - v * v) ** 0.5
+    s1 = u * du + v * dv
+    nd2 = du * du + dv * dv + (s1 / w) ** 2
+    return u * (fx - apx) + v * (fy - apy) - w * (fz - apz) - ddL + L * nd2
+
+
+def direction_from_projected(ax_rad, ay_rad, rx=0.0, ry=0.0):
+    """Chart state (u, v, du, dv) from projected angles on the x-z and y-z planes and their rates."""
+    tx, ty = math.tan(ax_rad), math.tan(ay_rad)
+    N = math.sqrt(1.0 + tx * tx + ty * ty)
+    dtx = rx / math.cos(ax_rad) ** 2
+    dty = ry / math.cos(ay_rad) ** 2
+    dN = (tx * dtx + ty * dty) / N
+    u, v = tx / N, ty / N
+    du = dtx / N - tx * dN / N**2
+    dv = dty / N - ty * dN / N**2
+    return u, v, du, dv
+
+
+def model_params(scene) -> dict:
+    """Physical parameters of the point-mass model as plain floats."""
+    load, wind = scene.load, scene.wind
+    kd = 0.0
+    if load.wind_area_m2:
+        kd = drag_coefficient_per_mass(wind.air_density_kg_m3, load.drag_coefficient,
+                                       load.wind_area_m2, load.mass_kg)
+    kr = 0.0
+    if scene.rope.diameter_m:
+        kr = drag_coefficient_per_mass(wind.air_density_kg_m3, scene.rope.drag_coefficient,
+                                       scene.rope.diameter_m, load.mass_kg)
+    d = math.radians(wind.direction_deg)
+    return {"g": scene.gravity_m_s2, "zeta": scene.damping_ratio, "kd": kd, "kr": kr,
+            "wx": wind.speed_m_s * math.cos(d), "wy": wind.speed_m_s * math.sin(d),
+            "m": load.mass_kg}
+
+
+class PointMassModel:
+    """The load as a point mass at the end of the hoist rope (no hook block)."""
+
+    name = "point-mass"
+    state_names = ("u", "v", "du", "dv")
+
+    def __init__(self, scene):
+        self.scene = scene
+        self.par = model_params(scene)
+        self.angle_limit_rad = math.radians(C.MODEL_ANGLE_LIMIT_DEG)
+        self._wlim = math.cos(self.angle_limit_rad)
+
+    # -- set-up --------------------------------------------------------------
+    def initial_state(self, motion) -> np.ndarray:
+        sw = self.scene.start
+        return np.array(direction_from_projected(
+            math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
+            math.radians(sw.swing_rate_deg_s[0]), math.radians(sw.swing_rate_deg_s[1])))
+
+    def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
+        """Small-amplitude swing period 2 pi sqrt(L / g) (textbook)."""
+        L = self.scene.rope.length_m if rope_length_m is None else rope_length_m
+        return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
+
+    # -- the equations -------------------------------------------------------
+    def make_rhs(self, kin):
+        """Right-hand side f(t, y) for one segment; ``kin`` is Motion.local(...)."""
+        par = self.par
+        sf, acc = specific_force, accelerations
+
+        def rhs(t, y):
+            u, v, du, dv = y
+            px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin(t)
+            w = (1.0 - u * u - v * v) ** 0.5
+            fx, fy, fz = sf(u, v, w, du, dv, L, dL, vx, vy, vz, par)
+            ddu, ddv = acc(u, v, du, dv, L, dL, ax, ay, az, fx, fy, fz)
+            return [du, dv, ddu, ddv]
+
+        return rhs
+
+    def make_events(self, kin):
+        """Terminal events: rope goes slack (tension <= 0), swing reaches the model's limit."""
+        par = self.par
+        wlim = self._wlim
+
+        def slack(t, y):
+            u, v, du, dv = y
+            px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin(t)
+            w = max(1.0 - u * u - v * v, 1e-300) ** 0.5
+            fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, vz, par)
+            return tension_per_mass(u, v, du, dv, L, ddL, ax, ay, az, fx, fy, fz)
+
+        slack.terminal = True
+        slack.direction = -1
+
+        def overswing(t, y):
+            u, v = y[0], y[1]
+            return max(1.0 - u * u - v * v, 0.0) ** 0.5 - wlim
+
+        overswing.terminal = True
+        overswing.direction = -1
+        return {"slack": slack, "overswing": overswing}
+
+    # -- outputs ---------------------------------------------------------------
+    def outputs(self, t, Y, motion) -> dict:
+        """Derived quantities at sample times ``t`` for states ``Y`` (N, 4)."""
+        e = motion.evaluate(t)
+        u, v, du, dv = Y[:, 0], Y[:, 1], Y[:, 2], Y[:, 3]
+        w = np.sqrt(np.clip(1.0 - u * u - v * v, 0.0, None))
+        p, dp, ddp = e["p"], e["dp"], e["ddp"]
+        L, dL, ddL = e["L"], e["dL"], e["ddL"]
+        n = np.stack([u, v, -w], axis=-1)
+        nd = np.stack([du, dv, (u * du + v * dv) / w], axis=-1)
+        load = p + L[:, None] * n
+        load_vel = dp + dL[:, None] * n + L[:, None] * nd
+        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, dp[:, 0], dp[:, 1], dp[:, 2], self.par)
+        tpm = tension_per_mass(u, v, du, dv, L, ddL, ddp[:, 0], ddp[:, 1], ddp[:, 2], fx, fy, fz)
+        m, g = self.par["m"], self.par["g"]
+        energy = 0.5 * m * np.sum(load_vel**2, axis=1) + m * g * load[:, 2]
+        return {
+            "suspension": p, "suspension_vel": dp, "rope_length": L,
+            "load": load, "load_vel": load_vel, "hook": None,
+            "rope_dir": n, "rope_tension_N": m * tpm, "energy_J": energy,
+            "static_rope_load_N": m * g,
+        }

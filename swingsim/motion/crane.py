@@ -1,0 +1,183 @@
+"""Crane axes -> suspension-point path and hoist-rope length over time.
+
+Axes
+----
+``x``, ``y``
+    Travel of the whole crane (gantry, bridge or rail-mounted base) [m].
+``slew``
+    Rotation of the jib about the vertical mast axis [rad]; the mast stands at
+    the origin plus the ``x``/``y`` travel.
+``radius``
+    Change of the suspension point's horizontal distance from the mast (trolley
+    along a jib, or luffing; the suspension height is held) [m].
+``hoist``
+    Rope shortening [m]: a positive move raises the load.
+
+The suspension point is
+
+.. math::
+    p(t) = (X(t), Y(t), z_0) + \\rho(t) (\\cos\\varphi(t), \\sin\\varphi(t), 0),
+
+with :math:`\\rho = \\rho_0 + R(t)`, :math:`\\varphi = \\varphi_0 + S(t)` and
+:math:`(\\rho_0, \\varphi_0)` the polar coordinates of the initial point, so
+
+.. math::
+    \\ddot p_h = (\\ddot X, \\ddot Y) + (\\ddot\\rho - \\rho\\dot\\varphi^2) e_\\rho
+                + (\\rho\\ddot\\varphi + 2\\dot\\rho\\dot\\varphi) e_\\varphi ,
+
+which carries the centripetal and Coriolis terms of slewing exactly.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from .profiles import Profile
+
+AXES = ("x", "y", "slew", "radius", "hoist")
+
+
+@dataclass(frozen=True)
+class Motion:
+    """Prescribed motion of the suspension point and of the rope length.
+
+    Parameters
+    ----------
+    origin_m : tuple of float
+        Suspension point at t = 0 [m].
+    rope_length_m : float
+        Rope length at t = 0 [m].
+    moves : tuple of (axis, Profile)
+        The moves; several moves on one axis add up.
+    """
+
+    origin_m: tuple
+    rope_length_m: float
+    moves: tuple
+
+    @property
+    def breakpoints(self) -> tuple[float, ...]:
+        pts = sorted({b for _, p in self.moves for b in p.breakpoints})
+        return tuple(pts)
+
+    @property
+    def last_move_end_s(self) -> float:
+        return max((p.end_s for _, p in self.moves), default=0.0)
+
+    @property
+    def first_move_start_s(self) -> float:
+        return min((p.start_s for _, p in self.moves), default=0.0)
+
+    def axis(self, name: str, t):
+        """Summed displacement, velocity, acceleration of one axis at ``t``."""
+        t = np.asarray(t, dtype=float)
+        out = [np.zeros_like(t), np.zeros_like(t), np.zeros_like(t)]
+        for ax, prof in self.moves:
+            if ax == name:
+                for o, val in zip(out, prof.evaluate(t)):
+                    o += val
+        return out
+
+    def evaluate(self, t):
+        """Suspension point and rope length with derivatives at time(s) ``t``.
+
+        Returns
+        -------
+        dict
+            ``p``, ``dp``, ``ddp``: arrays ``t.shape + (3,)`` [m, m/s, m/s^2];
+            ``L``, ``dL``, ``ddL``: rope length and derivatives [m, m/s, m/s^2].
+        """
+        t = np.asarray(t, dtype=float)
+        X, dX, ddX = self.axis("x", t)
+        Y, dY, ddY = self.axis("y", t)
+        S, dS, ddS = self.axis("slew", t)
+        R, dR, ddR = self.axis("radius", t)
+        H, dH, ddH = self.axis("hoist", t)
+        x0, y0, z0 = self.origin_m
+        rho0 = math.hypot(x0, y0)
+        phi0 = math.atan2(y0, x0)
+        rho = rho0 + R
+        phi = phi0 + S
+        c, s = np.cos(phi), np.sin(phi)
+        ar = ddR - rho * dS**2
+        at = rho * ddS + 2 * dR * dS
+        p = np.stack([X + rho * c, Y + rho * s, np.full_like(t, z0)], axis=-1)
+        dp = np.stack([dX + dR * c - rho * dS * s, dY + dR * s + rho * dS * c,
+                       np.zeros_like(t)], axis=-1)
+        ddp = np.stack([ddX + ar * c - at * s, ddY + ar * s + at * c,
+                        np.zeros_like(t)], axis=-1)
+        return {"p": p, "dp": dp, "ddp": ddp,
+                "L": self.rope_length_m - H, "dL": -dH, "ddL": -ddH}
+
+    def local(self, t0: float, t1: float):
+        """A fast scalar evaluator valid on [t0, t1], between two breakpoints.
+
+        Returns a function ``f(t) -> (px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL)``
+        using pure-Python arithmetic on each axis's local cubic, or a slower
+        general evaluator when some profile is not one cubic on the interval.
+        """
+        polys = {}
+        for name in AXES:
+            tot = [0.0, 0.0, 0.0, 0.0]
+            for ax, prof in self.moves:
+                if ax != name:
+                    continue
+                c = prof.local_poly(t0, t1)
+                if c is None:
+                    polys = None
+                    break
+                for i in range(4):
+                    tot[i] += c[i]
+            if polys is None:
+                break
+            polys[name] = tuple(tot)
+        if polys is None:
+            def general(t):
+                e = self.evaluate(np.array(t))
+                p, dp, ddp = e["p"], e["dp"], e["ddp"]
+                return (float(p[0]), float(p[1]), float(p[2]), float(dp[0]), float(dp[1]),
+                        0.0, float(ddp[0]), float(ddp[1]), 0.0,
+                        float(e["L"]), float(e["dL"]), float(e["ddL"]))
+            return general
+
+        x0, y0, z0 = self.origin_m
+        rho0 = math.hypot(x0, y0)
+        phi0 = math.atan2(y0, x0)
+        L0 = self.rope_length_m
+        cx, cy, cs, cr, ch = (polys[a] for a in AXES)
+        slewing = any(cs[1:]) or any(cr[1:]) or cs[0] != 0.0 or cr[0] != 0.0
+        cos, sin = math.cos, math.sin
+
+        def fast(t):
+            tau = t - t0
+            X = cx[0] + tau * (cx[1] + tau * (cx[2] + tau * cx[3]))
+            dX = cx[1] + tau * (2 * cx[2] + 3 * tau * cx[3])
+            ddX = 2 * cx[2] + 6 * tau * cx[3]
+            Y = cy[0] + tau * (cy[1] + tau * (cy[2] + tau * cy[3]))
+            dY = cy[1] + tau * (2 * cy[2] + 3 * tau * cy[3])
+            ddY = 2 * cy[2] + 6 * tau * cy[3]
+            H = ch[0] + tau * (ch[1] + tau * (ch[2] + tau * ch[3]))
+            dH = ch[1] + tau * (2 * ch[2] + 3 * tau * ch[3])
+            ddH = 2 * ch[2] + 6 * tau * ch[3]
+            if slewing:
+                S = cs[0] + tau * (cs[1] + tau * (cs[2] + tau * cs[3]))
+                dS = cs[1] + tau * (2 * cs[2] + 3 * tau * cs[3])
+                ddS = 2 * cs[2] + 6 * tau * cs[3]
+                R = cr[0] + tau * (cr[1] + tau * (cr[2] + tau * cr[3]))
+                dR = cr[1] + tau * (2 * cr[2] + 3 * tau * cr[3])
+                ddR = 2 * cr[2] + 6 * tau * cr[3]
+                rho = rho0 + R
+                phi = phi0 + S
+                c, s = cos(phi), sin(phi)
+                ar = ddR - rho * dS * dS
+                at = rho * ddS + 2 * dR * dS
+                return (X + rho * c, Y + rho * s, z0,
+                        dX + dR * c - rho * dS * s, dY + dR * s + rho * dS * c, 0.0,
+                        ddX + ar * c - at * s, ddY + ar * s + at * c, 0.0,
+                        L0 - H, -dH, -ddH)
+            return (x0 + X, y0 + Y, z0, dX, dY, 0.0, ddX, ddY, 0.0, L0 - H, -dH, -ddH)
+
+        return fast

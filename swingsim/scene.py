@@ -1,0 +1,456 @@
+"""Scene files (TOML) -> validated, frozen :class:`Scene` objects.
+
+Every error names the file, the key path, the value and what is allowed, and
+suggests the nearest known key when a key is unknown.  The schema lives in
+``schema.py``.  Nothing in a scene file is evaluated: it is data only.
+"""
+
+from __future__ import annotations
+
+import copy
+import csv
+import difflib
+import math
+import re
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from . import schema as S
+from .errors import SceneError
+
+__all__ = ["Scene", "Move", "Zone", "load_scene", "scene_from_dict", "read_table"]
+
+
+@dataclass(frozen=True)
+class Crane:
+    suspension_m: tuple
+    kind: str
+    wind_limit_m_s: float
+
+
+@dataclass(frozen=True)
+class Rope:
+    length_m: float
+    diameter_m: float | None
+    drag_coefficient: float
+    wll_kN: float | None
+
+
+@dataclass(frozen=True)
+class Load:
+    mass_kg: float
+    size_m: tuple | None
+    wind_area_m2: float | None
+    drag_coefficient: float
+
+
+@dataclass(frozen=True)
+class Start:
+    swing_deg: tuple
+    swing_rate_deg_s: tuple
+
+
+@dataclass(frozen=True)
+class Wind:
+    speed_m_s: float
+    direction_deg: float
+    air_density_kg_m3: float
+
+
+@dataclass(frozen=True)
+class Limits:
+    swing_caution_deg: float
+    settle_deg: float
+    clearance_m: float | None
+
+
+@dataclass(frozen=True)
+class Move:
+    """One move of one axis, in the scene's own units (deg for slew)."""
+
+    index: int
+    axis: str
+    profile: str
+    start_s: float
+    label: str
+    distance: float | None = None  # m, or deg for slew
+    speed: float | None = None
+    accel: float | None = None
+    decel: float | None = None
+    jerk: float | None = None
+    table: tuple | None = None  # (times_s, positions) when profile == "table"
+    extra: dict = field(default_factory=dict)  # further keys for profiles added later
+
+    @property
+    def name(self) -> str:
+        return self.label or f"move {self.index} ({self.axis})"
+
+
+@dataclass(frozen=True)
+class Zone:
+    name: str
+    kind: str
+    min_m: tuple
+    max_m: tuple
+    margin_m: float
+
+
+@dataclass(frozen=True, eq=False)
+class Scene:
+    """A validated lift scene (SI units; angles in degrees as in the file)."""
+
+    title: str
+    duration_s: float
+    gravity_m_s2: float
+    crane: Crane
+    rope: Rope
+    load: Load
+    start: Start
+    moves: tuple
+    damping_ratio: float
+    wind: Wind
+    sample_hz: float
+    limits: Limits
+    zones: tuple
+    notes: str = ""
+    file: str = "<scene>"
+    base_dir: Path = field(default_factory=Path)
+    raw: dict = field(default_factory=dict)
+
+    @property
+    def name(self) -> str:
+        return Path(self.file).stem if self.file != "<scene>" else "scene"
+
+
+# ----------------------------------------------------------------------------
+# reading
+
+
+def _toml_error_line(exc: tomllib.TOMLDecodeError) -> int | None:
+    lineno = getattr(exc, "lineno", None)
+    if lineno:
+        return int(lineno)
+    m = re.search(r"line (\d+)", str(exc))
+    return int(m.group(1)) if m else None
+
+
+def load_scene(path, *, validate_motion: bool = True) -> Scene:
+    """Read and validate a scene file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The TOML scene file.
+
+    Raises
+    ------
+    SceneError
+        With a one-line message naming file, key, value and what is allowed.
+    """
+    path = Path(path)
+    shown = str(path)
+    if not path.exists():
+        raise SceneError(shown, "", "file not found")
+    if not path.is_file():
+        raise SceneError(shown, "", "not a file")
+    try:
+        raw_bytes = path.read_bytes()
+    except OSError as exc:
+        raise SceneError(shown, "", f"cannot read: {exc.strerror}") from None
+    try:
+        text = raw_bytes.decode("utf-8")
+    except UnicodeDecodeError:
+        raise SceneError(shown, "", "not a UTF-8 text file (a scene is a TOML text file)") from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        msg = str(exc).split(" (at ")[0]
+        raise SceneError(shown, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
+    return scene_from_dict(data, file=shown, base_dir=path.parent, validate_motion=validate_motion)
+
+
+def _suggest(name: str, allowed) -> str:
+    near = difflib.get_close_matches(name, list(allowed), n=1, cutoff=0.6)
+    hint = f" (did you mean '{near[0]}'?)" if near else ""
+    return f"unknown key{hint}; allowed: {', '.join(allowed)}"
+
+
+class _Reader:
+    def __init__(self, file: str, base_dir: Path):
+        self.file = file
+        self.base_dir = base_dir
+
+    def err(self, key, problem, value=SceneError._MISSING):
+        return SceneError(self.file, key, problem, value)
+
+    def check_unknown(self, table: dict, keys: dict, prefix: str):
+        for name in table:
+            if name not in keys:
+                raise self.err(f"{prefix}{name}", _suggest(name, keys))
+
+    def value(self, table: dict, name: str, key: S.Key, where: str):
+        if name not in table:
+            if key.required:
+                raise self.err(where, f"missing required key; expected {key.allowed()}")
+            return copy.copy(key.default)
+        v = table[name]
+        k = key.kind
+
+        def bad():
+            return self.err(where, f"expected {key.allowed()}", v)
+
+        if k == "str":
+            if not isinstance(v, str):
+                raise bad()
+            if key.choices and v not in key.choices:
+                near = difflib.get_close_matches(v, key.choices, n=1, cutoff=0.6)
+                hint = f" (did you mean '{near[0]}'?)" if near else ""
+                raise self.err(where, f"expected {key.allowed()}{hint}", v)
+            return v
+        if k == "bool":
+            if not isinstance(v, bool):
+                raise bad()
+            return v
+        if k == "int":
+            if isinstance(v, bool) or not isinstance(v, int) or not key.in_bounds(float(v)):
+                raise bad()
+            return v
+        if k == "float":
+            if isinstance(v, bool) or not isinstance(v, (int, float)):
+                raise bad()
+            x = float(v)
+            if not key.in_bounds(x):
+                raise bad()
+            return x
+        if k in ("vec2", "vec3", "floats"):
+            n = {"vec2": 2, "vec3": 3}.get(k)
+            if not isinstance(v, list) or (n is not None and len(v) != n) or (n is None and not v):
+                raise bad()
+            out = []
+            for x in v:
+                if isinstance(x, bool) or not isinstance(x, (int, float)) or not key.in_bounds(float(x)):
+                    raise bad()
+                out.append(float(x))
+            return tuple(out)
+        if k == "floats_or_float":
+            if isinstance(v, (int, float)) and not isinstance(v, bool):
+                if not key.in_bounds(float(v)):
+                    raise bad()
+                return float(v)
+            return self.value({name: v}, name, S.Key("floats", key.doc, gt=key.gt, ge=key.ge,
+                                                      lt=key.lt, le=key.le), where)
+        if k == "vec3s":
+            if not isinstance(v, list) or not v:
+                raise bad()
+            pts = []
+            for p in v:
+                if (not isinstance(p, list) or len(p) != 3 or
+                        any(isinstance(x, bool) or not isinstance(x, (int, float))
+                            or not math.isfinite(float(x)) for x in p)):
+                    raise bad()
+                pts.append(tuple(float(x) for x in p))
+            return tuple(pts)
+        if k == "path":
+            if not isinstance(v, str) or not v or "\x00" in v:
+                raise bad()
+            return v
+        raise AssertionError(k)  # pragma: no cover
+
+    def table(self, data: dict, name: str, keys: dict, required: bool = False) -> dict:
+        t = data.get(name, {})
+        if name not in data and required:
+            raise self.err(f"[{name}]", "missing required table")
+        if not isinstance(t, dict):
+            raise self.err(name, "expected a table ([" + name + "])", t)
+        self.check_unknown(t, keys, f"{name}.")
+        return {k: self.value(t, k, key, f"{name}.{k}") for k, key in keys.items()}
+
+
+_LINEAR = {"distance": "distance_m", "speed": "speed_m_s", "accel": "accel_m_s2",
+           "decel": "decel_m_s2", "jerk": "jerk_m_s3"}
+_ANGULAR = {"distance": "angle_deg", "speed": "speed_deg_s", "accel": "accel_deg_s2",
+            "decel": "decel_deg_s2", "jerk": "jerk_deg_s3"}
+
+#: Profile name -> the quantities it needs ("table" needs a file instead).
+PROFILE_NEEDS = {
+    "trapezoid": ("distance", "speed", "accel"),
+    "s-curve": ("distance", "speed", "accel", "jerk"),
+    "table": (),
+}
+#: Optional quantities of each profile.
+PROFILE_OPTIONAL = {
+    "trapezoid": ("decel",),
+    "s-curve": ("decel",),
+    "table": (),
+}
+
+
+def read_table(file: str, base_dir: Path, key: str, axis: str):
+    """Read a table profile's CSV: header ``t_s,position_m`` (``t_s,angle_deg`` for slew)."""
+    p = Path(file)
+    full = p if p.is_absolute() else base_dir / p
+    want = "angle_deg" if axis == "slew" else "position_m"
+    if not full.exists():
+        raise SceneError(file, "", f"table file not found (named by {key})")
+    if not full.is_file():
+        raise SceneError(file, "", f"not a file (named by {key})")
+    try:
+        text = full.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        raise SceneError(file, "", f"cannot be read as UTF-8 text (named by {key})") from None
+    rows = [r for r in csv.reader(text.splitlines()) if r and not r[0].lstrip().startswith("#")]
+    if not rows:
+        raise SceneError(file, "", f"empty table; expected a header t_s,{want}")
+    header = [h.strip() for h in rows[0]]
+    if header != ["t_s", want]:
+        raise SceneError(file, "header", f"expected exactly 't_s,{want}' for axis {axis}", ",".join(header))
+    ts, xs = [], []
+    for i, r in enumerate(rows[1:], start=2):
+        if len(r) != 2:
+            raise SceneError(file, f"row {i}", "expected 2 columns", ",".join(r))
+        try:
+            t, x = float(r[0]), float(r[1])
+        except ValueError:
+            raise SceneError(file, f"row {i}", "expected two numbers", ",".join(r)) from None
+        if not (math.isfinite(t) and math.isfinite(x)):
+            raise SceneError(file, f"row {i}", "values must be finite numbers", ",".join(r))
+        ts.append(t)
+        xs.append(x)
+    if len(ts) < 2:
+        raise SceneError(file, "", "a table needs at least two data rows")
+    if ts[0] != 0.0:
+        raise SceneError(file, "row 2", "the first time must be 0 (times count from the move's start)", ts[0])
+    for i in range(1, len(ts)):
+        if ts[i] <= ts[i - 1]:
+            raise SceneError(file, f"row {i + 2}", "times must increase strictly", ts[i])
+    return tuple(ts), tuple(xs)
+
+
+def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str = ".",
+                    validate_motion: bool = True) -> Scene:
+    """Validate a parsed scene document (a dict as ``tomllib`` returns it)."""
+    base_dir = Path(base_dir)
+    r = _Reader(file, base_dir)
+    if not isinstance(data, dict):
+        raise r.err("", "a scene must be a TOML document of tables")
+    known = set(S.TOP) | set(S.TABLES) | set(S.ARRAYS) | set(EXTRA_TABLES)
+    for name in data:
+        if name not in known:
+            raise r.err(name, _suggest(name, sorted(known)))
+    top = {}
+    for name, key in S.TOP.items():
+        top[name] = r.value(data, name, key, name)
+    for name in S.TABLES:
+        if name in data and not isinstance(data[name], dict):
+            raise r.err(name, f"expected a table [{name}]", data[name])
+    crane = r.table(data, "crane", S.TABLES["crane"], required=True)
+    rope = r.table(data, "rope", S.TABLES["rope"], required=True)
+    load = r.table(data, "load", S.TABLES["load"], required=True)
+    start = r.table(data, "start", S.TABLES["start"])
+    damping = r.table(data, "damping", S.TABLES["damping"])
+    wind = r.table(data, "wind", S.TABLES["wind"])
+    output = r.table(data, "output", S.TABLES["output"])
+    limits = r.table(data, "limits", S.TABLES["limits"])
+
+    moves = []
+    raw_moves = data.get("moves", [])
+    if not isinstance(raw_moves, list) or any(not isinstance(m, dict) for m in raw_moves):
+        raise r.err("moves", "expected an array of tables [[moves]]", raw_moves)
+    for i, m in enumerate(raw_moves):
+        moves.append(_read_move(r, m, i, top["duration_s"]))
+
+    zones = []
+    raw_zones = data.get("zones", [])
+    if not isinstance(raw_zones, list) or any(not isinstance(z, dict) for z in raw_zones):
+        raise r.err("zones", "expected an array of tables [[zones]]", raw_zones)
+    for i, z in enumerate(raw_zones):
+        r.check_unknown(z, S.ZONE, f"zones[{i}].")
+        v = {k: r.value(z, k, key, f"zones[{i}].{k}") for k, key in S.ZONE.items()}
+        if any(a >= b for a, b in zip(v["min_m"], v["max_m"])):
+            raise r.err(f"zones[{i}].max_m", "must exceed min_m in every coordinate", list(v["max_m"]))
+        zones.append(Zone(**v))
+
+    scene = Scene(
+        title=top["title"], duration_s=top["duration_s"], gravity_m_s2=top["gravity_m_s2"],
+        notes=top["notes"],
+        crane=Crane(**crane), rope=Rope(**rope), load=Load(**load),
+        start=Start(**start), moves=tuple(moves), damping_ratio=damping["ratio"],
+        wind=Wind(**wind), sample_hz=output["sample_hz"], limits=Limits(**limits),
+        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data),
+    )
+    for hook in EXTRA_VALIDATORS:
+        scene = hook(r, data, scene)
+    if validate_motion:
+        from .motion.build import build_motion  # local: motion imports nothing from here
+
+        build_motion(scene)
+    return scene
+
+
+#: Tables added by model extensions: name -> schema (read by their validators).
+EXTRA_TABLES: dict[str, dict] = {}
+#: Functions ``(reader, data, scene) -> scene`` that validate extension tables.
+EXTRA_VALIDATORS: list = []
+
+
+def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
+    where = f"moves[{i}]"
+    r.check_unknown(m, S.MOVE, f"{where}.")
+    v = {k: r.value(m, k, key, f"{where}.{k}") for k, key in S.MOVE.items()}
+    axis, profile = v["axis"], v["profile"]
+    names = _ANGULAR if axis == "slew" else _LINEAR
+    other = _LINEAR if axis == "slew" else _ANGULAR
+    for q, key in other.items():
+        if key in m:
+            kind = "a slew move" if axis == "slew" else f"a linear ({axis}) move"
+            raise r.err(f"{where}.{key}", f"not a key of {kind}; use {names[q]}", m[key])
+    needs = PROFILE_NEEDS.get(profile, ())
+    optional = PROFILE_OPTIONAL.get(profile, ())
+    for q in names:
+        key = names[q]
+        if q in needs and v[key] is None:
+            raise r.err(f"{where}.{key}", f"missing; profile '{profile}' needs "
+                        + ", ".join(names[n] for n in needs))
+        if q not in needs and q not in optional and key in m:
+            raise r.err(f"{where}.{key}", f"not used by profile '{profile}'", m[key])
+    if profile == "table":
+        if v["table_file"] is None:
+            raise r.err(f"{where}.table_file", "missing; profile 'table' needs a CSV file")
+        table = read_table(v["table_file"], r.base_dir, f"{where}.table_file", axis)
+    else:
+        if v["table_file"] is not None:
+            raise r.err(f"{where}.table_file", f"only for profile 'table', not '{profile}'", v["table_file"])
+        table = None
+        if v[names["distance"]] == 0.0:
+            raise r.err(f"{where}.{names['distance']}", "must not be zero", 0.0)
+    if v["start_s"] >= duration_s:
+        raise r.err(f"{where}.start_s", f"must be before the end of the simulation (duration_s = "
+                    f"{duration_s:g})", v["start_s"])
+    extra = {k: m[k] for k in m if k in S.MOVE and k not in _LINEAR.values()
+             and k not in _ANGULAR.values() and k not in ("axis", "profile", "start_s", "label", "table_file")}
+    return Move(index=i, axis=axis, profile=profile, start_s=v["start_s"], label=v["label"],
+                distance=v[names["distance"]], speed=v[names["speed"]], accel=v[names["accel"]],
+                decel=v[names["decel"]], jerk=v[names["jerk"]], table=table, extra=extra)
+
+
+def set_dotted(data: dict, dotted: str, value: Any) -> dict:
+    """Return a deep copy of ``data`` with ``dotted`` (e.g. ``moves.0.accel_m_s2``) set."""
+    out = copy.deepcopy(data)
+    parts = dotted.split(".")
+    cur: Any = out
+    for j, part in enumerate(parts[:-1]):
+        if isinstance(cur, list):
+            idx = int(part)
+            cur = cur[idx]
+        else:
+            if part not in cur:
+                cur[part] = {}
+            cur = cur[part]
+    last = parts[-1]
+    if isinstance(cur, list):
+        cur[int(last)] = value
+    else:
+        cur[last] = value
+    return out

@@ -1,0 +1,204 @@
+"""The scene-file schema: every key, its type, unit, default, range and meaning.
+
+This table is the single source of truth for validation (``scene.py``) and for
+the key reference in ``docs/scene-reference.md`` (``python -m swingsim.schema``
+regenerates it; a test checks that the two agree).  SI units everywhere; each
+quantity's unit is in its key name.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from . import constants as C
+
+
+@dataclass(frozen=True)
+class Key:
+    """One scene key.
+
+    kind: ``float``, ``int``, ``str``, ``bool``, ``vec2``, ``vec3``,
+    ``floats`` (list of numbers), ``path`` (a file relative to the scene).
+    ``gt``/``ge``/``le``/``lt`` bound numbers (and each component of vectors).
+    """
+
+    kind: str
+    doc: str
+    required: bool = False
+    default: Any = None
+    gt: float | None = None
+    ge: float | None = None
+    lt: float | None = None
+    le: float | None = None
+    choices: tuple | None = None
+
+    def allowed(self) -> str:
+        """Human-readable statement of the allowed values."""
+        if self.choices:
+            return "one of " + ", ".join(repr(c) for c in self.choices)
+        what = {
+            "float": "a number", "int": "an integer", "str": "a string",
+            "bool": "true or false", "vec2": "a list of 2 numbers",
+            "vec3": "a list of 3 numbers [x, y, z]", "floats": "a list of numbers",
+            "path": "a path to a file (relative to the scene file)",
+            "floats_or_float": "a number or a list of numbers",
+            "vec3s": "a list of [x, y, z] points",
+        }[self.kind]
+        bounds = []
+        if self.gt is not None:
+            bounds.append(f"> {self.gt:g}")
+        if self.ge is not None:
+            bounds.append(f">= {self.ge:g}")
+        if self.lt is not None:
+            bounds.append(f"< {self.lt:g}")
+        if self.le is not None:
+            bounds.append(f"<= {self.le:g}")
+        if bounds:
+            what += " " + " and ".join(bounds)
+        if self.kind in ("float", "vec2", "vec3", "floats", "floats_or_float", "vec3s"):
+            what += " (finite)"
+        return what
+
+    def in_bounds(self, x: float) -> bool:
+        if not math.isfinite(x):
+            return False
+        if self.gt is not None and not x > self.gt:
+            return False
+        if self.ge is not None and not x >= self.ge:
+            return False
+        if self.lt is not None and not x < self.lt:
+            return False
+        if self.le is not None and not x <= self.le:
+            return False
+        return True
+
+
+TOP = {
+    "title": Key("str", "Title of the lift, shown on every output.", required=True),
+    "duration_s": Key("float", "Simulated time from t = 0 [s].", required=True, gt=0.0),
+    "gravity_m_s2": Key("float", "Gravitational acceleration [m/s^2]; standard gravity by default.",
+                        default=C.STANDARD_GRAVITY, gt=0.0),
+    "notes": Key("str", "Free text about the lift (not used in the calculation).", default=""),
+}
+
+TABLES: dict[str, dict[str, Key]] = {
+    "crane": {
+        "suspension_m": Key("vec3", "Suspension point (trolley sheave or boom tip) at t = 0, [x, y, z], z up [m].",
+                            required=True),
+        "kind": Key("str", "Crane type, for drawing and wording: tower (mast, jib, counter-jib), "
+                    "gantry or bridge (beam on rails), mobile (boom).", default="tower",
+                    choices=("tower", "gantry", "bridge", "mobile")),
+        "wind_limit_m_s": Key("float", "In-service wind speed limit of this crane [m/s]; "
+                              f"default {C.IN_SERVICE_WIND_LIMIT_M_S:g} m/s is a rule of thumb only: "
+                              "take the real value from the crane manufacturer.",
+                              default=C.IN_SERVICE_WIND_LIMIT_M_S, gt=0.0),
+    },
+    "rope": {
+        "length_m": Key("float", "Hoist rope length from the suspension point to the hook, "
+                        "or to the load when there is no hook block [m].", required=True, gt=0.0),
+        "diameter_m": Key("float", "Rope diameter [m]; when set, wind acts on the rope too.", gt=0.0, lt=1.0),
+        "drag_coefficient": Key("float", "Drag coefficient of the rope across the wind [-] "
+                                "(default: circular cylinder, from memory).",
+                                default=C.ROPE_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+        "wll_kN": Key("float", "Working load limit of the hoist rope reeving [kN]; a caution is raised "
+                      "when the peak dynamic tension exceeds it.", gt=0.0),
+    },
+    "load": {
+        "mass_kg": Key("float", "Mass of the load including its rigging [kg].", required=True, gt=0.0),
+        "size_m": Key("vec3", "Overall size of the load [lx, ly, lz] [m], for drawing and clearance.", gt=0.0),
+        "wind_area_m2": Key("float", "Projected area of the load facing the wind [m^2]; no wind "
+                            "force on the load when unset.", ge=0.0),
+        "drag_coefficient": Key("float", "Drag (force) coefficient of the load [-].",
+                                default=C.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+    },
+    "start": {
+        "swing_deg": Key("vec2", "Initial rope angle from vertical [in_xz, in_yz]: projected on the x-z plane "
+                         "(positive toward +x) and on the y-z plane (positive toward +y) [deg].",
+                         default=(0.0, 0.0), gt=-89.0, lt=89.0),
+        "swing_rate_deg_s": Key("vec2", "Initial rate of those two projected angles [deg/s].",
+                                default=(0.0, 0.0)),
+    },
+    "damping": {
+        "ratio": Key("float", "Equivalent viscous damping ratio of the swing [-].", default=0.0, ge=0.0, lt=1.0),
+    },
+    "wind": {
+        "speed_m_s": Key("float", "Steady wind speed at load height [m/s].", default=0.0, ge=0.0),
+        "direction_deg": Key("float", "Direction the wind blows toward, from +x toward +y [deg].", default=0.0),
+        "air_density_kg_m3": Key("float", "Air density [kg/m^3]; ISO 2533 sea level by default.",
+                                 default=C.AIR_DENSITY_SEA_LEVEL, gt=0.0, le=2.0),
+    },
+    "output": {
+        "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=C.SAMPLE_HZ, ge=1.0, le=1000.0),
+    },
+    "limits": {
+        "swing_caution_deg": Key("float", "Rope angle that raises a swing caution [deg] (rule of thumb default).",
+                                 default=C.SWING_CAUTION_DEG, gt=0.0, lt=90.0),
+        "settle_deg": Key("float", "Swing about the rest position below which the load counts as settled "
+                          "for landing [deg] (rule of thumb default).", default=C.SETTLE_SWING_DEG,
+                          gt=0.0, lt=45.0),
+        "clearance_m": Key("float", "Largest allowed horizontal excursion of the load from the plumb line "
+                           "below the suspension point [m].", gt=0.0),
+    },
+}
+
+MOVE = {
+    "axis": Key("str", "Axis that moves.", required=True, choices=("x", "y", "slew", "radius", "hoist")),
+    "profile": Key("str", "Motion profile.", required=True, choices=("trapezoid", "s-curve", "table")),
+    "start_s": Key("float", "Start time of the move [s].", default=0.0, ge=0.0),
+    "distance_m": Key("float", "Signed travel of a linear axis (x, y, radius, hoist) [m]; "
+                      "a positive hoist raises the load."),
+    "speed_m_s": Key("float", "Speed limit of a linear axis [m/s].", gt=0.0),
+    "accel_m_s2": Key("float", "Acceleration of a linear axis [m/s^2].", gt=0.0),
+    "decel_m_s2": Key("float", "Deceleration of a linear axis [m/s^2]; default equal to accel_m_s2.", gt=0.0),
+    "jerk_m_s3": Key("float", "Jerk limit of a linear s-curve move [m/s^3].", gt=0.0),
+    "angle_deg": Key("float", "Signed slew angle, counter-clockwise seen from above [deg]."),
+    "speed_deg_s": Key("float", "Slew speed limit [deg/s].", gt=0.0),
+    "accel_deg_s2": Key("float", "Slew acceleration [deg/s^2].", gt=0.0),
+    "decel_deg_s2": Key("float", "Slew deceleration [deg/s^2]; default equal to accel_deg_s2.", gt=0.0),
+    "jerk_deg_s3": Key("float", "Slew jerk limit of an s-curve move [deg/s^3].", gt=0.0),
+    "table_file": Key("path", "CSV of a recorded move for profile = \"table\": header t_s,position_m "
+                      "(or t_s,angle_deg for slew), time from the move's start, displacement relative "
+                      "to the first row; interpolated by a clamped C2 cubic spline."),
+    "label": Key("str", "Name of the move on plots and in the summary.", default=""),
+}
+
+ZONE = {
+    "name": Key("str", "Name of the obstacle or zone.", required=True),
+    "kind": Key("str", "obstacle (a structure the load must not touch) or exclusion (an area to keep "
+                "the load out of, e.g. where people work).", default="obstacle",
+                choices=("obstacle", "exclusion")),
+    "min_m": Key("vec3", "Lower corner of the zone's box [x, y, z] [m].", required=True),
+    "max_m": Key("vec3", "Upper corner of the zone's box [x, y, z] [m].", required=True),
+    "margin_m": Key("float", "Distance from the zone within which a caution is raised [m].",
+                    default=1.0, ge=0.0),
+}
+
+ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
+
+
+def reference_markdown() -> str:
+    """The scene key reference as Markdown (docs/scene-reference.md)."""
+    out = ["# Scene file reference", "",
+           "Generated from `swingsim/schema.py` by `python -m swingsim.schema`; do not edit by hand.",
+           "SI units; every quantity's unit is in its key name.", ""]
+
+    def table(title, keys):
+        out.extend([f"## {title}", "", "| key | required | default | allowed | meaning |",
+                    "|---|---|---|---|---|"])
+        for name, k in keys.items():
+            d = "" if k.default is None else repr(k.default) if not isinstance(k.default, float) else f"{k.default:g}"
+            out.append(f"| `{name}` | {'yes' if k.required else 'no'} | {d} | {k.allowed()} | {k.doc} |")
+        out.append("")
+
+    table("Top level", TOP)
+    for name, keys in TABLES.items():
+        table(f"[{name}]", keys)
+    for name, keys in ARRAYS.items():
+        table(f"[[{name}]]", keys)
+    return "\n".join(out)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    print(reference_markdown())

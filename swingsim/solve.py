@@ -1,0 +1,163 @@
+"""Integrate one scene: scipy ``solve_ivp`` (DOP853), restarted at every breakpoint.
+
+Stopping and restarting exactly at each profile breakpoint keeps the jumps in
+acceleration (or jerk) of the crane's motion out of the integrator's error
+estimate, so they are not smeared.  The result is a :class:`Trajectory` with a
+dense interpolant valid at any time, so that a frame or a sample at any
+instant shows the state at exactly that instant.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.integrate import solve_ivp
+
+from . import constants as C
+from .motion.build import build_motion
+from .motion.crane import Motion
+
+#: Model classes by name; extensions register here (see DEVELOPERS.md).
+MODELS: dict = {}
+#: Functions ``scene -> model name or None`` tried in order to pick a model.
+MODEL_SELECTORS: list = []
+
+
+def select_model(scene):
+    """The model that fits the scene (point mass unless an extension claims it)."""
+    from .dynamics.pendulum import PointMassModel
+
+    for sel in MODEL_SELECTORS:
+        name = sel(scene)
+        if name:
+            return MODELS[name](scene)
+    return PointMassModel(scene)
+
+
+@dataclass
+class Trajectory:
+    """The solved motion of a scene.
+
+    Attributes
+    ----------
+    scene, model, motion
+        What was solved.
+    t_end_s : float
+        Last instant with a valid state (the scene's duration unless the run stopped early).
+    status : str
+        ``"ok"``, or why the run stopped early: ``"slack"`` (the rope would go
+        slack), ``"overswing"`` (the swing reached the model's limit),
+        ``"nonfinite"`` or ``"solver"`` (the integrator failed).
+    message : str
+        Explanation for a status other than ``"ok"``.
+    """
+
+    scene: object
+    model: object
+    motion: Motion
+    pieces: list = field(default_factory=list)  # (t0, t1, OdeSolution)
+    t_end_s: float = 0.0
+    status: str = "ok"
+    message: str = ""
+    nfev: int = 0
+
+    @property
+    def valid(self) -> bool:
+        return self.status == "ok"
+
+    def state(self, t) -> np.ndarray:
+        """State(s) at time(s) ``t`` [s] from the dense interpolant, shape t.shape + (n,)."""
+        t = np.atleast_1d(np.asarray(t, dtype=float))
+        out = np.empty(t.shape + (len(self.model.state_names),))
+        starts = np.array([p[0] for p in self.pieces])
+        idx = np.clip(np.searchsorted(starts, t, side="right") - 1, 0, len(self.pieces) - 1)
+        for k in np.unique(idx):
+            sel = idx == k
+            t0, t1, sol = self.pieces[k]
+            out[sel] = sol(np.clip(t[sel], t0, t1)).T
+        return out
+
+    def sample(self, t) -> dict:
+        """All derived quantities of the model at times ``t`` (see the model's ``outputs``)."""
+        t = np.atleast_1d(np.asarray(t, dtype=float))
+        d = self.model.outputs(t, self.state(t), self.motion)
+        d["t"] = t
+        return d
+
+    def sample_times(self, rate_hz: float | None = None) -> np.ndarray:
+        """Uniform sample times from 0 to ``t_end_s`` (the end included)."""
+        rate = self.scene.sample_hz if rate_hz is None else rate_hz
+        n = int(math.floor(self.t_end_s * rate + 1e-9))
+        t = np.arange(n + 1) / rate
+        if t[-1] < self.t_end_s - 1e-9:
+            t = np.append(t, self.t_end_s)
+        return t
+
+
+def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -> Trajectory:
+    """Integrate the full nonlinear equations of motion of a scene.
+
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+    rtol, atol : float
+        Tolerances of scipy's DOP853 (8th-order Dormand-Prince) integrator.
+
+    Returns
+    -------
+    Trajectory
+        Check ``status``: a run that the model cannot carry on (slack rope,
+        swing at the model's limit, a failing solver) stops early and says why.
+    """
+    motion = build_motion(scene)
+    model = select_model(scene) if model is None else model
+    y = np.asarray(model.initial_state(motion), dtype=float)
+    T = scene.duration_s
+    cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T})
+    traj = Trajectory(scene, model, motion)
+    for t0, t1 in zip(cuts[:-1], cuts[1:]):
+        if t1 - t0 < 1e-12:
+            continue
+        kin = motion.local(t0, t1)
+        rhs = model.make_rhs(kin)
+        events = model.make_events(kin)
+        names = list(events)
+        with np.errstate(all="ignore"):
+            res = solve_ivp(rhs, (t0, t1), y, method="DOP853", rtol=rtol, atol=atol,
+                            dense_output=True, events=[events[n] for n in names])
+        traj.nfev += res.nfev
+        if res.status == -1 or not np.all(np.isfinite(res.y)):
+            traj.status = "nonfinite" if not np.all(np.isfinite(res.y)) else "solver"
+            traj.message = (f"the integrator failed at t = {res.t[-1]:.3f} s ({res.message}); "
+                            "no result after that instant can be trusted")
+            good = np.all(np.isfinite(res.y), axis=0)
+            last = int(np.argmin(good)) - 1 if not good.all() else len(res.t) - 1
+            if last > 0 and res.sol is not None:
+                traj.pieces.append((t0, float(res.t[last]), res.sol))
+                traj.t_end_s = float(res.t[last])
+            return traj
+        traj.pieces.append((t0, float(res.t[-1]), res.sol))
+        traj.t_end_s = float(res.t[-1])
+        if res.status == 1:
+            for n, te in zip(names, res.t_events):
+                if len(te):
+                    traj.status = n
+                    traj.message = _event_message(n, float(te[0]))
+                    break
+            return traj
+        y = res.y[:, -1]
+    return traj
+
+
+def _event_message(name: str, t: float) -> str:
+    if name == "slack":
+        return (f"the hoist rope would go slack at t = {t:.3f} s (tension falls to zero): "
+                "the load would be thrown or fall, the pendulum model no longer holds, and "
+                "the results stop there")
+    if name == "overswing":
+        return (f"the swing reached {C.MODEL_ANGLE_LIMIT_DEG:g} deg at t = {t:.3f} s, beyond any "
+                "crane's working range and the model's limit; the results stop there")
+    return f"the run stopped at t = {t:.3f} s ({name})"
