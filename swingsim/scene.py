@@ -278,12 +278,27 @@ PROFILE_NEEDS = {
     "trapezoid": ("distance", "speed", "accel"),
     "s-curve": ("distance", "speed", "accel", "jerk"),
     "table": (),
+    "zv": ("distance", "speed", "accel"),
+    "zvd": ("distance", "speed", "accel"),
+    "ei": ("distance", "speed", "accel"),
+    "whole-period": ("distance", "speed", "accel"),
 }
 #: Optional quantities of each profile.
 PROFILE_OPTIONAL = {
     "trapezoid": ("decel",),
     "s-curve": ("decel",),
     "table": (),
+    "zv": ("decel", "jerk"),
+    "zvd": ("decel", "jerk"),
+    "ei": ("decel", "jerk"),
+    "whole-period": ("jerk",),
+}
+#: Keys that only some profiles take (profile -> keys); other profiles refuse them.
+PROFILE_KEYS = {
+    "zv": ("shaper_base", "shaper_period_s", "shaper_damping_ratio"),
+    "zvd": ("shaper_base", "shaper_period_s", "shaper_damping_ratio"),
+    "ei": ("shaper_base", "shaper_period_s", "shaper_damping_ratio", "shaper_tolerance"),
+    "whole-period": ("shaper_period_s",),
 }
 
 
@@ -415,6 +430,11 @@ def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
                         + ", ".join(names[n] for n in needs))
         if q not in needs and q not in optional and key in m:
             raise r.err(f"{where}.{key}", f"not used by profile '{profile}'", m[key])
+    own = PROFILE_KEYS.get(profile, ())
+    for key in sorted({k for ks in PROFILE_KEYS.values() for k in ks}):
+        if key in m and key not in own:
+            users = ", ".join(p for p, ks in PROFILE_KEYS.items() if key in ks)
+            raise r.err(f"{where}.{key}", f"not used by profile '{profile}' (only by {users})", m[key])
     if profile == "table":
         if v["table_file"] is None:
             raise r.err(f"{where}.table_file", "missing; profile 'table' needs a CSV file")

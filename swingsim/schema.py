@@ -145,7 +145,11 @@ TABLES: dict[str, dict[str, Key]] = {
 
 MOVE = {
     "axis": Key("str", "Axis that moves.", required=True, choices=("x", "y", "slew", "radius", "hoist")),
-    "profile": Key("str", "Motion profile.", required=True, choices=("trapezoid", "s-curve", "table")),
+    "profile": Key("str", "Motion profile: trapezoid, s-curve, table, or an input-shaped move: zv, zvd, ei "
+                   "(the trapezoid or s-curve convolved with a zero-vibration, zero-vibration-derivative or "
+                   "extra-insensitive shaper tuned to the swing) or whole-period (acceleration phases "
+                   "lasting whole swing periods); see docs/compare.md.", required=True,
+                   choices=("trapezoid", "s-curve", "table", "zv", "zvd", "ei", "whole-period")),
     "start_s": Key("float", "Start time of the move [s].", default=0.0, ge=0.0),
     "distance_m": Key("float", "Signed travel of a linear axis (x, y, radius, hoist) [m]; "
                       "a positive hoist raises the load."),
@@ -162,6 +166,15 @@ MOVE = {
                       "(or t_s,angle_deg for slew), time from the move's start, displacement relative "
                       "to the first row; interpolated by a clamped C2 cubic spline."),
     "label": Key("str", "Name of the move on plots and in the summary.", default=""),
+    # -- input shaping (profiles zv, zvd, ei, whole-period; swingsim/motion/shaping.py) --
+    "shaper_base": Key("str", "Command that a zv / zvd / ei shaper is applied to; default s-curve when "
+                       "the move gives a jerk limit, trapezoid otherwise.", choices=("trapezoid", "s-curve")),
+    "shaper_period_s": Key("float", "Undamped swing period a shaped or whole-period move is tuned to [s]; "
+                           "default the scene's own first swing mode at the initial rope length.", gt=0.0),
+    "shaper_damping_ratio": Key("float", "Damping ratio a zv / zvd / ei shaper is tuned to [-]; default "
+                                "the scene's damping.ratio.", ge=0.0, lt=1.0),
+    "shaper_tolerance": Key("float", "Residual vibration allowed at the design frequency by an ei shaper "
+                            "(fraction of the unshaped move's) [-].", gt=0.0, lt=0.5),
 }
 
 ZONE = {

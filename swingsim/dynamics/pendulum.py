@@ -39,6 +39,11 @@ from .. import constants as C
 from .forces import drag_coefficient_per_mass
 
 
+def _zero(x) -> bool:
+    """True for a scalar (not an array) equal to zero."""
+    return isinstance(x, (int, float)) and x == 0.0
+
+
 def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par):
     """Applied force per unit mass on the load, gravity included [m/s^2].
 
@@ -47,24 +52,35 @@ def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par):
     """
     s1 = u * du + v * dv
     ndz = s1 / w
+    g = par["g"]
+    # A term whose coefficient is a plain scalar zero is skipped (it would add
+    # exactly zero): the batch engine passes scalar zeros for a whole chunk
+    # without damping, drag or wind.
+    zeta = par["zeta"]
+    if _zero(zeta):
+        fx = fy = 0.0
+        fz = -g + 0.0 * ndz
+    else:
+        c = 2.0 * zeta * (g / L) ** 0.5 * L
+        fx = -c * du
+        fy = -c * dv
+        fz = -g - c * ndz
+    kd = par["kd"]
+    kr = par["kr"]
+    wx, wy = par["wx"], par["wy"]
+    if _zero(kd) and _zero(kr):
+        zero = 0.0 * ndz
+        return fx + zero, fy + zero, fz
     # velocity of the load
     rvx = vpx + dL * u + L * du
     rvy = vpy + dL * v + L * dv
     rvz = vpz - dL * w + L * ndz
-    g = par["g"]
-    c = 2.0 * par["zeta"] * (g / L) ** 0.5 * L
-    fx = -c * du
-    fy = -c * dv
-    fz = -g - c * ndz
-    kd = par["kd"]
-    wx, wy = par["wx"], par["wy"]
     ax_ = rvx - wx
     ay_ = rvy - wy
     sp = (ax_ * ax_ + ay_ * ay_ + rvz * rvz) ** 0.5
     fx = fx - kd * sp * ax_
     fy = fy - kd * sp * ay_
     fz = fz - kd * sp * rvz
-    kr = par["kr"]
     # rope: drag of the cross-flow at the rope's mid-point velocity; half the
     # total acts at the load (the distributed force's moment about the top).
     mx = 0.5 * (vpx + rvx) - wx

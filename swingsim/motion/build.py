@@ -35,6 +35,12 @@ def _table(move, scene, scale):
 
 PROFILE_BUILDERS = {"trapezoid": _trapezoid, "s-curve": _s_curve, "table": _table}
 
+# input shaping (zv, zvd, ei, whole-period): swingsim/motion/shaping.py
+from . import shaping as _shaping  # noqa: E402
+
+PROFILE_BUILDERS.update({name: _shaping.build_shaped for name in _shaping.SHAPERS})
+PROFILE_BUILDERS["whole-period"] = _shaping.build_whole_period
+
 
 def move_key(move) -> str:
     return f"moves[{move.index}]"
