@@ -197,6 +197,10 @@ class PointMassModel:
         overswing.direction = -1
         return {"slack": slack, "overswing": overswing}
 
+    def rest_direction(self, rope_length_m: float) -> np.ndarray:
+        """Rope direction at rest in the steady wind (suspension point still)."""
+        return rest_direction(self.par, rope_length_m)
+
     # -- outputs ---------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
         """Derived quantities at sample times ``t`` for states ``Y`` (N, 4)."""
@@ -219,3 +223,25 @@ class PointMassModel:
             "rope_dir": n, "rope_tension_N": m * tpm, "energy_J": energy,
             "static_rope_load_N": m * g,
         }
+
+
+def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
+    """Unit rope direction of the load hanging at rest in the steady wind.
+
+    At rest relative to a still suspension point the rope lies along the
+    applied force per unit mass (tension balances it); the rope's own drag
+    depends on its direction, so a fixed-point iteration is used (it contracts
+    quickly because the wind force is small against gravity).
+    """
+    u = v = 0.0
+    for _ in range(iterations):
+        w = max(1.0 - u * u - v * v, 1e-12) ** 0.5
+        fx, fy, fz = specific_force(u, v, w, 0.0, 0.0, L, 0.0, 0.0, 0.0, 0.0, par)
+        n = math.sqrt(fx * fx + fy * fy + fz * fz)
+        u_new, v_new = fx / n, fy / n
+        if abs(u_new - u) + abs(v_new - v) < 1e-15:
+            u, v = u_new, v_new
+            break
+        u, v = u_new, v_new
+    w = max(1.0 - u * u - v * v, 0.0) ** 0.5
+    return np.array([u, v, -w])
