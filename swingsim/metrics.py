@@ -158,7 +158,7 @@ def summarize(traj) -> Summary:
     i_exc = int(np.argmax(exc))
     T = s["rope_tension_N"]
     static = float(np.atleast_1d(s["static_rope_load_N"])[0])
-    i_T = int(np.argmax(T))
+    pkT_t, pkT = _refine_max(lambda x: float(traj.sample(np.array([x]))["rope_tension_N"][0]), t, T)
     load_speed = np.linalg.norm(s["load_vel"], axis=1)
     susp_speed = np.linalg.norm(s["suspension_vel"][:, :2], axis=1)
 
@@ -228,11 +228,11 @@ def summarize(traj) -> Summary:
         "rest_rope_angle_deg": float(np.degrees(rope_angle_rad(rest))),
         "peak_excursion_m": float(exc[i_exc]),
         "peak_excursion_time_s": float(t[i_exc]),
-        "peak_rope_tension_kN": float(T[i_T]) / 1e3,
-        "peak_rope_tension_time_s": float(t[i_T]),
+        "peak_rope_tension_kN": pkT / 1e3,
+        "peak_rope_tension_time_s": pkT_t,
         "min_rope_tension_kN": float(np.min(T)) / 1e3,
         "static_rope_tension_kN": static / 1e3,
-        "dynamic_factor": float(T[i_T]) / static,
+        "dynamic_factor": pkT / static,
         "peak_load_speed_m_s": float(np.max(load_speed)),
         "peak_suspension_speed_m_s": float(np.max(susp_speed)),
         "rope_length_start_m": L0,
