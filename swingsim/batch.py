@@ -60,7 +60,7 @@ DEFAULT_STEPS_PER_PERIOD = 12
 #: Samples of the dense interpolant per step.
 DEFAULT_SAMPLES_PER_STEP = 4
 #: Target number of values per sampled array of a chunk.
-_CHUNK_VALUES = 4_000_000
+_CHUNK_VALUES = 400_000
 
 #: Summary keys the batch engine measures (the same names as ``summary.json``).
 SUMMARY_KEYS = (
@@ -167,10 +167,12 @@ def _prepare(scene, steps_per_period) -> _Variant:
     tm = 0.5 * (a0 + a1)
     t2 = a0 + 0.75 * (a1 - a0)
     d = tm - a0
+    both = np.concatenate([tm, t2])
     for ax, prof in motion.moves:
         # each profile is one cubic on each segment: read it off at two interior points
-        p, v, a = prof.evaluate(tm)
-        j = (prof.evaluate(t2)[2] - a) / (t2 - tm)
+        pp, vv, aa = prof.evaluate(both)
+        p, v, a = pp[:nseg], vv[:nseg], aa[:nseg]
+        j = (aa[nseg:] - a) / (t2 - tm)
         c = np.stack([p - v * d + a * d**2 / 2 - j * d**3 / 6, v - a * d + j * d**2 / 2,
                       (a - j * d) / 2, j / 6], axis=-1)
         coef[:, AXES.index(ax)] += c
@@ -183,8 +185,10 @@ def _prepare(scene, steps_per_period) -> _Variant:
         Lmin = L_end = float(motion.rope_length_m)
     hmax = _period(scene, Lmin) / steps_per_period
     n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
-    grid = np.concatenate([np.linspace(cuts[j], cuts[j + 1], n[j] + 1)[:-1] for j in range(nseg)] + [[T]])
     seg = np.repeat(np.arange(nseg), n)
+    first = np.repeat(np.cumsum(n) - n, n)
+    k = np.arange(len(seg)) - first
+    grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
     rest = np.asarray(model.rest_direction(L_end)) if hasattr(model, "rest_direction") \
         else np.array([0.0, 0.0, -1.0])
     return _Variant(scene, motion, model, cuts, coef, grid, seg,
@@ -209,21 +213,40 @@ class _Kin:
         used = np.zeros(len(AXES), dtype=bool)
         for v in variants:
             used |= np.any(v.coef != 0.0, axis=(0, 2))
-        self.slewing = bool(used[AXES.index("slew")] or used[AXES.index("radius")])
+        self.slewing = bool(used[AXES.index("slew")])
+        self.radial = bool(used[AXES.index("radius")]) and not self.slewing
+        self.cos0, self.sin0 = np.cos(self.phi0), np.sin(self.phi0)
         self.used = used
 
+    def rows(self, sel):
+        """The same kinematics restricted to rows ``sel`` of the chunk."""
+        k = object.__new__(_Kin)
+        k.x0, k.y0, k.rho0, k.phi0, k.L0, k.cos0, k.sin0 = (
+            a[sel] for a in (self.x0, self.y0, self.rho0, self.phi0, self.L0, self.cos0, self.sin0))
+        k.slewing, k.radial, k.used = self.slewing, self.radial, self.used
+        return k
+
     def __call__(self, c, tau):
-        """c: (..., 5, 4) coefficients; tau: time from segment start, broadcast with c[..., 0, 0]."""
+        """Kinematics at ``tau`` [s] after each segment start.
+
+        ``c``: (B, ..., 5, 4) cubic coefficients per axis; ``tau``: (B, ...) or
+        (B, ..., S).  Returns vx, vy, ax, ay (suspension point velocity and
+        acceleration), L, dL, ddL (rope length) and the slew rate.
+        """
+        extra = tau.ndim - (c.ndim - 2)
 
         def poly(a):
             k = c[..., a, :]
             k0, k1, k2, k3 = (k[..., i] for i in range(4))
-            if k0.ndim < tau.ndim:
+            if extra:
                 k0, k1, k2, k3 = (x[..., None] for x in (k0, k1, k2, k3))
             pos = k0 + tau * (k1 + tau * (k2 + tau * k3))
             vel = k1 + tau * (2.0 * k2 + 3.0 * tau * k3)
             acc = 2.0 * k2 + 6.0 * tau * k3
             return pos, vel, acc
+
+        def ext(a):
+            return a.reshape(a.shape + (1,) * (tau.ndim - 1))
 
         zero = np.zeros_like(tau)
         ix, iy, isl, ir, ih = range(5)
@@ -231,10 +254,9 @@ class _Kin:
         Y = poly(iy) if self.used[iy] else (zero, zero, zero)
         if self.used[ih]:
             H, dH, ddH = poly(ih)
+            L, dL, ddL = ext(self.L0) - H, -dH, -ddH
         else:
-            H = dH = ddH = zero
-        ext = (lambda a: a[..., None]) if tau.ndim > 1 else (lambda a: a)
-        L = ext(self.L0) - H
+            L, dL, ddL = ext(self.L0) + zero, zero, zero
         if self.slewing:
             S, dS, ddS = poly(isl)
             R, dR, ddR = poly(ir)
@@ -247,9 +269,13 @@ class _Kin:
             vy = Y[1] + dR * sn + rho * dS * cs
             ax = X[2] + ar * cs - at * sn
             ay = Y[2] + ar * sn + at * cs
-        else:
-            vx, vy, ax, ay = X[1], Y[1], X[2], Y[2]
-        return vx, vy, ax, ay, L, -dH, -ddH
+            return vx, vy, ax, ay, L, dL, ddL, dS
+        if self.radial:  # radius moves without slewing: a fixed direction
+            R, dR, ddR = poly(ir)
+            cs, sn = ext(self.cos0), ext(self.sin0)
+            return (X[1] + dR * cs, Y[1] + dR * sn, X[2] + ddR * cs, Y[2] + ddR * sn,
+                    L, dL, ddL, 0.0)
+        return X[1], Y[1], X[2], Y[2], L, dL, ddL, 0.0
 
 
 def _par(variants):
@@ -262,28 +288,46 @@ def _par(variants):
     return out
 
 
-def _ext(par, ndim):
-    if ndim == 1:
-        return par
-    return {k: (a[:, None] if isinstance(a, np.ndarray) else a) for k, a in par.items()}
+def _par_view(par, sel, ndim):
+    out = {}
+    for k, a in par.items():
+        if isinstance(a, np.ndarray):
+            a = a[sel]
+            a = a.reshape(a.shape + (1,) * (ndim - 1))
+        out[k] = a
+    return out
 
 
 def _rhs(y, kin, par):
-    """Derivatives of the chunk's states y (4, ...) with kinematics tuple ``kin``."""
+    """Derivatives of the chunk's states y (4, B) with kinematics tuple ``kin``."""
     u, v, du, dv = y
-    vx, vy, ax, ay, L, dL, ddL = kin
+    vx, vy, ax, ay, L, dL, ddL, om = kin
     w = np.sqrt(1.0 - u * u - v * v)
-    zero = 0.0
-    fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, zero, par)
-    ddu, ddv = accelerations(u, v, du, dv, L, dL, ax, ay, zero, fx, fy, fz)
-    return np.stack([du, dv, ddu, ddv])
+    fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, 0.0, par, om)
+    ddu, ddv = accelerations(u, v, du, dv, L, dL, ax, ay, 0.0, fx, fy, fz)
+    return du, dv, ddu, ddv
 
 
 # ----------------------------------------------------------------------------
 # one chunk
 
 
-def _integrate(variants, samples_per_step):
+@dataclass
+class _Run:
+    """The integrated chunk: states at step ends plus what the dense samples need."""
+
+    tg: np.ndarray      # (B, N+1) step end times
+    sg: np.ndarray      # (B, N) segment of each step
+    coef: np.ndarray    # (B, nseg, 5, 4)
+    t0s: np.ndarray     # (B, nseg) segment starts
+    Y: np.ndarray       # (N+1, 4, B) states at step ends
+    A0: np.ndarray      # (N, 2, B) ddu, ddv at each step's start (right limit)
+    A1: np.ndarray      # (N, 2, B) ddu, ddv at each step's end (left limit)
+    kin: _Kin
+    par: dict
+
+
+def _integrate(variants) -> _Run:
     B = len(variants)
     N = max(len(v.grid) - 1 for v in variants)
     tg = np.empty((B, N + 1))
@@ -302,61 +346,32 @@ def _integrate(variants, samples_per_step):
         t0s[i, :k] = v.cuts[:-1]
     kin = _Kin(variants)
     par = _par(variants)
-    par2 = _ext(par, 2)
     ar = np.arange(B)
-    S = samples_per_step
-    frac = np.arange(S) / S
-    H, dH = _hermite_basis(frac)
-    nsamp = N * S + 1
-    out_t = np.empty((B, nsamp))
-    out_y = np.empty((4, B, nsamp))
-    out_kin = [np.empty((B, nsamp)) for _ in range(7)]
+    nst = len(_B)
+    Y = np.empty((N + 1, 4, B))
+    A0 = np.empty((N, 2, B))
+    A1 = np.empty((N, 2, B))
     y = np.stack([v.y0 for v in variants], axis=1)  # (4, B)
-    K = np.empty((len(_B), 4, B))
-    ok = np.ones(B, dtype=bool)
+    Y[0] = y
+    K = np.empty((nst, 4, B))
     with np.errstate(all="ignore"):
         for k in range(N):
             t0 = tg[:, k]
             h = tg[:, k + 1] - t0
             c = coef[ar, sg[:, k]]
             tau0 = t0 - t0s[ar, sg[:, k]]
-            for s in range(len(_B)):
-                ys = y if s == 0 else y + h * np.tensordot(_A[s, :s], K[:s], axes=1)
+            for s in range(nst):
+                if s == 0:
+                    ys = y
+                else:
+                    ys = y + h * np.tensordot(_A[s, :s], K[:s], axes=1)
                 K[s] = _rhs(ys, kin(c, tau0 + _C[s] * h), par)
-            y1 = y + h * np.tensordot(_B, K, axes=1)
-            # derivatives at the step's end on the step's own segment (left limit)
-            f1 = _rhs(y1, kin(c, tau0 + h), par)
-            f0 = K[0]
-            # dense samples inside the step
-            hh = h[:, None]
-            comp = []
-            for q in (0, 1):
-                a0, a1 = y[q][:, None], y1[q][:, None]
-                b0, b1 = f0[q][:, None], f1[q][:, None]
-                c0, c1 = f0[q + 2][:, None], f1[q + 2][:, None]
-                val = (H[0] * a0 + hh * H[1] * b0 + hh * hh * H[2] * c0
-                       + H[3] * a1 + hh * H[4] * b1 + hh * hh * H[5] * c1)
-                der = (dH[0] * a0 + hh * dH[1] * b0 + hh * hh * dH[2] * c0
-                       + dH[3] * a1 + hh * dH[4] * b1 + hh * hh * dH[5] * c1)
-                der = np.where(hh > 0, der / np.where(hh > 0, hh, 1.0), b0)
-                comp += [val, der]
-            u, du, v, dv = comp
-            sl = slice(k * S, (k + 1) * S)
-            ts = t0[:, None] + frac * hh
-            out_t[:, sl] = ts
-            out_y[0, :, sl], out_y[1, :, sl], out_y[2, :, sl], out_y[3, :, sl] = u, v, du, dv
-            kk = kin(c, tau0[:, None] + frac * hh)
-            for o, val in zip(out_kin, kk):
-                o[:, sl] = val
-            y = y1
-            ok &= np.all(np.isfinite(y1), axis=0)
-        # final sample: the end state on the last step's segment
-        out_t[:, -1] = tg[:, -1]
-        out_y[:, :, -1] = y
-        kk = kin(c, tau0 + h)
-        for o, val in zip(out_kin, kk):
-            o[:, -1] = val
-    return out_t, out_y, out_kin, par, ok
+            y = y + h * np.tensordot(_B, K, axes=1)
+            Y[k + 1] = y
+            A0[k] = K[0, 2:]
+            # accelerations at the step's end on the step's own segment (left limit)
+            A1[k] = _rhs(y, kin(c, tau0 + h), par)[2:]
+    return _Run(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 
 def _parabola_peak(t, x, i, mask=None):
@@ -381,184 +396,275 @@ def _parabola_peak(t, x, i, mask=None):
         good &= (tv > ta) & (tv < tc)
         # value of the interpolating parabola at tv (Newton form)
         xv = xa + d1 * (tv - ta) + curv * (tv - ta) * (tv - tb)
-    best = np.where(good & (xv > xb), xv, xb)
-    tbest = np.where(good & (xv > xb), tv, tb)
-    return tbest, best
+    better = good & (xv > xb)
+    return np.where(better, tv, tb), np.where(better, xv, xb)
 
 
-def summaries_from_samples(t, n, load_vel, tension_N, static_N, exc, susp_speed, rest, info):
-    """Summary numbers of many runs from sampled arrays (rows = runs).
+def _dense(run: _Run, sel, S: int):
+    """Dense samples of rows ``sel``: times and states (B, M) with M = N S + 1."""
+    Bs = len(sel)
+    tg = run.tg[sel]
+    h = np.diff(tg, axis=1)[..., None]          # (b, N, 1)
+    frac = np.arange(S) / S
+    H, dH = _hermite_basis(frac)                # (6, S)
+    Y = run.Y[:, :, sel]                          # (N+1, 4, b)
+    out = []
+    h2 = h[..., 0]
+    hs = np.where(h2 > 0, h2, 1.0)[..., None]
+    for q in (0, 1):
+        b0 = Y[:-1, q + 2].T
+        coefs = np.stack([Y[:-1, q].T, h2 * b0, h2 * h2 * run.A0[:, q, sel].T,
+                          Y[1:, q].T, h2 * Y[1:, q + 2].T, h2 * h2 * run.A1[:, q, sel].T], axis=-1)
+        val = coefs @ H
+        der = np.where(h > 0, (coefs @ dH) / hs, b0[..., None])
+        out.append(np.concatenate([val.reshape(Bs, -1), Y[-1, q, :, None]], axis=1))
+        out.append(np.concatenate([der.reshape(Bs, -1), Y[-1, q + 2, :, None]], axis=1))
+    u, du, v, dv = out
+    ts = np.concatenate([(tg[:, :-1, None] + frac * h).reshape(Bs, -1), tg[:, -1:]], axis=1)
+    # kinematics at the samples, on each step's own segment
+    ar = np.arange(Bs)[:, None]
+    sg = run.sg[sel]
+    c = run.coef[sel][ar, sg]                    # (b, N, 5, 4)
+    tau = (tg[:, :-1] - run.t0s[sel][ar, sg])[..., None] + frac * h
+    kin = run.kin.rows(sel)
+    kk = kin(c, tau)
+    kl = kin(c[:, -1], (tg[:, -1] - run.t0s[sel][ar[:, 0], sg[:, -1]]))
+    kin_s = []
+    for a, b in zip(kk, kl):
+        if np.isscalar(a):
+            kin_s.append(a)
+        else:
+            kin_s.append(np.concatenate([a.reshape(Bs, -1), np.asarray(b)[:, None]], axis=1))
+    return ts, (u, v, du, dv), kin_s
+
+
+def _measure(variants, run: _Run, sel, S: int):
+    """Summary numbers and an ok flag for rows ``sel`` of the chunk."""
+    vs = [variants[i] for i in sel]
+    t, (u, v, du, dv), (vx, vy, ax, ay, L, dL, ddL, om) = _dense(run, sel, S)
+    B, M = t.shape
+    r = np.arange(B)
+    par = _par_view(run.par, sel, 2)
+    with np.errstate(all="ignore"):
+        r2 = u * u + v * v
+        w = np.sqrt(np.clip(1.0 - r2, 0.0, None))
+        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, 0.0, par, om)
+        tpm = tension_per_mass(u, v, du, dv, L, ddL, ax, ay, 0.0, fx, fy, fz)
+        ndz = (u * du + v * dv) / w
+        lvx = vx + dL * u + L * du
+        lvy = vy + dL * v + L * dv
+        lvz = -dL * w + L * ndz
+        speed2 = lvx * lvx + lvy * lvy + lvz * lvz
+    m = np.array([x.model.par["m"] for x in vs])
+    g = np.array([x.model.par["g"] for x in vs])
+    rest = np.stack([x.rest for x in vs])
+    wlim = math.cos(math.radians(C.MODEL_ANGLE_LIMIT_DEG))
+    # a run the model cannot carry on goes to the single-run solver (events, exact stop)
+    ok = np.all(np.isfinite(r2) & np.isfinite(tpm), axis=1)
+    ok &= np.all(tpm > 0.0, axis=1) & np.all(w > wlim, axis=1)
+    n = (u, v, -w)
+
+    def angle(rows, idx):
+        return np.arctan2(np.sqrt(r2[rows, idx]), w[rows, idx])
+
+    def swing_at(rows, idx):
+        a = [c[rows, idx] for c in n]
+        q = rest[rows]
+        cx = a[1] * q[:, 2] - a[2] * q[:, 1]
+        cy = a[2] * q[:, 0] - a[0] * q[:, 2]
+        cz = a[0] * q[:, 1] - a[1] * q[:, 0]
+        return np.arctan2(np.sqrt(cx * cx + cy * cy + cz * cz),
+                          a[0] * q[:, 0] + a[1] * q[:, 1] + a[2] * q[:, 2])
+
+    info = {
+        "move_end": np.array([x.move_end for x in vs]),
+        "t_end": np.array([x.scene.duration_s for x in vs]),
+        "period0": np.array([x.period0 for x in vs]),
+        "period_end": np.array([x.period_end for x in vs]),
+        "settle_rad": np.radians([x.scene.limits.settle_deg for x in vs]),
+        "L0": np.array([x.scene.rope.length_m for x in vs]),
+        "L_end": np.array([x.L_end for x in vs]),
+    }
+    dot = u * rest[:, None, 0] + v * rest[:, None, 1] - w * rest[:, None, 2]
+    sums = summaries_from_samples(t, r2, dot, angle, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
+                                  m[:, None] * tpm, m * g, L * L * r2, speed2, info)
+    return sums, ok
+
+
+def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N, exc2, speed2, info):
+    """Summary numbers of many runs from sampled arrays (one row per run).
 
     Parameters
     ----------
-    t : ndarray (B, N)
-        Sample times, non-decreasing along each row [s] (repeated end samples allowed).
-    n : ndarray (B, N, 3)
-        Unit rope directions.
-    load_vel : ndarray (B, N, 3)
-        Load velocity [m/s].
-    tension_N : ndarray (B, N)
+    t : ndarray (B, M)
+        Sample times, non-decreasing along each row [s] (repeated samples allowed).
+    r2 : ndarray (B, M)
+        Squared horizontal part of the unit rope direction, |n_h|^2 (the rope
+        angle grows with it).
+    dot : ndarray (B, M)
+        n . rest (the swing from the rest direction shrinks as it grows).
+    angle, swing_at : callable (rows, idx) -> ndarray
+        Rope angle and swing [rad] at the given samples.
+    off : tuple of ndarray (B, M)
+        Horizontal components of n - rest.
+    tension_N : ndarray (B, M)
         Rope tension [N].
     static_N : ndarray (B,)
         Static rope load m g [N].
-    exc : ndarray (B, N)
-        Horizontal excursion of the load from the plumb line [m].
-    susp_speed : ndarray (B, N)
-        Horizontal speed of the suspension point [m/s] (unused in the keys, kept for callers).
-    rest : ndarray (B, 3)
-        Rest rope direction of each run.
+    exc2 : ndarray (B, M)
+        Squared horizontal excursion of the load from the plumb line [m^2].
+    speed2 : ndarray (B, M)
+        Squared load speed [m^2/s^2].
     info : dict of ndarray (B,)
         ``move_end``, ``t_end``, ``period0``, ``period_end``, ``settle_rad``, ``L0``, ``L_end``.
 
     Returns
     -------
     list of dict
-        One dict per row with the keys of :data:`SUMMARY_KEYS` that are numbers.
+        One dict per row with the numeric keys of :data:`SUMMARY_KEYS`.
 
     Notes
     -----
     Definitions as in :mod:`swingsim.metrics`: the rope angle is
-    :math:`\\arctan2(|n_h|, -n_z)`, the swing the angle between ``n`` and
-    the rest direction, the residual the largest after the last move's end,
-    the settle time the instant after which the swing stays below
+    :math:`\arctan2(|n_h|, -n_z)`; the swing is the angle between ``n`` and
+    the rest direction; the residual is the largest after the last move's
+    end; the settle time is when the swing last falls below
     ``limits.settle_deg`` (linear interpolation of the crossing), confirmed by
-    at least one swing period of run after it, and the measured period the mean
-    interval of upward zero crossings of the swing along its principal axis
-    after the last move.
+    at least one swing period of run after it; the measured period is the mean
+    interval between upward zero crossings of the swing along its principal
+    axis after the last move.  Peaks of the angles are refined by the parabola
+    through the three samples around the largest (the single-run metrics
+    refine on the dense interpolant instead).
     """
-    B, N = t.shape
+    B, M = t.shape
     r = np.arange(B)
-    ang = np.arctan2(np.hypot(n[..., 0], n[..., 1]), -n[..., 2])
-    q = rest[:, None, :]
-    cx = n[..., 1] * q[..., 2] - n[..., 2] * q[..., 1]
-    cy = n[..., 2] * q[..., 0] - n[..., 0] * q[..., 2]
-    cz = n[..., 0] * q[..., 1] - n[..., 1] * q[..., 0]
-    swing = np.arctan2(np.sqrt(cx * cx + cy * cy + cz * cz),
-                       n[..., 0] * q[..., 0] + n[..., 1] * q[..., 1] + n[..., 2] * q[..., 2])
     move_end = info["move_end"]
     post = t >= move_end[:, None] - 1e-12
-    i_pk = np.argmax(ang, axis=1)
-    pk_t, pk = _parabola_peak(t, ang, i_pk)
     anyp = post.any(axis=1)
-    a_post = np.where(post, ang, -np.inf)
-    i_res = np.argmax(a_post, axis=1)
-    _, res = _parabola_peak(t, ang, i_res, post)
-    s_post = np.where(post, swing, -np.inf)
-    i_rs = np.argmax(s_post, axis=1)
-    _, rsw = _parabola_peak(t, swing, i_rs, post)
-    # swing at the move's end (linear interpolation between samples)
-    j = np.clip(np.argmax(post, axis=1), 1, N - 1)
+
+    def refined(fun, idx, mask=None):
+        # parabola through the angle at idx-1, idx, idx+1
+        i0 = np.clip(idx - 1, 0, M - 1)
+        i2 = np.clip(idx + 1, 0, M - 1)
+        three_t = np.stack([t[r, i0], t[r, idx], t[r, i2]], axis=1)
+        three_x = np.stack([fun(r, i0), fun(r, idx), fun(r, i2)], axis=1)
+        m3 = None
+        if mask is not None:
+            m3 = np.stack([mask[r, i0], mask[r, idx], mask[r, i2]], axis=1)
+        return _parabola_peak(three_t, three_x, np.ones(B, dtype=np.intp), m3)
+
+    i_pk = np.argmax(r2, axis=1)
+    pk_t, pk = refined(angle, i_pk)
+    i_res = np.argmax(np.where(post, r2, -1.0), axis=1)
+    _, res = refined(angle, i_res, post)
+    i_rs = np.argmin(np.where(post, dot, 2.0), axis=1)
+    _, rsw = refined(swing_at, i_rs, post)
+    # swing at the move's end (linear interpolation between the samples around it)
+    j = np.clip(np.argmax(post, axis=1), 1, M - 1)
     ta, tb = t[r, j - 1], t[r, j]
-    wgt = np.where(tb > ta, (move_end - ta) / np.where(tb > ta, tb - ta, 1.0), 1.0)
-    wgt = np.clip(wgt, 0.0, 1.0)
-    sw_end = swing[r, j - 1] + wgt * (swing[r, j] - swing[r, j - 1])
-    i_exc = np.argmax(exc, axis=1)
+    sa, sb_ = swing_at(r, j - 1), swing_at(r, j)
+    wgt = np.clip(np.where(tb > ta, (move_end - ta) / np.where(tb > ta, tb - ta, 1.0), 1.0), 0.0, 1.0)
+    sw_end = sa + wgt * (sb_ - sa)
+    exc = np.sqrt(np.max(exc2, axis=1))
     i_T = np.argmax(tension_N, axis=1)
     Tmax = tension_N[r, i_T]
     Tmin = np.min(tension_N, axis=1)
-    speed = np.sqrt(np.max(load_vel[..., 0] ** 2 + load_vel[..., 1] ** 2 + load_vel[..., 2] ** 2, axis=1))
+    speed = np.sqrt(np.max(speed2, axis=1))
 
     # measured period
-    off = (n - rest[:, None, :])[..., :2]
+    ox, oy = off
     cnt = post.sum(axis=1)
-    mean = np.where(cnt[:, None] > 0, np.sum(np.where(post[..., None], off, 0.0), axis=1)
-                    / np.maximum(cnt, 1)[:, None], 0.0)
-    off = np.where(post[..., None], off - mean[:, None, :], 0.0)
-    sxx = np.sum(off[..., 0] ** 2, axis=1)
-    syy = np.sum(off[..., 1] ** 2, axis=1)
-    sxy = np.sum(off[..., 0] * off[..., 1], axis=1)
-    theta = 0.5 * np.arctan2(2 * sxy, sxx - syy)
-    x = off[..., 0] * np.cos(theta)[:, None] + off[..., 1] * np.sin(theta)[:, None]
-    sb = np.signbit(x)
-    up = sb[:, :-1] & ~sb[:, 1:] & post[:, :-1] & post[:, 1:]
-    with np.errstate(all="ignore"):
-        tc = t[:, :-1] - x[:, :-1] * (t[:, 1:] - t[:, :-1]) / (x[:, 1:] - x[:, :-1])
+    den = np.maximum(cnt, 1)
+    mx = np.sum(np.where(post, ox, 0.0), axis=1) / den
+    my = np.sum(np.where(post, oy, 0.0), axis=1) / den
+    ox = np.where(post, ox - mx[:, None], 0.0)
+    oy = np.where(post, oy - my[:, None], 0.0)
+    sxx = np.sum(ox * ox, axis=1)
+    syy = np.sum(oy * oy, axis=1)
+    sxy = np.sum(ox * oy, axis=1)
+    th = 0.5 * np.arctan2(2 * sxy, sxx - syy)
+    x = ox * np.cos(th)[:, None] + oy * np.sin(th)[:, None]
+    sgn = np.signbit(x)
+    up = sgn[:, :-1] & ~sgn[:, 1:] & post[:, :-1] & post[:, 1:]
     ncross = up.sum(axis=1)
-    first = np.where(up.any(axis=1), tc[r, np.argmax(up, axis=1)], np.nan)
-    last_i = N - 2 - np.argmax(up[:, ::-1], axis=1)
-    lastc = tc[r, last_i]
+    i_first = np.argmax(up, axis=1)
+    i_last = M - 2 - np.argmax(up[:, ::-1], axis=1)
+
+    def cross_t(i):
+        x0, x1 = x[r, i], x[r, i + 1]
+        with np.errstate(all="ignore"):
+            return t[r, i] - x0 * (t[r, i + 1] - t[r, i]) / (x1 - x0)
+
+    amp = np.max(np.maximum(np.abs(ox), np.abs(oy)), axis=1)
     meas_ok = ((cnt > 10) & (info["t_end"] - move_end > 1.5 * info["period0"])
-               & (np.max(np.abs(off), axis=(1, 2)) > math.radians(0.02)) & (ncross >= 2))
-    meas = np.where(meas_ok, (lastc - first) / np.maximum(ncross - 1, 1), np.nan)
+               & (amp > math.radians(0.02)) & (ncross >= 2))
+    meas = np.where(meas_ok, (cross_t(i_last) - cross_t(i_first)) / np.maximum(ncross - 1, 1), np.nan)
 
     # settling
     thr = info["settle_rad"]
-    above = post & (swing > thr[:, None])
+    above = post & (dot < np.cos(thr)[:, None])
     has_above = above.any(axis=1)
-    kl = N - 1 - np.argmax(above[:, ::-1], axis=1)
-    k1 = np.clip(kl + 1, 0, N - 1)
-    a_ = swing[r, kl] - thr
-    b_ = swing[r, k1] - thr
+    kl = M - 1 - np.argmax(above[:, ::-1], axis=1)
+    k1 = np.clip(kl + 1, 0, M - 1)
+    a_ = swing_at(r, kl) - thr
+    b_ = swing_at(r, k1) - thr
     with np.errstate(all="ignore"):
         tcross = np.where(a_ != b_, t[r, kl] + (t[r, k1] - t[r, kl]) * a_ / (a_ - b_), t[r, k1])
-    confirm = (kl + 1 < N) & (info["t_end"] - t[r, kl] >= info["period_end"])
+    confirm = (kl + 1 < M) & (info["t_end"] - t[r, kl] >= info["period_end"])
     settled_at = np.where(~has_above, move_end, np.where(confirm, tcross, np.nan))
     settled_at = np.where(anyp, settled_at, np.nan)
 
     out = []
-    deg = math.degrees
+    deg = 180.0 / math.pi
+    cols = {
+        "pk": pk * deg, "pk_t": pk_t, "res": res * deg, "rsw": rsw * deg, "swe": sw_end * deg,
+        "exc": exc, "Tmax": Tmax / 1e3, "Tmin": Tmin / 1e3, "stat": static_N / 1e3,
+        "df": Tmax / static_N, "speed": speed, "meas": meas, "set": settled_at,
+    }
+    cols = {k: a.tolist() for k, a in cols.items()}
+    fin = math.isfinite
+    me, L0, Le, p0 = move_end.tolist(), info["L0"].tolist(), info["L_end"].tolist(), info["period0"].tolist()
+    ap = anyp.tolist()
     for b in range(B):
-        def num(x):
-            x = float(x)
-            return x if math.isfinite(x) else None
-
-        st_at = num(settled_at[b])
+        st_at = cols["set"][b] if fin(cols["set"][b]) else None
         out.append({
-            "last_move_end_s": float(move_end[b]),
-            "peak_rope_angle_deg": deg(pk[b]),
-            "peak_rope_angle_time_s": float(pk_t[b]),
-            "residual_rope_angle_deg": deg(res[b]) if anyp[b] else None,
-            "residual_swing_deg": deg(rsw[b]) if anyp[b] else None,
-            "swing_at_move_end_deg": deg(sw_end[b]) if anyp[b] else None,
-            "peak_excursion_m": float(exc[b, i_exc[b]]),
-            "peak_rope_tension_kN": float(Tmax[b]) / 1e3,
-            "min_rope_tension_kN": float(Tmin[b]) / 1e3,
-            "static_rope_tension_kN": float(static_N[b]) / 1e3,
-            "dynamic_factor": float(Tmax[b] / static_N[b]),
-            "peak_load_speed_m_s": float(speed[b]),
-            "rope_length_start_m": float(info["L0"][b]),
-            "rope_length_end_m": float(info["L_end"][b]),
-            "natural_period_s": float(info["period0"][b]),
-            "measured_period_s": num(meas[b]),
-            "settle_time_s": None if st_at is None else st_at - float(move_end[b]),
+            "last_move_end_s": me[b],
+            "peak_rope_angle_deg": cols["pk"][b],
+            "peak_rope_angle_time_s": cols["pk_t"][b],
+            "residual_rope_angle_deg": cols["res"][b] if ap[b] else None,
+            "residual_swing_deg": cols["rsw"][b] if ap[b] else None,
+            "swing_at_move_end_deg": cols["swe"][b] if ap[b] else None,
+            "peak_excursion_m": cols["exc"][b],
+            "peak_rope_tension_kN": cols["Tmax"][b],
+            "min_rope_tension_kN": cols["Tmin"][b],
+            "static_rope_tension_kN": cols["stat"][b],
+            "dynamic_factor": cols["df"][b],
+            "peak_load_speed_m_s": cols["speed"][b],
+            "rope_length_start_m": L0[b],
+            "rope_length_end_m": Le[b],
+            "natural_period_s": p0[b],
+            "measured_period_s": cols["meas"][b] if fin(cols["meas"][b]) else None,
+            "settle_time_s": None if st_at is None else st_at - me[b],
             "settled_at_s": st_at,
         })
     return out
 
 
+#: Rows of a chunk measured together (bounds the memory of the dense samples).
+_MEASURE_ROWS = 256
+
+
 def _chunk_batch(variants, samples_per_step):
-    t, Y, kin, par, ok = _integrate(variants, samples_per_step)
-    u, v, du, dv = Y
-    vx, vy, ax, ay, L, dL, ddL = kin
-    with np.errstate(all="ignore"):
-        w = np.sqrt(np.clip(1.0 - u * u - v * v, 0.0, None))
-        p2 = _ext(par, 2)
-        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, 0.0, p2)
-        tpm = tension_per_mass(u, v, du, dv, L, ddL, ax, ay, 0.0, fx, fy, fz)
-    m = np.array([vv.model.par["m"] for vv in variants])
-    g = par["g"]
-    n = np.stack([u, v, -w], axis=-1)
-    ndz = (u * du + v * dv) / np.where(w > 0, w, 1.0)
-    load_vel = np.stack([vx + dL * u + L * du, vy + dL * v + L * dv, -dL * w + L * ndz], axis=-1)
-    exc = L * np.hypot(u, v)
-    wlim = math.cos(math.radians(C.MODEL_ANGLE_LIMIT_DEG))
-    # a run the model cannot carry on goes to the single-run solver (events, exact stop)
-    ok &= np.all(np.isfinite(u) & np.isfinite(v), axis=1)
-    ok &= np.all(tpm > 0.0, axis=1) & np.all(w > wlim, axis=1)
-    info = {
-        "move_end": np.array([vv.move_end for vv in variants]),
-        "t_end": np.array([vv.scene.duration_s for vv in variants]),
-        "period0": np.array([vv.period0 for vv in variants]),
-        "period_end": np.array([vv.period_end for vv in variants]),
-        "settle_rad": np.radians([vv.scene.limits.settle_deg for vv in variants]),
-        "L0": np.array([vv.scene.rope.length_m for vv in variants]),
-        "L_end": np.array([vv.L_end for vv in variants]),
-    }
-    rest = np.stack([vv.rest for vv in variants])
-    sums = summaries_from_samples(t, n, load_vel, m[:, None] * tpm, m * g, exc, None, rest, info)
+    run = _integrate(variants)
+    sums, oks = [], []
+    for i in range(0, len(variants), _MEASURE_ROWS):
+        sel = np.arange(i, min(i + _MEASURE_ROWS, len(variants)))
+        s, ok = _measure(variants, run, sel, samples_per_step)
+        sums.extend(s)
+        oks.append(ok)
     for s in sums:
         s.update({"valid": True, "status": "ok", "model": "point-mass", "engine": "batch"})
-    return sums, ok
+    return sums, np.concatenate(oks)
 
 
 def _single(scene) -> dict:
@@ -615,14 +721,17 @@ def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
     return out
 
 
-def chunk_size_for(scenes, samples_per_step=DEFAULT_SAMPLES_PER_STEP,
-                   steps_per_period=DEFAULT_STEPS_PER_PERIOD) -> int:
-    """Variants per chunk that keep each sampled array near :data:`_CHUNK_VALUES` values."""
+def chunk_size_for(scenes, steps_per_period=DEFAULT_STEPS_PER_PERIOD) -> int:
+    """Variants per chunk: about :data:`_CHUNK_VALUES` step states, at most 2048 variants.
+
+    Arrays of about 2000 values keep numpy's loops in cache; more variants per
+    chunk save little Python overhead and cost memory.
+    """
     if not scenes:
         return 1
     sc = scenes[0]
-    per = sc.duration_s / _period(sc, sc.rope.length_m) * steps_per_period * samples_per_step
-    return int(max(16, min(4096, _CHUNK_VALUES // max(per, 1.0))))
+    per = sc.duration_s / _period(sc, sc.rope.length_m) * steps_per_period
+    return int(max(16, min(2048, _CHUNK_VALUES // max(per, 1.0))))
 
 
 def chunks(n: int, size: int) -> list[range]:
