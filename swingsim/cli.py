@@ -21,6 +21,12 @@ from .errors import InputError, SimulationError
 #: ``add_arguments(parser)`` and ``main(args) -> int``.
 COMMANDS: dict[str, tuple[str, str]] = {}
 
+# -- batch comparisons and move planning (issue 4) --
+COMMANDS["compare"] = ("swingsim.compare", "run every variant of a sweep file and rank them "
+                       "(comparison.csv, report.html)")
+COMMANDS["plan-move"] = ("swingsim.plan_cli", "find the fastest move whose residual swing stays "
+                         "under a bound over a range of rope lengths")
+
 DEMO_SCENE = Path(__file__).parent / "data" / "demo.toml"
 
 

@@ -295,9 +295,10 @@ PROFILE_OPTIONAL = {
 }
 #: Keys that only some profiles take (profile -> keys); other profiles refuse them.
 PROFILE_KEYS = {
-    "zv": ("shaper_base", "shaper_period_s", "shaper_damping_ratio"),
-    "zvd": ("shaper_base", "shaper_period_s", "shaper_damping_ratio"),
-    "ei": ("shaper_base", "shaper_period_s", "shaper_damping_ratio", "shaper_tolerance"),
+    "zv": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
+    "zvd": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
+    "ei": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio",
+           "shaper_tolerance"),
     "whole-period": ("shaper_period_s",),
 }
 

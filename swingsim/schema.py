@@ -171,6 +171,9 @@ MOVE = {
                        "the move gives a jerk limit, trapezoid otherwise.", choices=("trapezoid", "s-curve")),
     "shaper_period_s": Key("float", "Undamped swing period a shaped or whole-period move is tuned to [s]; "
                            "default the scene's own first swing mode at the initial rope length.", gt=0.0),
+    "shaper_second_period_s": Key("float", "Second swing period [s]: the zv / zvd / ei shaper is convolved "
+                                  "with a second one tuned to it, cancelling two modes (hook and load) or "
+                                  "covering a range of rope lengths.", gt=0.0),
     "shaper_damping_ratio": Key("float", "Damping ratio a zv / zvd / ei shaper is tuned to [-]; default "
                                 "the scene's damping.ratio.", ge=0.0, lt=1.0),
     "shaper_tolerance": Key("float", "Residual vibration allowed at the design frequency by an ei shaper "

@@ -17,9 +17,11 @@ Profile names (``moves[].profile``)
     ``shaper_period_s`` (undamped swing period the shaper is tuned to; default
     the scene's own first mode: :math:`2\\pi\\sqrt{L/g}` of the point-mass
     model at the initial rope length, or the first mode of a multi-body model
-    when one is selected), ``shaper_damping_ratio`` (default the scene's
-    ``damping.ratio``), ``shaper_tolerance`` (EI only: the residual vibration
-    V allowed at the design frequency, default 0.05).
+    when one is selected), ``shaper_second_period_s`` (convolve with a second
+    shaper of the same kind tuned to this period: cancels two modes, or widens
+    the band of rope lengths covered), ``shaper_damping_ratio`` (default the
+    scene's ``damping.ratio``), ``shaper_tolerance`` (EI only: the residual
+    vibration V allowed at the design frequency, default 0.05).
 ``whole-period``
     A trapezoid (or s-curve) whose acceleration and deceleration phases each
     last a whole number of swing periods: the acceleration is lowered to the
@@ -242,9 +244,10 @@ SHAPERS = {
 
 #: Every profile name this module adds, with its own move keys.
 SHAPED_PROFILES = {
-    "zv": ("shaper_base", "shaper_period_s", "shaper_damping_ratio"),
-    "zvd": ("shaper_base", "shaper_period_s", "shaper_damping_ratio"),
-    "ei": ("shaper_base", "shaper_period_s", "shaper_damping_ratio", "shaper_tolerance"),
+    "zv": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
+    "zvd": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
+    "ei": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio",
+           "shaper_tolerance"),
     "whole-period": ("shaper_period_s",),
 }
 
@@ -341,7 +344,11 @@ def build_shaped(move, scene, scale) -> P.Profile:
         base = P.trapezoid(move.start_s, move.distance * scale, move.speed * scale,
                            move.accel * scale, decel)
     tol = float(move.extra.get("shaper_tolerance", 0.05))
-    return shaped(base, SHAPERS[move.profile](T, z, tol))
+    sh = SHAPERS[move.profile](T, z, tol)
+    T2 = move.extra.get("shaper_second_period_s")
+    if T2 is not None:
+        sh = convolve(sh, SHAPERS[move.profile](float(T2), z, tol))
+    return shaped(base, sh)
 
 
 def build_whole_period(move, scene, scale) -> P.Profile:

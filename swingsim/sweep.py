@@ -1,0 +1,313 @@
+"""Sweep files (TOML): a base scene and the quantities to vary -> a list of validated variants.
+
+A sweep file::
+
+    base = "tower_trolley.toml"          # the scene, relative to this file
+    title = "Trolley profiles vs rope length"
+
+    [objective]
+    minimize = "settled_at_s"            # a summary number; smaller is better
+    max = { last_move_end_s = 40.0 }     # optional limits a variant must keep to rank
+
+    [vary]                               # dotted paths into the scene; the cartesian product
+    "rope.length_m" = { from = 8.0, to = 30.0, count = 12 }
+    "moves.0.profile" = ["trapezoid", "zv", "zvd", "ei", "whole-period"]
+
+    [[variants]]                         # optional hand-picked cases, on top of the product
+    name = "gentle"
+    "moves.0.accel_m_s2" = 0.15
+
+Every variant is validated as a scene (``scene_from_dict``); an error names the
+sweep file, the sweep key and the variant.
+"""
+
+from __future__ import annotations
+
+import copy
+import difflib
+import itertools
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from . import schema as S
+from .errors import InputError, SceneError
+from .scene import Scene, load_scene, scene_from_dict, set_dotted
+
+__all__ = ["Sweep", "Variant", "load_sweep", "sweep_from_dict", "OBJECTIVE_KEYS", "MAX_VARIANTS"]
+
+#: Summary numbers a sweep can rank by or limit (all: smaller is better / an upper bound).
+OBJECTIVE_KEYS = (
+    "settled_at_s", "settle_time_s", "residual_rope_angle_deg", "residual_swing_deg",
+    "peak_rope_angle_deg", "peak_excursion_m", "peak_rope_tension_kN", "dynamic_factor",
+    "last_move_end_s", "swing_at_move_end_deg", "peak_load_speed_m_s",
+)
+
+#: Largest number of variants a sweep may expand to.
+MAX_VARIANTS = 1_000_000
+
+_TOP = {
+    "base": "path of the base scene, relative to the sweep file",
+    "title": "title of the comparison",
+    "objective": "table: minimize = a summary key, max = {key = bound}",
+    "vary": "table of dotted scene keys -> list of values or {from, to, count}",
+    "variants": "array of tables [[variants]]: name and dotted scene keys",
+    "sensitivity": "true or false: add the shaper rope-length sensitivity study to the report",
+    "notes": "free text",
+}
+_RANGE = {"from", "to", "count"}
+
+
+@dataclass(frozen=True)
+class Variant:
+    """One case of a sweep: its index, name, the values it sets, and its scene."""
+
+    index: int
+    name: str
+    values: dict
+    scene: Scene
+
+
+@dataclass(frozen=True)
+class Sweep:
+    """A validated sweep."""
+
+    file: str
+    title: str
+    base: Scene
+    keys: tuple              # dotted keys in column order
+    variants: tuple
+    minimize: str = "settled_at_s"
+    limits: dict = field(default_factory=dict)
+    sensitivity: bool = True
+    notes: str = ""
+
+    @property
+    def scenes(self) -> list:
+        return [v.scene for v in self.variants]
+
+
+def load_sweep(path) -> Sweep:
+    """Read and validate a sweep file (see the module docstring).
+
+    Raises
+    ------
+    InputError
+        One line naming the sweep file, key, value and what is allowed.
+    """
+    path = Path(path)
+    shown = str(path)
+    if not path.is_file():
+        raise InputError(shown, "", "sweep file not found" if not path.exists() else "not a file")
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except UnicodeDecodeError:
+        raise InputError(shown, "", "not a UTF-8 text file (a sweep is a TOML text file)") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(shown, "", f"TOML syntax error: {str(exc).split(' (at ')[0]}") from None
+    return sweep_from_dict(data, file=shown, base_dir=path.parent)
+
+
+def _flatten(table: dict, prefix: str = "", leaf_range: bool = True) -> dict:
+    """{"rope": {"length_m": [..]}} -> {"rope.length_m": [..]}; a range table is a leaf."""
+    out = {}
+    for k, v in table.items():
+        key = f"{prefix}{k}"
+        if isinstance(v, dict) and not (leaf_range and v and set(v) <= _RANGE):
+            out.update(_flatten(v, key + ".", leaf_range))
+        else:
+            out[key] = v
+    return out
+
+
+def _check_path(file: str, where: str, dotted: str, base_raw: dict):
+    """A dotted key must name a scene key of the schema (moves / zones by index)."""
+    parts = dotted.split(".")
+
+    def bad(problem):
+        return InputError(file, where, problem, dotted)
+
+    head = parts[0]
+    if head in S.TOP:
+        if len(parts) != 1:
+            raise bad(f"'{head}' is a top-level scene key; use \"{head}\"")
+        return
+    if head in S.TABLES:
+        if len(parts) != 2:
+            raise bad(f"expected \"{head}.<key>\" with one of: {', '.join(S.TABLES[head])}")
+        if parts[1] not in S.TABLES[head]:
+            near = difflib.get_close_matches(parts[1], list(S.TABLES[head]), n=1, cutoff=0.6)
+            hint = f" (did you mean '{head}.{near[0]}'?)" if near else ""
+            raise bad(f"unknown scene key{hint}; [{head}] has: {', '.join(S.TABLES[head])}")
+        return
+    if head in S.ARRAYS:
+        keys = S.ARRAYS[head]
+        n = len(base_raw.get(head, []) or [])
+        if len(parts) != 3 or not parts[1].isdigit():
+            raise bad(f"expected \"{head}.<index>.<key>\", e.g. \"{head}.0.{next(iter(keys))}\"")
+        i = int(parts[1])
+        if i >= n:
+            raise bad(f"the base scene has {n} {head}; index {i} does not exist (indices from 0)")
+        if parts[2] not in keys:
+            near = difflib.get_close_matches(parts[2], list(keys), n=1, cutoff=0.6)
+            hint = f" (did you mean '{head}.{i}.{near[0]}'?)" if near else ""
+            raise bad(f"unknown key of [[{head}]]{hint}")
+        return
+    near = difflib.get_close_matches(head, list(S.TOP) + list(S.TABLES) + list(S.ARRAYS), n=1, cutoff=0.6)
+    hint = f" (did you mean '{near[0]}'?)" if near else ""
+    raise bad(f"not a scene key{hint}")
+
+
+def _values(file: str, where: str, v) -> list:
+    """A [vary] entry -> its list of values."""
+    if isinstance(v, list):
+        if not v:
+            raise InputError(file, where, "empty list; give at least one value", v)
+        return v
+    if isinstance(v, dict) and set(v) <= _RANGE:
+        missing = _RANGE - set(v)
+        if missing:
+            raise InputError(file, where, "a range needs from, to and count; missing "
+                             + ", ".join(sorted(missing)), v)
+        a, b, n = v["from"], v["to"], v["count"]
+        for name, x in (("from", a), ("to", b)):
+            if isinstance(x, bool) or not isinstance(x, (int, float)) or not math.isfinite(x):
+                raise InputError(file, f"{where}.{name}", "expected a finite number", x)
+        if isinstance(n, bool) or not isinstance(n, int) or n < 1:
+            raise InputError(file, f"{where}.count", "expected a whole number >= 1", n)
+        if n == 1:
+            return [float(a)]
+        return [float(a + (b - a) * k / (n - 1)) for k in range(n)]
+    raise InputError(file, where, "expected a list of values or a range { from = .., to = .., "
+                     "count = .. }", v)
+
+
+def _describe(values: dict) -> str:
+    return ", ".join(f"{k} = {v!r}" for k, v in values.items())
+
+
+def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str = ".") -> Sweep:
+    """Validate a parsed sweep document and expand its variants (validated scenes)."""
+    base_dir = Path(base_dir)
+    for k in data:
+        if k not in _TOP:
+            near = difflib.get_close_matches(k, list(_TOP), n=1, cutoff=0.6)
+            hint = f" (did you mean '{near[0]}'?)" if near else ""
+            raise InputError(file, k, f"unknown sweep key{hint}; allowed: {', '.join(_TOP)}")
+    if "base" not in data:
+        raise InputError(file, "base", "missing: the base scene file, relative to the sweep file")
+    if not isinstance(data["base"], str) or not data["base"]:
+        raise InputError(file, "base", "expected the path of a scene file (a string)", data["base"])
+    base_path = base_dir / data["base"]
+    try:
+        base = load_scene(base_path)
+    except SceneError as exc:
+        raise InputError(file, "base", f"the base scene is invalid: {exc.one_line()}") from None
+    title = data.get("title", base.title)
+    if not isinstance(title, str):
+        raise InputError(file, "title", "expected a string", title)
+    notes = data.get("notes", "")
+    if not isinstance(notes, str):
+        raise InputError(file, "notes", "expected a string", notes)
+    sens = data.get("sensitivity", True)
+    if not isinstance(sens, bool):
+        raise InputError(file, "sensitivity", "expected true or false", sens)
+
+    # objective
+    obj = data.get("objective", {})
+    if not isinstance(obj, dict):
+        raise InputError(file, "objective", "expected a table [objective]", obj)
+    for k in obj:
+        if k not in ("minimize", "max"):
+            raise InputError(file, f"objective.{k}", "unknown key; allowed: minimize, max")
+    minimize = obj.get("minimize", "settled_at_s")
+    if minimize not in OBJECTIVE_KEYS:
+        near = difflib.get_close_matches(str(minimize), OBJECTIVE_KEYS, n=1, cutoff=0.6)
+        hint = f" (did you mean '{near[0]}'?)" if near else ""
+        raise InputError(file, "objective.minimize", f"expected one of {', '.join(OBJECTIVE_KEYS)}{hint}",
+                         minimize)
+    limits = obj.get("max", {})
+    if not isinstance(limits, dict):
+        raise InputError(file, "objective.max", "expected a table of summary key = upper bound", limits)
+    for k, v in limits.items():
+        if k not in OBJECTIVE_KEYS:
+            raise InputError(file, f"objective.max.{k}", f"expected one of {', '.join(OBJECTIVE_KEYS)}")
+        if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
+            raise InputError(file, f"objective.max.{k}", "expected a finite number", v)
+    limits = {k: float(v) for k, v in limits.items()}
+
+    # vary
+    vary = data.get("vary", {})
+    if not isinstance(vary, dict):
+        raise InputError(file, "vary", "expected a table [vary]", vary)
+    vary = _flatten(vary)
+    lists = {}
+    for k, v in vary.items():
+        where = f'vary."{k}"'
+        _check_path(file, where, k, base.raw)
+        lists[k] = _values(file, where, v)
+    named = data.get("variants", [])
+    if not isinstance(named, list) or any(not isinstance(x, dict) for x in named):
+        raise InputError(file, "variants", "expected an array of tables [[variants]]", named)
+    n_prod = math.prod(len(v) for v in lists.values()) if lists else 0
+    if n_prod + len(named) == 0:
+        raise InputError(file, "vary", "nothing to compare: give [vary] keys or [[variants]]")
+    if n_prod + len(named) > MAX_VARIANTS:
+        raise InputError(file, "vary", f"expands to {n_prod + len(named)} variants; at most "
+                         f"{MAX_VARIANTS} are allowed (split the study)")
+
+    cases = []
+    for combo in itertools.product(*lists.values()) if lists else ():
+        cases.append(("", dict(zip(lists, combo)), 'vary'))
+    names = set()
+    for i, x in enumerate(named):
+        where = f"variants[{i}]"
+        name = x.get("name")
+        if not isinstance(name, str) or not name:
+            raise InputError(file, f"{where}.name", "missing or empty; each named variant needs a name",
+                             name if "name" in x else InputError._MISSING)
+        if name in names:
+            raise InputError(file, f"{where}.name", "duplicate name", name)
+        names.add(name)
+        vals = _flatten({k: v for k, v in x.items() if k != "name"}, leaf_range=False)
+        for k in vals:
+            _check_path(file, f'{where}."{k}"', k, base.raw)
+        cases.append((name, vals, where))
+
+    keys = list(lists)
+    for _, vals, _ in cases:
+        for k in vals:
+            if k not in keys:
+                keys.append(k)
+    variants = []
+    for idx, (name, vals, where) in enumerate(cases):
+        d = base.raw
+        for k, val in vals.items():
+            d = set_dotted(d, k, copy.deepcopy(val))
+        try:
+            sc = scene_from_dict(d, file=base.file, base_dir=base.base_dir)
+        except SceneError as exc:
+            label = f"variant {idx}" + (f" '{name}'" if name else "")
+            raise InputError(file, where, f"{label} ({_describe(vals)}) is not a valid scene: "
+                             f"{exc.one_line()}") from None
+        variants.append(Variant(idx, name, vals, sc))
+    return Sweep(file=file, title=title, base=base, keys=tuple(keys), variants=tuple(variants),
+                 minimize=minimize, limits=limits, sensitivity=sens, notes=notes)
+
+
+def get_dotted(data: dict, dotted: str, default=None):
+    """Value at a dotted key of a scene dict (``moves.0.accel_m_s2``), or ``default``."""
+    cur = data
+    for part in dotted.split("."):
+        if isinstance(cur, list):
+            if not part.isdigit() or int(part) >= len(cur):
+                return default
+            cur = cur[int(part)]
+        elif isinstance(cur, dict):
+            if part not in cur:
+                return default
+            cur = cur[part]
+        else:
+            return default
+    return cur
