@@ -374,6 +374,51 @@ def _integrate(variants) -> _Run:
     return _Run(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 
+def _best_peak(t, x, mask=None, kink=None):
+    """Largest value of each row of ``x`` over ``mask``, refined at every local maximum.
+
+    Every window of three consecutive samples (all within ``mask``) whose
+    middle sample is not a ``kink`` (a profile breakpoint, where the
+    curvature jumps) gives the vertex of its parabola when that vertex is a
+    maximum inside the window; the best vertex or raw sample of the row is
+    returned with its time.  Looking at every window, not only the one around
+    the largest sample, finds the true peak when another swing's sample
+    happens to lie higher, and windows never straddle a breakpoint.
+
+    Returns
+    -------
+    idx, t_peak, x_peak : ndarray (B,)
+        Sample index nearest the peak, its time [s] and value.
+    """
+    B, M = x.shape
+    r = np.arange(B)
+    xm = x if mask is None else np.where(mask, x, -np.inf)
+    i = np.argmax(xm, axis=1)
+    best_t, best = t[r, i], xm[r, i]
+    if M >= 3:
+        xa, xb, xc = x[:, :-2], x[:, 1:-1], x[:, 2:]
+        ta, tb, tc = t[:, :-2], t[:, 1:-1], t[:, 2:]
+        with np.errstate(all="ignore"):
+            d1 = (xb - xa) / (tb - ta)
+            d2 = (xc - xb) / (tc - tb)
+            curv = (d2 - d1) / (tc - ta)
+            tv = 0.5 * (ta + tb) - d1 / (2.0 * curv)
+            xv = xa + d1 * (tv - ta) + curv * (tv - ta) * (tv - tb)
+            ok = (tb > ta) & (tc > tb) & (curv < 0) & (tv > ta) & (tv < tc)
+        if kink is not None:
+            ok &= ~kink[:, 1:-1]
+        if mask is not None:
+            ok &= mask[:, :-2] & mask[:, 1:-1] & mask[:, 2:]
+        xv = np.where(ok, xv, -np.inf)
+        j = np.argmax(xv, axis=1)
+        vj = xv[r, j]
+        better = vj > best
+        best = np.where(better, vj, best)
+        best_t = np.where(better, tv[r, j], best_t)
+        i = np.where(better, j + 1, i)
+    return i, best_t, best
+
+
 def _parabola_peak(t, x, i, mask=None):
     """Vertex of the parabola through samples i-1, i, i+1 of each row (clipped to the samples).
 
@@ -435,13 +480,16 @@ def _dense(run: _Run, sel, S: int):
             kin_s.append(a)
         else:
             kin_s.append(np.concatenate([a.reshape(Bs, -1), np.asarray(b)[:, None]], axis=1))
-    return ts, (u, v, du, dv), kin_s
+    # samples at a step start that begins a new segment sit on a breakpoint
+    kink = np.zeros(ts.shape, dtype=bool)
+    kink[:, S:-1:S] = sg[:, 1:] != sg[:, :-1]
+    return ts, (u, v, du, dv), kin_s, kink
 
 
 def _measure(variants, run: _Run, sel, S: int):
     """Summary numbers and an ok flag for rows ``sel`` of the chunk."""
     vs = [variants[i] for i in sel]
-    t, (u, v, du, dv), (vx, vy, ax, ay, L, dL, ddL, om) = _dense(run, sel, S)
+    t, (u, v, du, dv), (vx, vy, ax, ay, L, dL, ddL, om), kink = _dense(run, sel, S)
     B, M = t.shape
     r = np.arange(B)
     par = _par_view(run.par, sel, 2)
@@ -484,6 +532,8 @@ def _measure(variants, run: _Run, sel, S: int):
         "settle_rad": np.radians([x.scene.limits.settle_deg for x in vs]),
         "L0": np.array([x.scene.rope.length_m for x in vs]),
         "L_end": np.array([x.L_end for x in vs]),
+        "rest_vertical": bool(np.all(rest[:, :2] == 0.0)),
+        "kink": kink,
     }
     dot = u * rest[:, None, 0] + v * rest[:, None, 1] - w * rest[:, None, 2]
     sums = summaries_from_samples(t, r2, dot, angle, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
@@ -542,23 +592,17 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
     post = t >= move_end[:, None] - 1e-12
     anyp = post.any(axis=1)
 
-    def refined(fun, idx, mask=None):
-        # parabola through the angle at idx-1, idx, idx+1
-        i0 = np.clip(idx - 1, 0, M - 1)
-        i2 = np.clip(idx + 1, 0, M - 1)
-        three_t = np.stack([t[r, i0], t[r, idx], t[r, i2]], axis=1)
-        three_x = np.stack([fun(r, i0), fun(r, idx), fun(r, i2)], axis=1)
-        m3 = None
-        if mask is not None:
-            m3 = np.stack([mask[r, i0], mask[r, idx], mask[r, i2]], axis=1)
-        return _parabola_peak(three_t, three_x, np.ones(B, dtype=np.intp), m3)
-
-    i_pk = np.argmax(r2, axis=1)
-    pk_t, pk = refined(angle, i_pk)
-    i_res = np.argmax(np.where(post, r2, -1.0), axis=1)
-    _, res = refined(angle, i_res, post)
-    i_rs = np.argmin(np.where(post, dot, 2.0), axis=1)
-    _, rsw = refined(swing_at, i_rs, post)
+    kink = info.get("kink")
+    i_pk, pk_t, pk = _best_peak(t, r2, None, kink)
+    pk = np.arcsin(np.sqrt(np.clip(pk, 0.0, 1.0)))
+    i_res, _, res = _best_peak(t, r2, post, kink)
+    res = np.arcsin(np.sqrt(np.clip(res, 0.0, 1.0)))
+    if info.get("rest_vertical", False):
+        rsw = res
+    else:
+        # the swing shrinks as dot grows: the peaks of 1 - dot, with 1 - dot = 2 sin^2(swing / 2)
+        _, _, q = _best_peak(t, 1.0 - dot, post, kink)
+        rsw = 2.0 * np.arcsin(np.sqrt(np.clip(q / 2.0, 0.0, 1.0)))
     # swing at the move's end (linear interpolation between the samples around it)
     j = np.clip(np.argmax(post, axis=1), 1, M - 1)
     ta, tb = t[r, j - 1], t[r, j]
