@@ -377,9 +377,9 @@ def _integrate(variants) -> _Run:
 def _best_peak(t, x, mask=None, kink=None):
     """Largest value of each row of ``x`` over ``mask``, refined at every local maximum.
 
-    Every window of three consecutive samples (all within ``mask``) whose
-    middle sample is not a ``kink`` (a profile breakpoint, where the
-    curvature jumps) gives the vertex of its parabola when that vertex is a
+    Every window of three consecutive samples (all within ``mask``) that lies
+    within one segment (``kink`` marks the first sample of each segment after
+    a profile breakpoint, where the curvature or the tension jumps) gives the vertex of its parabola when that vertex is a
     maximum inside the window; the best vertex or raw sample of the row is
     returned with its time.  Looking at every window, not only the one around
     the largest sample, finds the true peak when another swing's sample
@@ -404,9 +404,19 @@ def _best_peak(t, x, mask=None, kink=None):
             curv = (d2 - d1) / (tc - ta)
             tv = 0.5 * (ta + tb) - d1 / (2.0 * curv)
             xv = xa + d1 * (tv - ta) + curv * (tv - ta) * (tv - tb)
-            ok = (tb > ta) & (tc > tb) & (curv < 0) & (tv > ta) & (tv < tc)
-        if kink is not None:
-            ok &= ~kink[:, 1:-1]
+            right = tc
+            if kink is not None:
+                # the interval just before a breakpoint is no window's middle: let the window
+                # ending one sample earlier reach across it (extrapolating its own segment)
+                nxt = np.zeros_like(kink[:, 2:])
+                nxt[:, :-1] = kink[:, 3:]
+                tn = np.empty_like(tc)
+                tn[:, :-1] = t[:, 3:]
+                tn[:, -1] = tc[:, -1]
+                right = np.where(nxt, tn, tc)
+            ok = (tb > ta) & (tc > tb) & (curv < 0) & (tv > ta) & (tv < right)
+        if kink is not None:  # a kink sample opens a segment: it may only start a window
+            ok &= ~kink[:, 1:-1] & ~kink[:, 2:]
         if mask is not None:
             ok &= mask[:, :-2] & mask[:, 1:-1] & mask[:, 2:]
         xv = np.where(ok, xv, -np.inf)
@@ -483,13 +493,16 @@ def _dense(run: _Run, sel, S: int):
     # samples at a step start that begins a new segment sit on a breakpoint
     kink = np.zeros(ts.shape, dtype=bool)
     kink[:, S:-1:S] = sg[:, 1:] != sg[:, :-1]
-    return ts, (u, v, du, dv), kin_s, kink
+    # samples of the zero-length steps that pad a short run repeat its end: not real
+    real = np.ones(ts.shape, dtype=bool)
+    real[:, :-1] = np.repeat(h[..., 0] > 0, S, axis=1)
+    return ts, (u, v, du, dv), kin_s, kink, real
 
 
 def _measure(variants, run: _Run, sel, S: int):
     """Summary numbers and an ok flag for rows ``sel`` of the chunk."""
     vs = [variants[i] for i in sel]
-    t, (u, v, du, dv), (vx, vy, ax, ay, L, dL, ddL, om), kink = _dense(run, sel, S)
+    t, (u, v, du, dv), (vx, vy, ax, ay, L, dL, ddL, om), kink, real = _dense(run, sel, S)
     B, M = t.shape
     r = np.arange(B)
     par = _par_view(run.par, sel, 2)
@@ -532,8 +545,9 @@ def _measure(variants, run: _Run, sel, S: int):
         "settle_rad": np.radians([x.scene.limits.settle_deg for x in vs]),
         "L0": np.array([x.scene.rope.length_m for x in vs]),
         "L_end": np.array([x.L_end for x in vs]),
-        "rest_vertical": bool(np.all(rest[:, :2] == 0.0)),
+        "rest_vertical": np.all(rest[:, :2] == 0.0, axis=1),
         "kink": kink,
+        "real": real,
     }
     dot = u * rest[:, None, 0] + v * rest[:, None, 1] - w * rest[:, None, 2]
     sums = summaries_from_samples(t, r2, dot, angle, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
@@ -590,6 +604,8 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
     r = np.arange(B)
     move_end = info["move_end"]
     post = t >= move_end[:, None] - 1e-12
+    if "real" in info:
+        post &= info["real"]
     anyp = post.any(axis=1)
 
     kink = info.get("kink")
@@ -597,21 +613,21 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
     pk = np.arcsin(np.sqrt(np.clip(pk, 0.0, 1.0)))
     i_res, _, res = _best_peak(t, r2, post, kink)
     res = np.arcsin(np.sqrt(np.clip(res, 0.0, 1.0)))
-    if info.get("rest_vertical", False):
-        rsw = res
-    else:
-        # the swing shrinks as dot grows: the peaks of 1 - dot, with 1 - dot = 2 sin^2(swing / 2)
+    vertical = np.asarray(info.get("rest_vertical", np.zeros(B, dtype=bool)))
+    rsw = res
+    if not np.all(vertical):
+        # the swing shrinks as dot grows: the peaks of 1 - dot, with 1 - dot = 2 sin^2(swing / 2);
+        # rows hanging plumb at rest keep the rope angle (identical to the swing there)
         _, _, q = _best_peak(t, 1.0 - dot, post, kink)
-        rsw = 2.0 * np.arcsin(np.sqrt(np.clip(q / 2.0, 0.0, 1.0)))
+        rsw = np.where(vertical, res, 2.0 * np.arcsin(np.sqrt(np.clip(q / 2.0, 0.0, 1.0))))
     # swing at the move's end (linear interpolation between the samples around it)
     j = np.clip(np.argmax(post, axis=1), 1, M - 1)
     ta, tb = t[r, j - 1], t[r, j]
     sa, sb_ = swing_at(r, j - 1), swing_at(r, j)
     wgt = np.clip(np.where(tb > ta, (move_end - ta) / np.where(tb > ta, tb - ta, 1.0), 1.0), 0.0, 1.0)
     sw_end = sa + wgt * (sb_ - sa)
-    exc = np.sqrt(np.max(exc2, axis=1))
-    i_T = np.argmax(tension_N, axis=1)
-    Tmax = tension_N[r, i_T]
+    exc = np.sqrt(np.maximum(_best_peak(t, exc2, None, kink)[2], 0.0))
+    Tmax = _best_peak(t, tension_N, None, kink)[2]
     Tmin = np.min(tension_N, axis=1)
     speed = np.sqrt(np.max(speed2, axis=1))
 

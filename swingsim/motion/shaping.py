@@ -201,19 +201,22 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
     if zeta == 0.0:
         return Shaper("ei", tuple(float(a) for a in A0), times)
     w = 2.0 * math.pi / period_s
+    t = np.asarray(times)
+    sq = math.sqrt(1.0 - zeta * zeta)
+    e = np.exp(zeta * w * (t - t[-1])) * np.exp(1j * w * sq * t)   # S = sum A_i e_i
+    de = e * (zeta * (t - t[-1]) + 1j * sq * t)                    # dS/dw = sum A_i de_i
 
     def eqs(x):
-        A = (x[0], x[1], 1.0 - x[0] - x[1])
-        s = Shaper("ei", A, times)
-        dw = 1e-6 * w
-        d = (residual_vibration(s, w + dw, zeta) - residual_vibration(s, w - dw, zeta)) / (2 * dw)
-        return [float(residual_vibration(s, w, zeta)) - V, float(d) * w]
+        A = np.array([x[0], x[1], 1.0 - x[0] - x[1]])
+        S, dS = np.sum(A * e), np.sum(A * de)
+        # |S| = V and d|S|^2/dw = 2 Re(conj(S) dS/dw) = 0 at the design frequency
+        return [abs(S) ** 2 - V * V, float(np.real(np.conj(S) * dS)) * w]
 
     K = _k_factor(zeta)
     guess = np.array([A0[0], A0[1] * K]) / (A0[0] + A0[1] * K + A0[2] * K * K)
-    x, info, ok, _ = fsolve(eqs, guess, full_output=True, xtol=1e-13)
+    x, info, ok, _ = fsolve(eqs, guess, full_output=True, xtol=1e-14)
     A = (float(x[0]), float(x[1]), float(1.0 - x[0] - x[1]))
-    if ok != 1 or min(A) <= 0 or max(abs(e) for e in eqs(x)) > 1e-9:
+    if min(A) <= 0 or max(abs(r) for r in eqs(x)) > 1e-12:
         raise P.ProfileError(f"no EI shaper for damping ratio {zeta:g} and tolerance {V:g}")
     return Shaper("ei", A, times)
 
