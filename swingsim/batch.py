@@ -83,6 +83,23 @@ def _tableau():
 
 
 _A, _B, _C = _tableau()
+# the non-zero weights of each stage, in a fixed order
+_A_NZ = [[(j, float(_A[s, j])) for j in range(s) if _A[s, j] != 0.0] for s in range(len(_B))]
+_B_NZ = [(j, float(_B[j])) for j in range(len(_B)) if _B[j] != 0.0]
+
+
+def _combine(weights, K):
+    """sum_j w_j K[j], element by element in a fixed order.
+
+    Not ``tensordot`` (BLAS): a BLAS kernel may round an element differently
+    depending on where it sits in the array, and a variant's result must not
+    depend on the other variants of its chunk.
+    """
+    j, w = weights[0]
+    acc = w * K[j]
+    for j, w in weights[1:]:
+        acc += w * K[j]
+    return acc
 
 
 def _hermite_basis(s):
@@ -361,12 +378,9 @@ def _integrate(variants) -> _Run:
             c = coef[ar, sg[:, k]]
             tau0 = t0 - t0s[ar, sg[:, k]]
             for s in range(nst):
-                if s == 0:
-                    ys = y
-                else:
-                    ys = y + h * np.tensordot(_A[s, :s], K[:s], axes=1)
+                ys = y if s == 0 else y + h * _combine(_A_NZ[s], K)
                 K[s] = _rhs(ys, kin(c, tau0 + _C[s] * h), par)
-            y = y + h * np.tensordot(_B, K, axes=1)
+            y = y + h * _combine(_B_NZ, K)
             Y[k + 1] = y
             A0[k] = K[0, 2:]
             # accelerations at the step's end on the step's own segment (left limit)
@@ -470,8 +484,13 @@ def _dense(run: _Run, sel, S: int):
         b0 = Y[:-1, q + 2].T
         coefs = np.stack([Y[:-1, q].T, h2 * b0, h2 * h2 * run.A0[:, q, sel].T,
                           Y[1:, q].T, h2 * Y[1:, q + 2].T, h2 * h2 * run.A1[:, q, sel].T], axis=-1)
-        val = coefs @ H
-        der = np.where(h > 0, (coefs @ dH) / hs, b0[..., None])
+        # explicit sums (not matmul/BLAS, see _combine): the same rounding for every element
+        val = coefs[..., 0, None] * H[0]
+        der = coefs[..., 0, None] * dH[0]
+        for m in range(1, 6):
+            val = val + coefs[..., m, None] * H[m]
+            der = der + coefs[..., m, None] * dH[m]
+        der = np.where(h > 0, der / hs, b0[..., None])
         out.append(np.concatenate([val.reshape(Bs, -1), Y[-1, q, :, None]], axis=1))
         out.append(np.concatenate([der.reshape(Bs, -1), Y[-1, q + 2, :, None]], axis=1))
     u, du, v, dv = out
@@ -495,7 +514,7 @@ def _dense(run: _Run, sel, S: int):
     kink[:, S:-1:S] = sg[:, 1:] != sg[:, :-1]
     # samples of the zero-length steps that pad a short run repeat its end: not real
     real = np.ones(ts.shape, dtype=bool)
-    real[:, :-1] = np.repeat(h[..., 0] > 0, S, axis=1)
+    real[:, 1:] = ts[:, 1:] > ts[:, :-1]
     return ts, (u, v, du, dv), kin_s, kink, real
 
 
@@ -553,6 +572,14 @@ def _measure(variants, run: _Run, sel, S: int):
     sums = summaries_from_samples(t, r2, dot, angle, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
                                   m[:, None] * tpm, m * g, L * L * r2, speed2, info)
     return sums, ok
+
+
+def _row_sum(x):
+    """Sum along each row, sequentially: trailing zeros (padding) do not change it.
+
+    (``np.sum`` sums pairwise in blocks that depend on the row length.)
+    """
+    return np.cumsum(x, axis=1)[:, -1]
 
 
 def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N, exc2, speed2, info):
@@ -635,13 +662,13 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
     ox, oy = off
     cnt = post.sum(axis=1)
     den = np.maximum(cnt, 1)
-    mx = np.sum(np.where(post, ox, 0.0), axis=1) / den
-    my = np.sum(np.where(post, oy, 0.0), axis=1) / den
+    mx = _row_sum(np.where(post, ox, 0.0)) / den
+    my = _row_sum(np.where(post, oy, 0.0)) / den
     ox = np.where(post, ox - mx[:, None], 0.0)
     oy = np.where(post, oy - my[:, None], 0.0)
-    sxx = np.sum(ox * ox, axis=1)
-    syy = np.sum(oy * oy, axis=1)
-    sxy = np.sum(ox * oy, axis=1)
+    sxx = _row_sum(ox * ox)
+    syy = _row_sum(oy * oy)
+    sxy = _row_sum(ox * oy)
     th = 0.5 * np.arctan2(2 * sxy, sxx - syy)
     x = ox * np.cos(th)[:, None] + oy * np.sin(th)[:, None]
     sgn = np.signbit(x)

@@ -1,0 +1,163 @@
+"""swingsim compare: the example sweep end to end, --resume, Dask, and the report in a browser."""
+
+import base64
+import csv
+import io
+import os
+import re
+import shutil
+import subprocess
+import sys
+import tempfile
+from argparse import Namespace
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from swingsim import batch, compare
+from swingsim.errors import InputError
+from swingsim.sweep import load_sweep
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLE = ROOT / "scenes" / "yard_gantry_sweep.toml"
+
+
+def args(sweep, out, **kw):
+    d = dict(sweep=str(sweep), out=str(out), resume=False, force=False, workers=None, cluster=None,
+             engine="batch", chunk=None, no_sensitivity=False, quiet=True)
+    d.update(kw)
+    return Namespace(**d)
+
+
+@pytest.fixture(scope="module")
+def example_run(tmp_path_factory):
+    out = tmp_path_factory.mktemp("cmp") / "out"
+    assert compare.main(args(EXAMPLE, out)) == 0
+    return out
+
+
+def read_csv(p):
+    return list(csv.DictReader(io.StringIO(Path(p).read_text())))
+
+
+def test_example_sweep_end_to_end(example_run):
+    sw = load_sweep(EXAMPLE)
+    rows = read_csv(example_run / "comparison.csv")
+    assert [int(r["variant"]) for r in rows] == list(range(len(sw.variants)))
+    assert list(rows[0])[:5] == ["variant", "name", "rope.length_m", "moves.0.profile", "moves.0.accel_m_s2"]
+    # the varied values are the sweep's, every summary number is filled in
+    assert {r["moves.0.profile"] for r in rows} == {"trapezoid", "whole-period", "zv", "zvd", "ei"}
+    assert all(r["peak_rope_angle_deg"] and r["residual_rope_angle_deg"] for r in rows)
+    # ranking: by the objective, ranked rows first, limits respected
+    rk = read_csv(example_run / "ranking.csv")
+    ranked = [r for r in rk if r["rank"]]
+    vals = [float(r["settled_at_s"]) for r in ranked]
+    assert vals == sorted(vals) and len(ranked) >= 5
+    assert all(float(r["peak_rope_angle_deg"]) <= 4.0 for r in ranked)
+    # the shapers leave far less swing than the plain trapezoid at the mid rope length
+    by = {(r["rope.length_m"], r["moves.0.profile"]): r for r in rows}
+    plain = float(by[("10.0", "trapezoid")]["residual_rope_angle_deg"])
+    for prof in ("zv", "zvd"):
+        assert float(by[("10.0", prof)]["residual_rope_angle_deg"]) < 0.02 * plain
+    # the sensitivity study: ZVD flatter than ZV away from the design length (Singer & Seering 1990)
+    sens = read_csv(example_run / "sensitivity.csv")
+    at = {(r["profile"], round(float(r["rope_length_error"]), 3)): float(r["residual_swing_deg"]) for r in sens}
+    assert at[("zvd", 0.3)] < at[("zv", 0.3)] and at[("zvd", -0.3)] < at[("zv", -0.3)]
+    assert at[("zv", 0.0)] < 0.05 * at[("trapezoid", 0.0)] + 1e-3
+
+
+def test_resume_runs_only_the_rest(tmp_path, monkeypatch):
+    sw_path = tmp_path / "s.toml"
+    sw_path.write_text(f'base = "{(ROOT / "scenes" / "yard_gantry_travel.toml").as_posix()}"\n'
+                       'sensitivity = false\n[vary]\n"rope.length_m" = [6.0, 8.0, 10.0, 12.0, 14.0]\n'
+                       '"moves.0.accel_m_s2" = [0.2, 0.35]\n')
+    full = tmp_path / "full"
+    assert compare.main(args(sw_path, full, chunk=3)) == 0
+    want = (full / "comparison.csv").read_text()
+    # an interrupted run: header, four finished rows, a fifth cut short
+    part = tmp_path / "part"
+    part.mkdir()
+    lines = want.splitlines(keepends=True)
+    (part / "comparison.csv").write_text("".join(lines[:5]) + lines[5][:40])
+    seen = []
+    real = batch.run_chunk
+
+    def spy(scenes, **kw):
+        seen.append(len(scenes))
+        return real(scenes, **kw)
+
+    monkeypatch.setattr(batch, "run_chunk", spy)
+    assert compare.main(args(sw_path, part, resume=True, chunk=3)) == 0
+    assert sum(seen) == 10 - 4  # the four finished variants were not run again
+    assert (part / "comparison.csv").read_text() == want
+    # a resume into a folder of another sweep is refused, nothing changed
+    other = tmp_path / "o.toml"
+    other.write_text(sw_path.read_text().replace("14.0", "15.0"))
+    with pytest.raises(InputError) as e:
+        compare.main(args(other, part, resume=True))
+    assert "differ" in str(e.value)
+    assert (part / "comparison.csv").read_text() == want
+
+
+def test_refuses_non_empty_out_without_force(tmp_path):
+    out = tmp_path / "o"
+    out.mkdir()
+    (out / "keep.txt").write_text("x")
+    with pytest.raises(InputError):
+        compare.main(args(EXAMPLE, out, no_sensitivity=True))
+    assert sorted(p.name for p in out.iterdir()) == ["keep.txt"]
+
+
+def test_dask_local_cluster_identical_to_in_process(tmp_path):
+    # two worker processes on loopback (dask.distributed LocalCluster); same chunks, same numbers
+    pytest.importorskip("dask.distributed")
+    sw = load_sweep(EXAMPLE)
+    scenes = sw.scenes
+    ranges = [list(r) for r in batch.chunks(len(scenes), 5)]
+    here, there = {}, {}
+    compare.run_chunks(scenes, ranges, on_result=lambda r, res: here.update(zip(r, res)))
+    compare.run_chunks(scenes, ranges, workers=2, on_result=lambda r, res: there.update(zip(r, res)))
+    assert len(there) == len(scenes)
+    assert [there[i] for i in range(len(scenes))] == [here[i] for i in range(len(scenes))]
+
+
+def _chromium():
+    for name in ("chromium", "chromium-browser"):
+        p = shutil.which(name)
+        if p:
+            return p
+    return None
+
+
+@pytest.mark.skipif(_chromium() is None, reason="needs Debian's chromium (installed by .ci/run)")
+def test_report_in_headless_chromium(example_run, tmp_path):
+    html_path = example_run / "report.html"
+    text = html_path.read_text()
+    assert "http://" not in text and "https://" not in text and "<script" not in text  # self-contained
+    profile = tempfile.mkdtemp(prefix="chromium-", dir=tmp_path)
+    cmd = [_chromium(), "--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+           "--disable-component-update", "--disable-sync", "--no-first-run", f"--user-data-dir={profile}",
+           "--dump-dom", html_path.as_uri()]
+    r = subprocess.run(cmd, capture_output=True, text=True, timeout=120)
+    dom = r.stdout
+    assert r.returncode == 0 and "</html>" in dom
+    sw = load_sweep(EXAMPLE)
+    table = re.search(r'<table id="ranking">(.*?)</table>', dom, re.S).group(1)
+    assert table.count("<tr") == len(sw.variants) + 1  # header + one row per variant
+    imgs = re.findall(r'<img[^>]*src="data:image/png;base64,([^"]+)"', dom)
+    assert len(imgs) == len(sw.keys) + 1  # one per varied key + the sensitivity plot
+    import matplotlib.image as mpimg
+
+    for b in imgs:
+        im = mpimg.imread(io.BytesIO(base64.b64decode(b)), format="png")
+        assert im.shape[0] > 200 and im.shape[1] > 400
+        assert float(np.std(im[..., :3])) > 0.05  # drawn, not blank
+    assert "CAUTION" in dom and "competent person" in dom
+    # and it renders: a screenshot with more than background in it
+    shot = tmp_path / "shot.png"
+    r = subprocess.run(cmd[:-2] + ["--window-size=1200,1600", f"--screenshot={shot}", html_path.as_uri()],
+                       capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0 and shot.exists()
+    im = mpimg.imread(shot)
+    assert float(np.std(im[..., :3])) > 0.05
