@@ -388,7 +388,7 @@ def _integrate(variants) -> _Run:
     return _Run(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 
-def _best_peak(t, x, mask=None, kink=None):
+def _best_peak(t, x, mask=None, kink=None, top=0):
     """Largest value of each row of ``x`` over ``mask``, refined at every local maximum.
 
     Every window of three consecutive samples (all within ``mask``) that lies
@@ -403,6 +403,9 @@ def _best_peak(t, x, mask=None, kink=None):
     -------
     idx, t_peak, x_peak : ndarray (B,)
         Sample index nearest the peak, its time [s] and value.
+    cand : ndarray (B, top + 1)
+        Only with ``top``: times of the ``top`` best vertices and of the largest
+        sample, starting points for a finer search.
     """
     B, M = x.shape
     r = np.arange(B)
@@ -437,10 +440,78 @@ def _best_peak(t, x, mask=None, kink=None):
         j = np.argmax(xv, axis=1)
         vj = xv[r, j]
         better = vj > best
+        sample_t = best_t
         best = np.where(better, vj, best)
         best_t = np.where(better, tv[r, j], best_t)
         i = np.where(better, j + 1, i)
+        if top:
+            k = min(top, xv.shape[1])
+            idx = np.argpartition(-xv, k - 1, axis=1)[:, :k]
+            ct = np.where(np.isfinite(xv[r[:, None], idx]), tv[r[:, None], idx], sample_t[:, None])
+            return i, best_t, best, np.concatenate([ct, sample_t[:, None]], axis=1)
+    if top:
+        return i, best_t, best, best_t[:, None]
     return i, best_t, best
+
+
+#: Quintic Hermite basis as polynomial coefficients in s (rows: basis function, cols: power).
+_HP = np.array([[1, 0, 0, -10, 15, -6], [0, 1, 0, -6, 8, -3], [0, 0, 0.5, -1.5, 1.5, -0.5],
+                [0, 0, 0, 10, -15, 6], [0, 0, 0, -4, 7, -3], [0, 0, 0, 0.5, -1, 0.5]], dtype=float)
+
+
+def _newton_r2(run: _Run, rows, t0, iterations=6):
+    """Refine a maximum of |n_h|^2 from ``t0`` on the dense interpolant of each row's step.
+
+    Newton's method on d(|n_h|^2)/dt = 0 with the quintic Hermite polynomial of
+    the step containing ``t0`` (kept inside that step: a breakpoint is always a
+    step end).  Returns the time and the value reached.
+    """
+    tg = run.tg[rows]
+    B, N1 = tg.shape
+    r = np.arange(B)
+    t_end = tg[:, -1]
+    k = np.minimum(np.sum(tg[:, 1:] <= t0[:, None], axis=1), np.sum(tg[:, 1:] < t_end[:, None], axis=1))
+    k = np.clip(k, 0, N1 - 2)
+    ta = tg[r, k]
+    h = tg[r, k + 1] - ta
+    hs = np.where(h > 0, h, 1.0)
+    polys = []
+    for q in (0, 1):
+        c = (run.Y[k, q, rows], h * run.Y[k, q + 2, rows], h * h * run.A0[k, q, rows],
+             run.Y[k + 1, q, rows], h * run.Y[k + 1, q + 2, rows], h * h * run.A1[k, q, rows])
+        p = []
+        for j in range(6):
+            acc = c[0] * _HP[0, j]
+            for m in range(1, 6):
+                acc = acc + c[m] * _HP[m, j]
+            p.append(acc)
+        polys.append(p)
+
+    def ev(p, s):
+        val = p[5]
+        d1 = 5.0 * p[5]
+        d2 = 20.0 * p[5]
+        for j in (4, 3, 2, 1, 0):
+            val = val * s + p[j]
+        for j in (4, 3, 2, 1):
+            d1 = d1 * s + j * p[j]
+        for j in (4, 3, 2):
+            d2 = d2 * s + j * (j - 1) * p[j]
+        return val, d1, d2
+
+    s = np.clip((t0 - ta) / hs, 0.0, 1.0)
+    with np.errstate(all="ignore"):
+        for _ in range(iterations):
+            u, u1, u2 = ev(polys[0], s)
+            v, v1, v2 = ev(polys[1], s)
+            g1 = u * u1 + v * v1
+            g2 = u1 * u1 + u * u2 + v1 * v1 + v * v2
+            step = np.where(g2 < 0, g1 / g2, 0.0)
+            s = np.clip(s - step, 0.0, 1.0)
+        u = ev(polys[0], s)[0]
+        v = ev(polys[1], s)[0]
+    good = (h > 0) & np.isfinite(u) & np.isfinite(v)
+    return ta + s * h, np.where(good, u * u + v * v, -np.inf)
 
 
 def _parabola_peak(t, x, i, mask=None):
@@ -567,6 +638,7 @@ def _measure(variants, run: _Run, sel, S: int):
         "rest_vertical": np.all(rest[:, :2] == 0.0, axis=1),
         "kink": kink,
         "real": real,
+        "newton": lambda t0: _newton_r2(run, sel, t0),
     }
     dot = u * rest[:, None, 0] + v * rest[:, None, 1] - w * rest[:, None, 2]
     sums = summaries_from_samples(t, r2, dot, angle, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
@@ -636,9 +708,27 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
     anyp = post.any(axis=1)
 
     kink = info.get("kink")
-    i_pk, pk_t, pk = _best_peak(t, r2, None, kink)
+    newton = info.get("newton")
+    i_pk, pk_t, pk, cand = _best_peak(t, r2, None, kink, top=3)
+    i_res, _, res, cand_r = _best_peak(t, r2, post, kink, top=3)
+    if newton is not None:
+        # finer: Newton on the dense interpolant from the best few candidates; the parabolas
+        # only give the starting points (their own vertex can overshoot beside a breakpoint)
+        i_pk = np.argmax(r2, axis=1)
+        pk, pk_t = r2[r, i_pk], t[r, i_pk]
+        i_res = np.argmax(np.where(post, r2, -1.0), axis=1)
+        res = np.where(post, r2, -1.0)[r, i_res]
+        for j in range(cand.shape[1]):
+            tn, xn = newton(cand[:, j])
+            better = xn > pk
+            pk = np.where(better, xn, pk)
+            pk_t = np.where(better, tn, pk_t)
+        lo = move_end - 1e-12
+        for j in range(cand_r.shape[1]):
+            tn, xn = newton(np.maximum(cand_r[:, j], move_end))
+            better = (xn > res) & (tn >= lo) & anyp
+            res = np.where(better, xn, res)
     pk = np.arcsin(np.sqrt(np.clip(pk, 0.0, 1.0)))
-    i_res, _, res = _best_peak(t, r2, post, kink)
     res = np.arcsin(np.sqrt(np.clip(res, 0.0, 1.0)))
     vertical = np.asarray(info.get("rest_vertical", np.zeros(B, dtype=bool)))
     rsw = res
