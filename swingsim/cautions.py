@@ -57,8 +57,8 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                            f"takes {_f(st)} s to settle below {lim.settle_deg:g} deg.")
     ex = s.get("peak_excursion_m")
     if lim.clearance_m is not None and ex is not None and ex > lim.clearance_m:
-        out.append(f"The load strays {_f(ex, 2)} m from the plumb line, beyond the declared clearance "
-                   f"of {lim.clearance_m:g} m.")
+        out.append(f"The load strays {ex:.3f} m from the plumb line, beyond the declared clearance "
+                   f"of {lim.clearance_m:.3f} m.")
     for z in s.get("zones", []):
         if z["inside"]:
             out.append(f"The load enters {z['kind']} '{z['name']}' (from t = {z['first_within_margin_s']:.1f} s).")

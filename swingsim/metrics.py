@@ -120,11 +120,16 @@ def zone_distance(points: np.ndarray, lo, hi) -> np.ndarray:
     return np.linalg.norm(d, axis=-1)
 
 
-def load_radius_m(scene) -> float:
-    """Half the diagonal of the load's size (0 for a point load): a safe clearance radius."""
+def load_half_size_m(scene) -> np.ndarray:
+    """Half the load's size along x, y, z (zeros for a point load) [m].
+
+    The point-mass load keeps its orientation, so its box is axis-aligned and
+    the clearance to a zone is the distance from the load's centre to the zone
+    box grown by these half sizes (exact for boxes).
+    """
     if scene.load.size_m is None:
-        return 0.0
-    return 0.5 * float(np.linalg.norm(scene.load.size_m))
+        return np.zeros(3)
+    return 0.5 * np.asarray(scene.load.size_m, dtype=float)
 
 
 def summarize(traj) -> Summary:
@@ -194,10 +199,9 @@ def summarize(traj) -> Summary:
 
     # zones
     zones = []
-    r_load = load_radius_m(scene)
+    half = load_half_size_m(scene)
     for z in scene.zones:
-        d = zone_distance(s["load"], z.min_m, z.max_m) - r_load
-        d = np.maximum(d, 0.0)
+        d = zone_distance(s["load"], np.asarray(z.min_m) - half, np.asarray(z.max_m) + half)
         within = d <= z.margin_m
         zones.append({
             "name": z.name, "kind": z.kind, "margin_m": z.margin_m,

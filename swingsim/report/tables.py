@@ -112,9 +112,9 @@ def summary_text(summary, scene) -> str:
     w.append(f"  Swing when the last move ends    {_fmt(d['swing_at_move_end_deg'], 'deg')}")
     w.append(f"  Residual rope angle after moves  {_fmt(d['residual_rope_angle_deg'], 'deg')}")
     if d["settle_time_s"] is None:
-        w.append(f"  Settles below {d['settle_threshold_deg']:g} deg              not within the simulated time")
+        w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}not within the simulated time")
     else:
-        w.append(f"  Settles below {d['settle_threshold_deg']:g} deg              {_fmt(d['settle_time_s'], 's', 1)} after the last move (t = {_fmt(d['settled_at_s'], 's', 1)})")
+        w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}{_fmt(d['settle_time_s'], 's', 1)} after the last move (t = {_fmt(d['settled_at_s'], 's', 1)})")
     w.append("")
     w.append("Rope tension")
     w.append(f"  Static                           {_fmt(d['static_rope_tension_kN'], 'kN')}")
