@@ -31,8 +31,10 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                    " Do not use the numbers below that instant.")
     pk = s.get("peak_rope_angle_deg")
     if pk is not None and pk > lim.swing_caution_deg:
+        src = ("set in the scene" if "swing_caution_deg" in scene.raw.get("limits", {})
+               else "a rule-of-thumb default")
         out.append(f"Peak rope angle {_f(pk)} deg exceeds the caution angle of "
-                   f"{lim.swing_caution_deg:g} deg (a rule of thumb; the permitted off-vertical "
+                   f"{lim.swing_caution_deg:g} deg ({src}; the permitted off-vertical "
                    "and side-load angles come from the crane manufacturer).")
     w = scene.wind.speed_m_s
     wl = scene.crane.wind_limit_m_s
@@ -57,8 +59,8 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                            f"takes {_f(st)} s to settle below {lim.settle_deg:g} deg.")
     ex = s.get("peak_excursion_m")
     if lim.clearance_m is not None and ex is not None and ex > lim.clearance_m:
-        out.append(f"The load strays {_f(ex, 2)} m from the plumb line, beyond the declared clearance "
-                   f"of {lim.clearance_m:g} m.")
+        out.append(f"The load strays {ex:.3f} m from the plumb line, beyond the declared clearance "
+                   f"of {lim.clearance_m:.3f} m.")
     for z in s.get("zones", []):
         if z["inside"]:
             out.append(f"The load enters {z['kind']} '{z['name']}' (from t = {z['first_within_margin_s']:.1f} s).")

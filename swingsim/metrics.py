@@ -120,11 +120,16 @@ def zone_distance(points: np.ndarray, lo, hi) -> np.ndarray:
     return np.linalg.norm(d, axis=-1)
 
 
-def load_radius_m(scene) -> float:
-    """Half the diagonal of the load's size (0 for a point load): a safe clearance radius."""
+def load_half_size_m(scene) -> np.ndarray:
+    """Half the load's size along x, y, z (zeros for a point load) [m].
+
+    The point-mass load keeps its orientation, so its box is axis-aligned and
+    the clearance to a zone is the distance from the load's centre to the zone
+    box grown by these half sizes (exact for boxes).
+    """
     if scene.load.size_m is None:
-        return 0.0
-    return 0.5 * float(np.linalg.norm(scene.load.size_m))
+        return np.zeros(3)
+    return 0.5 * np.asarray(scene.load.size_m, dtype=float)
 
 
 def summarize(traj) -> Summary:
@@ -194,10 +199,9 @@ def summarize(traj) -> Summary:
 
     # zones
     zones = []
-    r_load = load_radius_m(scene)
+    half = load_half_size_m(scene)
     for z in scene.zones:
-        d = zone_distance(s["load"], z.min_m, z.max_m) - r_load
-        d = np.maximum(d, 0.0)
+        d = zone_distance(s["load"], np.asarray(z.min_m) - half, np.asarray(z.max_m) + half)
         within = d <= z.margin_m
         zones.append({
             "name": z.name, "kind": z.kind, "margin_m": z.margin_m,
@@ -208,6 +212,18 @@ def summarize(traj) -> Summary:
         })
 
     pos_moves = [m for m in scene.moves]
+    move_list = []
+    for m, (axis, prof) in zip(scene.moves, motion.moves):
+        tt = np.linspace(prof.start_s, prof.end_s, 401)
+        vmax = float(np.max(np.abs(prof.evaluate(tt)[1])))
+        slew = axis == "slew"
+        move_list.append({
+            "name": m.name, "axis": axis, "profile": m.profile,
+            "start_s": prof.start_s, "end_s": prof.end_s,
+            "distance": math.degrees(prof.distance) if slew else prof.distance,
+            "peak_speed": math.degrees(vmax) if slew else vmax,
+            "unit": "deg" if slew else "m",
+        })
     data = {
         "swingsim_version": __version__,
         "title": scene.title,
@@ -218,6 +234,7 @@ def summarize(traj) -> Summary:
         "duration_s": scene.duration_s,
         "simulated_until_s": traj.t_end_s,
         "moves": len(pos_moves),
+        "move_list": move_list,
         "first_move_start_s": motion.first_move_start_s,
         "last_move_end_s": t_move_end,
         "peak_rope_angle_deg": math.degrees(pk),
