@@ -384,6 +384,8 @@ def main(args) -> int:
         raise InputError("--workers", "", "expected a whole number >= 1", args.workers)
     if args.chunk is not None and args.chunk < 1:
         raise InputError("--chunk", "", "expected a whole number >= 1", args.chunk)
+    if args.cluster is not None and not args.cluster.strip():
+        raise InputError("--cluster", "", "expected the scheduler's address, e.g. tcp://10.0.0.5:8786", args.cluster)
     if args.resume and args.force:
         raise InputError("--resume", "", "cannot be combined with --force (which starts again)")
     sweep = load_sweep(args.sweep)

@@ -64,8 +64,12 @@ def _fmt(x, nd=3) -> str:
     return html.escape(str(x))
 
 
-def quantity_figure(rows, key, group_key=None):
-    """Residual swing and move time of every variant against one varied key (PNG, base64)."""
+def quantity_figure(rows, key, others=()):
+    """Residual swing and move time of every variant against one varied key (PNG, base64).
+
+    One line per combination of the ``others`` keys' values (markers only when
+    there are many).
+    """
     plt, fig = _fig()
     ax1 = fig.add_subplot(1, 2, 1)
     ax2 = fig.add_subplot(1, 2, 2)
@@ -80,16 +84,17 @@ def quantity_figure(rows, key, group_key=None):
     for r, x in zip(rows, xs):
         if x is None:
             continue
-        g = repr(r["values"].get(group_key)) if group_key else ""
+        g = ", ".join(f"{k.split('.')[-1]} = {r['values'].get(k)!r}" for k in others)
         groups.setdefault(g, []).append((x, r))
+    lines = numeric and len(groups) <= 12
     for gi, (g, items) in enumerate(groups.items()):
         col = _COLOURS[gi % len(_COLOURS)]
         items.sort(key=lambda p: (p[0] if numeric else cats.index(repr(p[0]))))
         X = [p[0] if numeric else cats.index(repr(p[0])) for p in items]
         res = [p[1]["summary"].get("residual_rope_angle_deg") for p in items]
         mt = [p[1]["summary"].get("last_move_end_s") for p in items]
-        label = f"{group_key.split('.')[-1]} = {g}" if group_key else None
-        style = dict(color=col, marker="o", ms=4, lw=1.2 if numeric else 0)
+        label = g or None
+        style = dict(color=col, marker="o", ms=4, lw=1.2 if lines else 0)
         ax1.plot(X, [math.nan if v is None else v for v in res], label=label, **style)
         ax2.plot(X, [math.nan if v is None else v for v in mt], label=label, **style)
     for ax, what in ((ax1, "residual rope angle [deg]"), (ax2, "move time: last move ends at [s]")):
@@ -99,8 +104,8 @@ def quantity_figure(rows, key, group_key=None):
         if not numeric:
             ax.set_xticks(range(len(cats)))
             ax.set_xticklabels([c.strip("'") for c in cats], rotation=20, fontsize=8)
-    if group_key and len(groups) > 1:
-        ax1.legend(fontsize=7, loc="best")
+    if others and 1 < len(groups) <= 12:
+        ax2.legend(fontsize=6.5, loc="best")
     fig.suptitle(f"Residual swing and move time against {key}", fontsize=10, color=INK)
     fig.text(0.5, 0.005, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color=LIMIT)
     fig.tight_layout(rect=(0, 0.04, 1, 0.95))
@@ -181,14 +186,14 @@ def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str
                  "below the scene's settle angle.</p>")
 
     parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
-    cat_keys = [k for k in cols if not all(_is_num(r["values"].get(k)) for r in rows if k in r["values"])]
     for k in cols:
-        group = next((c for c in cat_keys if c != k), None)
-        img = quantity_figure(rows, k, group)
+        others = [c for c in cols if c != k]
+        img = quantity_figure(rows, k, others)
         parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
                      f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
                      f"move ends; right: when the last move ends; against <code>{e(k)}</code>"
-                     + (f", one line per <code>{e(group)}</code>" if group else "") + ".</figcaption></figure>")
+                     + (", one colour per combination of the other compared values" if others else "")
+                     + ".</figcaption></figure>")
     if sensitivity:
         img = sensitivity_figure(sensitivity)
         parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
