@@ -381,9 +381,9 @@ def add_arguments(p):
 
 def main(args) -> int:
     if args.workers is not None and args.workers < 1:
-        raise InputError("--workers", "", "expected a whole number >= 1", args.workers)
+        raise InputError("--workers", "value", "expected a whole number >= 1", args.workers)
     if args.chunk is not None and args.chunk < 1:
-        raise InputError("--chunk", "", "expected a whole number >= 1", args.chunk)
+        raise InputError("--chunk", "value", "expected a whole number >= 1", args.chunk)
     if args.cluster is not None and not args.cluster.strip():
         raise InputError("--cluster", "", "expected the scheduler's address, e.g. tcp://10.0.0.5:8786", args.cluster)
     if args.resume and args.force:

@@ -36,7 +36,7 @@ def _parse_range(text: str):
     try:
         lo, hi = (float(x) for x in text.split(":"))
     except ValueError:
-        raise InputError("--rope-range", "", "expected LOW:HIGH in metres, e.g. 8:20", text) from None
+        raise InputError("--rope-range", "value", "expected LOW:HIGH in metres, e.g. 8:20", text) from None
     return lo, hi
 
 

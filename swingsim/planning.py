@@ -136,9 +136,9 @@ def check_request(scene, index, max_residual_deg, low, high, where="--move"):
         raise InputError(scene.file, f"moves[{index}].profile", "plan-move needs a move with distance, speed "
                          "and acceleration limits, not a recorded table", m.profile)
     if not (max_residual_deg > 0 and math.isfinite(max_residual_deg)):
-        raise InputError("--max-residual-deg", "", "expected a positive number of degrees", max_residual_deg)
+        raise InputError("--max-residual-deg", "value", "expected a positive number of degrees", max_residual_deg)
     if not (0 < low <= high and math.isfinite(high)):
-        raise InputError("--rope-range", "", "expected LOW:HIGH rope lengths in metres with 0 < LOW <= HIGH",
+        raise InputError("--rope-range", "value", "expected LOW:HIGH rope lengths in metres with 0 < LOW <= HIGH",
                          f"{low}:{high}")
     if any(mm.axis == "hoist" for mm in scene.moves):
         raise InputError(scene.file, "moves", "plan-move plans with a fixed rope length over the range; "
