@@ -397,13 +397,39 @@ def _integrate(variants) -> _Run:
     return _Run(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 
-def _best_peak(t, x, mask=None, kink=None, top=0):
+def _windows(t, x, kink=None):
+    """Parabola vertices of every three-sample window within one segment (see _best_peak)."""
+    xa, xb, xc = x[:, :-2], x[:, 1:-1], x[:, 2:]
+    ta, tb, tc = t[:, :-2], t[:, 1:-1], t[:, 2:]
+    with np.errstate(all="ignore"):
+        d1 = (xb - xa) / (tb - ta)
+        d2 = (xc - xb) / (tc - tb)
+        curv = (d2 - d1) / (tc - ta)
+        tv = 0.5 * (ta + tb) - d1 / (2.0 * curv)
+        xv = xa + d1 * (tv - ta) + curv * (tv - ta) * (tv - tb)
+        right = tc
+        if kink is not None:
+            # the interval just before a breakpoint is no window's middle: let the window
+            # ending one sample earlier reach across it (extrapolating its own segment)
+            nxt = np.zeros_like(kink[:, 2:])
+            nxt[:, :-1] = kink[:, 3:]
+            tn = np.empty_like(tc)
+            tn[:, :-1] = t[:, 3:]
+            tn[:, -1] = tc[:, -1]
+            right = np.where(nxt, tn, tc)
+        ok = (tb > ta) & (tc > tb) & (curv < 0) & (tv > ta) & (tv < right)
+    if kink is not None:  # a kink sample opens a segment: it may only start a window
+        ok &= ~kink[:, 1:-1] & ~kink[:, 2:]
+    return tv, xv, ok
+
+
+def _best_peak(t, x, mask=None, kink=None, top=0, win=None):
     """Largest value of each row of ``x`` over ``mask``, refined at every local maximum.
 
     Every window of three consecutive samples (all within ``mask``) that lies
     within one segment (``kink`` marks the first sample of each segment after
-    a profile breakpoint, where the curvature or the tension jumps) gives the vertex of its parabola when that vertex is a
-    maximum inside the window; the best vertex or raw sample of the row is
+    a profile breakpoint, where the curvature or the tension jumps) gives the
+    vertex of its parabola when that vertex is a maximum inside the window; the best vertex or raw sample of the row is
     returned with its time.  Looking at every window, not only the one around
     the largest sample, finds the true peak when another swing's sample
     happens to lie higher, and windows never straddle a breakpoint.
@@ -422,29 +448,9 @@ def _best_peak(t, x, mask=None, kink=None, top=0):
     i = np.argmax(xm, axis=1)
     best_t, best = t[r, i], xm[r, i]
     if M >= 3:
-        xa, xb, xc = x[:, :-2], x[:, 1:-1], x[:, 2:]
-        ta, tb, tc = t[:, :-2], t[:, 1:-1], t[:, 2:]
-        with np.errstate(all="ignore"):
-            d1 = (xb - xa) / (tb - ta)
-            d2 = (xc - xb) / (tc - tb)
-            curv = (d2 - d1) / (tc - ta)
-            tv = 0.5 * (ta + tb) - d1 / (2.0 * curv)
-            xv = xa + d1 * (tv - ta) + curv * (tv - ta) * (tv - tb)
-            right = tc
-            if kink is not None:
-                # the interval just before a breakpoint is no window's middle: let the window
-                # ending one sample earlier reach across it (extrapolating its own segment)
-                nxt = np.zeros_like(kink[:, 2:])
-                nxt[:, :-1] = kink[:, 3:]
-                tn = np.empty_like(tc)
-                tn[:, :-1] = t[:, 3:]
-                tn[:, -1] = tc[:, -1]
-                right = np.where(nxt, tn, tc)
-            ok = (tb > ta) & (tc > tb) & (curv < 0) & (tv > ta) & (tv < right)
-        if kink is not None:  # a kink sample opens a segment: it may only start a window
-            ok &= ~kink[:, 1:-1] & ~kink[:, 2:]
+        tv, xv, ok = _windows(t, x, kink) if win is None else win
         if mask is not None:
-            ok &= mask[:, :-2] & mask[:, 1:-1] & mask[:, 2:]
+            ok = ok & mask[:, :-2] & mask[:, 1:-1] & mask[:, 2:]
         xv = np.where(ok, xv, -np.inf)
         j = np.argmax(xv, axis=1)
         vj = xv[r, j]
@@ -523,32 +529,6 @@ def _newton_r2(run: _Run, rows, t0, iterations=6):
     return ta + s * h, np.where(good, u * u + v * v, -np.inf)
 
 
-def _parabola_peak(t, x, i, mask=None):
-    """Vertex of the parabola through samples i-1, i, i+1 of each row (clipped to the samples).
-
-    Rows whose neighbours fall outside ``mask`` keep the sample value.
-    """
-    B, n = x.shape
-    r = np.arange(B)
-    i0 = np.clip(i - 1, 0, n - 1)
-    i2 = np.clip(i + 1, 0, n - 1)
-    ta, tb, tc = t[r, i0], t[r, i], t[r, i2]
-    xa, xb, xc = x[r, i0], x[r, i], x[r, i2]
-    with np.errstate(all="ignore"):
-        d1 = (xb - xa) / (tb - ta)
-        d2 = (xc - xb) / (tc - tb)
-        curv = (d2 - d1) / (tc - ta)
-        good = (i0 < i) & (i2 > i) & (tb > ta) & (tc > tb) & (curv < 0)
-        if mask is not None:
-            good &= mask[r, i0] & mask[r, i2]
-        tv = 0.5 * (ta + tb) - d1 / (2 * curv)
-        good &= (tv > ta) & (tv < tc)
-        # value of the interpolating parabola at tv (Newton form)
-        xv = xa + d1 * (tv - ta) + curv * (tv - ta) * (tv - tb)
-    better = good & (xv > xb)
-    return np.where(better, tv, tb), np.where(better, xv, xb)
-
-
 def _dense(run: _Run, sel, S: int):
     """Dense samples of rows ``sel``: times and states (B, M) with M = N S + 1."""
     Bs = len(sel)
@@ -578,7 +558,10 @@ def _dense(run: _Run, sel, S: int):
     # kinematics at the samples, on each step's own segment
     ar = np.arange(Bs)[:, None]
     sg = run.sg[sel]
-    c = run.coef[sel][ar, sg]                    # (b, N, 5, 4)
+    cs = run.coef[sel]
+    c = np.zeros(sg.shape + cs.shape[2:])          # (b, N, 5, 4): only the axes that move
+    for a in np.nonzero(run.kin.used)[0]:
+        c[:, :, a, :] = cs[:, :, a, :][ar, sg]
     tau = (tg[:, :-1] - run.t0s[sel][ar, sg])[..., None] + frac * h
     kin = run.kin.rows(sel)
     kk = kin(c, tau)
@@ -624,9 +607,6 @@ def _measure(variants, run: _Run, sel, S: int):
     ok &= np.all(tpm > 0.0, axis=1) & np.all(w > wlim, axis=1)
     n = (u, v, -w)
 
-    def angle(rows, idx):
-        return np.arctan2(np.sqrt(r2[rows, idx]), w[rows, idx])
-
     def swing_at(rows, idx):
         a = [c[rows, idx] for c in n]
         q = rest[rows]
@@ -650,7 +630,7 @@ def _measure(variants, run: _Run, sel, S: int):
         "newton": lambda t0: _newton_r2(run, sel, t0),
     }
     dot = u * rest[:, None, 0] + v * rest[:, None, 1] - w * rest[:, None, 2]
-    sums = summaries_from_samples(t, r2, dot, angle, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
+    sums = summaries_from_samples(t, r2, dot, swing_at, (u - rest[:, None, 0], v - rest[:, None, 1]),
                                   m[:, None] * tpm, m * g, L * L * r2, speed2, info)
     return sums, ok
 
@@ -663,8 +643,8 @@ def _row_sum(x):
     return np.cumsum(x, axis=1)[:, -1]
 
 
-def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N, exc2, speed2, info):
-    """Summary numbers of many runs from sampled arrays (one row per run).
+def summaries_from_samples(t, r2, dot, swing_at, off, tension_N, static_N, exc2, speed2, info):
+    r"""Summary numbers of many runs from sampled arrays (one row per run).
 
     Parameters
     ----------
@@ -675,8 +655,8 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
         angle grows with it).
     dot : ndarray (B, M)
         n . rest (the swing from the rest direction shrinks as it grows).
-    angle, swing_at : callable (rows, idx) -> ndarray
-        Rope angle and swing [rad] at the given samples.
+    swing_at : callable (rows, idx) -> ndarray
+        Swing from the rest direction [rad] at the given samples.
     off : tuple of ndarray (B, M)
         Horizontal components of n - rest.
     tension_N : ndarray (B, M)
@@ -687,8 +667,11 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
         Squared horizontal excursion of the load from the plumb line [m^2].
     speed2 : ndarray (B, M)
         Squared load speed [m^2/s^2].
-    info : dict of ndarray (B,)
-        ``move_end``, ``t_end``, ``period0``, ``period_end``, ``settle_rad``, ``L0``, ``L_end``.
+    info : dict
+        Arrays (B,): ``move_end``, ``t_end``, ``period0``, ``period_end``, ``settle_rad``,
+        ``L0``, ``L_end``, ``rest_vertical``; optional arrays (B, N): ``kink`` (first sample
+        of a segment after a breakpoint), ``real`` (False for padding samples); optional
+        ``newton(t0) -> (t, r2)``, a local maximiser of ``r2`` on the dense interpolant.
 
     Returns
     -------
@@ -704,9 +687,9 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
     ``limits.settle_deg`` (linear interpolation of the crossing), confirmed by
     at least one swing period of run after it; the measured period is the mean
     interval between upward zero crossings of the swing along its principal
-    axis after the last move.  Peaks of the angles are refined by the parabola
-    through the three samples around the largest (the single-run metrics
-    refine on the dense interpolant instead).
+    axis after the last move.  Peaks are refined by parabolas through three
+    samples within one segment and, for the rope angle, by ``newton`` on the
+    dense interpolant (as the single-run metrics refine on theirs).
     """
     B, M = t.shape
     r = np.arange(B)
@@ -718,8 +701,9 @@ def summaries_from_samples(t, r2, dot, angle, swing_at, off, tension_N, static_N
 
     kink = info.get("kink")
     newton = info.get("newton")
-    i_pk, pk_t, pk, cand = _best_peak(t, r2, None, kink, top=3)
-    i_res, _, res, cand_r = _best_peak(t, r2, post, kink, top=3)
+    win = _windows(t, r2, kink) if M >= 3 else None
+    i_pk, pk_t, pk, cand = _best_peak(t, r2, None, kink, top=3, win=win)
+    i_res, _, res, cand_r = _best_peak(t, r2, post, kink, top=3, win=win)
     if newton is not None:
         # finer: Newton on the dense interpolant from the best few candidates; the parabolas
         # only give the starting points (their own vertex can overshoot beside a breakpoint)

@@ -6,7 +6,6 @@ Random variants cover large nonlinear swings (up to 60 deg), wind and drag, damp
 slewing, radius, hoisting, s-curves, shaped moves and table profiles.
 """
 
-import math
 
 import numpy as np
 import pytest

@@ -3,11 +3,9 @@
 import base64
 import csv
 import io
-import os
 import re
 import shutil
 import subprocess
-import sys
 import tempfile
 from argparse import Namespace
 from pathlib import Path

@@ -6,10 +6,8 @@ swingsim.solve.simulate) at rope lengths that the search did not use.
 """
 
 import json
-import math
 import tomllib
 from argparse import Namespace
-from pathlib import Path
 
 import numpy as np
 import pytest

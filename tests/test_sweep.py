@@ -1,6 +1,5 @@
 """Sweep files: expansion into variants and validation errors that name the sweep file and key."""
 
-import math
 import subprocess
 import sys
 from pathlib import Path
