@@ -52,6 +52,10 @@ def build_profile(move, scene) -> P.Profile:
         return PROFILE_BUILDERS[move.profile](move, scene, scale)
     except P.ProfileError as exc:
         raise SceneError(scene.file, move_key(move), str(exc)) from None
+    except ArithmeticError:  # overflow or division by zero from extreme (valid-typed) numbers
+        raise SceneError(scene.file, move_key(move), "its distance, speed, acceleration, jerk or "
+                         "period are too extreme to build a motion profile from (a number overflows "
+                         "or vanishes); check the values and units") from None
 
 
 def build_motion(scene) -> Motion:
