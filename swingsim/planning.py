@@ -201,8 +201,11 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
         if dec_key in raw:
             a_lim = min(a_lim, float(raw[dec_key]))
         a0 = float(best.move[acc_key])
+        # between the winner's acceleration and the next larger one tried (which failed or was slower)
+        ups = [a_lim * f for f in _ACCEL_FACTORS if a_lim * f > a0 * (1 + 1e-9)]
+        a_up = min(ups) if ups else a0
         more = []
-        for a in np.linspace(a0, a_lim, 6)[1:]:
+        for a in (np.linspace(a0, a_up, 7)[1:] if a_up > a0 else [a0]):
             for sc_T in (1.0, 0.97, 1.03):
                 m = dict(best.move)
                 m[acc_key] = float(a)
