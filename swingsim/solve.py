@@ -145,7 +145,9 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
             for n, te in zip(names, res.t_events):
                 if len(te):
                     traj.status = n
-                    traj.message = _event_message(n, float(te[0]))
+                    custom = getattr(model, "event_message", None)
+                    msg = custom(n, float(te[0])) if custom else None
+                    traj.message = msg or _event_message(n, float(te[0]))
                     break
             return traj
         y = res.y[:, -1]
@@ -161,3 +163,8 @@ def _event_message(name: str, t: float) -> str:
         return (f"the swing reached {C.MODEL_ANGLE_LIMIT_DEG:g} deg at t = {t:.3f} s, beyond any "
                 "crane's working range and the model's limit; the results stop there")
     return f"the run stopped at t = {t:.3f} s ({name})"
+
+
+# Registers the model extensions of swingsim.dynamics (hook block, rigid load, elastic
+# rope) in MODELS / MODEL_SELECTORS; at the end, so that both registries exist.
+from . import dynamics as _dynamics  # noqa: E402,F401
