@@ -63,6 +63,10 @@ class Load:
 
     @property
     def rigid(self) -> bool:
+        """Whether the load has the data of a rigid body (size or inertia).
+
+        Whether it is *modelled* as one is :attr:`Scene.rigid_load`.
+        """
         return self.size_m is not None or self.inertia_kg_m2 is not None
 
 
@@ -170,6 +174,16 @@ class Scene:
     raw: dict = field(default_factory=dict)
     hook: Hook | None = None
     rigging: Rigging | None = None
+
+    @property
+    def rigid_load(self) -> bool:
+        """The load is modelled as a rigid body: ``load.inertia_kg_m2`` is given, or
+        ``load.size_m`` together with a ``[hook]`` or ``[rigging]`` table.
+
+        A ``size_m`` alone (no hook block, no rigging) keeps the core's meaning:
+        the size of a point-mass load for drawing and clearance.
+        """
+        return _rigid(self.load, self.hook is not None, self.rigging is not None)
 
     @property
     def name(self) -> str:
@@ -479,6 +493,10 @@ def _per_leg(r, values, n, key):
     return tuple(values)
 
 
+def _rigid(load, has_hook: bool, has_rigging: bool) -> bool:
+    return load.inertia_kg_m2 is not None or (load.size_m is not None and (has_hook or has_rigging))
+
+
 def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
     """Cross-checks of the hook-and-load keys; returns (Hook or None, Rigging or None)."""
     if rope.stiffness_kN_per_m is not None and rope.modulus_GPa is not None:
@@ -507,11 +525,12 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
         raise r.err("load.cg_offset_m", "needs load.size_m (it is measured from the box centre)",
                     list(load.cg_offset_m))
     hook = Hook(**hook_t) if hook_t is not None else None
+    rigid = _rigid(load, hook_t is not None, rig_t is not None)
     if rig_t is None:
         if hook is not None:
             raise r.err("[rigging]", "missing; a hook block needs the rigging below it "
                         "(at least rigging.leg_length_m)")
-        if not load.rigid:
+        if not rigid:
             return None, None
         if load.size_m is None:
             raise r.err("[rigging]", "missing; a load given by inertia_kg_m2 without size_m needs "
@@ -524,7 +543,7 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
         attach = (attach,)  # pragma: no cover  (vec3s always gives points)
     if kind == "single":
         if attach is None:
-            if not load.rigid:
+            if not rigid:
                 attach = ((0.0, 0.0, 0.0),)
             elif load.size_m is None:
                 raise r.err("rigging.attach_m", "missing; with no load.size_m the top centre of the "
@@ -534,11 +553,11 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
                 attach = ((-ox, -oy, -oz + 0.5 * load.size_m[2]),)
         elif len(attach) != 1:
             raise r.err("rigging.attach_m", "kind 'single' has one attachment point", [list(a) for a in attach])
-        elif not load.rigid and any(attach[0]):
+        elif not rigid and any(attach[0]):
             raise r.err("rigging.attach_m", "a point-mass load has no attachment offset; give "
                         "load.size_m or load.inertia_kg_m2 for a rigid load", [list(a) for a in attach])
     else:
-        if not load.rigid:
+        if not rigid:
             raise r.err("rigging.kind", f"a {kind} needs a rigid load (load.size_m or "
                         "load.inertia_kg_m2)", kind)
         if attach is None:
@@ -568,7 +587,7 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
     from .dynamics.rigging import RiggingError, rigging_geometry  # local: pure physics
 
     try:
-        rigging_geometry(rig, load)
+        rigging_geometry(rig, load, rigid)
     except RiggingError as exc:
         raise r.err(f"rigging.{exc.key}", str(exc)) from None
     return hook, rig

@@ -130,7 +130,8 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
         for n in names:
             if events[n](t0, y) <= 0.0:
                 traj.status = n
-                traj.message = _event_message(n, t0)
+                custom = getattr(model, "event_message", None)
+                traj.message = (custom(n, t0) if custom else None) or _event_message(n, t0)
                 if not traj.pieces:  # nothing integrated yet: keep the initial state
                     traj.pieces.append((t0, t0, _Constant(y)))
                     traj.t_end_s = t0

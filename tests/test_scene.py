@@ -133,7 +133,11 @@ def test_every_key_documented():
     for t in tables:
         for name, key in t.items():
             assert len(key.doc) > 10, name
-            if key.kind in ("float", "vec2", "vec3", "floats") and name not in ("ratio", "drag_coefficient"):
+            # dimensionless quantities say so in their name (ratio, coefficient, factor) and [-] in the doc
+            dimensionless = name.endswith(("ratio", "coefficient", "factor"))
+            if dimensionless and key.kind == "float":
+                assert "[-]" in key.doc, name
+            if key.kind in ("float", "vec2", "vec3", "floats", "floats_or_float") and not dimensionless:
                 # a quantity's unit is in its name
                 assert any(name.endswith(u) for u in ("_s", "_m", "_kg", "_m2", "_m_s", "_m_s2", "_m_s3",
                                                       "_deg", "_deg_s", "_deg_s2", "_deg_s3", "_hz", "_kN",

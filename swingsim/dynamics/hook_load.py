@@ -53,8 +53,9 @@ exerts on the load, :math:`m \\ddot r_G - F_G`, resolved along the legs, least
 squares, minimum norm for four legs).  The same equations are derived
 independently with ``sympy.physics.mechanics`` in the tests.
 
-Damping: a force :math:`-2\\zeta\\omega_d m_i (\\dot r_i - \\dot p - \\dot\\ell n_1)`
-on every mass, :math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the
+Damping: a force :math:`-2\\zeta\\omega_d m_i (\\dot r_i - \\dot p - \\dot\\ell n_1
+- \\Omega \\hat z \\times (r_i - p))` on every mass (relative to the slewing jib,
+:math:`\\Omega` its slew rate, as in the point-mass model), :math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the
 hanging distance from the rope's end to the load's CG: the core model's
 damping in the point-mass limit (mass-proportional, so faster modes are damped
 less).  Drag acts at the CG (no aerodynamic moment), on the hook block when it
@@ -86,7 +87,7 @@ def model_name(scene) -> str | None:
     """
     if scene.hook is not None:
         return "hook-load"
-    if scene.load.rigid:
+    if scene.rigid_load:
         return "rigid-load"
     if scene.rope.elastic:
         return "elastic-rope"
@@ -100,6 +101,9 @@ class HookLoadModel:
 
     Same interface as :class:`~swingsim.dynamics.pendulum.PointMassModel`.
     """
+
+    #: the solver passes ``Motion.local(t0, t1, with_slew_rate=True)`` as ``kin``
+    needs_slew_rate = True
 
     def __init__(self, scene):
         self.scene = scene
@@ -118,7 +122,7 @@ class HookLoadModel:
         self.kd_hook = 0.0
         if hook and hook.size_m:
             self.kd_hook = 0.5 * rho * hook.drag_coefficient * hook.size_m[0] * hook.size_m[2]
-        self.body = load.rigid
+        self.body = scene.rigid_load
         self.kind = rig.kind if rig else "single"
         legs = rig.leg_length_m if rig else (0.0,)
         # a leg with a direction of its own only below a hook block
@@ -219,7 +223,8 @@ class HookLoadModel:
         """
         nq = self.nq
         q, qd = y[:nq], y[nq:]
-        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt
+        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt[:12]
+        om_s = kt[12] if len(kt) > 12 else 0.0  # the jib's slew rate (damping reference)
         g = self.g
         u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
         w1 = math.sqrt(1.0 - u1 * u1 - v1 * v1)
@@ -270,8 +275,9 @@ class HookLoadModel:
         mH = self.m_h + (0.0 if (self.body or self.link2) else self.m)
         if mH > 0.0:
             FH[2] -= mH * g
-            FH -= (cdamp * mH * (Hd[0] - ref[0]), cdamp * mH * (Hd[1] - ref[1]),
-                   cdamp * mH * (Hd[2] - ref[2]))
+            cm = cdamp * mH
+            FH -= (cm * (Hd[0] - ref[0] + om_s * (H[1] - py)), cm * (Hd[1] - ref[1] - om_s * (H[0] - px)),
+                   cm * (Hd[2] - ref[2]))
             kd = self.kd_hook if self.has_hook else self.kd_load
             if applied and kd:
                 rx, ry, rz = Hd[0] - wx, Hd[1] - wy, Hd[2]
@@ -323,7 +329,7 @@ class HookLoadModel:
             G, Gd, JG, bG = np.array(P), np.array(Pd), JP, bP
         if self.body or self.link2:
             FG = np.array([0.0, 0.0, -m * g])
-            FG -= cdamp * m * (Gd - ref)
+            FG -= cdamp * m * (Gd - ref + om_s * np.array([G[1] - py, px - G[0], 0.0]))
             if applied and self.kd_load:
                 rel = Gd - (wx, wy, 0.0)
                 FG -= self.kd_load * math.sqrt(rel @ rel) * rel
@@ -552,7 +558,7 @@ class HookLoadModel:
         energy = np.empty(N)
         for i in range(N):
             kt = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
-                float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]))
+                float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]), float(e["slew_rate"][i]))
             o = self._eval(Y[i], kt, full=True)
             for n in res:
                 res[n][i] = o[n]

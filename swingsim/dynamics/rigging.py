@@ -219,8 +219,11 @@ def _apex(A, L, key="leg_length_m"):
     return H
 
 
-def rigging_geometry(rig, load) -> Geometry:
-    """Geometry of the rigging of a scene (``Rigging``, ``Load``); raises RiggingError."""
+def rigging_geometry(rig, load, rigid: bool = True) -> Geometry:
+    """Geometry of the rigging of a scene (``Rigging``, ``Load``); raises RiggingError.
+
+    ``rigid``: whether the load is modelled as a rigid body (``Scene.rigid_load``).
+    """
     A = np.array(rig.attach_m, dtype=float)
     L = np.array(rig.leg_length_m, dtype=float)
     lugs = ends = hook = None
@@ -242,7 +245,7 @@ def rigging_geometry(rig, load) -> Geometry:
         hook = _two_leg_apex(ends[0], ends[1], top, top, key="top_leg_length_m")
         pivot = hook
     c = -pivot
-    if not load.rigid or np.linalg.norm(c) < 1e-12:
+    if not rigid or np.linalg.norm(c) < 1e-12:
         rest = (0.0, 0.0)
     else:
         rest = tilt_to_align(c, (0.0, 0.0, -1.0))
