@@ -443,16 +443,20 @@ class HookLoadModel:
         wlim = self._wlim
         ev = self._eval
 
+        # an elastic rope may start just taut (rope_preload = "none"): zero tension then is
+        # not slack; slack is a tension below a billionth of the weight
+        eps = 1e-9 * self.m_total * self.g if self.elastic else 0.0
+
         def slack(t, y):
             o = ev(y, kin(t), full=True)
-            return o["rope_T_raw"] if self.elastic else o["rope_T"]
+            return o["rope_T_raw"] + eps if self.elastic else o["rope_T"]
 
         slack.terminal = True
         slack.direction = -1
         events = {"slack": slack}
         if self.link2:
             def leg_slack(t, y):
-                return float(ev(y, kin(t), full=True)["legs_T"][0])
+                return float(ev(y, kin(t), full=True)["legs_T"][0]) + 1e-9 * self.m * self.g
 
             leg_slack.terminal = True
             leg_slack.direction = -1
