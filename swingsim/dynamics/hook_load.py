@@ -74,6 +74,11 @@ from .pendulum import direction_from_projected
 from .rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from .rope import elastic_rope
 
+def _cx(a, b):
+    """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""
+    return (a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0])
+
+
 #: Names under which this model is registered in ``swingsim.solve.MODELS``.
 MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load")
 
@@ -201,6 +206,26 @@ class HookLoadModel:
             qd.append(0.0)
         return np.array(q + qd, dtype=float)
 
+    def rest_direction(self, rope_length_m: float) -> np.ndarray:
+        """Hoist rope direction with everything hanging at rest in the steady wind.
+
+        The massless rope carries the sum of the forces on everything below it:
+        gravity, the wind's drag on the load and hook, and half the rope's own
+        drag (fixed-point iteration, as for the point-mass model).
+        """
+        wv = np.array([self.wx, self.wy, 0.0])
+        sp = float(np.linalg.norm(wv))
+        F0 = np.array([0.0, 0.0, -self.m_total * self.g]) + (self.kd_load + self.kd_hook) * sp * wv
+        n = F0 / np.linalg.norm(F0)
+        for _ in range(60):
+            wn = wv - (wv @ n) * n
+            F = F0 + 0.5 * self.kr * rope_length_m * float(np.linalg.norm(wn)) * wn
+            n_new = F / np.linalg.norm(F)
+            if np.abs(n_new - n).sum() < 1e-15:
+                return n_new
+            n = n_new
+        return n
+
     def rest_state(self, rope_length_m=None) -> np.ndarray:
         """State of the hanging system at rest (fixed support) [chart units]."""
         q = [0.0, 0.0]
@@ -310,16 +335,18 @@ class HookLoadModel:
             a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
             ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
             R = np.array([[cb, 0.0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]])
-            r = R @ self.c_b
-            om = np.array([da, db * ca, db * sa])
-            bw = np.array([0.0, -da * db * sa, da * db * ca])
-            G = np.array(P) + r
-            wxr = np.cross(om, r)
-            Gd = np.array(Pd) + wxr
+            c0, c1, c2 = self.c_b
+            r = (cb * c0 + sb * c2, sa * sb * c0 + ca * c1 - sa * cb * c2,
+                 -ca * sb * c0 + sa * c1 + ca * cb * c2)
+            om = (da, db * ca, db * sa)
+            bw = (0.0, -da * db * sa, da * db * ca)
+            G = np.array((P[0] + r[0], P[1] + r[1], P[2] + r[2]))
+            wxr = _cx(om, r)
+            Gd = np.array((Pd[0] + wxr[0], Pd[1] + wxr[1], Pd[2] + wxr[2]))
             JG = JP.copy()
             JG[:, ia] += (0.0, -r[2], r[1])
             JG[:, ia + 1] += (ca * r[2] - sa * r[1], sa * r[0], -ca * r[0])
-            bG = bP + np.cross(bw, r) + np.cross(om, wxr)
+            bG = bP + _cx(bw, r) + _cx(om, wxr)
             Iw = (R * self.I_b) @ R.T
             Jw = np.zeros((3, nq))
             Jw[0, ia] = 1.0
@@ -337,17 +364,19 @@ class HookLoadModel:
             pts_J.append(JG)
             pts_b.append(bG)
             pts_F.append(FG)
-        Ms = np.array(pts_m)
-        Js = np.stack(pts_J)          # (p, 3, nq)
-        Bs = np.stack(pts_b)          # (p, 3)
-        Fs = np.stack(pts_F)
-        Jm = Js * Ms[:, None, None]
-        M = np.einsum("pia,pib->ab", Jm, Js)
-        Qv = np.einsum("pia,pi->a", Js, Fs - Ms[:, None] * Bs)
+        if len(pts_m) == 1:
+            J0 = pts_J[0]
+            M = pts_m[0] * (J0.T @ J0)
+            Qv = J0.T @ (pts_F[0] - pts_m[0] * pts_b[0])
+        else:
+            J0, J1 = pts_J
+            m0, m1 = pts_m
+            M = (m0 * J0.T) @ J0 + (m1 * J1.T) @ J1
+            Qv = J0.T @ (pts_F[0] - m0 * pts_b[0]) + J1.T @ (pts_F[1] - m1 * pts_b[1])
         if self.body:
             Iom = Iw @ om
             M += Jw.T @ Iw @ Jw
-            Qv -= Jw.T @ (Iw @ bw + np.cross(om, Iom))
+            Qv -= Jw.T @ (Iw @ bw + _cx(om, Iom))
         qdd = np.linalg.solve(M, Qv)
         if not full:
             return qdd
@@ -406,7 +435,7 @@ class HookLoadModel:
         # spreader drop legs, parallel to the load's z axis: the force along them and the
         # moment about G the load needs (I_w alpha + omega x I_w omega), least squares
         dz = R[:, 2]
-        A_mat = np.vstack([np.ones(len(Aw)), np.cross(Aw - G, dz).T])
+        A_mat = np.vstack([np.ones(len(Aw)), np.cross(Aw - G, dz).T])  # (4, k)
         alpha = o["Jw"] @ o["qdd"] + o["bw"]
         Iw, om = o["Iw"], o["omega"]
         need = Iw @ alpha + np.cross(om, Iw @ om)
@@ -589,11 +618,22 @@ class HookLoadModel:
             "static_leg_tension_N": self.static_leg_tension_N(),
             "hanging_leg_tension_N": self.hanging_leg_tension_N(),
         }
+        extra = {}
+        if tilt is not None:
+            extra["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))
+            extra["load_tilt_x_deg"] = tilt[:, 0]
+            extra["load_tilt_y_deg"] = tilt[:, 1]
+        for j in range(k):
+            extra[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
         if tops is not None:
             out["top_sling_tension_N"] = tops
+            for j in range(2):
+                extra[f"top_sling_{j + 1}_tension_kN"] = tops[:, j] / 1e3
         if self.elastic:
             lam = np.array([self.rope.unstretched(x) for x in e["L"]])
             out["rope_stretch_m"] = ell - lam
+            extra["rope_stretch_m"] = out["rope_stretch_m"]
+        out["extra_columns"] = extra
         return out
 
     # -- static leg loads ------------------------------------------------------------------
