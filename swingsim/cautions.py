@@ -31,8 +31,10 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                    " Do not use the numbers below that instant.")
     pk = s.get("peak_rope_angle_deg")
     if pk is not None and pk > lim.swing_caution_deg:
+        src = ("set in the scene" if "swing_caution_deg" in scene.raw.get("limits", {})
+               else "a rule-of-thumb default")
         out.append(f"Peak rope angle {_f(pk)} deg exceeds the caution angle of "
-                   f"{lim.swing_caution_deg:g} deg (a rule of thumb; the permitted off-vertical "
+                   f"{lim.swing_caution_deg:g} deg ({src}; the permitted off-vertical "
                    "and side-load angles come from the crane manufacturer).")
     w = scene.wind.speed_m_s
     wl = scene.crane.wind_limit_m_s

@@ -234,7 +234,64 @@ def load_scene(path, *, validate_motion: bool = True) -> Scene:
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc).split(" (at ")[0]
         raise SceneError(shown, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
-    return scene_from_dict(data, file=shown, base_dir=path.parent, validate_motion=validate_motion)
+    try:
+        return scene_from_dict(data, file=shown, base_dir=path.parent, validate_motion=validate_motion)
+    except SceneError as exc:
+        if exc.line is None and exc.file == shown:
+            exc.line = line_of_key(text, exc.key)
+            exc.args = (exc.one_line(),)
+        raise
+
+
+_KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>\d+)\])?(\.(?P<key>[\w-]+))?")
+
+
+def line_of_key(text: str, key_path: str) -> int | None:
+    """Best-effort line number of a key path like ``moves[1].accel_m_s2`` in TOML text."""
+    if not key_path:
+        return None
+    m = _KEY_PATH.match(key_path.strip("[]"))
+    if not m:
+        return None
+    table, index, key = m.group("table"), m.group("index"), m.group("key")
+    lines = text.splitlines()
+    header = re.compile(r"^\s*\[")
+
+    def find_key(start, name):
+        pat = re.compile(rf"^\s*{re.escape(name)}\s*=")
+        for i in range(start, len(lines)):
+            if i > start and header.match(lines[i]):
+                return None
+            if pat.match(lines[i]):
+                return i + 1
+        return None
+
+    if key is None and index is None:
+        # a top-level key, or a table name
+        top_end = next((i for i, x in enumerate(lines) if header.match(x)), len(lines))
+        pat = re.compile(rf"^\s*{re.escape(table)}\s*=")
+        for i in range(top_end):
+            if pat.match(lines[i]):
+                return i + 1
+        pat = re.compile(rf"^\s*\[\[?\s*{re.escape(table)}\s*\]")
+        for i, x in enumerate(lines):
+            if pat.match(x):
+                return i + 1
+        return None
+    if index is not None:
+        pat = re.compile(rf"^\s*\[\[\s*{re.escape(table)}\s*\]\]")
+        starts = [i for i, x in enumerate(lines) if pat.match(x)]
+        if int(index) >= len(starts):
+            return None
+        start = starts[int(index)]
+    else:
+        pat = re.compile(rf"^\s*\[\s*{re.escape(table)}\s*\]")
+        start = next((i for i, x in enumerate(lines) if pat.match(x)), None)
+        if start is None:
+            return None
+    if key is None:
+        return start + 1
+    return find_key(start, key) or start + 1
 
 
 def _suggest(name: str, allowed) -> str:
