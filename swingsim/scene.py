@@ -508,7 +508,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
     hook_t = r.table(data, "hook", S.TABLES["hook"]) if "hook" in data else None
     rig_t = r.table(data, "rigging", S.TABLES["rigging"]) if "rigging" in data else None
     rope_o, load_o, start_o = Rope(**rope), Load(**load), Start(**start)
-    hook_o, rig_o = _read_hook_rigging(r, hook_t, rig_t, rope_o, load_o, start_o)
+    hook_o, rig_o = _read_hook_rigging(r, hook_t, rig_t, rope_o, load_o, start_o, top["gravity_m_s2"])
 
     scene = Scene(
         title=top["title"], duration_s=top["duration_s"], gravity_m_s2=top["gravity_m_s2"],
@@ -554,7 +554,7 @@ def _rigid(load, has_hook: bool, has_rigging: bool) -> bool:
     return load.inertia_kg_m2 is not None or (load.size_m is not None and (has_hook or has_rigging))
 
 
-def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
+def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
     """Cross-checks of the hook-and-load keys; returns (Hook or None, Rigging or None)."""
     if rope.stiffness_kN_per_m is not None and rope.modulus_GPa is not None:
         raise r.err("rope.modulus_GPa", "give either rope.stiffness_kN_per_m or rope.modulus_GPa, "
@@ -582,6 +582,17 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start):
         raise r.err("load.cg_offset_m", "needs load.size_m (it is measured from the box centre)",
                     list(load.cg_offset_m))
     hook = Hook(**hook_t) if hook_t is not None else None
+    if rope.elastic:
+        from .dynamics.rope import elastic_rope  # local: pure physics
+
+        m = load.mass_kg + (hook.mass_kg if hook else 0.0)
+        try:
+            elastic_rope(rope, m * g, m)
+        except ValueError:
+            key = "rope.stiffness_kN_per_m" if rope.stiffness_kN_per_m is not None else "rope.modulus_GPa"
+            raise r.err(key, f"the rope would stretch more than its length ({rope.length_m:g} m) "
+                        f"under the {m:g} kg it carries; check the value and its unit",
+                        rope.stiffness_kN_per_m or rope.modulus_GPa) from None
     rigid = _rigid(load, hook_t is not None, rig_t is not None)
     if rig_t is None:
         if hook is not None:
