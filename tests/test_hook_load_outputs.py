@@ -1,0 +1,128 @@
+"""Hook-and-load outputs: summary keys, time-series columns, cautions, tensions under hoisting."""
+
+import json
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from swingsim import constants as C
+from swingsim import load_scene
+from swingsim.cli import main
+from swingsim.dynamics.hook_load import HookLoadModel
+from swingsim.metrics import summarize
+from swingsim.report.tables import timeseries_columns
+from swingsim.solve import MODEL_SELECTORS, MODELS, simulate
+
+from conftest import make_scene
+
+G = C.STANDARD_GRAVITY
+ROOT = Path(__file__).resolve().parent.parent
+DEMOS = ["panel_bridle_hook_block", "compact_load_short_sling", "springy_multifall_rope"]
+
+
+def test_models_are_registered_on_import_of_solve():
+    for name in ("hook-load", "rigid-load", "elastic-rope", "sling-load"):
+        assert MODELS[name] is HookLoadModel
+    assert any(getattr(f, "__name__", "") == "model_name" for f in MODEL_SELECTORS)
+    assert simulate(make_scene(duration_s=1.0)).model.name == "point-mass"
+
+
+def test_size_alone_keeps_the_point_mass_model():
+    # the core's meaning of load.size_m (drawing, clearance) without a hook block or rigging
+    sc = make_scene({"load": {"mass_kg": 900.0, "size_m": [2.0, 1.0, 1.0]}}, duration_s=1.0)
+    assert not sc.rigid_load
+    assert simulate(sc).model.name == "point-mass"
+
+
+@pytest.mark.parametrize("name", DEMOS)
+def test_demo_scenes_summary(name):
+    sc = load_scene(ROOT / "scenes" / f"{name}.toml")
+    traj = simulate(sc)
+    assert traj.valid, traj.message
+    s = summarize(traj)
+    mp = s["mode_periods_s"]
+    assert mp == sorted(mp, reverse=True) and len(mp) >= 2
+    assert s["natural_period_s"] == mp[0]
+    rows = s["leg_tensions"]
+    assert len(rows) == sc.rigging.legs
+    for r in rows:
+        assert r["peak_kN"] >= r["hanging_kN"] > 0
+        assert r["dynamic_factor"] == pytest.approx(r["peak_kN"] / r["hanging_kN"])
+    assert s["peak_leg_tension_kN"] == max(r["peak_kN"] for r in rows)
+    cols = timeseries_columns(traj)
+    for c in ("hook_x_m", "hook_y_m", "hook_z_m", "load_tilt_x_deg", "load_tilt_y_deg", "load_tilt_deg",
+              "leg_1_tension_kN"):
+        assert c in cols, c
+    t = traj.sample_times()
+    hook = traj.sample(t)["hook"]
+    assert np.array_equal(cols["hook_z_m"], hook[:, 2])
+    # the hook hangs below the suspension point by the rope length
+    d = np.linalg.norm(hook - traj.sample(t)["suspension"], axis=1)
+    assert np.allclose(d, traj.sample(t)["rope_length"], rtol=1e-12)
+
+
+def test_wll_caution_only_when_exceeded():
+    base = {"hook": {"mass_kg": 300.0}, "load": {"mass_kg": 4000.0, "size_m": [4.0, 0.3, 1.0]},
+            "moves": [{"axis": "x", "profile": "trapezoid", "distance_m": 6.0, "speed_m_s": 1.0,
+                       "accel_m_s2": 0.6}]}
+    rig = {"kind": "bridle", "leg_length_m": 3.0, "attach_m": [[-1.5, 0, 0.5], [1.5, 0, 0.5]]}
+    hang = 4000.0 * G / 2 / (math.sqrt(9 - 2.25) / 3) / 1e3
+    low = summarize(simulate(make_scene({**base, "rigging": {**rig, "wll_kN": hang * 1.001}})))
+    high = summarize(simulate(make_scene({**base, "rigging": {**rig, "wll_kN": hang * 2}})))
+    assert low["leg_tensions"][0]["peak_kN"] > hang * 1.001
+    assert sum("working load limit" in c and "Sling leg" in c for c in low["cautions"]) == 2
+    assert not any("working load limit" in c and "Sling leg" in c for c in high["cautions"])
+    assert all("rigging plan" in c for c in low["cautions"] if "Sling leg" in c)
+
+
+def test_hoist_acceleration_tensions():
+    # Vertical hoisting at constant acceleration a, no swing: T = m (g + a) (Newton, textbook),
+    # for the hoist rope (hook + load) and the sling leg (load only).
+    a, mh, m = 0.4, 300.0, 2000.0
+    sc = make_scene({"hook": {"mass_kg": mh}, "rigging": {"leg_length_m": 2.0}, "load": {"mass_kg": m},
+                     "moves": [{"axis": "hoist", "profile": "trapezoid", "start_s": 1.0, "distance_m": 3.0,
+                                "speed_m_s": 0.8, "accel_m_s2": a}]}, duration_s=10.0)
+    traj = simulate(sc)
+    s = traj.sample(np.array([1.5, 2.5]))  # inside the acceleration phase (1 s to 3 s)
+    assert s["rope_tension_N"] == pytest.approx([(mh + m) * (G + a)] * 2, rel=1e-9)
+    assert s["leg_tension_N"][:, 0] == pytest.approx([m * (G + a)] * 2, rel=1e-9)
+
+
+def test_measured_mode_periods_of_a_double_pendulum():
+    # The spectrum of the free swing shows both normal modes at the linearised periods
+    # (small amplitude; textbook modal analysis).
+    sc = make_scene({"hook": {"mass_kg": 400.0}, "rigging": {"leg_length_m": 3.0},
+                     "load": {"mass_kg": 1000.0}, "start": {"swing_deg": [1.0, 0.0],
+                                                           "swing_rate_deg_s": [0.0, 0.0]},
+                     "moves": [{"axis": "x", "profile": "trapezoid", "distance_m": 0.5,
+                                "speed_m_s": 0.5, "accel_m_s2": 2.0}]}, duration_s=120.0)
+    s = summarize(simulate(sc))
+    mm, mp = s["measured_mode_periods_s"], s["mode_periods_s"]
+    assert len(mm) == 2 and None not in mm
+    assert mm == pytest.approx(mp, rel=5e-3)
+
+
+def test_elastic_summary_keys_and_stiffness_source():
+    sc = make_scene({"rope": {"length_m": 20.0, "modulus_GPa": 100.0, "diameter_m": 0.02, "falls": 2,
+                              "stiffness_source": "rope maker's sheet (invented)"},
+                     "load": {"mass_kg": 3000.0}}, duration_s=5.0)
+    s = summarize(simulate(sc))
+    assert s["model"] == "elastic-rope"
+    assert "n^2 E A / L_r" in s["rope_stiffness_from"] and "invented" in s["rope_stiffness_from"]
+    A = 0.58 * math.pi * 0.02**2 / 4
+    k_loaded = 4 * 100e9 * A / (2 * 20.0)  # k = n^2 E A / (n L) (common practice)
+    assert s["rope_stiffness_kN_per_m"] * 1e3 == pytest.approx(k_loaded, rel=1e-3)
+    assert s["bounce_period_s"] == pytest.approx(2 * math.pi * math.sqrt(3000.0 / k_loaded), rel=1e-3)
+
+
+def test_cli_run_writes_hook_columns(tmp_path):
+    out = tmp_path / "out"
+    assert main(["run", str(ROOT / "scenes" / "compact_load_short_sling.toml"), "--out", str(out),
+                 "--quiet", "--no-plots"]) == 0
+    s = json.loads((out / "summary.json").read_text())
+    assert s["model"] == "hook-load" and s["leg_tensions"][0]["wll_kN"] == 40.0
+    header = (out / "timeseries.csv").read_text().splitlines()[0].split(",")
+    assert {"hook_x_m", "hook_y_m", "hook_z_m", "load_tilt_x_deg", "leg_1_tension_kN"} <= set(header)
+    assert "Hook block and rigging" in (out / "summary.txt").read_text()
