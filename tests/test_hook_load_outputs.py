@@ -126,3 +126,34 @@ def test_cli_run_writes_hook_columns(tmp_path):
     header = (out / "timeseries.csv").read_text().splitlines()[0].split(",")
     assert {"hook_x_m", "hook_y_m", "hook_z_m", "load_tilt_x_deg", "leg_1_tension_kN"} <= set(header)
     assert "Hook block and rigging" in (out / "summary.txt").read_text()
+
+
+@pytest.mark.parametrize("case", ["bridle", "single"])
+def test_start_swing_tilts_the_whole_system_rigidly(case):
+    # issue interface: suspension point, hook and the load's CG on one straight line at the
+    # swing angle, everything at rest relative to the suspension point
+    rig = ({"kind": "bridle", "leg_length_m": 3.0, "attach_m": [[-1.5, 0, 0.5], [1.6, 0.1, 0.5]]}
+           if case == "bridle" else {"kind": "single", "leg_length_m": 1.5})
+    sc = make_scene({"hook": {"mass_kg": 300.0}, "rigging": rig,
+                     "load": {"mass_kg": 3000.0, "size_m": [4.0, 0.4, 1.0]},
+                     "start": {"swing_deg": [12.0, -7.0]}}, duration_s=2.0)
+    s = simulate(sc).sample(np.array([0.0]))
+    p, h, g = s["suspension"][0], s["hook"][0], s["load"][0]
+    u = (g - p) / np.linalg.norm(g - p)
+    assert np.linalg.norm(np.cross(h - p, u)) < 1e-9  # the hook on the line to the CG
+    assert math.degrees(math.atan2(u[0], -u[2])) == pytest.approx(12.0, abs=1e-9)
+    assert math.degrees(math.atan2(u[1], -u[2])) == pytest.approx(-7.0, abs=1e-9)
+    assert np.allclose(s["load_vel"][0], 0.0, atol=1e-12)
+
+
+def test_spreader_top_slings_static_rule():
+    # symmetric lifting beam: each top sling carries W / 2 / cos(its angle from vertical)
+    # (common practice sling angle factor); the drop legs W / 2 each.
+    m, half, top = 6000.0, 2.0, 3.2
+    sc = make_scene({"load": {"mass_kg": m, "size_m": [5.0, 1.0, 1.0]}, "hook": {"mass_kg": 200.0},
+                     "rigging": {"kind": "spreader", "leg_length_m": 1.0, "top_leg_length_m": top,
+                                 "attach_m": [[-half, 0, 0.5], [half, 0, 0.5]]}}, duration_s=1.0)
+    s = simulate(sc).sample(np.array([0.5]))
+    cos = math.sqrt(top**2 - half**2) / top
+    assert s["top_sling_tension_N"][0] == pytest.approx([m * G / 2 / cos] * 2, rel=1e-9)
+    assert s["leg_tension_N"][0] == pytest.approx([m * G / 2] * 2, rel=1e-9)
