@@ -144,6 +144,8 @@ def model_metrics(traj, t, s) -> dict:
         d["bounce_period_s"] = model.bounce_period_s()
         d["peak_rope_stretch_m"] = float(np.max(s["rope_stretch_m"]))
         d["static_rope_stretch_m"] = model.m_total * model.g / rp.stiffness(rp.lambda0_m)
+        if model.lift_off:
+            d["lift_off_s"] = model.t_lift if math.isfinite(model.t_lift) else None
     else:
         d["rope_elastic"] = False
     # measured periods of the swing modes after the last move
@@ -185,6 +187,9 @@ def model_warnings(s: dict, scene) -> list[str]:
                        f"exceeds its declared working load limit of {r['wll_kN']:g} kN: the rigging "
                        "plan, the sling selection and the competent person decide; do not lift on "
                        "these numbers.")
+        elif r["wll_kN"] is not None and r["peak_kN"] > 0.9 * r["wll_kN"]:
+            out.append(f"{name}: peak dynamic tension {r['peak_kN']:.2f} kN is within 10% of its declared "
+                       f"working load limit of {r['wll_kN']:g} kN: little margin; check the rigging plan.")
         if r["min_kN"] < 0.0:
             out.append(f"{name} would go slack (its tension falls below zero at t = {r['min_time_s']:.1f} s): "
                        "the load would shift in the rigging and snatch it; the rigid-rigging model "
@@ -207,6 +212,10 @@ def model_warnings(s: dict, scene) -> list[str]:
             if pk > s["top_sling_wll_kN"]:
                 out.append(f"Spreader top sling {j + 1}: peak tension {pk:.2f} kN exceeds its declared "
                            f"working load limit of {s['top_sling_wll_kN']:g} kN: check the rigging plan.")
+            elif pk > 0.9 * s["top_sling_wll_kN"]:
+                out.append(f"Spreader top sling {j + 1}: peak tension {pk:.2f} kN is within 10% of its "
+                           f"declared working load limit of {s['top_sling_wll_kN']:g} kN: little margin; "
+                           "check the rigging plan.")
     rt = s.get("rest_tilt_deg")
     if rt is not None and rt > REST_TILT_CAUTION_DEG:
         out.append(f"The load hangs {rt:.1f} deg out of level at rest: its centre of gravity is not "
@@ -214,6 +223,9 @@ def model_warnings(s: dict, scene) -> list[str]:
     if s.get("yaw_held_fixed"):
         out.append("The rigid load's yaw (turning about the vertical) is held fixed in this model: "
                    "spinning of the load is not simulated; use tag lines as the lift plan says.")
+    if "lift_off_s" in s and s["lift_off_s"] is None:
+        out.append("The load never lifts off in the simulated time: the hoist does not pull its weight "
+                   "into the rope.")
     ldf = s.get("leg_dynamic_factor")
     if ldf is not None and ldf > 1.15 and many:
         out.append(f"Motion raises the sling leg tensions to {ldf:.2f} times their hanging values.")
@@ -248,6 +260,9 @@ def model_summary_lines(d: dict) -> list[str]:
         w.append(f"  Elastic rope: {d['rope_stiffness_kN_per_m']:.0f} kN/m ({d['rope_stiffness_from']}); "
                  f"bounce period {d['bounce_period_s']:.3f} s; peak stretch {1000 * d['peak_rope_stretch_m']:.1f} mm "
                  f"(static {1000 * d['static_rope_stretch_m']:.1f} mm)")
+    if "lift_off_s" in d:
+        w.append("  Lift-off: " + ("the hoist never pulls the weight into the rope" if d["lift_off_s"] is None
+                                   else f"at t = {d['lift_off_s']:.2f} s"))
     mm = d.get("measured_mode_periods_s")
     if mm and any(x is not None for x in mm):
         w.append("  Measured mode periods after the moves: "

@@ -75,6 +75,7 @@ class Start:
     swing_deg: tuple
     swing_rate_deg_s: tuple
     rope_preload: str = "static"
+    rope_slack_m: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -565,6 +566,13 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
     if start.rope_preload != "static" and not rope.elastic:
         raise r.err("start.rope_preload", "only for an elastic rope (set rope.stiffness_kN_per_m "
                     "or rope.modulus_GPa)", start.rope_preload)
+    if start.rope_slack_m and start.rope_preload != "lift-off":
+        raise r.err("start.rope_slack_m", "only with start.rope_preload = 'lift-off'", start.rope_slack_m)
+    if start.rope_preload == "lift-off":
+        for k in ("swing_deg", "swing_rate_deg_s"):
+            if any(getattr(start, k)):
+                raise r.err(f"start.{k}", "must be zero with rope_preload = 'lift-off' (the load rests "
+                            "supported until it lifts off)", list(getattr(start, k)))
     if load.shape == "cylinder":
         if load.size_m is None:
             raise r.err("load.shape", "a cylinder needs load.size_m", "cylinder")

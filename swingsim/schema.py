@@ -177,9 +177,13 @@ TABLES: dict[str, dict[str, Key]] = {
         "swing_rate_deg_s": Key("vec2", "Initial rate of those two projected angles [deg/s].",
                                 default=(0.0, 0.0)),
         "rope_preload": Key("str", "Elastic rope only: static (the rope starts stretched by the "
-                            "hanging weight) or none (the weight comes onto an unstretched rope at "
-                            "t = 0, a suddenly applied load).", default="static",
-                            choices=("static", "none")),
+                            "hanging weight), none (the weight comes onto an unstretched rope at "
+                            "t = 0, a suddenly applied load) or lift-off (hook, rigging and load rest "
+                            "supported, the rope slack by rope_slack_m, until the hoist has pulled "
+                            "their weight into the rope).", default="static",
+                            choices=("static", "none", "lift-off")),
+        "rope_slack_m": Key("float", "rope_preload = lift-off only: slack rope the hoist takes up "
+                            "before the rope starts to stretch [m].", default=0.0, ge=0.0),
     },
     "damping": {
         "ratio": Key("float", "Equivalent viscous damping ratio of the swing [-].", default=0.0, ge=0.0, lt=1.0),

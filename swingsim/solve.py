@@ -116,7 +116,8 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
     model = select_model(scene) if model is None else model
     y = np.asarray(model.initial_state(motion), dtype=float)
     T = scene.duration_s
-    cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T})
+    cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T}
+                  | {b for b in getattr(model, "extra_breakpoints", ()) if 0.0 < b < T})
     traj = Trajectory(scene, model, motion)
     for t0, t1 in zip(cuts[:-1], cuts[1:]):
         if t1 - t0 < 1e-12:

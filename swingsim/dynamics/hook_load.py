@@ -73,6 +73,7 @@ from .. import constants as C
 from .pendulum import direction_from_projected
 from .rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from .rope import elastic_rope
+from dataclasses import replace
 
 def _cx(a, b):
     """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""
@@ -146,6 +147,14 @@ class HookLoadModel:
         self.m_total = self.m + self.m_h
         self.rope = elastic_rope(rope, self.m_total * g, self.m_total)
         self.elastic = self.rope is not None
+        self.lift_off = self.elastic and scene.start.rope_preload == "lift-off"
+        #: instant the load lifts off [s] (rope_preload = lift-off); set by initial_state
+        self.t_lift = None
+        #: instants where the solver must restart (read by swingsim.solve.simulate)
+        self.extra_breakpoints = ()
+        if self.lift_off:
+            # at t = 0 the rope is unstretched and slack by rope_slack_m
+            self.rope = replace(self.rope, lambda0_m=rope.length_m + scene.start.rope_slack_m)
         self.L0 = rope.length_m
         # hanging distance from the rope's end to the CG (for the damping frequency)
         self.d_rest = self.extra + self.l2 + float(np.linalg.norm(self.c_b))
@@ -200,12 +209,45 @@ class HookLoadModel:
             rates = np.linalg.lstsq(Jw, Om, rcond=None)[0]
             qd += [float(rates[0]), float(rates[1])]
         if self.elastic:
-            if sw.rope_preload == "static":
-                q.append(self.L0)
-            else:
+            if sw.rope_preload == "none":
                 q.append(self.rope.lambda0_m)
+            else:  # static stretch, or resting at the hanging position (lift-off)
+                q.append(self.L0)
             qd.append(0.0)
+        if self.lift_off:
+            self.t_lift = self.lift_off_time(motion)
+            # the solver restarts there: the equations change at lift-off
+            self.extra_breakpoints = (self.t_lift,) if math.isfinite(self.t_lift) else ()
         return np.array(q + qd, dtype=float)
+
+    def lift_off_time(self, motion) -> float:
+        """First instant the rope's pull reaches the weight of everything it lifts [s] (inf if never).
+
+        While the load rests, the rope's stretched length stays the hanging length
+        and the hoist reels in unstretched rope: T(t) = k (L0 - lambda(t)) + c lambda'(t)
+        when taut.
+        """
+        from scipy.optimize import brentq
+
+        W = self.m_total * self.g
+        T_end = self.scene.duration_s
+
+        def excess(t):
+            e = motion.evaluate(np.array([t]))
+            T = self.rope.tension(self.L0, 0.0, float(e["L"][0]), float(e["dL"][0]))
+            lam = self.rope.unstretched(float(e["L"][0]))
+            return (T if self.L0 > lam else 0.0) - W
+
+        ts = np.union1d(np.linspace(0.0, T_end, 4001), [b for b in motion.breakpoints if b <= T_end])
+        prev_t, prev = ts[0], excess(ts[0])
+        if prev >= 0:
+            return 0.0
+        for t in ts[1:]:
+            v = excess(t)
+            if v >= 0:
+                return float(brentq(excess, prev_t, t, xtol=1e-13))
+            prev_t, prev = t, v
+        return math.inf
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
         """Hoist rope direction with everything hanging at rest in the steady wind.
@@ -281,7 +323,8 @@ class HookLoadModel:
                        az - ddL_b * w1 + 2 * dell * n1z_d + le * h1])
         # relative-velocity reference for damping: support + rope pay-out
         ref = (vx + dell * u1, vy + dell * v1, vz - dell * w1)
-        cdamp = 2.0 * self.zeta * math.sqrt(g / (ell + self.d_rest)) if applied else 0.0
+        Ld = ell + self.d_rest
+        cdamp = 2.0 * self.zeta * math.sqrt(g / Ld) if (applied and Ld > 0.0) else 0.0
         wx, wy = (self.wx, self.wy) if applied else (0.0, 0.0)
 
         pts_m, pts_J, pts_b, pts_F = [], [], [], []
@@ -443,6 +486,14 @@ class HookLoadModel:
         rhs = np.concatenate([[float(dz @ Pload)], need])
         return np.linalg.lstsq(A_mat, rhs, rcond=None)[0]
 
+    def _resting_tensions(self, o):
+        """While resting: the rope's pull, and the legs' share of what it lifts beyond the hook block."""
+        T = max(o["rope_T"], 0.0)
+        share = min(max((T - self.m_h * self.g) / (self.m * self.g), 0.0), 1.0)
+        o["legs_T"] = np.asarray(self._hanging()["legs_T"], float) * share
+        if o.get("top_T") is not None:
+            o["top_T"] = self._hanging()["top_T"] * share
+
     def _top_tensions(self, o, Pload):
         R = o["R"]
         ends = o["G"] + self.geom.ends_b @ R.T
@@ -459,11 +510,15 @@ class HookLoadModel:
         nq = self.nq
         ev = self._eval
 
+        t_lift = self.t_lift if self.lift_off else None
+
         def rhs(t, y):
-            qdd = ev(y, kin(t))
             out = np.empty(2 * nq)
             out[:nq] = y[nq:]
-            out[nq:] = qdd
+            if t_lift is not None and t < t_lift:
+                out[nq:] = 0.0  # resting, supported: nothing moves until lift-off
+                return out
+            out[nq:] = ev(y, kin(t))
             return out
 
         return rhs
@@ -477,7 +532,11 @@ class HookLoadModel:
         # not slack; slack is a tension below a billionth of the weight
         eps = 1e-9 * self.m_total * self.g if self.elastic else 0.0
 
+        t_lift = self.t_lift if self.lift_off else None
+
         def slack(t, y):
+            if t_lift is not None and t <= t_lift:
+                return 1.0  # a slack rope before lift-off is the set-up, not a failure
             o = ev(y, kin(t), full=True)
             return o["rope_T_raw"] + eps if self.elastic else o["rope_T"]
 
@@ -486,6 +545,8 @@ class HookLoadModel:
         events = {"slack": slack}
         if self.link2:
             def leg_slack(t, y):
+                if t_lift is not None and t <= t_lift:
+                    return 1.0
                 return float(ev(y, kin(t), full=True)["legs_T"][0]) + 1e-9 * self.m * self.g
 
             leg_slack.terminal = True
@@ -605,6 +666,8 @@ class HookLoadModel:
             kt = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
                 float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]), float(e["slew_rate"][i]))
             o = self._eval(Y[i], kt, full=True)
+            if self.lift_off and t[i] < self.t_lift:
+                self._resting_tensions(o)
             for n in res:
                 res[n][i] = o[n]
             rope_T[i] = o["rope_T"]
@@ -649,11 +712,16 @@ class HookLoadModel:
         return out
 
     # -- static leg loads ------------------------------------------------------------------
+    def _hanging(self) -> dict:
+        if getattr(self, "_hanging_cache", None) is None:
+            y0 = self.rest_state()
+            kt = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.L0, 0.0, 0.0)
+            self._hanging_cache = self._eval(y0, kt, full=True, applied=False)
+        return self._hanging_cache
+
     def hanging_leg_tension_N(self) -> np.ndarray:
         """Leg tensions with the system hanging at rest (static equilibrium, this model) [N]."""
-        y0 = self.rest_state()
-        kt = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.L0, 0.0, 0.0)
-        return np.asarray(self._eval(y0, kt, full=True, applied=False)["legs_T"], float)
+        return np.asarray(self._hanging()["legs_T"], float).copy()
 
     def static_leg_tension_N(self) -> np.ndarray:
         """Rigging rule: the load's weight shared equally over the legs, over cos(leg angle) [N].
