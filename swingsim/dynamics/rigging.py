@@ -241,6 +241,12 @@ def rigging_geometry(rig, load, rigid: bool = True) -> Geometry:
                 if dd > dmax:
                     dmax, pair = dd, (i, j)
         ends = lugs[list(pair)]
+        axis = (ends[1] - ends[0]) / dmax
+        off = lugs - ends[0] - np.outer((lugs - ends[0]) @ axis, axis)
+        if np.max(np.linalg.norm(off, axis=1)) > LEG_LENGTH_TOLERANCE_M:
+            raise RiggingError("attach_m", "a spreader here is a single lifting beam: the tops of its "
+                               "drop legs must lie on one line (a spreader frame is not modelled; use "
+                               "a bridle or two beams in separate runs)")
         top = rig.top_leg_length_m
         hook = _two_leg_apex(ends[0], ends[1], top, top, key="top_leg_length_m")
         pivot = hook
@@ -255,4 +261,32 @@ def rigging_geometry(rig, load, rigid: bool = True) -> Geometry:
                                "(its centre of gravity is far off the line below the hook point, or "
                                f"above it); this model takes at most {REST_TILT_LIMIT_DEG:g} deg: "
                                "rig it so the centre of gravity hangs under the hook")
-    return Geometry(rig.kind, pivot, A, hook, lugs, ends, rest)
+    geom = Geometry(rig.kind, pivot, A, hook, lugs, ends, rest)
+    if rigid and rig.kind != "single":
+        T = hanging_shares(geom)
+        if np.min(T) < -1e-9:
+            j = int(np.argmin(T))
+            raise RiggingError("attach_m", f"leg {j + 1} would hang slack (it would have to push) with "
+                               "the load at rest: the centre of gravity lies outside the attachment "
+                               "points, so the load would hang from the other legs alone and turn; "
+                               "rig it with the centre of gravity between the attachment points")
+    return geom
+
+
+def hanging_shares(geom: Geometry) -> np.ndarray:
+    """Each leg's tension per unit weight with the load hanging at rest [-] (statics).
+
+    Bridle: the weight resolved along the legs (least squares; minimum norm for four or
+    more); spreader drop legs: parallel forces with no moment about the CG (lever rule).
+    """
+    R = rotation(*geom.rest_tilt_rad)
+    W = np.array([0.0, 0.0, 1.0])
+    if geom.kind == "bridle":
+        E = (geom.hook_b - geom.attach_b) @ R.T
+        E = E / np.linalg.norm(E, axis=1)[:, None]
+        return np.linalg.lstsq(E.T, W, rcond=None)[0]
+    dz = R[:, 2]
+    arms = geom.attach_b @ R.T
+    A = np.vstack([np.ones(len(arms)), np.cross(arms, dz).T])
+    rhs = np.array([dz @ W, 0.0, 0.0, 0.0])
+    return np.linalg.lstsq(A, rhs, rcond=None)[0]
