@@ -288,8 +288,9 @@ def test_hook_load_converges_to_point_mass_as_hook_and_leg_vanish():
                                   "rigging": {"leg_length_m": 0.5}, **MOVE}, duration_s=25.0))
         assert tr.valid
         errs.append(_angle_err(tr, core, t))
-    assert errs[1] < 1e-3
-    assert errs[1] < errs[0] / 2.5  # roughly first order in the hook's mass
+    # peak swing here is 0.11 rad: the 5 kg hook block changes the swing by 0.2% of it
+    assert errs[1] < 5e-4
+    assert errs[1] < errs[0] / 3  # first order in the hook's mass (4x for 4x lighter)
 
 
 def test_rigid_load_converges_to_point_mass_as_it_shrinks():
@@ -303,8 +304,8 @@ def test_rigid_load_converges_to_point_mass_as_it_shrinks():
                                  duration_s=25.0))
         assert tr.valid and tr.model.name == "rigid-load"
         errs.append(_angle_err(tr, _core(10.0), t))
-    assert errs[1] < 2e-3
-    assert errs[1] < errs[0] / 3
+    assert errs[1] < 1e-5
+    assert errs[1] < errs[0] / 10  # second order in the size (16x for 4x smaller)
 
 
 def test_elastic_rope_converges_to_inextensible_as_stiffness_grows():
@@ -317,8 +318,8 @@ def test_elastic_rope_converges_to_inextensible_as_stiffness_grows():
                                  duration_s=25.0))
         assert tr.valid and tr.model.name == "elastic-rope"
         errs.append(_angle_err(tr, core, t))
-    assert errs[1] < 1e-3
-    assert errs[1] < errs[0] / 3
+    assert errs[1] < 2e-6
+    assert errs[1] < errs[0] / 8  # first order in the compliance (10x for 10x stiffer)
 
 
 def test_point_mass_summary_has_one_mode_period():
