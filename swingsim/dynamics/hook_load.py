@@ -283,6 +283,161 @@ class HookLoadModel:
         return np.array(q + [0.0] * self.nq)
 
     # -- the equations -------------------------------------------------------------
+    def _qdd(self, y, kt):
+        """Generalised accelerations only: the solver's fast path (same equations as :meth:`_eval`).
+
+        Plain float arithmetic and one stacked Jacobian; the load's rotation in its own
+        axes, where the angular velocity is :math:`\\omega_b = (\\dot a \\cos b, \\dot b,
+        \\dot a \\sin b)` and the inertia is diagonal.  Checked against :meth:`_eval` and
+        the sympy derivation in the tests.
+        """
+        nq = self.nq
+        yl = y.tolist()
+        q, qd = yl[:nq], yl[nq:]
+        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt[:12]
+        om_s = kt[12] if len(kt) > 12 else 0.0
+        g = self.g
+        sqrt = math.sqrt
+        u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
+        w1 = sqrt(1.0 - u1 * u1 - v1 * v1)
+        s1 = u1 * du1 + v1 * dv1
+        n1z_d = s1 / w1
+        h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
+        il = self.il
+        if self.elastic:
+            ell, dell = q[il], qd[il]
+            T = self.rope.tension(ell, dell, L, dL)
+            T = T if T > 0.0 else 0.0
+            ddL_b = 0.0
+        else:
+            ell, dell = L, dL
+            T = 0.0
+            ddL_b = ddL
+        le = ell + self.extra
+        Hx, Hy, Hz = px + le * u1, py + le * v1, pz - le * w1
+        Hdx = vx + dell * u1 + le * du1
+        Hdy = vy + dell * v1 + le * dv1
+        Hdz = vz - dell * w1 + le * n1z_d
+        z = [0.0] * nq
+        Jx, Jy, Jz = z[:], z[:], z[:]
+        Jx[0] = le
+        Jy[1] = le
+        Jz[0] = le * u1 / w1
+        Jz[1] = le * v1 / w1
+        if il is not None:
+            Jx[il], Jy[il], Jz[il] = u1, v1, -w1
+        bx = ax + ddL_b * u1 + 2 * dell * du1
+        by = ay + ddL_b * v1 + 2 * dell * dv1
+        bz = az - ddL_b * w1 + 2 * dell * n1z_d + le * h1
+        rfx, rfy, rfz = vx + dell * u1, vy + dell * v1, vz - dell * w1
+        Ld = ell + self.d_rest
+        cdamp = 2.0 * self.zeta * sqrt(g / Ld) if Ld > 0.0 else 0.0
+        wx, wy = self.wx, self.wy
+        # forces at the rope's end
+        Fx = -T * u1
+        Fy = -T * v1
+        Fz = T * w1
+        if self.kr:
+            mx = 0.5 * (vx + Hdx) - wx
+            my = 0.5 * (vy + Hdy) - wy
+            mz = 0.5 * (vz + Hdz)
+            al = mx * u1 + my * v1 - mz * w1
+            nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
+            f = 0.5 * self.kr * ell * sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
+            Fx -= f * nx_
+            Fy -= f * ny_
+            Fz -= f * nz_
+        body, link2 = self.body, self.link2
+        mH = self.m_h + (0.0 if (body or link2) else self.m)
+        if mH > 0.0:
+            cm = cdamp * mH
+            Fx -= cm * (Hdx - rfx + om_s * (Hy - py))
+            Fy -= cm * (Hdy - rfy - om_s * (Hx - px))
+            Fz -= cm * (Hdz - rfz) + mH * g
+            kd = self.kd_hook if self.has_hook else self.kd_load
+            if kd:
+                rx, ry, rz = Hdx - wx, Hdy - wy, Hdz
+                sp = kd * sqrt(rx * rx + ry * ry + rz * rz)
+                Fx -= sp * rx
+                Fy -= sp * ry
+                Fz -= sp * rz
+        rows = [Jx, Jy, Jz]
+        fvec = [Fx - mH * bx, Fy - mH * by, Fz - mH * bz]
+        masses = [mH, mH, mH]
+        if body or link2:
+            Px, Py, Pz, Pdx, Pdy, Pdz = Hx, Hy, Hz, Hdx, Hdy, Hdz
+            Gx_, Gy_, Gz_ = Jx[:], Jy[:], Jz[:]
+            gbx, gby, gbz = bx, by, bz
+            if link2:
+                l2 = self.l2
+                u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
+                w2 = sqrt(1.0 - u2 * u2 - v2 * v2)
+                s2 = u2 * du2 + v2 * dv2
+                Px, Py, Pz = Hx + l2 * u2, Hy + l2 * v2, Hz - l2 * w2
+                Pdx, Pdy, Pdz = Hdx + l2 * du2, Hdy + l2 * dv2, Hdz + l2 * s2 / w2
+                Gx_[2] += l2
+                Gy_[3] += l2
+                Gz_[2] += l2 * u2 / w2
+                Gz_[3] += l2 * v2 / w2
+                gbz += l2 * ((du2 * du2 + dv2 * dv2) / w2 + s2 * s2 / (w2 * w2 * w2))
+            if body:
+                ia = self.ia
+                a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
+                ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
+                c0, c1, c2 = self.c_b
+                r0 = cb * c0 + sb * c2
+                r1 = sa * sb * c0 + ca * c1 - sa * cb * c2
+                r2 = -ca * sb * c0 + sa * c1 + ca * cb * c2
+                o0, o1, o2 = da, db * ca, db * sa  # world angular velocity
+                wr0, wr1, wr2 = o1 * r2 - o2 * r1, o2 * r0 - o0 * r2, o0 * r1 - o1 * r0
+                Gx, Gy, Gz = Px + r0, Py + r1, Pz + r2
+                Gdx, Gdy, Gdz = Pdx + wr0, Pdy + wr1, Pdz + wr2
+                # columns of a, b: ex x r, ey' x r
+                Gy_[ia] -= r2
+                Gz_[ia] += r1
+                Gx_[ia + 1] += ca * r2 - sa * r1
+                Gy_[ia + 1] += sa * r0
+                Gz_[ia + 1] -= ca * r0
+                # bias: bw x r + w x (w x r), bw = da db (0, -sa, ca)
+                k_ = da * db
+                bw1, bw2 = -k_ * sa, k_ * ca
+                gbx += bw1 * r2 - bw2 * r1 + (o1 * wr2 - o2 * wr1)
+                gby += bw2 * r0 + (o2 * wr0 - o0 * wr2)
+                gbz += -bw1 * r0 + (o0 * wr1 - o1 * wr0)
+            else:
+                Gx, Gy, Gz, Gdx, Gdy, Gdz = Px, Py, Pz, Pdx, Pdy, Pdz
+            m = self.m
+            cm = cdamp * m
+            FGx = -cm * (Gdx - rfx + om_s * (Gy - py))
+            FGy = -cm * (Gdy - rfy - om_s * (Gx - px))
+            FGz = -cm * (Gdz - rfz) - m * g
+            if self.kd_load:
+                rx, ry, rz = Gdx - wx, Gdy - wy, Gdz
+                sp = self.kd_load * sqrt(rx * rx + ry * ry + rz * rz)
+                FGx -= sp * rx
+                FGy -= sp * ry
+                FGz -= sp * rz
+            rows += [Gx_, Gy_, Gz_]
+            fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
+            masses += [m, m, m]
+        B = np.array(rows)
+        mw = np.array(masses)
+        M = B.T @ (mw[:, None] * B)
+        Q = B.T @ np.array(fvec)
+        if body:
+            I0, I1, I2 = self.I_b
+            # body-frame angular velocity and its bias; Euler's equations about the CG
+            wb0, wb1, wb2 = da * cb, db, da * sb
+            ab0, ab2 = -da * db * sb, da * db * cb
+            h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
+            h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
+            h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
+            M[ia, ia] += I0 * cb * cb + I2 * sb * sb
+            M[ia + 1, ia + 1] += I1
+            Q[ia] -= cb * h0 + sb * h2
+            Q[ia + 1] -= h1_
+        return np.linalg.solve(M, Q)
+
     def _eval(self, y, kt, full=False, applied=True):
         """Accelerations (and, with ``full``, everything the outputs need) at one instant.
 
@@ -504,7 +659,10 @@ class HookLoadModel:
     def accelerations(self, t, y, motion_or_kin, applied=True):
         """Generalised accelerations at one state (tests, cross-checks)."""
         kt = motion_or_kin(t) if callable(motion_or_kin) else motion_or_kin
-        return self._eval(np.asarray(y, float), kt, applied=applied)
+        y = np.asarray(y, float)
+        if applied:
+            return self._qdd(y, kt)
+        return self._eval(y, kt, applied=False)
 
     def make_rhs(self, kin):
         nq = self.nq
@@ -512,13 +670,15 @@ class HookLoadModel:
 
         t_lift = self.t_lift if self.lift_off else None
 
+        fast = self._qdd
+
         def rhs(t, y):
             out = np.empty(2 * nq)
             out[:nq] = y[nq:]
             if t_lift is not None and t < t_lift:
                 out[nq:] = 0.0  # resting, supported: nothing moves until lift-off
                 return out
-            out[nq:] = ev(y, kin(t))
+            out[nq:] = fast(y, kin(t))
             return out
 
         return rhs
@@ -534,11 +694,15 @@ class HookLoadModel:
 
         t_lift = self.t_lift if self.lift_off else None
 
+        il, nq, rope = self.il, self.nq, self.rope
+
         def slack(t, y):
             if t_lift is not None and t <= t_lift:
                 return 1.0  # a slack rope before lift-off is the set-up, not a failure
-            o = ev(y, kin(t), full=True)
-            return o["rope_T_raw"] + eps if self.elastic else o["rope_T"]
+            if self.elastic:  # the spring law alone, no dynamics needed
+                k = kin(t)
+                return rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
+            return ev(y, kin(t), full=True)["rope_T"]
 
         slack.terminal = True
         slack.direction = -1
