@@ -115,6 +115,8 @@ def model_metrics(traj, t, s) -> dict:
         })
     d["leg_tensions"] = rows
     d["peak_leg_tension_kN"] = max(r["peak_kN"] for r in rows)
+    d["leg_peak_tensions_kN"] = [r["peak_kN"] for r in rows]
+    d["leg_dynamic_factors"] = [r["dynamic_factor"] for r in rows]
     dfs = [r["dynamic_factor"] for r in rows if r["dynamic_factor"] is not None]
     d["leg_dynamic_factor"] = max(dfs) if dfs else None
     if "top_sling_tension_N" in s:

@@ -157,3 +157,21 @@ def test_spreader_top_slings_static_rule():
     cos = math.sqrt(top**2 - half**2) / top
     assert s["top_sling_tension_N"][0] == pytest.approx([m * G / 2 / cos] * 2, rel=1e-9)
     assert s["leg_tension_N"][0] == pytest.approx([m * G / 2] * 2, rel=1e-9)
+
+
+def test_steady_wind_offset_of_hook_and_rigid_load():
+    # Steady wind: the rope leans at atan(F / (m g)), F = q Cf A, q = rho v^2 / 2 (ISO 2533 air,
+    # the drag equation; REFERENCES), with m the total mass on the rope; a damped run settles there.
+    rho, v, cf, A, m, mh = 1.225, 12.0, 1.2, 10.0, 3000.0, 400.0
+    sc = make_scene({"hook": {"mass_kg": mh}, "wind": {"speed_m_s": v},
+                     "load": {"mass_kg": m, "size_m": [4.0, 0.3, 2.5], "wind_area_m2": A,
+                              "drag_coefficient": cf},
+                     "rigging": {"kind": "bridle", "leg_length_m": 3.0,
+                                 "attach_m": [[-1.5, 0, 1.25], [1.5, 0, 1.25]]},
+                     "damping": {"ratio": 0.3}}, duration_s=150.0)
+    want = math.atan(0.5 * rho * v * v * cf * A / ((m + mh) * G))
+    traj = simulate(sc)
+    n_rest = traj.model.rest_direction(10.0)
+    assert math.atan2(n_rest[0], -n_rest[2]) == pytest.approx(want, rel=1e-12)
+    n_end = traj.sample(np.array([150.0]))["rope_dir"][0]
+    assert math.atan2(n_end[0], -n_end[2]) == pytest.approx(want, rel=1e-4)
