@@ -175,3 +175,16 @@ def test_steady_wind_offset_of_hook_and_rigid_load():
     assert math.atan2(n_rest[0], -n_rest[2]) == pytest.approx(want, rel=1e-12)
     n_end = traj.sample(np.array([150.0]))["rope_dir"][0]
     assert math.atan2(n_end[0], -n_end[2]) == pytest.approx(want, rel=1e-4)
+
+
+def test_implausibly_stiff_rope_is_refused_unless_allowed():
+    from swingsim.errors import SceneError
+    from swingsim.plausibility import check_plausible
+
+    sc = make_scene({"rope": {"stiffness_kN_per_m": 1e8}})  # bounce near 1.6 kHz for a tonne
+    with pytest.raises(SceneError) as ei:
+        check_plausible(sc)
+    msg = ei.value.one_line()
+    assert "rope.stiffness_kN_per_m = 100000000.0" in msg and "Hz" in msg
+    assert check_plausible(sc, allow=True)
+    assert check_plausible(make_scene({"rope": {"stiffness_kN_per_m": 1e3}})) == []
