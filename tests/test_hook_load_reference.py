@@ -9,7 +9,6 @@ import math
 import numpy as np
 import pytest
 from scipy.linalg import eigh
-from scipy.optimize import brentq
 
 from swingsim import constants as C
 from swingsim.dynamics.hook_load import HookLoadModel

@@ -12,7 +12,6 @@ velocity is taken from the skew matrix dR/dt R^T, not from the model's formula.
 
 from __future__ import annotations
 
-import math
 
 import numpy as np
 import pytest

@@ -66,6 +66,7 @@ point-mass model.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 
@@ -73,7 +74,6 @@ from .. import constants as C
 from .pendulum import direction_from_projected
 from .rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from .rope import elastic_rope
-from dataclasses import replace
 
 def _cx(a, b):
     """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""
