@@ -607,7 +607,7 @@ class HookLoadModel:
             Pload = None
         out["P_load"] = Pload
         out["A"] = np.array(P)
-        out["legs_T"] = self._leg_tensions(out, n2, Pload, Gd)
+        out["legs_T"] = self._leg_tensions(out, n2, Pload)
         out["top_T"] = self._top_tensions(out, Pload) if self.kind == "spreader" else None
         e = 0.5 * mH * (np.dot(Hd, Hd)) + mH * g * H[2]
         if self.body or self.link2:
@@ -619,7 +619,7 @@ class HookLoadModel:
         out["energy"] = e
         return out
 
-    def _leg_tensions(self, o, n2, Pload, Gd):
+    def _leg_tensions(self, o, n2, Pload):
         """Tension in each sling leg [N] (see module Notes)."""
         if self.kind == "single":
             if self.link2:
