@@ -419,3 +419,31 @@ def test_lift_off_too_fast_goes_slack():
     traj = simulate(sc)
     assert traj.status == "slack" and not traj.valid
     assert traj.t_end_s > traj.model.t_lift
+
+
+def test_four_leg_bridle_symmetric_shares_and_three_leg_statics():
+    # Four equal legs to the corners of a symmetric load: by symmetry each takes W / 4 / cos
+    # (common practice rule); three legs: statically determinate, the legs balance the weight
+    # exactly (statics, textbook).
+    m = 8000.0
+    four = make_scene({"load": {"mass_kg": m, "size_m": [4.0, 2.0, 1.0]},
+                       "rigging": {"kind": "bridle", "leg_length_m": 4.0,
+                                   "attach_m": [[-1.8, -0.9, 0.5], [1.8, -0.9, 0.5],
+                                                [-1.8, 0.9, 0.5], [1.8, 0.9, 0.5]]}})
+    model = HookLoadModel(four)
+    cos = math.sqrt(16.0 - 1.8**2 - 0.9**2) / 4.0
+    assert model.hanging_leg_tension_N() == pytest.approx([m * G / 4 / cos] * 4, rel=1e-9)
+    assert model.static_leg_tension_N() == pytest.approx([m * G / 4 / cos] * 4, rel=1e-12)
+    three = make_scene({"load": {"mass_kg": m, "size_m": [4.0, 2.0, 1.0]},
+                        "rigging": {"kind": "bridle", "leg_length_m": [4.0, 4.2, 3.9],
+                                    "attach_m": [[-1.8, -0.9, 0.5], [1.8, -0.6, 0.5], [0.2, 0.9, 0.5]]}})
+    model = HookLoadModel(three)
+    T = model.hanging_leg_tension_N()
+    from swingsim.dynamics.rigging import rotation
+    R = rotation(*model.geom.rest_tilt_rad)
+    e = (model.geom.hook_b - model.attach_b) @ R.T
+    e /= np.linalg.norm(e, axis=1)[:, None]
+    assert T @ e == pytest.approx([0.0, 0.0, m * G], abs=1e-6)
+    assert np.all(T > 0)
+    assert np.linalg.norm(model.geom.hook_b - model.attach_b, axis=1) == pytest.approx([4.0, 4.2, 3.9],
+                                                                                      abs=1e-9)
