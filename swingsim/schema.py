@@ -112,6 +112,11 @@ TABLES: dict[str, dict[str, Key]] = {
                             "force on the load when unset.", ge=0.0),
         "drag_coefficient": Key("float", "Drag (force) coefficient of the load [-].",
                                 default=C.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+        "shape": Key("str", "Shape of the drawn load: box (size_m), or cylinder (axis along the longest "
+                     "side of size_m, diameter the larger of the other two). Drawing only.",
+                     default="box", choices=("box", "cylinder")),
+        "mesh_file": Key("path", "Surface mesh drawn as the load instead of the box (STL, OBJ or PLY; "
+                         "metres, origin at the load's centre of gravity, z up). Drawing only."),
     },
     "start": {
         "swing_deg": Key("vec2", "Initial rope angle from vertical [in_xz, in_yz]: projected on the x-z plane "
@@ -140,6 +145,15 @@ TABLES: dict[str, dict[str, Key]] = {
                           gt=0.0, lt=45.0),
         "clearance_m": Key("float", "Largest allowed horizontal excursion of the load from the plumb line "
                            "below the suspension point [m].", gt=0.0),
+    },
+    # Camera of `swingsim render --view custom`; the whole table is optional, and
+    # position_m and focus_m are required when it is given (checked in scene.py).
+    "view": {
+        "position_m": Key("vec3", "Camera position [x, y, z] [m] of the custom view.", required=True),
+        "focus_m": Key("vec3", "Point the custom view looks at [x, y, z] [m].", required=True),
+        "up": Key("vec3", "Direction that is up in the picture [-].", default=(0.0, 0.0, 1.0)),
+        "view_angle_deg": Key("float", "Vertical field of view of the custom view [deg].",
+                              default=30.0, gt=1.0, lt=120.0),
     },
 }
 
