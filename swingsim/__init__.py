@@ -1,0 +1,48 @@
+"""swingsim: crane hook and suspended-load swing, for lift planning and site briefings.
+
+Public API::
+
+    from swingsim import load_scene, simulate, summarize
+    scene = load_scene("scenes/tower_trolley.toml")
+    traj = simulate(scene)          # full nonlinear equations, scipy DOP853
+    summary = summarize(traj)       # peak / residual swing, tension, periods, cautions
+
+Results are a planning and training preview: they do not replace the lift
+plan, the crane manufacturer's data, local regulations, or the competent person
+in charge of the lift.
+"""
+
+__version__ = "0.1.0"
+
+from .errors import InputError, SceneError, SimulationError  # noqa: E402
+from .scene import Scene, load_scene, scene_from_dict  # noqa: E402
+
+
+def simulate(scene, **kw):
+    """Integrate a scene; see :func:`swingsim.solve.simulate`."""
+    from .solve import simulate as _simulate
+
+    return _simulate(scene, **kw)
+
+
+def summarize(traj):
+    """Measure a trajectory; see :func:`swingsim.metrics.summarize`."""
+    from .metrics import summarize as _summarize
+
+    return _summarize(traj)
+
+
+def __getattr__(name):
+    if name == "Trajectory":
+        from .solve import Trajectory
+
+        return Trajectory
+    if name == "Summary":
+        from .metrics import Summary
+
+        return Summary
+    raise AttributeError(name)
+
+
+__all__ = ["load_scene", "scene_from_dict", "simulate", "summarize", "Scene", "Trajectory",
+           "Summary", "InputError", "SceneError", "SimulationError", "__version__"]

@@ -183,7 +183,64 @@ def load_scene(path, *, validate_motion: bool = True) -> Scene:
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc).split(" (at ")[0]
         raise SceneError(shown, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
-    return scene_from_dict(data, file=shown, base_dir=path.parent, validate_motion=validate_motion)
+    try:
+        return scene_from_dict(data, file=shown, base_dir=path.parent, validate_motion=validate_motion)
+    except SceneError as exc:
+        if exc.line is None and exc.file == shown:
+            exc.line = line_of_key(text, exc.key)
+            exc.args = (exc.one_line(),)
+        raise
+
+
+_KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>\d+)\])?(\.(?P<key>[\w-]+))?")
+
+
+def line_of_key(text: str, key_path: str) -> int | None:
+    """Best-effort line number of a key path like ``moves[1].accel_m_s2`` in TOML text."""
+    if not key_path:
+        return None
+    m = _KEY_PATH.match(key_path.strip("[]"))
+    if not m:
+        return None
+    table, index, key = m.group("table"), m.group("index"), m.group("key")
+    lines = text.splitlines()
+    header = re.compile(r"^\s*\[")
+
+    def find_key(start, name):
+        pat = re.compile(rf"^\s*{re.escape(name)}\s*=")
+        for i in range(start, len(lines)):
+            if i > start and header.match(lines[i]):
+                return None
+            if pat.match(lines[i]):
+                return i + 1
+        return None
+
+    if key is None and index is None:
+        # a top-level key, or a table name
+        top_end = next((i for i, x in enumerate(lines) if header.match(x)), len(lines))
+        pat = re.compile(rf"^\s*{re.escape(table)}\s*=")
+        for i in range(top_end):
+            if pat.match(lines[i]):
+                return i + 1
+        pat = re.compile(rf"^\s*\[\[?\s*{re.escape(table)}\s*\]")
+        for i, x in enumerate(lines):
+            if pat.match(x):
+                return i + 1
+        return None
+    if index is not None:
+        pat = re.compile(rf"^\s*\[\[\s*{re.escape(table)}\s*\]\]")
+        starts = [i for i, x in enumerate(lines) if pat.match(x)]
+        if int(index) >= len(starts):
+            return None
+        start = starts[int(index)]
+    else:
+        pat = re.compile(rf"^\s*\[\s*{re.escape(table)}\s*\]")
+        start = next((i for i, x in enumerate(lines) if pat.match(x)), None)
+        if start is None:
+            return None
+    if key is None:
+        return start + 1
+    return find_key(start, key) or start + 1
 
 
 def _suggest(name: str, allowed) -> str:
@@ -302,44 +359,54 @@ PROFILE_OPTIONAL = {
 }
 
 
-def read_table(file: str, base_dir: Path, key: str, axis: str):
-    """Read a table profile's CSV: header ``t_s,position_m`` (``t_s,angle_deg`` for slew)."""
+def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str = "<scene>"):
+    """Read a table profile's CSV: header ``t_s,position_m`` (``t_s,angle_deg`` for slew).
+
+    Errors name the scene file and the key that names the table, with the
+    table's row where it applies.
+    """
     p = Path(file)
     full = p if p.is_absolute() else base_dir / p
     want = "angle_deg" if axis == "slew" else "position_m"
+
+    def err(problem):
+        return SceneError(scene_file, key, problem, file)
+
     if not full.exists():
-        raise SceneError(file, "", f"table file not found (named by {key})")
+        raise err("table file not found (paths are relative to the scene file's folder)")
     if not full.is_file():
-        raise SceneError(file, "", f"not a file (named by {key})")
+        raise err("not a file")
     try:
         text = full.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError):
-        raise SceneError(file, "", f"cannot be read as UTF-8 text (named by {key})") from None
+        raise err("cannot be read as UTF-8 text (expected a CSV table)") from None
     rows = [r for r in csv.reader(text.splitlines()) if r and not r[0].lstrip().startswith("#")]
     if not rows:
-        raise SceneError(file, "", f"empty table; expected a header t_s,{want}")
+        raise err(f"empty table; expected a header t_s,{want}")
     header = [h.strip() for h in rows[0]]
     if header != ["t_s", want]:
-        raise SceneError(file, "header", f"expected exactly 't_s,{want}' for axis {axis}", ",".join(header))
+        raise err(f"the table's header must be exactly 't_s,{want}' for axis {axis} "
+                  f"(found '{','.join(header)}')")
     ts, xs = [], []
     for i, r in enumerate(rows[1:], start=2):
         if len(r) != 2:
-            raise SceneError(file, f"row {i}", "expected 2 columns", ",".join(r))
+            raise err(f"data row {i - 1} of the table: expected 2 columns, found '{','.join(r)}'")
         try:
             t, x = float(r[0]), float(r[1])
         except ValueError:
-            raise SceneError(file, f"row {i}", "expected two numbers", ",".join(r)) from None
+            raise err(f"data row {i - 1} of the table: expected two numbers, found '{','.join(r)}'") from None
         if not (math.isfinite(t) and math.isfinite(x)):
-            raise SceneError(file, f"row {i}", "values must be finite numbers", ",".join(r))
+            raise err(f"data row {i - 1} of the table: values must be finite numbers")
         ts.append(t)
         xs.append(x)
     if len(ts) < 2:
-        raise SceneError(file, "", "a table needs at least two data rows")
+        raise err("a table needs at least two data rows")
     if ts[0] != 0.0:
-        raise SceneError(file, "row 2", "the first time must be 0 (times count from the move's start)", ts[0])
+        raise err(f"the table's first time must be 0 (times count from the move's start), found {ts[0]:g}")
     for i in range(1, len(ts)):
         if ts[i] <= ts[i - 1]:
-            raise SceneError(file, f"row {i + 2}", "times must increase strictly", ts[i])
+            raise err(f"data row {i + 1} of the table: times must increase strictly "
+                      f"({ts[i - 1]:g} then {ts[i]:g})")
     return tuple(ts), tuple(xs)
 
 
@@ -467,7 +534,7 @@ def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
     if profile == "table":
         if v["table_file"] is None:
             raise r.err(f"{where}.table_file", "missing; profile 'table' needs a CSV file")
-        table = read_table(v["table_file"], r.base_dir, f"{where}.table_file", axis)
+        table = read_table(v["table_file"], r.base_dir, f"{where}.table_file", axis, r.file)
     else:
         if v["table_file"] is not None:
             raise r.err(f"{where}.table_file", f"only for profile 'table', not '{profile}'", v["table_file"])

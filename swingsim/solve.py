@@ -121,10 +121,20 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
     for t0, t1 in zip(cuts[:-1], cuts[1:]):
         if t1 - t0 < 1e-12:
             continue
-        kin = motion.local(t0, t1)
+        kin = motion.local(t0, t1, with_slew_rate=getattr(model, "needs_slew_rate", False))
         rhs = model.make_rhs(kin)
         events = model.make_events(kin)
         names = list(events)
+        # an event already past its threshold at the start of a piece (e.g. the
+        # tension jumping below zero with the acceleration) has no crossing to find
+        for n in names:
+            if events[n](t0, y) <= 0.0:
+                traj.status = n
+                traj.message = _event_message(n, t0)
+                if not traj.pieces:  # nothing integrated yet: keep the initial state
+                    traj.pieces.append((t0, t0, _Constant(y)))
+                    traj.t_end_s = t0
+                return traj
         with np.errstate(all="ignore"):
             res = solve_ivp(rhs, (t0, t1), y, method="DOP853", rtol=rtol, atol=atol,
                             dense_output=True, events=[events[n] for n in names])
@@ -150,6 +160,17 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
             return traj
         y = res.y[:, -1]
     return traj
+
+
+class _Constant:
+    """Dense-output stand-in holding one state (a run stopped at its first instant)."""
+
+    def __init__(self, y):
+        self.y = np.asarray(y, dtype=float)
+
+    def __call__(self, t):
+        t = np.atleast_1d(t)
+        return np.repeat(self.y[:, None], t.size, axis=1)
 
 
 def _event_message(name: str, t: float) -> str:

@@ -39,11 +39,15 @@ from .. import constants as C
 from .forces import drag_coefficient_per_mass
 
 
-def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par):
-    """Applied force per unit mass on the load, gravity included [m/s^2].
+def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
+    r"""Applied force per unit mass on the load, gravity included [m/s^2].
 
     ``par`` is a dict of floats or arrays: g, zeta, kd (load drag), kr (rope
-    drag per unit length), wx, wy (wind).
+    drag per unit length), wx, wy (wind).  ``slew_rate`` [rad/s] is the jib's
+    rotation rate: the equivalent viscous damping acts on the swing relative
+    to the crane (sheave and rope friction turn with the jib), i.e. on
+    :math:`L(\dot n - \Omega \hat z \times n)`, so that steady slewing has
+    the undamped steady angle.
     """
     s1 = u * du + v * dv
     ndz = s1 / w
@@ -53,8 +57,8 @@ def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par):
     rvz = vpz - dL * w + L * ndz
     g = par["g"]
     c = 2.0 * par["zeta"] * (g / L) ** 0.5 * L
-    fx = -c * du
-    fy = -c * dv
+    fx = -c * (du + slew_rate * v)
+    fy = -c * (dv - slew_rate * u)
     fz = -g - c * ndz
     kd = par["kd"]
     wx, wy = par["wx"], par["wy"]
@@ -159,16 +163,19 @@ class PointMassModel:
         return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
 
     # -- the equations -------------------------------------------------------
+    #: the solver passes ``Motion.local(t0, t1, with_slew_rate=True)`` as ``kin``
+    needs_slew_rate = True
+
     def make_rhs(self, kin):
-        """Right-hand side f(t, y) for one segment; ``kin`` is Motion.local(...)."""
+        """Right-hand side f(t, y) for one segment; ``kin`` is Motion.local(..., with_slew_rate=True)."""
         par = self.par
         sf, acc = specific_force, accelerations
 
         def rhs(t, y):
             u, v, du, dv = y
-            px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin(t)
+            px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL, om = kin(t)
             w = (1.0 - u * u - v * v) ** 0.5
-            fx, fy, fz = sf(u, v, w, du, dv, L, dL, vx, vy, vz, par)
+            fx, fy, fz = sf(u, v, w, du, dv, L, dL, vx, vy, vz, par, om)
             ddu, ddv = acc(u, v, du, dv, L, dL, ax, ay, az, fx, fy, fz)
             return [du, dv, ddu, ddv]
 
@@ -181,9 +188,9 @@ class PointMassModel:
 
         def slack(t, y):
             u, v, du, dv = y
-            px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin(t)
+            px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL, om = kin(t)
             w = max(1.0 - u * u - v * v, 1e-300) ** 0.5
-            fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, vz, par)
+            fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, vz, par, om)
             return tension_per_mass(u, v, du, dv, L, ddL, ax, ay, az, fx, fy, fz)
 
         slack.terminal = True
@@ -197,6 +204,10 @@ class PointMassModel:
         overswing.direction = -1
         return {"slack": slack, "overswing": overswing}
 
+    def rest_direction(self, rope_length_m: float) -> np.ndarray:
+        """Rope direction at rest in the steady wind (suspension point still)."""
+        return rest_direction(self.par, rope_length_m)
+
     # -- outputs ---------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
         """Derived quantities at sample times ``t`` for states ``Y`` (N, 4)."""
@@ -209,7 +220,8 @@ class PointMassModel:
         nd = np.stack([du, dv, (u * du + v * dv) / w], axis=-1)
         load = p + L[:, None] * n
         load_vel = dp + dL[:, None] * n + L[:, None] * nd
-        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, dp[:, 0], dp[:, 1], dp[:, 2], self.par)
+        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, dp[:, 0], dp[:, 1], dp[:, 2], self.par,
+                                    e["slew_rate"])
         tpm = tension_per_mass(u, v, du, dv, L, ddL, ddp[:, 0], ddp[:, 1], ddp[:, 2], fx, fy, fz)
         m, g = self.par["m"], self.par["g"]
         energy = 0.5 * m * np.sum(load_vel**2, axis=1) + m * g * load[:, 2]
@@ -219,3 +231,25 @@ class PointMassModel:
             "rope_dir": n, "rope_tension_N": m * tpm, "energy_J": energy,
             "static_rope_load_N": m * g,
         }
+
+
+def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
+    """Unit rope direction of the load hanging at rest in the steady wind.
+
+    At rest relative to a still suspension point the rope lies along the
+    applied force per unit mass (tension balances it); the rope's own drag
+    depends on its direction, so a fixed-point iteration is used (it contracts
+    quickly because the wind force is small against gravity).
+    """
+    u = v = 0.0
+    for _ in range(iterations):
+        w = max(1.0 - u * u - v * v, 1e-12) ** 0.5
+        fx, fy, fz = specific_force(u, v, w, 0.0, 0.0, L, 0.0, 0.0, 0.0, 0.0, par)
+        n = math.sqrt(fx * fx + fy * fy + fz * fz)
+        u_new, v_new = fx / n, fy / n
+        if abs(u_new - u) + abs(v_new - v) < 1e-15:
+            u, v = u_new, v_new
+            break
+        u, v = u_new, v_new
+    w = max(1.0 - u * u - v * v, 0.0) ** 0.5
+    return np.array([u, v, -w])

@@ -61,7 +61,13 @@ class Motion:
     @property
     def breakpoints(self) -> tuple[float, ...]:
         pts = sorted({b for _, p in self.moves for b in p.breakpoints})
-        return tuple(pts)
+        merged: list[float] = []
+        for b in pts:  # knots that differ by rounding only are one breakpoint
+            if merged and b - merged[-1] < 1e-9:
+                merged[-1] = b
+            else:
+                merged.append(b)
+        return tuple(merged)
 
     @property
     def last_move_end_s(self) -> float:
@@ -110,12 +116,13 @@ class Motion:
         ddp = np.stack([ddX + ar * c - at * s, ddY + ar * s + at * c,
                         np.zeros_like(t)], axis=-1)
         return {"p": p, "dp": dp, "ddp": ddp,
-                "L": self.rope_length_m - H, "dL": -dH, "ddL": -ddH}
+                "L": self.rope_length_m - H, "dL": -dH, "ddL": -ddH, "slew_rate": dS}
 
-    def local(self, t0: float, t1: float):
+    def local(self, t0: float, t1: float, with_slew_rate: bool = False):
         """A fast scalar evaluator valid on [t0, t1], between two breakpoints.
 
         Returns a function ``f(t) -> (px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL)``
+        (with ``with_slew_rate`` a 13th entry: the jib's slew rate [rad/s])
         using pure-Python arithmetic on each axis's local cubic, or a slower
         general evaluator when some profile is not one cubic on the interval.
         """
@@ -138,9 +145,10 @@ class Motion:
             def general(t):
                 e = self.evaluate(np.array(t))
                 p, dp, ddp = e["p"], e["dp"], e["ddp"]
-                return (float(p[0]), float(p[1]), float(p[2]), float(dp[0]), float(dp[1]),
-                        0.0, float(ddp[0]), float(ddp[1]), 0.0,
-                        float(e["L"]), float(e["dL"]), float(e["ddL"]))
+                out = (float(p[0]), float(p[1]), float(p[2]), float(dp[0]), float(dp[1]),
+                       0.0, float(ddp[0]), float(ddp[1]), 0.0,
+                       float(e["L"]), float(e["dL"]), float(e["ddL"]))
+                return out + (float(e["slew_rate"]),) if with_slew_rate else out
             return general
 
         x0, y0, z0 = self.origin_m
@@ -174,10 +182,12 @@ class Motion:
                 c, s = cos(phi), sin(phi)
                 ar = ddR - rho * dS * dS
                 at = rho * ddS + 2 * dR * dS
-                return (X + rho * c, Y + rho * s, z0,
-                        dX + dR * c - rho * dS * s, dY + dR * s + rho * dS * c, 0.0,
-                        ddX + ar * c - at * s, ddY + ar * s + at * c, 0.0,
-                        L0 - H, -dH, -ddH)
-            return (x0 + X, y0 + Y, z0, dX, dY, 0.0, ddX, ddY, 0.0, L0 - H, -dH, -ddH)
+                out = (X + rho * c, Y + rho * s, z0,
+                       dX + dR * c - rho * dS * s, dY + dR * s + rho * dS * c, 0.0,
+                       ddX + ar * c - at * s, ddY + ar * s + at * c, 0.0,
+                       L0 - H, -dH, -ddH)
+                return out + (dS,) if with_slew_rate else out
+            out = (x0 + X, y0 + Y, z0, dX, dY, 0.0, ddX, ddY, 0.0, L0 - H, -dH, -ddH)
+            return out + (0.0,) if with_slew_rate else out
 
         return fast

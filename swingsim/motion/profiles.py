@@ -248,7 +248,7 @@ def s_curve(start_s: float, distance: float, speed: float, accel: float,
 
     vpk = speed
     if need(vpk) > D:
-        vpk = brentq(lambda v: need(v) - D, 1e-300, speed, xtol=1e-15, rtol=4e-16)
+        vpk = brentq(lambda v: need(v) - D, 1e-300, speed, xtol=1e-15, rtol=1e-15)
     up, dup = _scurve_ramp(vpk, accel, jerk)
     dn, ddn = _scurve_ramp(vpk, decel, jerk)
     tc = max((D - dup - ddn) / vpk, 0.0)

@@ -1,0 +1,210 @@
+"""The ``swingsim`` command line: parses arguments and calls the public API.
+
+No physics here.  Exit codes: 0 done; 1 the run could not give a trustworthy
+result or an internal fault; 2 bad input (one line on stderr, nothing
+written); 130 interrupted.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import os
+import signal
+import sys
+from pathlib import Path
+
+from . import __version__
+from .errors import InputError, SimulationError
+
+#: Extension subcommands: name -> (module, help).  Each module exposes
+#: ``add_arguments(parser)`` and ``main(args) -> int``.
+COMMANDS: dict[str, tuple[str, str]] = {}
+
+DEMO_SCENE = Path(__file__).parent / "data" / "demo.toml"
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, exit 2
+        sys.stderr.write(f"swingsim: error: {message} (see 'swingsim --help')\n")
+        raise SystemExit(2)
+
+
+def _add_run_args(p, scene=True):
+    if scene:
+        p.add_argument("scene", help="scene file (TOML)")
+    p.add_argument("--out", metavar="DIR", help="output folder (default: <scene name>-results)")
+    p.add_argument("--force", action="store_true",
+                   help="write into a non-empty output folder, replacing only this run's files")
+    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    p.add_argument("--allow-implausible", action="store_true",
+                   help="accept values beyond the plausibility limits (e.g. very long runs)")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="swingsim", description=(
+        "Simulate how a crane's hook and load swing during a lift: peak and residual swing, "
+        "excursion, rope tension, settling time. A planning and training preview: it does not "
+        "replace the lift plan, the manufacturer's data or the competent person."))
+    parser.add_argument("--version", action="version", version=f"swingsim {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    p = sub.add_parser("run", help="simulate a scene and write summary, time series and plots")
+    _add_run_args(p)
+    _run_video_args(p)
+    p = sub.add_parser("demo", help="run the bundled demo scene")
+    _add_run_args(p, scene=False)
+    p.add_argument("--no-video", action="store_true", help="skip the demo video and stills")
+    p = sub.add_parser("check", help="validate a scene file without running it")
+    p.add_argument("scene", help="scene file (TOML)")
+    for name, (mod, help_) in COMMANDS.items():
+        try:
+            m = importlib.import_module(mod)
+        except ImportError:  # pragma: no cover - an optional part not installed
+            continue
+        p = sub.add_parser(name, help=help_)
+        m.add_arguments(p)
+        p.set_defaults(_module=m)
+    return parser
+
+
+def _run_video_args(p):
+    p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
+
+
+def _print(args, text):
+    if not getattr(args, "quiet", False):
+        print(text)
+
+
+def _headline(summary) -> str:
+    d = summary.data
+    st = d["settle_time_s"]
+    lines = [
+        f"{d['title']}",
+        f"  peak rope angle {d['peak_rope_angle_deg']:.2f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
+        f"peak excursion {d['peak_excursion_m']:.2f} m",
+        f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.2f} deg; "
+        + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
+        f"  peak rope tension {d['peak_rope_tension_kN']:.1f} kN (dynamic factor {d['dynamic_factor']:.3f})",
+    ]
+    for c in d["cautions"]:
+        lines.append("  ! " + c)
+    return "\n".join(lines)
+
+
+def cmd_check(args) -> int:
+    from .scene import load_scene
+
+    scene = load_scene(args.scene)
+    from .plausibility import check_plausible
+
+    notes = check_plausible(scene, allow=True)
+    print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
+    for n in notes:
+        print(f"  note: {n}")
+    return 0
+
+
+def _do_run(args, scene_path, default_out) -> int:
+    from .plausibility import check_plausible
+    from .report.files import check_out_dir, clean_partials
+    from .report.outputs import RUN_FILES, write_run_outputs
+    from .scene import load_scene
+
+    scene = load_scene(scene_path)
+    check_plausible(scene, allow=args.allow_implausible)
+    out = check_out_dir(args.out or default_out, args.force)
+    want_video = getattr(args, "video", False)
+    if want_video:
+        _render_available()
+    from . import simulate, summarize
+
+    traj = simulate(scene)
+    summary = summarize(traj)
+    clean_partials(out)
+    written = write_run_outputs(traj, summary, out, plots=not args.no_plots)
+    if want_video and traj.valid:
+        from .render import render_scene
+
+        written += render_scene(traj, summary, out, **_video_options(args))
+    _print(args, _headline(summary))
+    _print(args, f"wrote {len(written)} files to {out}")
+    if not traj.valid:
+        sys.stderr.write(f"swingsim: run invalid: {traj.message}\n")
+        return 1
+    return 0
+
+
+def _video_options(args) -> dict:
+    opts = {"quiet": getattr(args, "quiet", False)}
+    if getattr(args, "command", "") == "demo":
+        opts.update(size=(960, 540), fps=24, window=None)
+    return opts
+
+
+def _render_available():
+    try:
+        importlib.import_module("swingsim.render")
+    except ImportError as exc:  # pragma: no cover
+        raise SimulationError(f"the renderer is not available: {exc}") from None
+
+
+def cmd_run(args) -> int:
+    stem = Path(args.scene).stem
+    return _do_run(args, args.scene, f"{stem}-results")
+
+
+def cmd_demo(args) -> int:
+    args.video = not args.no_video and _has_renderer()
+    return _do_run(args, DEMO_SCENE, "swingsim-demo")
+
+
+def _has_renderer() -> bool:
+    try:
+        importlib.import_module("swingsim.render")
+        return True
+    except ImportError:
+        return False
+
+
+def _on_sigterm(signum, frame):
+    raise KeyboardInterrupt
+
+
+def main(argv=None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not args.command:
+        parser.print_help()
+        return 2
+    old = signal.signal(signal.SIGTERM, _on_sigterm)
+    try:
+        if hasattr(args, "_module"):
+            return int(args._module.main(args) or 0)
+        return {"run": cmd_run, "demo": cmd_demo, "check": cmd_check}[args.command](args)
+    except InputError as exc:
+        sys.stderr.write(f"swingsim: error: {exc.one_line()}\n")
+        return 2
+    except SimulationError as exc:
+        sys.stderr.write(f"swingsim: {exc}\n")
+        return 1
+    except KeyboardInterrupt:
+        from .report.files import WRITTEN
+
+        done = ", ".join(p.name for p in WRITTEN) or "none"
+        sys.stderr.write(f"swingsim: interrupted; files finished before the stop: {done}; "
+                         "no partial file was left under a final name\n")
+        return 130
+    except Exception as exc:  # an internal fault: one line, traceback on request
+        if os.environ.get("SWINGSIM_DEBUG"):
+            raise
+        sys.stderr.write(f"swingsim: internal error: {type(exc).__name__}: {exc} "
+                         "(set SWINGSIM_DEBUG=1 for the traceback; please report it)\n")
+        return 1
+    finally:
+        signal.signal(signal.SIGTERM, old)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,1 @@
+"""Outputs: summary.json, timeseries.csv, summary.txt and plots (I/O lives here, not in the physics)."""

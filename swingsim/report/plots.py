@@ -1,0 +1,171 @@
+"""PNG plots of one run: swing over time, speeds, plan view of the load path.
+
+Each function draws and returns the figure; :func:`write_plots` saves them
+atomically.  Every figure carries the caution line.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+
+import numpy as np
+
+from .. import cautions
+from .files import atomic_write_bytes
+from .tables import timeseries_columns
+
+# our own plain palette, legible on a projector
+INK = "#1d2731"
+ROPE = "#0b6e99"
+LOAD = "#c8553d"
+MOVE_BAND = "#f2d0a4"
+LIMIT = "#8a1c1c"
+GREY = "#8c959f"
+ENVELOPE = "#d6e6ef"
+
+
+def _figure(w=10.0, h=5.6):
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot as plt
+
+    fig = plt.figure(figsize=(w, h), dpi=110)
+    return plt, fig
+
+
+def _footer(fig, title):
+    fig.text(0.01, 0.985, title, ha="left", va="top", fontsize=11, weight="bold", color=INK)
+    fig.text(0.5, 0.008, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7.5, color=LIMIT)
+
+
+def _moves(ax, scene, motion):
+    ymax = ax.get_ylim()[1]
+    for (axis, prof), m in zip(motion.moves, scene.moves):
+        ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
+        ax.text(prof.start_s, ymax, " " + m.name, fontsize=7.5, va="top", ha="left", color=INK,
+                rotation=0, clip_on=True)
+
+
+def swing_figure(traj, summary):
+    scene = traj.scene
+    c = timeseries_columns(traj)
+    plt, fig = _figure()
+    ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
+    t = c["t_s"]
+    ax.plot(t, c["rope_angle_deg"], color=ROPE, lw=1.8, label="rope angle from vertical")
+    ax.plot(t, c["rope_angle_xz_deg"], color=GREY, lw=0.9, ls="--", label="projected on x-z")
+    ax.plot(t, c["rope_angle_yz_deg"], color=GREY, lw=0.9, ls=":", label="projected on y-z")
+    d = summary.data
+    lim = scene.limits
+    ax.axhline(lim.swing_caution_deg, color=LIMIT, lw=1, ls="-.", label=f"caution angle {lim.swing_caution_deg:g} deg")
+    ax.axhline(-lim.swing_caution_deg, color=LIMIT, lw=1, ls="-.")
+    ax.set_ylim(min(ax.get_ylim()[0], -1.0), max(ax.get_ylim()[1], 1.0) * 1.15)
+    _moves(ax, scene, traj.motion)
+    ax.plot([d["peak_rope_angle_time_s"]], [d["peak_rope_angle_deg"]], "v", color=LOAD, ms=8,
+            label=f"peak {d['peak_rope_angle_deg']:.2f} deg")
+    if d["settled_at_s"] is not None and d["moves"]:
+        ax.axvline(d["settled_at_s"], color=INK, lw=1, ls=":")
+        ax.text(d["settled_at_s"], ax.get_ylim()[0], f" settled < {lim.settle_deg:g} deg", fontsize=8,
+                va="bottom", color=INK)
+    ax.set_xlabel("time [s]")
+    ax.set_ylabel("angle [deg]")
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8, loc="lower right", framealpha=0.9)
+    _footer(fig, f"{scene.title}: swing angle (shaded: moves)")
+    return fig
+
+
+def speed_figure(traj, summary):
+    scene = traj.scene
+    c = timeseries_columns(traj)
+    plt, fig = _figure()
+    ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
+    t = c["t_s"]
+    ax.plot(t, c["suspension_speed_m_s"], color=INK, lw=1.8, label="suspension point, horizontal")
+    ax.plot(t, c["load_speed_m_s"], color=LOAD, lw=1.2, label="load")
+    if np.any(np.abs(c["hoist_speed_m_s"]) > 1e-9):
+        ax.plot(t, c["hoist_speed_m_s"], color=ROPE, lw=1.2, ls="--", label="hoist (+ raising)")
+    _moves(ax, scene, traj.motion)
+    ax.set_xlabel("time [s]")
+    ax.set_ylabel("speed [m/s]")
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8, loc="upper right", framealpha=0.9)
+    _footer(fig, f"{scene.title}: speeds")
+    return fig
+
+
+def plan_figure(traj, summary):
+    from matplotlib.patches import Circle, Rectangle
+
+    scene = traj.scene
+    c = timeseries_columns(traj)
+    plt, fig = _figure(11.0, 5.8)
+    ax1 = fig.add_axes([0.06, 0.12, 0.42, 0.76])
+    ax2 = fig.add_axes([0.56, 0.12, 0.40, 0.76])
+    sx, sy = c["suspension_x_m"], c["suspension_y_m"]
+    lx, ly = c["load_x_m"], c["load_y_m"]
+    ex = summary["peak_excursion_m"]
+    ax1.plot(sx, sy, color=INK, lw=2.0, label="suspension point")
+    ax1.plot(lx, ly, color=LOAD, lw=1.0, label="load")
+    # swing envelope: the band the load can occupy around the suspension path
+    step = max(1, len(sx) // 150)
+    for x, y in zip(sx[::step], sy[::step]):
+        ax1.add_patch(Circle((x, y), ex, facecolor=ENVELOPE, edgecolor="none", lw=0, zorder=0))
+    ax1.plot(lx[0], ly[0], "o", color=LOAD, ms=6)
+    ax1.plot(lx[-1], ly[-1], "s", color=LOAD, ms=6)
+    for z in scene.zones:
+        col = LIMIT if z.kind == "exclusion" else GREY
+        ax1.add_patch(Rectangle(z.min_m[:2], z.max_m[0] - z.min_m[0], z.max_m[1] - z.min_m[1],
+                                facecolor=col, alpha=0.25, edgecolor=col))
+        ax1.add_patch(Rectangle((z.min_m[0] - z.margin_m, z.min_m[1] - z.margin_m),
+                                z.max_m[0] - z.min_m[0] + 2 * z.margin_m,
+                                z.max_m[1] - z.min_m[1] + 2 * z.margin_m,
+                                fill=False, edgecolor=col, ls="--", lw=0.8))
+        ax1.text(z.min_m[0], z.max_m[1], z.name, fontsize=7.5, va="bottom", color=col)
+    ax1.set_aspect("equal", adjustable="datalim")
+    ax1.set_xlabel("x [m]")
+    ax1.set_ylabel("y [m]")
+    ax1.grid(alpha=0.3)
+    ax1.legend(fontsize=8, loc="best", framealpha=0.9)
+    ax1.set_title("plan view (blue band: swing envelope)", fontsize=9)
+    dx, dy = lx - sx, ly - sy
+    ax2.plot(dx, dy, color=LOAD, lw=0.9)
+    ax2.add_patch(Circle((0, 0), ex, fill=False, color=ROPE, lw=1.5, label=f"peak excursion {ex:.2f} m"))
+    if scene.limits.clearance_m is not None:
+        ax2.add_patch(Circle((0, 0), scene.limits.clearance_m, fill=False, color=LIMIT, lw=1.2, ls="--",
+                             label=f"clearance {scene.limits.clearance_m:g} m"))
+    ax2.plot([0], [0], "+", color=INK, ms=10)
+    r = max(ex, scene.limits.clearance_m or 0.0, 0.05) * 1.2
+    ax2.set_xlim(-r, r)
+    ax2.set_ylim(-r, r)
+    ax2.set_aspect("equal")
+    ax2.set_xlabel("x offset from plumb line [m]")
+    ax2.set_ylabel("y offset [m]")
+    ax2.grid(alpha=0.3)
+    ax2.legend(fontsize=8, loc="upper right", framealpha=0.9)
+    ax2.set_title("load relative to the point below the suspension point", fontsize=9)
+    _footer(fig, f"{scene.title}: load path")
+    return fig
+
+
+FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": plan_figure}
+
+
+def write_plots(traj, summary, out_dir) -> list:
+    from pathlib import Path
+
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot as plt
+
+    paths = []
+    for name, fn in FIGURES.items():
+        fig = fn(traj, summary)
+        buf = io.BytesIO()
+        fig.savefig(buf, format="png", metadata={"Software": None})
+        plt.close(fig)
+        paths.append(atomic_write_bytes(Path(out_dir) / name, buf.getvalue()))
+    return paths

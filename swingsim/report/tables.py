@@ -1,0 +1,151 @@
+"""summary.json, timeseries.csv and summary.txt.
+
+Output is deterministic: the same scene gives byte-identical files (no time
+stamps, no absolute paths, fixed float formatting).
+"""
+
+from __future__ import annotations
+
+import io
+import json
+import math
+
+import numpy as np
+
+from .. import cautions
+from ..metrics import angle_between, rope_angle_rad
+
+
+def _clean(x):
+    if isinstance(x, float):
+        return x if math.isfinite(x) else None
+    if isinstance(x, dict):
+        return {k: _clean(v) for k, v in x.items()}
+    if isinstance(x, (list, tuple)):
+        return [_clean(v) for v in x]
+    if isinstance(x, np.generic):
+        return _clean(x.item())
+    return x
+
+
+def summary_json(summary) -> str:
+    """The summary as JSON text (NaN and infinity become null)."""
+    return json.dumps(_clean(summary.data), indent=2, allow_nan=False) + "\n"
+
+
+def timeseries_columns(traj, t=None) -> dict:
+    """The time-series columns (name -> 1-D array) at the scene's sample rate."""
+    t = traj.sample_times() if t is None else t
+    s = traj.sample(t)
+    n = s["rope_dir"]
+    rest = np.asarray(traj.model.rest_direction(float(s["rope_length"][-1]))) \
+        if hasattr(traj.model, "rest_direction") else np.array([0.0, 0.0, -1.0])
+    hor = s["load"][:, :2] - s["suspension"][:, :2]
+    cols = {
+        "t_s": t,
+        "suspension_x_m": s["suspension"][:, 0],
+        "suspension_y_m": s["suspension"][:, 1],
+        "suspension_z_m": s["suspension"][:, 2],
+        "rope_length_m": s["rope_length"],
+    }
+    if s.get("hook") is not None:
+        cols["hook_x_m"] = s["hook"][:, 0]
+        cols["hook_y_m"] = s["hook"][:, 1]
+        cols["hook_z_m"] = s["hook"][:, 2]
+    cols.update({
+        "load_x_m": s["load"][:, 0],
+        "load_y_m": s["load"][:, 1],
+        "load_z_m": s["load"][:, 2],
+        "rope_angle_deg": np.degrees(rope_angle_rad(n)),
+        "rope_angle_xz_deg": np.degrees(np.arctan2(n[:, 0], -n[:, 2])),
+        "rope_angle_yz_deg": np.degrees(np.arctan2(n[:, 1], -n[:, 2])),
+        "swing_deg": np.degrees(angle_between(n, rest[None, :])),
+        "excursion_m": np.hypot(hor[:, 0], hor[:, 1]),
+        "load_speed_m_s": np.linalg.norm(s["load_vel"], axis=1),
+        "suspension_speed_m_s": np.linalg.norm(s["suspension_vel"][:, :2], axis=1),
+        "hoist_speed_m_s": -np.gradient(s["rope_length"], t) if len(t) > 1 else np.zeros_like(t),
+        "rope_tension_kN": s["rope_tension_N"] / 1e3,
+    })
+    for key, arr in s.get("extra_columns", {}).items():
+        cols[key] = arr
+    return cols
+
+
+def timeseries_csv(traj) -> str:
+    cols = timeseries_columns(traj)
+    names = list(cols)
+    data = np.column_stack([np.asarray(cols[k], dtype=float) for k in names])
+    buf = io.StringIO()
+    buf.write(",".join(names) + "\n")
+    np.savetxt(buf, data, delimiter=",", fmt="%.9g")
+    return buf.getvalue()
+
+
+def _fmt(x, unit="", nd=2):
+    if x is None:
+        return "n/a"
+    return f"{x:.{nd}f}{(' ' + unit) if unit else ''}"
+
+
+def summary_text(summary, scene) -> str:
+    """A plain-text summary for a lift planner."""
+    d = summary.data
+    w = []
+    w.append(f"swingsim {d['swingsim_version']} - {d['title']}")
+    w.append("=" * min(78, len(w[0])))
+    w.append("")
+    w.append(cautions.CAUTION)
+    w.append("")
+    if not d["valid"]:
+        w.append("!! RESULT INVALID: " + d.get("invalid_reason", ""))
+        w.append("")
+    w.append(f"Model: {d['model']}; load {scene.load.mass_kg:g} kg on {scene.rope.length_m:g} m of rope"
+             + (f" (rope ends at {d['rope_length_end_m']:.2f} m)" if abs(d['rope_length_end_m'] - scene.rope.length_m) > 1e-9 else "")
+             + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.2f} s; simulated {d['simulated_until_s']:.1f} s.")
+    if scene.wind.speed_m_s:
+        w.append(f"Wind {scene.wind.speed_m_s:g} m/s toward {scene.wind.direction_deg:g} deg; rope at rest "
+                 f"leans {d['rest_rope_angle_deg']:.2f} deg downwind.")
+    w.append("")
+    w.append("Swing")
+    w.append(f"  Peak rope angle from vertical    {_fmt(d['peak_rope_angle_deg'], 'deg')}  at t = {_fmt(d['peak_rope_angle_time_s'], 's', 1)}")
+    w.append(f"  Peak excursion from plumb line   {_fmt(d['peak_excursion_m'], 'm')}")
+    w.append(f"  Swing when the last move ends    {_fmt(d['swing_at_move_end_deg'], 'deg')}")
+    w.append(f"  Residual rope angle after moves  {_fmt(d['residual_rope_angle_deg'], 'deg')}")
+    if d["settle_time_s"] is None:
+        w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}not within the simulated time")
+    else:
+        w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}{_fmt(d['settle_time_s'], 's', 1)} after the last move (t = {_fmt(d['settled_at_s'], 's', 1)})")
+    w.append("")
+    w.append("Rope tension")
+    w.append(f"  Static                           {_fmt(d['static_rope_tension_kN'], 'kN')}")
+    w.append(f"  Peak                             {_fmt(d['peak_rope_tension_kN'], 'kN')}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}")
+    w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 3)}")
+    for key, label in (("leg_tensions", "Sling legs"),):
+        if d.get(key):
+            w.append(f"  {label}: " + "; ".join(str(x) for x in d[key]))
+    w.append("")
+    w.append("Swing period")
+    mp = d["mode_periods_s"]
+    w.append(f"  Small-angle (2 pi sqrt(L/g))     {_fmt(d['natural_period_s'], 's', 3)}"
+             + (f"; at the final rope length {_fmt(d['natural_period_end_s'], 's', 3)}" if abs(d['natural_period_end_s'] - d['natural_period_s']) > 1e-9 else ""))
+    if len(mp) > 1:
+        w.append("  Modes (small amplitude)          " + ", ".join(f"{p:.3f} s" for p in mp))
+    if d["measured_period_s"] is None:
+        w.append("  Measured from the simulation     n/a (too little swing after the last move to measure)")
+    else:
+        w.append(f"  Measured from the simulation     {_fmt(d['measured_period_s'], 's', 3)} at {d['measured_amplitude_deg']:.2f} deg amplitude: "
+                 f"{d['period_difference_pct']:+.2f}% against small-angle")
+        if d.get("period_exact_at_amplitude_s"):
+            w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's', 3)} (elliptic integral)")
+    if d["zones"]:
+        w.append("")
+        w.append("Obstacles and exclusion zones")
+        for z in d["zones"]:
+            state = "ENTERED" if z["inside"] else ("inside margin" if z["within_margin"] else "clear")
+            w.append(f"  {z['kind']:<9} {z['name']:<24} closest {z['min_distance_m']:.2f} m at t = {z['min_distance_time_s']:.1f} s  [{state}]")
+    w.append("")
+    w.append("Cautions")
+    for c in d["cautions"][1:] or ["(no scenario warnings)"]:
+        w.append("  - " + c)
+    w.append("")
+    return "\n".join(w) + "\n"
