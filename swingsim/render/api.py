@@ -88,11 +88,21 @@ def _read_mesh(scene):
 
     p = Path(scene.load.mesh_file)
     full = p if p.is_absolute() else Path(scene.base_dir) / p
+    import warnings
+
+    import vtk
+
+    shown = vtk.vtkObject.GetGlobalWarningDisplay()
+    vtk.vtkObject.GlobalWarningDisplayOff()  # a bad file is reported once, below, not by VTK too
     try:
-        mesh = pv.read(full)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            mesh = pv.read(full)
     except Exception as exc:  # noqa: BLE001 - any reader failure is bad input
         raise SceneError(scene.file, "load.mesh_file", f"cannot be read as a mesh ({type(exc).__name__})",
                          scene.load.mesh_file) from None
+    finally:
+        vtk.vtkObject.SetGlobalWarningDisplay(shown)
     if not isinstance(mesh, pv.PolyData):
         mesh = mesh.extract_surface()
     if mesh.n_points == 0:

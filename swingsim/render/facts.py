@@ -1,9 +1,8 @@
 """What the renderer needs to know about a run: event times and the quantities shown.
 
-Reads them from the run's :class:`~swingsim.metrics.Summary` when one is given
-(``summary.data``), and otherwise measures them from the trajectory itself, so
-that rendering works on a bare :class:`~swingsim.solve.Trajectory` too.  Pure
-numpy: no drawing here.
+Reads them from the run's :class:`~swingsim.metrics.Summary` (``summary.data``;
+made with :func:`swingsim.metrics.summarize` when none is given), so the video
+labels the same peak and settling instants as the report.  No drawing here.
 """
 
 from __future__ import annotations
@@ -53,44 +52,17 @@ def _get(summary, name):
         return None
 
 
-def _measure(traj):
-    """Peak swing and settling measured from the trajectory (used without a Summary)."""
-    scene = traj.scene
-    rate = max(50.0, scene.sample_hz)
-    t = traj.sample_times(rate)
-    s = traj.sample(t)
-    ang = rope_angle_deg(s["rope_dir"])
-    i = int(np.argmax(ang))
-    peak, peak_t = float(ang[i]), float(t[i])
-    last = float(traj.motion.last_move_end_s)
-    settled = None
-    # Settled: from some instant after the last move on, the rope stays within
-    # limits.settle_deg of its final rest direction (the mean direction over the
-    # last second, which includes any steady wind offset).
-    tail = t >= t[-1] - 1.0
-    rest = s["rope_dir"][tail].mean(axis=0)
-    rest /= np.linalg.norm(rest)
-    dev = np.degrees(np.arccos(np.clip(s["rope_dir"] @ rest, -1.0, 1.0)))
-    after = t >= last
-    if traj.status == "ok" and after.any() and t[-1] - last > 1.0:
-        bad = np.nonzero(after & (dev > scene.limits.settle_deg))[0]
-        if len(bad) == 0:
-            settled = last
-        elif bad[-1] < len(t) - 1 and t[-1] - t[bad[-1] + 1] >= 1.0:
-            settled = float(t[bad[-1] + 1])
-    return peak, peak_t, last, settled
-
-
 def collect(traj, summary=None) -> Facts:
-    """Facts of a run, from ``summary`` where it has them, else measured from ``traj``."""
-    peak = _get(summary, "peak_rope_angle_deg")
-    peak_t = _get(summary, "peak_rope_angle_time_s")
+    """Facts of a run, from ``summary`` (``swingsim.metrics.summarize``; made when None)."""
+    if summary is None:
+        from ..metrics import summarize
+
+        summary = summarize(traj)
+    peak = float(_get(summary, "peak_rope_angle_deg"))
+    peak_t = float(_get(summary, "peak_rope_angle_time_s"))
     last = _get(summary, "last_move_end_s")
+    last = float(traj.motion.last_move_end_s if last is None else last)
     settled = _get(summary, "settled_at_s")
-    if peak is None or peak_t is None or last is None:
-        peak, peak_t, last, settled_m = _measure(traj)
-        if _get(summary, "settled_at_s") is None:
-            settled = settled_m
     events = []
     scene = traj.scene
     for (axis, prof), move in zip(traj.motion.moves, scene.moves):

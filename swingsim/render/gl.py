@@ -12,12 +12,14 @@ from __future__ import annotations
 import ctypes.util
 import os
 
+from ..errors import SimulationError
+
 #: System packages that provide offscreen OpenGL on Debian/Ubuntu.
 SYSTEM_PACKAGES = "libegl1 libgl1-mesa-dri"
 
 
-class RenderUnavailableError(RuntimeError):
-    """No OpenGL to render with (exit code 1, one line)."""
+class RenderUnavailableError(SimulationError):
+    """No OpenGL to render with (the command line prints one line and exits with 1)."""
 
 
 def _message(detail: str) -> str:

@@ -23,14 +23,14 @@ BANNER_S = 3.0
 EVENT_HOLD_S = 2.5
 
 
-def caution_line() -> str:
-    """The small caution shown on every frame."""
-    return _CAUTION_SHORT
+def caution_line(max_chars: int = 200) -> str:
+    """The small caution shown on every frame, wrapped to ``max_chars`` a line."""
+    return _wrap(_CAUTION_SHORT, max_chars)
 
 
-def banner_text() -> str:
+def banner_text(max_chars: int = 70) -> str:
     """The caution banner of the first and last seconds (wrapped for the screen)."""
-    return "CAUTION\n" + _wrap(_CAUTION, 70)
+    return _wrap(_CAUTION, max_chars)
 
 
 def _wrap(text: str, width: int) -> str:
@@ -90,7 +90,7 @@ def zone_text(names) -> str:
 
 
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
-               events, near_zones) -> FrameText:
+               events, near_zones, line_chars: int = 200, banner_chars: int = 70) -> FrameText:
     """The text of the frame at simulated time ``t_s`` (``row``: one sample of the run)."""
     from .facts import rope_angle_deg
 
@@ -102,6 +102,6 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         readout=readout_text(ang, spd, ten, float(row["rope_length"])),
         event=event_text(t_s, events),
         zone=zone_text(near_zones),
-        caution=caution_line(),
-        banner=banner_text() if banner_on(video_t_s, video_len_s) else "",
+        caution=caution_line(line_chars),
+        banner=banner_text(banner_chars) if banner_on(video_t_s, video_len_s) else "",
     )

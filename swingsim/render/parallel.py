@@ -21,6 +21,8 @@ from pathlib import Path
 
 import numpy as np
 
+from ..report.files import TMP_PREFIX
+
 
 def _draw_range(job: dict) -> None:
     """Worker: draw the frames of ``job["times"]`` into ``job["segment"]``."""
@@ -61,7 +63,7 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
     target = Path(target)
     workers = max(1, min(workers, len(times)))
     bounds = np.linspace(0, len(times), workers + 1).round().astype(int)
-    tmpdir = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".parts", dir=target.parent))
+    tmpdir = Path(tempfile.mkdtemp(prefix=TMP_PREFIX + target.name + "-parts-", dir=target.parent))
     env = dict(os.environ, LP_NUM_THREADS="1", OMP_NUM_THREADS="1", PYTHONUNBUFFERED="1")
     pkg_root = str(Path(__file__).resolve().parents[2])
     env["PYTHONPATH"] = pkg_root + (os.pathsep + env["PYTHONPATH"] if env.get("PYTHONPATH") else "")

@@ -260,7 +260,10 @@ class Stage:
         self.txt["event"] = self._text("", (0.012, 0.86), fs(0.03), "tl", bold=True,
                                        colour="#7a0000")
         self.txt["zone"] = self._text("", (0.5, 0.11), fs(0.03), "bc", bold=True, colour=PALETTE["warn"])
-        self.txt["caution"] = self._text(O.caution_line(), (0.5, 0.012), fs(0.024), "bc")
+        # characters a line holds at a font size (Arial averages about 0.55 em a character)
+        self.line_chars = max(20, int(self.size[0] * 0.97 / (0.55 * fs(0.024))))
+        self.banner_chars = max(20, min(72, int(self.size[0] * 0.9 / (0.58 * fs(0.032)))))
+        self.txt["caution"] = self._text(O.caution_line(self.line_chars), (0.5, 0.012), fs(0.024), "bc")
         self.txt["banner"] = self._text("", (0.5, 0.075), fs(0.032), "bc", bold=True,
                                         background=PALETTE["banner"], opacity=0.92, frame=True)
         if len(self.views) > 1:
@@ -390,7 +393,8 @@ class Stage:
                 focus = (p[0], p[1], 0.5 * (p[2] + load[2]))
                 cam = V.follow(focus, self.follow_span, self.aspect)
             self._apply_camera(ren, cam)
-        ft = O.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, near)
+        ft = O.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, near,
+                          self.line_chars, self.banner_chars)
         for key in ("clock", "readout", "event", "zone", "banner"):
             self.txt[key].SetInput(getattr(ft, key))
             self.txt[key].SetVisibility(bool(getattr(ft, key)))

@@ -1,7 +1,7 @@
 """Frame sinks that stream to disk: MP4 (H.264, yuv420p), GIF and numbered PNGs.
 
-Each writes under a temporary name in the target's own folder and renames it
-into place on success (so a reader never sees half a file, and a failed render
+Each writes under a temporary name in the target's own folder
+(``swingsim.report.files``) and renames it into place on success (so a reader never sees half a file, and a failed render
 leaves nothing behind); frames are passed on one at a time, never all held.
 """
 
@@ -15,6 +15,8 @@ from pathlib import Path
 
 import numpy as np
 
+from ..report.files import TMP_PREFIX, WRITTEN, atomic_path
+
 #: H.264 settings: 'veryfast' keeps the encoder ahead of the renderer on two cores;
 #: CRF 20 is visually clean for flat-shaded pictures (common practice: 18-23).
 X264_PRESET = "veryfast"
@@ -22,15 +24,16 @@ X264_CRF = "20"
 
 
 def _tmp_name(target: Path, suffix: str = "") -> Path:
-    fd, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part" + suffix, dir=target.parent)
+    """A temporary file beside ``target`` that ``report.files.clean_partials`` knows to remove."""
+    fd, name = tempfile.mkstemp(prefix=TMP_PREFIX + target.name + "-", suffix=suffix, dir=target.parent)
     os.close(fd)
     return Path(name)
 
 
 def replace(tmp: Path, target: Path) -> None:
-    """Move ``tmp`` onto ``target`` (a file or a folder) in one rename where possible."""
+    """Move the folder ``tmp`` onto ``target``, replacing an older folder of that name."""
     if target.is_dir() and not target.is_symlink():
-        old = target.with_name(f".{target.name}.old-{os.getpid()}")
+        old = target.with_name(f"{TMP_PREFIX}{target.name}-old-{os.getpid()}")
         os.replace(target, old)
         os.replace(tmp, target)
         shutil.rmtree(old, ignore_errors=True)
@@ -38,19 +41,28 @@ def replace(tmp: Path, target: Path) -> None:
         os.replace(tmp, target)
 
 
+class _Atomic:
+    """``report.files.atomic_path`` held open across many writes: finish() renames, abort() removes."""
+
+    def __init__(self, target: Path):
+        self._cm = atomic_path(target, suffix=".part")
+        self.tmp = self._cm.__enter__()
+
+    def finish(self):
+        self._cm.__exit__(None, None, None)
+
+    def abort(self):
+        err = RuntimeError("aborted")
+        self._cm.__exit__(RuntimeError, err, None)
+
+
 def write_png(path, image: np.ndarray) -> Path:
     """One PNG, written atomically."""
     import imageio.v3 as iio
 
-    path = Path(path)
-    tmp = _tmp_name(path, ".png")
-    try:
+    with atomic_path(path) as tmp:
         iio.imwrite(tmp, image, extension=".png", compress_level=3)
-        replace(tmp, path)
-    except BaseException:
-        tmp.unlink(missing_ok=True)
-        raise
-    return path
+    return Path(path)
 
 
 class _Pipe:
@@ -60,7 +72,9 @@ class _Pipe:
         import imageio_ffmpeg
 
         self.target = Path(target)
-        self.tmp = _tmp_name(self.target)
+        self.target.parent.mkdir(parents=True, exist_ok=True)
+        self._file = _Atomic(self.target)
+        self.tmp = self._file.tmp
         w, h = size
         cmd = [imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "rawvideo",
                "-pix_fmt", "rgb24", "-s", f"{w}x{h}", "-r", f"{fps:g}", "-i", "pipe:0",
@@ -87,7 +101,7 @@ class _Pipe:
         if rc != 0:
             self._fail()
         self.proc.stderr.close()
-        replace(self.tmp, self.target)
+        self._file.finish()
         return self.target
 
     def abort(self) -> None:
@@ -96,7 +110,7 @@ class _Pipe:
             self.proc.wait()
         except OSError:
             pass
-        self.tmp.unlink(missing_ok=True)
+        self._file.abort()
 
 
 class Mp4Writer(_Pipe):
@@ -146,7 +160,11 @@ class PngSequenceWriter:
 
     def __init__(self, target, size, fps):
         self.target = Path(target)
-        self.tmp = Path(tempfile.mkdtemp(prefix=f".{self.target.name}.", suffix=".part", dir=self.target.parent))
+        self.target.parent.mkdir(parents=True, exist_ok=True)
+        self.tmp = Path(tempfile.mkdtemp(prefix=TMP_PREFIX + self.target.name + "-", dir=self.target.parent))
+        mask = os.umask(0)
+        os.umask(mask)
+        os.chmod(self.tmp, 0o777 & ~mask)
         self.count = 0
 
     def write(self, frame):
@@ -157,6 +175,7 @@ class PngSequenceWriter:
 
     def close(self) -> Path:
         replace(self.tmp, self.target)
+        WRITTEN.append(self.target)
         return self.target
 
     def abort(self):
@@ -168,18 +187,16 @@ def concat_mp4(parts, target: Path) -> Path:
     import imageio_ffmpeg
 
     target = Path(target)
-    tmp = _tmp_name(target)
     listing = _tmp_name(target, ".txt")
     try:
         listing.write_text("".join(f"file '{Path(p).resolve().as_posix()}'\n" for p in parts), encoding="utf-8")
-        r = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "concat",
-                            "-safe", "0", "-i", str(listing), "-c", "copy", "-movflags", "+faststart",
-                            "-f", "mp4", str(tmp)], capture_output=True)
-        if r.returncode != 0:
-            msg = r.stderr.decode(errors="replace").strip().splitlines()
-            raise RuntimeError("joining the video segments failed: " + (msg[-1] if msg else "no message"))
-        replace(tmp, target)
+        with atomic_path(target, suffix=".part") as tmp:
+            r = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "concat",
+                                "-safe", "0", "-i", str(listing), "-c", "copy", "-movflags", "+faststart",
+                                "-f", "mp4", str(tmp)], capture_output=True)
+            if r.returncode != 0:
+                msg = r.stderr.decode(errors="replace").strip().splitlines()
+                raise RuntimeError("joining the video segments failed: " + (msg[-1] if msg else "no message"))
     finally:
-        tmp.unlink(missing_ok=True)
         listing.unlink(missing_ok=True)
     return target
