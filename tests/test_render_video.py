@@ -250,3 +250,24 @@ def test_egl_chosen_without_a_display(monkeypatch):
     assert env["VTK_DEFAULT_OPENGL_WINDOW"] == "vtkEGLRenderWindow"
     env = {"DISPLAY": ":0"}
     assert gl.prepare_environment(env) == "vtkXOpenGLRenderWindow" and "VTK_DEFAULT_OPENGL_WINDOW" not in env
+
+
+def test_envelope_covers_the_load_path_and_nothing_far():
+    from swingsim.render.geometry import envelope_image
+
+    # a quarter circle of radius 10 m, as a slew would sweep
+    a = np.linspace(0, np.pi / 2, 200)
+    path = np.column_stack([10 * np.cos(a), 10 * np.sin(a), np.zeros_like(a)])
+    plane, rgba = envelope_image(path, 1.0, (0.2, 0.4, 0.6))
+    b = plane.bounds
+    ny, nx = rgba.shape[:2]
+
+    def filled(x, y):
+        i = int((y - b[2]) / (b[3] - b[2]) * ny)
+        j = int((x - b[0]) / (b[1] - b[0]) * nx)
+        return rgba[i, j, 3] > 0
+
+    assert all(filled(10 * np.cos(t), 10 * np.sin(t)) for t in np.linspace(0, np.pi / 2, 17))
+    assert all(filled(10.6 * np.cos(t), 10.6 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))  # within 1 m
+    assert not any(filled(8.5 * np.cos(t), 8.5 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))  # 1.5 m off
+    assert not filled(2.0, 2.0)

@@ -22,8 +22,10 @@ from .views import PRESETS, VIEWS
 FORMATS = ("mp4", "gif", "png")
 #: Frames drawn per sampling call: bounds memory for any clip length.
 CHUNK = 64
-#: Below this many frames one process draws everything (starting workers costs ~1 s).
-PARALLEL_MIN_FRAMES = 240
+#: Below this many frames one process draws everything: starting a worker costs about
+#: 1.5 s of CPU, and one process already renders 1280x720 at well over 30 frames/s
+#: on 2 cores (benchmarks/bench_render.py), so workers pay off on long clips only.
+PARALLEL_MIN_FRAMES = 900
 
 
 def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:

@@ -81,8 +81,9 @@ def make_layout(traj, load_size, load_shape="box") -> Layout:
     x_hi = float(p[:, 0].max()) + 8.0
     if kind in ("gantry", "bridge"):
         allp = np.concatenate([allp, [[x_lo, y_lo], [x_hi, y_hi]]])
-    lo = allp.min(axis=0) - 6.0
-    hi = allp.max(axis=0) + 6.0
+    pad = 8.0 + 0.15 * float(np.max(allp.max(axis=0) - allp.min(axis=0)))
+    lo = allp.min(axis=0) - pad
+    hi = allp.max(axis=0) + pad
     return Layout(kind=kind, z0=z0, jib_len=jib, counter_len=max(4.0, 0.32 * jib), y_lo=y_lo, y_hi=y_hi,
                   x_lo=x_lo, x_hi=x_hi, ground=(float(lo[0]), float(hi[0]), float(lo[1]), float(hi[1])),
                   load_size=tuple(load_size), load_shape=load_shape)
@@ -271,10 +272,13 @@ def ground_meshes(lay: Layout):
         return pv.PolyData(np.array(pts, dtype=float), lines=cells)
 
     labels = []
-    for x in np.arange(x0, x1 + 1e-6, major):
-        labels.append(((x, y0 - 0.02 * span, 0.05), f"{x:g} m"))
-    for y in np.arange(y0 + major, y1 + 1e-6, major):
-        labels.append(((x0 - 0.02 * span, y, 0.05), f"{y:g} m"))
+    xs = np.arange(x0, x1 + 1e-6, major)
+    ys = np.arange(y0 + major, y1 + 1e-6, major)
+    # at most about five labels an edge (each label costs a little every frame)
+    for x in xs[::max(1, int(np.ceil(len(xs) / 5)))]:
+        labels.append(((x, y0 - 0.02 * span, 0.05), f"x {x:g} m"))
+    for y in ys[::max(1, int(np.ceil(len(ys) / 5)))]:
+        labels.append(((x0 - 0.02 * span, y, 0.05), f"y {y:g} m"))
     return plane, lines(minor, 0.02), lines(major, 0.03), labels, (x0, x1, y0, y1)
 
 
@@ -315,9 +319,43 @@ def polyline(points: np.ndarray) -> pv.PolyData:
     return pv.PolyData(np.asarray(points, dtype=float), lines=np.concatenate([[n], np.arange(n)]))
 
 
-def envelope_mesh(points: np.ndarray, width: float) -> pv.PolyData:
-    """Strip on the ground that the load's footprint passes over (its plan-view envelope)."""
-    path = ground_path(points)
-    if len(path) < 2:
-        return pv.Disc(center=path[0], inner=0.0, outer=width / 2, normal=(0, 0, 1), c_res=32)
-    return polyline(path).ribbon(width=width / 2, normal=(0, 0, 1))
+def envelope_image(points: np.ndarray, radius: float, rgb, alpha: int = 120):
+    """Plan-view swing envelope as a ground texture: where the load's footprint passes [m].
+
+    Every ground cell within ``radius`` (half the load's plan diagonal: its
+    footprint in any heading) of the load's plan path is filled; the filled
+    region's edge is drawn darker.  Returns ``(plane, rgba)``: a ground rectangle
+    and its texture (row 0 at the rectangle's low-y edge).
+    """
+    from scipy.ndimage import binary_erosion
+    from scipy.spatial import cKDTree
+
+    xy = np.asarray(points, dtype=float)[:, :2]
+    lo = xy.min(axis=0) - radius - 1.0
+    hi = xy.max(axis=0) + radius + 1.0
+    cell = max(0.05, float(np.max(hi - lo)) / 500.0)
+    # densify the path so no gap between samples exceeds half a cell
+    seg = np.linalg.norm(np.diff(xy, axis=0), axis=1)
+    parts = [xy[:1]]
+    for i, d in enumerate(seg):
+        k = int(np.ceil(d / (0.5 * cell)))
+        if k > 0:
+            f = (np.arange(1, k + 1) / k)[:, None]
+            parts.append(xy[i] + f * (xy[i + 1] - xy[i]))
+    path = np.concatenate(parts)
+    nx, ny = (int(np.ceil(v)) for v in (hi - lo) / cell)
+    gx = lo[0] + (np.arange(nx) + 0.5) * cell
+    gy = lo[1] + (np.arange(ny) + 0.5) * cell
+    X, Y = np.meshgrid(gx, gy)  # rows along y
+    dist, _ = cKDTree(path).query(np.column_stack([X.ravel(), Y.ravel()]), distance_upper_bound=radius)
+    inside = np.isfinite(dist).reshape(ny, nx)
+    edge = inside & ~binary_erosion(inside, iterations=2)
+    rgba = np.zeros((ny, nx, 4), dtype=np.uint8)
+    rgba[..., :3] = np.asarray(rgb, dtype=float) * 255
+    rgba[inside, 3] = alpha
+    rgba[edge, :3] = (np.asarray(rgb) * 0.6 * 255).astype(np.uint8)
+    rgba[edge, 3] = 230
+    size = (nx * cell, ny * cell)
+    plane = pv.Plane(center=(lo[0] + size[0] / 2, lo[1] + size[1] / 2, 0.035), direction=(0, 0, 1),
+                     i_size=size[0], j_size=size[1], i_resolution=1, j_resolution=1)
+    return plane, rgba

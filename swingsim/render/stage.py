@@ -21,7 +21,7 @@ from .gl import RenderUnavailableError, _message
 
 # The project's own plain palette: light sky, sand ground, slate crane, signal-orange load.
 PALETTE = {
-    "sky_top": "#c9d6df", "sky_bottom": "#f4f6f7",
+    "sky": "#dfe7ec",
     "ground": "#d8d2c2", "grid_minor": "#c3bba6", "grid_major": "#8f8672",
     "crane": "#3f5d7d", "crane_dark": "#2a3f56", "trolley": "#1f2d3d",
     "rope": "#202020", "hook": "#f2c14e", "sling": "#2e7d32",
@@ -30,6 +30,7 @@ PALETTE = {
     "axis_x": "#9d0208", "axis_y": "#1b4332", "text": "#111111", "panel": "#ffffff",
     "banner": "#fff3b0",
 }
+READOUT_HZ = 10.0  # refreshes of the numbers panel per second of video
 TRAIL_S = 6.0  # simulated seconds of trail behind the load
 TRAIL_N = 61
 
@@ -73,6 +74,7 @@ class Stage:
         self._place_cameras()
         self._overlay()
         self._pixels = vtk.vtkUnsignedCharArray()
+        self._readout_slot = None
         try:
             self.pl.show(auto_close=False)
         except Exception as exc:  # noqa: BLE001 - VTK raises bare RuntimeErrors without a context
@@ -100,7 +102,11 @@ class Stage:
         pal, lay, traj, scene = PALETTE, self.lay, self.traj, self.traj.scene
         for i, ren in enumerate(self.renderers):
             self.pl.subplot(0, i)
-            self.pl.set_background(pal["sky_bottom"], top=pal["sky_top"])
+            self.pl.set_background(pal["sky"])  # flat: a gradient costs llvmpipe ~10% a frame
+            # Plain alpha blending for the few translucent bodies (zones, envelope, shadow):
+            # order-independent transparency doubles the cost of a frame in software OpenGL.
+            ren.SetUseDepthPeeling(False)
+            ren.SetUseOIT(False)
             sun = pv.Light(position=(0.4, -0.6, 1.0), focal_point=(0, 0, 0), intensity=0.75,
                            light_type="scene light")
             sun.positional = False
@@ -138,7 +144,9 @@ class Stage:
             mesh = G.zone_box(z)
             solid = self._add(mesh, colour, opacity=0.33 if z.kind == "obstacle" else 0.25)
             edges = self._add(mesh.extract_feature_edges(), colour, line_width=2, lighting=False)
-            top = ((z.min_m[0] + z.max_m[0]) / 2, (z.min_m[1] + z.max_m[1]) / 2, z.max_m[2] + 0.6)
+            # the name just above the zone, or inside a tall one, where the jib will not hide it
+            top = ((z.min_m[0] + z.max_m[0]) / 2, (z.min_m[1] + z.max_m[1]) / 2,
+                   min(z.max_m[2] + 0.6, max(z.min_m[2] + 3.0, 10.0)))
             self._label(top, z.name, size=0.02, colour=_darker(colour), bold=True)
             self.zones.append((z, solid, edges, colour))
         self._zone_state = [False] * len(self.zones)
@@ -149,8 +157,16 @@ class Stage:
         self.trail_t = tgrid
         self.trail_xyz = s["load"]
         foot = float(np.hypot(*lay.load_size[:2])) if shape_is_flat(lay) else float(max(lay.load_size[:2]))
-        env = G.envelope_mesh(s["load"], max(0.3, foot))
-        self._add(env, pal["envelope"], opacity=0.45, lighting=False)
+        plane, rgba = G.envelope_image(s["load"], max(0.3, foot / 2), _rgb(pal["envelope"]))
+        self.envelope_rgba = rgba
+        tex = pv.Texture(np.ascontiguousarray(rgba[::-1]))  # pyvista: row 0 is the top (high y)
+        tex.SetInterpolate(True)
+        for i, ren in enumerate(self.renderers):
+            self.pl.subplot(0, i)
+            if i == 0:
+                env = self.pl.add_mesh(plane, texture=tex, lighting=False, reset_camera=False)
+            else:
+                ren.add_actor(env, reset_camera=False)
         self.trail = G.polyline(np.repeat(s["load"][:1], TRAIL_N, axis=0))
         self._add(self.trail, pal["trail"], line_width=3, lighting=False)
 
@@ -169,6 +185,13 @@ class Stage:
         self.rig_h = G.rigging_height(self.attach_local)
         self.sling_r = max(0.02, 0.6 * rope_r)
         self.slings = [self._add(sling_mesh, pal["sling"], ambient=0.4) for _ in range(8)]
+        # The same rope and legs as lines too, never thinner than a pixel or two however far
+        # the camera (a tube a few centimetres thick breaks up at site scale).
+        self.rope_line = G.polyline(np.zeros((2, 3)))
+        self._add(self.rope_line, pal["rope"], line_width=2, lighting=False)
+        self.sling_lines = pv.PolyData(np.zeros((16, 3)), lines=np.column_stack(
+            [np.full(8, 2), np.arange(0, 16, 2), np.arange(1, 16, 2)]).ravel())
+        self._add(self.sling_lines, pal["sling"], line_width=2, lighting=False)
         self.load_actor = self._add(mesh, pal["load"], ambient=0.45, diffuse=0.7)
         hs = max(0.25, 0.35 * min(lay.load_size))
         self.hook_size = hs
@@ -195,7 +218,7 @@ class Stage:
         w, h = self.size
         aspect = (w / len(self.views)) / h
         self.aspect = aspect
-        b = self.interest_bounds()
+        pts = self.interest_points()
         self.cams = []
         for view in self.views:
             if view == "custom":
@@ -203,13 +226,13 @@ class Stage:
             elif view == "follow":
                 cam = None
             else:
-                cam = V.fit(view, b, aspect)
+                cam = V.fit(view, pts, aspect)
             self.cams.append(cam)
         L = float(np.max(self.traj.sample(np.linspace(0, self.traj.t_end_s, 50))["rope_length"]))
         self.follow_span = L + 2.5 * max(self.lay.load_size) + 4.0
 
-    def interest_bounds(self):
-        """Box that holds the crane wherever it goes, the load's path and the zones [m]."""
+    def interest_points(self):
+        """Points the preset views must show: the crane wherever it goes, the load's path, the zones [m]."""
         pts = [self.trail_xyz]
         for z in self.traj.scene.zones:
             pts.append([z.min_m, z.max_m])
@@ -223,9 +246,10 @@ class Stage:
                 c = np.array([[x, y, z, 1.0] for x in b[:2] for y in b[2:4] for z in b[4:]])
                 m = mats.get(name, np.eye(4))
                 pts.append((c @ m.T)[:, :3])
-        allp = np.concatenate([np.asarray(p, dtype=float) for p in pts])
-        lo, hi = allp.min(axis=0), allp.max(axis=0)
-        return (lo[0], hi[0], lo[1], hi[1], min(lo[2], 0.0), hi[2])
+        for z in self.traj.scene.zones:
+            pts.append([[x, y, zz] for x in (z.min_m[0], z.max_m[0]) for y in (z.min_m[1], z.max_m[1])
+                        for zz in (z.min_m[2], z.max_m[2])])
+        return np.concatenate([np.asarray(p, dtype=float).reshape(-1, 3) for p in pts])
 
     def _apply_camera(self, ren, cam: V.Camera):
         c = ren.GetActiveCamera()
@@ -357,12 +381,19 @@ class Stage:
                                                  else np.eye(3), anchor)
             rope_end = anchor + (p - anchor) / max(np.linalg.norm(p - anchor), 1e-9) * 0.7 * self.hook_size
         self.rope.user_matrix = _rod(p, rope_end, self.rope_r)
+        self.rope_line.points[:] = (p, rope_end)
+        self.rope_line.Modified()
+        sp = np.empty((16, 3))
         for i, s in enumerate(self.slings):
             if i < len(attach):
                 s.SetVisibility(True)
                 s.user_matrix = _rod(apex, attach[i], self.sling_r)
+                sp[2 * i], sp[2 * i + 1] = apex, attach[i]
             else:
                 s.SetVisibility(False)
+                sp[2 * i] = sp[2 * i + 1] = apex
+        self.sling_lines.points[:] = sp
+        self.sling_lines.Modified()
         self.shadow.user_matrix = T.pose(_yaw_only(rot), (load[0], load[1], 0.05))
         # trail: the last TRAIL_S seconds, sampled every 0.1 s, ending at the load now
         k1 = int(np.searchsorted(self.trail_t, t, side="right"))
@@ -395,7 +426,16 @@ class Stage:
             self._apply_camera(ren, cam)
         ft = O.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, near,
                           self.line_chars, self.banner_chars)
-        for key in ("clock", "readout", "event", "zone", "banner"):
+        # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
+        # display (readable, and text is costly to rasterise); the clock and the picture
+        # show every frame's own time.
+        slot = None if video_t is None else int(math.floor(video_t * READOUT_HZ + 1e-9))
+        keys = ["clock", "event", "zone", "banner"]
+        if slot is None or slot != self._readout_slot:
+            keys.append("readout")
+            self._readout_slot = slot
+            self.shown_readout = ft.readout
+        for key in keys:
             self.txt[key].SetInput(getattr(ft, key))
             self.txt[key].SetVisibility(bool(getattr(ft, key)))
         self.last_text = ft

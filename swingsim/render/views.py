@@ -35,29 +35,62 @@ class Camera:
     parallel_scale: float | None = None  # orthographic when set: half the visible height [m]
 
 
-def fit(name: str, bounds, aspect: float) -> Camera:
-    """Camera of a preset that shows the box ``bounds`` (xmin, xmax, ymin, ymax, zmin, zmax)."""
-    b = np.asarray(bounds, dtype=float).reshape(3, 2)
-    centre = b.mean(axis=1)
-    half = (b[:, 1] - b[:, 0]) / 2
+def fit(name: str, points, aspect: float, margin: float = 0.92) -> Camera:
+    """Camera of a preset that shows all ``points`` (N, 3) [m], as large as they fit.
+
+    The camera looks along the preset's direction; its distance (or, for the
+    orthographic plan view, its scale) is the smallest at which every point
+    projects inside ``margin`` of the picture's half-width and half-height,
+    found by bisection on the perspective projection itself, then the aim is
+    re-centred on the points' picture and fitted again.
+    """
+    pts = np.asarray(points, dtype=float).reshape(-1, 3)
     d, up = (np.asarray(v, dtype=float) for v in DIRECTIONS[name])
     d /= np.linalg.norm(d)
     up = up - (up @ d) * d
     up /= np.linalg.norm(up)
-    right = np.cross(d, up)
-    # Extent of the box across and up the picture (its 8 corners projected).
-    corners = centre + half * np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)])
-    rel = corners - centre
-    w = np.max(np.abs(rel @ right))
-    h = np.max(np.abs(rel @ up))
-    depth = np.max(np.abs(rel @ d))
-    need_h = max(h, w / aspect) * 1.06
+    right = np.cross(-d, up)
+    focus = 0.5 * (pts.min(axis=0) + pts.max(axis=0))
     if name == "plan":
-        return Camera(tuple(centre + d * (depth + 50.0)), tuple(centre), tuple(up),
-                      parallel_scale=float(need_h))
+        for _ in range(2):
+            rel = pts - focus
+            x, y = rel @ right, rel @ up
+            focus = focus + right * 0.5 * (x.max() + x.min()) + up * 0.5 * (y.max() + y.min())
+        rel = pts - focus
+        half_h = max(np.max(np.abs(rel @ up)), np.max(np.abs(rel @ right)) / aspect) / margin
+        depth = np.max(np.abs(rel @ d))
+        return Camera(tuple(focus + d * (depth + 50.0)), tuple(focus), tuple(up),
+                      parallel_scale=float(max(half_h, 1.0)))
     t = math.tan(math.radians(VIEW_ANGLE_DEG) / 2)
-    dist = need_h / t + depth
-    return Camera(tuple(centre + d * dist), tuple(centre), tuple(up))
+
+    def worst(focus, dist):
+        eye = focus + d * dist
+        rel = pts - eye
+        depth = rel @ -d
+        if np.any(depth <= 0.5):
+            return np.inf, 0.0, 0.0
+        x = (rel @ right) / (depth * t * aspect)
+        y = (rel @ up) / (depth * t)
+        return max(np.max(np.abs(x)), np.max(np.abs(y))), 0.5 * (x.max() + x.min()), 0.5 * (y.max() + y.min())
+
+    def fit_dist(focus):
+        lo, hi = 1.0, 1.0
+        while worst(focus, hi)[0] > margin:
+            hi *= 2.0
+        for _ in range(40):
+            mid = 0.5 * (lo + hi)
+            if worst(focus, mid)[0] > margin:
+                lo = mid
+            else:
+                hi = mid
+        return hi
+
+    dist = fit_dist(focus)
+    for _ in range(3):  # aim at the middle of the points' picture
+        _, cx, cy = worst(focus, dist)
+        focus = focus + (right * cx * aspect + up * cy) * t * dist
+        dist = fit_dist(focus)
+    return Camera(tuple(focus + d * dist), tuple(focus), tuple(up))
 
 
 def follow(focus, span: float, aspect: float) -> Camera:
