@@ -212,6 +212,18 @@ def summarize(traj) -> Summary:
         })
 
     pos_moves = [m for m in scene.moves]
+    move_list = []
+    for m, (axis, prof) in zip(scene.moves, motion.moves):
+        tt = np.linspace(prof.start_s, prof.end_s, 401)
+        vmax = float(np.max(np.abs(prof.evaluate(tt)[1])))
+        slew = axis == "slew"
+        move_list.append({
+            "name": m.name, "axis": axis, "profile": m.profile,
+            "start_s": prof.start_s, "end_s": prof.end_s,
+            "distance": math.degrees(prof.distance) if slew else prof.distance,
+            "peak_speed": math.degrees(vmax) if slew else vmax,
+            "unit": "deg" if slew else "m",
+        })
     data = {
         "swingsim_version": __version__,
         "title": scene.title,
@@ -222,6 +234,7 @@ def summarize(traj) -> Summary:
         "duration_s": scene.duration_s,
         "simulated_until_s": traj.t_end_s,
         "moves": len(pos_moves),
+        "move_list": move_list,
         "first_move_start_s": motion.first_move_start_s,
         "last_move_end_s": t_move_end,
         "peak_rope_angle_deg": math.degrees(pk),

@@ -105,6 +105,13 @@ def summary_text(summary, scene) -> str:
     if scene.wind.speed_m_s:
         w.append(f"Wind {scene.wind.speed_m_s:g} m/s toward {scene.wind.direction_deg:g} deg; rope at rest "
                  f"leans {d['rest_rope_angle_deg']:.2f} deg downwind.")
+    if d.get("move_list"):
+        w.append("")
+        w.append("Moves")
+        for m in d["move_list"]:
+            u = m["unit"]
+            w.append(f"  {m['name']:<28} {m['axis']:<6} {m['profile']:<10} {m['start_s']:6.1f} -> {m['end_s']:6.1f} s"
+                     f"  {m['distance']:+8.2f} {u}, peak {m['peak_speed']:.2f} {u}/s")
     w.append("")
     w.append("Swing")
     w.append(f"  Peak rope angle from vertical    {_fmt(d['peak_rope_angle_deg'], 'deg')}  at t = {_fmt(d['peak_rope_angle_time_s'], 's', 1)}")
