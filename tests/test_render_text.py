@@ -131,7 +131,7 @@ def test_output_names():
     n = output_names(s, "out", "mp4")
     assert n["video"].name == "scene.mp4"
     assert sorted(p.name for p in n["stills"].values()) == ["scene_end_of_moves.png", "scene_peak_swing.png",
-                                                            "scene_settled.png"]
+                                                            "scene_settled.png", "scene_stopped.png"]
     assert output_names(s, "out", "png")["video"].name == "scene_frames"
 
 
@@ -181,7 +181,22 @@ def test_cli_bad_size_is_exit_2_and_writes_nothing(tmp_path, capsys):
         rc = cli.main(p.parse_args([str(scene), "--out", str(out), *bad]))
         err = capsys.readouterr().err
         assert rc == 2, bad
-        assert err.count("\n") == 1 and err.startswith("error: "), err
+        assert err.count("\n") == 1 and err.startswith("swingsim: error: "), err
     assert not out.exists()
     rc = cli.main(p.parse_args([str(tmp_path / "nope.toml"), "--out", str(out)]))
     assert rc == 2 and "file not found" in capsys.readouterr().err
+
+
+def test_a_run_that_stops_early_says_so_at_its_end():
+    # hoisting down at 12 m/s^2, more than g: the rope goes slack when the move starts
+    s = make_scene(moves=[{"axis": "hoist", "profile": "trapezoid", "start_s": 2.0, "distance_m": -6.0,
+                           "speed_m_s": 8.0, "accel_m_s2": 12.0}], duration_s=8.0)
+    traj = simulate(s)
+    assert traj.status == "slack"
+    facts = collect(traj)
+    assert set(still_times(facts)) == {"peak_swing", "stopped"}
+    row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([1.9]).items()}
+    late = O.frame_text(traj.t_end_s - 0.1, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
+    early = O.frame_text(0.2, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
+    assert late.stopped.startswith(f"RUN STOPPED at t = {traj.t_end_s:.2f} s: the hoist rope would go slack.")
+    assert early.stopped == ""

@@ -159,11 +159,16 @@ def test_zone_turns_warning_colour_near_the_load():
 
         for t, near in ((0.0, False), (3.9, True)):
             next(draw_frames(stage, traj, np.array([t])))
-            # the load box's lower face against the zone's box: within the margin?
+            # the load's 2 m box against the zone's box: within the 1 m margin?
             load = traj.sample([t])["load"][0]
             gap_x = max(0.0, 15.5 - (load[0] + 1.0))
             gap_z = max(0.0, (load[2] - 1.0) - 5.5)
             assert (np.hypot(gap_x, gap_z) <= 1.0) == near
+            # the same moment the summary counts as within the margin
+            from swingsim.metrics import summarize
+
+            first = summarize(traj).data["zones"][0]["first_within_margin_s"]
+            assert (t >= first) == near
             assert stage.near_zones == (["hut"] if near else [])
             colour = stage.zones[0][1].GetProperty().GetColor()
             want = PALETTE["warn"] if near else PALETTE["obstacle"]

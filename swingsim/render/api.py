@@ -43,7 +43,7 @@ def output_names(scene, out_dir, fmt, stills=True) -> dict:
     out = Path(out_dir)
     stem = scene.name
     video = out / (f"{stem}.{fmt}" if fmt != "png" else f"{stem}_frames")
-    st = {k: out / f"{stem}_{k}.png" for k in ("peak_swing", "end_of_moves", "settled")}
+    st = {k: out / f"{stem}_{k}.png" for k in ("peak_swing", "end_of_moves", "settled", "stopped")}
     return {"video": video, "stills": st if stills else {}}
 
 
@@ -268,12 +268,18 @@ def _write_video(stage, traj, target, times, size, fps, fmt, quiet, video_t0_ind
 
 
 def still_times(facts) -> dict:
-    """Times of the stills [s]: peak swing, end of the last move, settled (when it settles)."""
+    """Times of the stills [s]: peak swing, end of the last move, settled (when it settles).
+
+    A run that stopped early (slack rope, overswing) has a still of its last valid
+    instant instead of the moments it never reached.
+    """
     t = {"peak_swing": facts.peak_time_s}
-    if facts.last_move_end_s > 0:
-        t["end_of_moves"] = min(facts.last_move_end_s, facts.t_end_s)
+    if 0 < facts.last_move_end_s <= facts.t_end_s:
+        t["end_of_moves"] = facts.last_move_end_s
     if facts.settled_at_s is not None:
         t["settled"] = facts.settled_at_s
+    if facts.status != "ok":
+        t["stopped"] = facts.t_end_s
     return t
 
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+from pathlib import Path
 
 from .views import VIEWS
 
@@ -18,9 +19,10 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
     """Options of ``swingsim render`` (also used by ``swingsim run --video``)."""
     if scene:
         parser.add_argument("scene", metavar="SCENE", help="scene file (TOML)")
-        parser.add_argument("--out", "-o", metavar="DIR", default="out",
-                            help="folder for the video and stills (default: out)")
-        parser.add_argument("--force", action="store_true", help="replace outputs that exist already")
+        parser.add_argument("--out", "-o", metavar="DIR", default=None,
+                            help="folder for the video and stills (default: <scene name>-video)")
+        parser.add_argument("--force", action="store_true",
+                            help="write into a non-empty output folder, replacing only this render's files")
         parser.add_argument("--quiet", "-q", action="store_true", help="no progress bar, no list of files")
     g = parser.add_argument_group("video")
     g.add_argument("--size", metavar="WxH", default="1280x720", help="frame size in pixels (default 1280x720)")
@@ -71,43 +73,44 @@ def main(args) -> int:
     from .api import check_options
     from .gl import RenderUnavailableError
 
+    from ..report.files import check_out_dir
+
     try:
         scene = load_scene(args.scene)
         opts = options(args, scene)
         check_options(scene, **{k: v for k, v in opts.items() if k != "stills"})
+        out = check_out_dir(args.out or f"{Path(args.scene).stem}-video", args.force)
     except InputError as exc:
-        print(f"error: {exc.one_line()}", file=sys.stderr)
+        print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
         return 2
     try:
         traj = simulate(scene)
         summary = _summary(traj)
         from .api import render_scene
 
-        paths = render_scene(traj, summary, args.out, quiet=args.quiet, overwrite=args.force, **opts)
+        paths = render_scene(traj, summary, out, quiet=args.quiet, **opts)
     except InputError as exc:
-        print(f"error: {exc.one_line()}", file=sys.stderr)
+        print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
         return 2
     except (RenderUnavailableError, SimulationError) as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        print(f"swingsim: {exc}", file=sys.stderr)
         return 1
     except OSError as exc:
-        print(f"error: cannot write to {args.out}: {exc.strerror or exc}", file=sys.stderr)
+        print(f"swingsim: cannot write to {out}: {exc.strerror or exc}", file=sys.stderr)
         return 1
     except RuntimeError as exc:  # encoder or worker failure, already one line
-        print(f"error: {exc}", file=sys.stderr)
+        print(f"swingsim: {exc}", file=sys.stderr)
         return 1
     if not args.quiet:
         for p in paths:
             print(p)
     if not traj.valid:
-        print(f"warning: {traj.message}; the video stops there", file=sys.stderr)
+        print(f"swingsim: run invalid: {traj.message}; the video stops there", file=sys.stderr)
         return 1
     return 0
 
 
 def _summary(traj):
-    try:
-        from ..metrics import summarize
-    except ImportError:  # until swingsim.metrics is on main: render measures what it shows itself
-        return None
+    from ..metrics import summarize
+
     return summarize(traj)

@@ -298,12 +298,6 @@ def zone_box(zone) -> pv.PolyData:
     return box(a, d, b, e, c, f)
 
 
-def box_gap(lo1, hi1, lo2, hi2) -> float:
-    """Shortest distance between two axis-aligned boxes [m] (0 when they touch or overlap)."""
-    gap = np.maximum(0.0, np.maximum(np.asarray(lo2) - hi1, np.asarray(lo1) - hi2))
-    return float(np.linalg.norm(gap))
-
-
 def ground_path(points: np.ndarray, min_step: float = 0.05) -> np.ndarray:
     """Plan-view path (points on the ground) without repeated points."""
     xy = np.asarray(points)[:, :2]

@@ -57,9 +57,10 @@ class FrameText:
     zone: str
     caution: str
     banner: str
+    stopped: str = ""
 
     def strings(self) -> list[str]:
-        return [self.clock, self.readout, self.event, self.zone, self.caution, self.banner]
+        return [self.clock, self.readout, self.event, self.zone, self.caution, self.banner, self.stopped]
 
 
 def clock_text(t_s: float, speed: float) -> str:
@@ -89,8 +90,16 @@ def zone_text(names) -> str:
     return "Load near zone: " + ", ".join(names)
 
 
+def stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
+    """Near the end of a run that stopped early: when and why (the results stop there)."""
+    if facts is None or facts.status == "ok" or t_s < facts.t_end_s - hold_s:
+        return ""
+    why = facts.message.split(" at t = ")[0].split(":")[0] if facts.message else facts.status
+    return f"RUN STOPPED at t = {facts.t_end_s:.2f} s: {why}.\nNothing after this instant can be shown."
+
+
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
-               events, near_zones, line_chars: int = 200, banner_chars: int = 70) -> FrameText:
+               events, near_zones, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
     """The text of the frame at simulated time ``t_s`` (``row``: one sample of the run)."""
     from .facts import rope_angle_deg
 
@@ -104,4 +113,5 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         zone=zone_text(near_zones),
         caution=caution_line(line_chars),
         banner=banner_text(banner_chars) if banner_on(video_t_s, video_len_s) else "",
+        stopped=stopped_text(t_s, facts),
     )

@@ -13,6 +13,7 @@ import pyvista as pv
 import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
+from ..metrics import load_half_size_m, zone_distance
 from . import geometry as G
 from . import overlay as O
 from . import transforms as T
@@ -150,6 +151,7 @@ class Stage:
             self._label(top, z.name, size=0.02, colour=_darker(colour), bold=True)
             self.zones.append((z, solid, edges, colour))
         self._zone_state = [False] * len(self.zones)
+        self.load_half = load_half_size_m(scene)
 
         # plan-view envelope of the load's footprint, and the trail
         tgrid = np.arange(0.0, traj.t_end_s + 1e-9, 0.1)
@@ -229,7 +231,7 @@ class Stage:
                 cam = V.fit(view, pts, aspect)
             self.cams.append(cam)
         L = float(np.max(self.traj.sample(np.linspace(0, self.traj.t_end_s, 50))["rope_length"]))
-        self.follow_span = L + 2.5 * max(self.lay.load_size) + 4.0
+        self.follow_span = 0.35 * L + 2.5 * max(self.lay.load_size) + 3.0
 
     def interest_points(self):
         """Points the preset views must show: the crane wherever it goes, the load's path, the zones [m]."""
@@ -283,7 +285,9 @@ class Stage:
         self.txt["readout"] = self._text("", (0.988, 0.985), fs(0.027), "tr", mono=True)
         self.txt["event"] = self._text("", (0.012, 0.86), fs(0.03), "tl", bold=True,
                                        colour="#7a0000")
-        self.txt["zone"] = self._text("", (0.5, 0.11), fs(0.03), "bc", bold=True, colour=PALETTE["warn"])
+        self.txt["zone"] = self._text("", (0.012, 0.70), fs(0.03), "tl", bold=True, colour=PALETTE["warn"])
+        self.txt["stopped"] = self._text("", (0.5, 0.55), fs(0.034), "cc", bold=True, colour=PALETTE["warn"],
+                                         opacity=0.9, frame=True)
         # characters a line holds at a font size (Arial averages about 0.55 em a character)
         self.line_chars = max(20, int(self.size[0] * 0.97 / (0.55 * fs(0.024))))
         self.banner_chars = max(20, min(72, int(self.size[0] * 0.9 / (0.58 * fs(0.032)))))
@@ -406,11 +410,12 @@ class Stage:
         pts[-1] = load
         self.trail.points[:] = pts
         self.trail.Modified()
-        # zones within their margin of the load's box
-        lo, hi = self._load_aabb(rot, load)
+        # zones within their margin of the load, by the summary's own rule (metrics.zone_distance:
+        # the load's upright box against the zone), so the video and the report agree
         near = []
         for j, (z, solid, edges, colour) in enumerate(self.zones):
-            inside = G.box_gap(lo, hi, z.min_m, z.max_m) <= z.margin_m
+            d = zone_distance(load[None, :], np.asarray(z.min_m) - self.load_half, np.asarray(z.max_m) + self.load_half)
+            inside = bool(d[0] <= z.margin_m)
             if inside:
                 near.append(z.name)
             if inside != self._zone_state[j]:
@@ -421,16 +426,17 @@ class Stage:
                 self._zone_state[j] = inside
         for ren, cam in zip(self.renderers, self.cams):
             if cam is None:
-                focus = (p[0], p[1], 0.5 * (p[2] + load[2]))
+                # aim a little above the load: the swing in the middle, clear of the banner
+                focus = (0.3 * p[0] + 0.7 * load[0], 0.3 * p[1] + 0.7 * load[1], load[2] + 0.3 * (p[2] - load[2]))
                 cam = V.follow(focus, self.follow_span, self.aspect)
             self._apply_camera(ren, cam)
         ft = O.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, near,
-                          self.line_chars, self.banner_chars)
+                          self.line_chars, self.banner_chars, self.facts)
         # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
         # display (readable, and text is costly to rasterise); the clock and the picture
         # show every frame's own time.
         slot = None if video_t is None else int(math.floor(video_t * READOUT_HZ + 1e-9))
-        keys = ["clock", "event", "zone", "banner"]
+        keys = ["clock", "event", "zone", "banner", "stopped"]
         if slot is None or slot != self._readout_slot:
             keys.append("readout")
             self._readout_slot = slot
@@ -441,12 +447,6 @@ class Stage:
         self.last_text = ft
         self.near_zones = near
         return ft
-
-    def _load_aabb(self, rot, load):
-        b = self.load_local.bounds
-        corners = np.array([[x, y, z] for x in b[:2] for y in b[2:4] for z in b[4:]])
-        w = load + corners @ rot.T
-        return w.min(axis=0), w.max(axis=0)
 
     # ------------------------------------------------------------------ output
     def grab(self) -> np.ndarray:
