@@ -276,3 +276,66 @@ def test_envelope_covers_the_load_path_and_nothing_far():
     assert all(filled(10.6 * np.cos(t), 10.6 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))  # within 1 m
     assert not any(filled(8.5 * np.cos(t), 8.5 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))  # 1.5 m off
     assert not filled(2.0, 2.0)
+
+
+def test_hook_block_and_sling_legs_from_model_outputs():
+    """A model with a hook block gives outputs["hook"]; one with rigging gives attach_points (N, k, 3)."""
+    from swingsim.render.facts import collect
+    from swingsim.render.geometry import crane_pose
+    from swingsim.render.stage import Stage
+
+    traj = simulate(_scene())
+    stage = Stage(traj, collect(traj), size=(160, 120), views=("side",))
+    try:
+        row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([1.0]).items()}
+        X, Y, phi, rho = (float(v[0]) for v in crane_pose(traj.motion, np.array([1.0])))
+        stage.pose(1.0, row, (X, Y, phi, rho), 1.0)
+        assert not stage.hook_actor.GetVisibility()  # the point-mass model has no hook block
+        assert sum(s.GetVisibility() for s in stage.slings) == 4  # four legs to the box's top corners
+        hook = row["suspension"] + 0.7 * (row["load"] - row["suspension"])
+        row2 = dict(row, hook=hook, attach_points=np.array([row["load"] + [-0.8, 0, 1.0], row["load"] + [0.8, 0, 1.0]]))
+        stage.pose(1.0, row2, (X, Y, phi, rho), 1.0)
+        assert stage.hook_actor.GetVisibility()
+        assert sum(s.GetVisibility() for s in stage.slings) == 2
+        np.testing.assert_allclose(stage.hook_actor.user_matrix[:3, 3], hook)
+        # the rope runs from the suspension point to the hook block, not to the load
+        np.testing.assert_allclose(stage.rope_line.points[0], row["suspension"])
+        assert np.linalg.norm(stage.rope_line.points[1] - hook) < stage.hook_size
+        legs = stage.sling_lines.points.reshape(8, 2, 3)
+        np.testing.assert_allclose(legs[:2, 1], row2["attach_points"])
+    finally:
+        stage.close()
+
+
+def test_swingsim_render_command(tmp_path, capsys):
+    from swingsim.cli import main
+
+    scene = tmp_path / "lift.toml"
+    scene.write_text('title = "t"\nduration_s = 3.0\n[crane]\nkind = "bridge"\nsuspension_m = [0.0, 0.0, 12.0]\n'
+                     '[rope]\nlength_m = 6.0\n[load]\nmass_kg = 500.0\n')
+    out = tmp_path / "out"
+    assert main(["render", str(scene), "--out", str(out), "--size", "160x120", "--fps", "5", "--to", "1",
+                 "--format", "gif"]) == 0
+    printed = capsys.readouterr().out.split()
+    assert printed[0].endswith("lift.gif") and len(printed) == 3
+    assert iio.imread(out / "lift.gif", index=None).shape[0] == 5
+    # a second render into the same folder needs --force (the core's output-folder rule)
+    assert main(["render", str(scene), "--out", str(out), "--size", "160x120"]) == 2
+    assert "--force" in capsys.readouterr().err
+    # run --video with a bad video option: one line, exit 2, nothing written
+    assert main(["run", str(scene), "--out", str(tmp_path / "r"), "--video", "--split", "side"]) == 2
+    assert not (tmp_path / "r").exists()
+
+
+def test_progress_bar_only_on_a_terminal(monkeypatch):
+    import sys
+
+    from swingsim.render.api import _progress
+
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: False, raising=False)
+    assert _progress(10, False, "x").disable
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    bar = _progress(10, False, "x")
+    assert not bar.disable
+    bar.close()
+    assert _progress(10, True, "x").disable
