@@ -17,7 +17,7 @@ import numpy as np
 
 from ..errors import InputError
 from . import facts as F
-from .views import PRESETS, VIEWS
+from .views import VIEWS
 
 FORMATS = ("mp4", "gif", "png")
 #: Frames drawn per sampling call: bounds memory for any clip length.

@@ -298,16 +298,6 @@ def zone_box(zone) -> pv.PolyData:
     return box(a, d, b, e, c, f)
 
 
-def ground_path(points: np.ndarray, min_step: float = 0.05) -> np.ndarray:
-    """Plan-view path (points on the ground) without repeated points."""
-    xy = np.asarray(points)[:, :2]
-    keep = [0]
-    for i in range(1, len(xy)):
-        if np.linalg.norm(xy[i] - xy[keep[-1]]) >= min_step:
-            keep.append(i)
-    return np.column_stack([xy[keep], np.full(len(keep), 0.04)])
-
-
 def polyline(points: np.ndarray) -> pv.PolyData:
     n = len(points)
     return pv.PolyData(np.asarray(points, dtype=float), lines=np.concatenate([[n], np.arange(n)]))
