@@ -165,6 +165,9 @@ def _render_available():
         importlib.import_module("swingsim.render")
     except ImportError as exc:  # pragma: no cover
         raise SimulationError(f"the renderer is not available: {exc}") from None
+    from .render.gl import require_opengl  # no OpenGL: one line naming the packages, before any file
+
+    require_opengl()
 
 
 def cmd_run(args) -> int:
@@ -180,9 +183,16 @@ def cmd_demo(args) -> int:
 def _has_renderer() -> bool:
     try:
         importlib.import_module("swingsim.render")
-        return True
     except ImportError:
         return False
+    from .render.gl import RenderUnavailableError, require_opengl
+
+    try:
+        require_opengl()
+    except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
+        sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
+        return False
+    return True
 
 
 def _on_sigterm(signum, frame):

@@ -339,3 +339,45 @@ def test_progress_bar_only_on_a_terminal(monkeypatch):
     assert not bar.disable
     bar.close()
     assert _progress(10, True, "x").disable
+
+
+def test_run_video_without_opengl_writes_nothing(monkeypatch, tmp_path, capsys):
+    from swingsim.cli import main
+
+    monkeypatch.setattr(gl, "find_gl_libraries", lambda: {"EGL": False, "OSMesa": False, "GL": False})
+    monkeypatch.delenv("VTK_DEFAULT_OPENGL_WINDOW", raising=False)
+    monkeypatch.delenv("DISPLAY", raising=False)
+    scene = tmp_path / "s.toml"
+    scene.write_text('title = "t"\nduration_s = 2.0\n[crane]\nsuspension_m = [0.0, 0.0, 20.0]\n'
+                     '[rope]\nlength_m = 8.0\n[load]\nmass_kg = 500.0\n')
+    assert main(["run", str(scene), "--out", str(tmp_path / "r"), "--video"]) == 1
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "libegl1 libgl1-mesa-dri" in err
+    assert not (tmp_path / "r").exists()
+    # the demo goes on without its video and says why
+    assert main(["demo", "--out", str(tmp_path / "d"), "--quiet"]) == 0
+    assert "no demo video" in capsys.readouterr().err
+    assert (tmp_path / "d" / "summary.json").exists() and not (tmp_path / "d" / "demo.mp4").exists()
+
+
+def test_custom_view_is_the_scenes_camera():
+    from swingsim.render.facts import collect
+    from swingsim.render.stage import Stage
+
+    traj = simulate(_scene(view={"position_m": [30.0, -25.0, 12.0], "focus_m": [10.0, 0.0, 8.0],
+                                 "view_angle_deg": 42.0}))
+    stage = Stage(traj, collect(traj), size=(160, 120), views=("custom",))
+    try:
+        from swingsim.render.api import draw_frames
+
+        next(draw_frames(stage, traj, np.array([0.5])))
+        cam = stage.renderers[0].GetActiveCamera()
+        np.testing.assert_allclose(cam.GetPosition(), (30.0, -25.0, 12.0))
+        np.testing.assert_allclose(cam.GetFocalPoint(), (10.0, 0.0, 8.0))
+        assert cam.GetViewAngle() == pytest.approx(42.0)
+        # a still (no video time) carries the caution line but not the banner
+        stage.pose(0.1, {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v)
+                         for k, v in traj.sample([0.1]).items()}, (0.0, 0.0, 0.0, 8.0), video_t=None)
+        assert stage.last_text.banner == "" and "competent person" in stage.last_text.caution
+    finally:
+        stage.close()

@@ -24,8 +24,9 @@ FORMATS = ("mp4", "gif", "png")
 CHUNK = 64
 #: Below this many frames one process draws everything: starting a worker costs about
 #: 1.5 s of CPU, and one process already renders 1280x720 at well over 30 frames/s
-#: on 2 cores (benchmarks/bench_render.py), so workers pay off on long clips only.
-PARALLEL_MIN_FRAMES = 900
+#: on 2 cores; from about 15 s of video on, two workers are faster
+#: (benchmarks/bench_render.py: 20 s clip, 56 frames/s in one process, 70 with two).
+PARALLEL_MIN_FRAMES = 450
 
 
 def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:
