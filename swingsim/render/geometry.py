@@ -250,27 +250,34 @@ def rigging_height(attach: np.ndarray) -> float:
 # --------------------------------------------------------------------------- ground, zones
 
 
-def ground_meshes(lay: Layout):
-    """Ground plane, minor and major grid lines, and the positions of the metre labels."""
+def ground_meshes(lay: Layout, ground_rgb, minor_rgb, major_rgb):
+    """Ground plane with its metre grid drawn into a texture, and the grid's labels.
+
+    One textured rectangle draws faster than hundreds of grid lines in software
+    OpenGL (about a quarter of a split frame's cost saved).
+    Returns ``(plane, rgb_image, labels, (x0, x1, y0, y1))``; image row 0 at the low-y edge.
+    """
     x0, x1, y0, y1 = lay.ground
     span = max(x1 - x0, y1 - y0)
-    minor = 1.0 if span <= 120 else 5.0
-    major = 10.0 if span <= 240 else 50.0
+    minor = 1.0 if span <= 150 else 5.0
+    major = 10.0 if span <= 300 else 50.0
     x0, x1 = math.floor(x0 / major) * major, math.ceil(x1 / major) * major
     y0, y1 = math.floor(y0 / major) * major, math.ceil(y1 / major) * major
     plane = pv.Plane(center=((x0 + x1) / 2, (y0 + y1) / 2, 0.0), direction=(0, 0, 1),
                      i_size=x1 - x0, j_size=y1 - y0, i_resolution=1, j_resolution=1)
-
-    def lines(step, z):
-        pts, cells = [], []
-        for x in np.arange(x0, x1 + 1e-6, step):
-            pts += [(x, y0, z), (x, y1, z)]
-        for y in np.arange(y0, y1 + 1e-6, step):
-            pts += [(x0, y, z), (x1, y, z)]
-        n = len(pts) // 2
-        cells = np.column_stack([np.full(n, 2), 2 * np.arange(n), 2 * np.arange(n) + 1]).ravel()
-        return pv.PolyData(np.array(pts, dtype=float), lines=cells)
-
+    ppm = max(2, min(8, int(4096 / max(x1 - x0, y1 - y0) * minor)))  # pixels a minor square
+    nx, ny = int(round((x1 - x0) / minor)) * ppm, int(round((y1 - y0) / minor)) * ppm
+    img = np.empty((ny, nx, 3), dtype=np.uint8)
+    img[:] = np.asarray(ground_rgb) * 255
+    k = int(round(major / minor))
+    for axis, n in ((1, nx), (0, ny)):
+        idx = np.arange(n)
+        on_minor = idx % ppm == 0
+        on_major = (idx % (ppm * k) == 0) | (idx % (ppm * k) == 1) | (idx % (ppm * k) == ppm * k - 1)
+        sel_minor = (slice(None), on_minor) if axis == 1 else (on_minor, slice(None))
+        sel_major = (slice(None), on_major) if axis == 1 else (on_major, slice(None))
+        img[sel_minor] = np.asarray(minor_rgb) * 255
+        img[sel_major] = np.asarray(major_rgb) * 255
     labels = []
     xs = np.arange(x0, x1 + 1e-6, major)
     ys = np.arange(y0 + major, y1 + 1e-6, major)
@@ -279,7 +286,7 @@ def ground_meshes(lay: Layout):
         labels.append(((x, y0 - 0.02 * span, 0.05), f"x {x:g} m"))
     for y in ys[::max(1, int(np.ceil(len(ys) / 5)))]:
         labels.append(((x0 - 0.02 * span, y, 0.05), f"y {y:g} m"))
-    return plane, lines(minor, 0.02), lines(major, 0.03), labels, (x0, x1, y0, y1)
+    return plane, img, labels, (x0, x1, y0, y1)
 
 
 def axis_arrows(lay: Layout, length: float):

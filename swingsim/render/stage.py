@@ -63,9 +63,12 @@ class Stage:
         self.views = tuple(views)
         self.speed, self.video_len_s = speed, video_len_s
         scene = traj.scene
-        pv.global_theme.multi_samples = 0
-        pv.global_theme.anti_aliasing = None
-        self.pl = pv.Plotter(off_screen=True, window_size=list(self.size),
+        # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
+        # which would cost software OpenGL several times a frame's rendering time.
+        theme = pv.themes.Theme()
+        theme.multi_samples = 0
+        theme.anti_aliasing = None
+        self.pl = pv.Plotter(off_screen=True, window_size=list(self.size), theme=theme,
                              shape=(1, len(self.views)), border=False, lighting=None)
         self.renderers = [self.pl.renderers[i] for i in range(len(self.views))]
         size_m = scene.load.size_m or G.default_load_size(scene.load.mass_kg)
@@ -99,6 +102,16 @@ class Stage:
                 ren.add_actor(actor, reset_camera=False)
         return actor
 
+    def _add_textured(self, mesh, tex):
+        actor = None
+        for i, ren in enumerate(self.renderers):
+            self.pl.subplot(0, i)
+            if actor is None:
+                actor = self.pl.add_mesh(mesh, texture=tex, lighting=False, reset_camera=False)
+            else:
+                ren.add_actor(actor, reset_camera=False)
+        return actor
+
     def _build(self, load_mesh):
         pal, lay, traj, scene = PALETTE, self.lay, self.traj, self.traj.scene
         for i, ren in enumerate(self.renderers):
@@ -114,11 +127,12 @@ class Stage:
             head = pv.Light(light_type="headlight", intensity=0.35)
             ren.add_light(sun)
             ren.add_light(head)
-        plane, minor, major, labels, gb = G.ground_meshes(lay)
+        plane, img, labels, gb = G.ground_meshes(lay, _rgb(pal["ground"]), _rgb(pal["grid_minor"]),
+                                                 _rgb(pal["grid_major"]))
         self.ground_bounds = gb
-        self._add(plane, pal["ground"], ambient=0.45, diffuse=0.6)
-        self._add(minor, pal["grid_minor"], line_width=1, lighting=False)
-        self._add(major, pal["grid_major"], line_width=2, lighting=False)
+        tex = pv.Texture(np.ascontiguousarray(img[::-1]))  # pyvista: row 0 is the top (high y)
+        tex.SetInterpolate(True)  # bilinear; mipmaps would cost llvmpipe more than the lines saved
+        self._add_textured(plane, tex)
         span = max(gb[1] - gb[0], gb[3] - gb[2])
         for pos, text in labels:
             self._label(pos, text, size=0.017, colour=pal["grid_major"])
@@ -163,12 +177,7 @@ class Stage:
         self.envelope_rgba = rgba
         tex = pv.Texture(np.ascontiguousarray(rgba[::-1]))  # pyvista: row 0 is the top (high y)
         tex.SetInterpolate(True)
-        for i, ren in enumerate(self.renderers):
-            self.pl.subplot(0, i)
-            if i == 0:
-                env = self.pl.add_mesh(plane, texture=tex, lighting=False, reset_camera=False)
-            else:
-                ren.add_actor(env, reset_camera=False)
+        self._add_textured(plane, tex)
         self.trail = G.polyline(np.repeat(s["load"][:1], TRAIL_N, axis=0))
         self._add(self.trail, pal["trail"], line_width=3, lighting=False)
 
