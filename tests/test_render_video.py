@@ -263,7 +263,7 @@ def test_envelope_covers_the_load_path_and_nothing_far():
     # a quarter circle of radius 10 m, as a slew would sweep
     a = np.linspace(0, np.pi / 2, 200)
     path = np.column_stack([10 * np.cos(a), 10 * np.sin(a), np.zeros_like(a)])
-    plane, rgba = envelope_image(path, 1.0, (0.2, 0.4, 0.6))
+    plane, rgba = envelope_image(path, (1.0, 1.0), (0.2, 0.4, 0.6))  # a 2 m x 2 m footprint
     b = plane.bounds
     ny, nx = rgba.shape[:2]
 
@@ -274,7 +274,10 @@ def test_envelope_covers_the_load_path_and_nothing_far():
 
     assert all(filled(10 * np.cos(t), 10 * np.sin(t)) for t in np.linspace(0, np.pi / 2, 17))
     assert all(filled(10.6 * np.cos(t), 10.6 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))  # within 1 m
-    assert not any(filled(8.5 * np.cos(t), 8.5 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))  # 1.5 m off
+    # 1.5 m inside the arc no upright 2 m square reaches (the nearest is 1.06 m off at 45 deg in x and y)
+    assert not any(filled(8.5 * np.cos(t), 8.5 * np.sin(t)) for t in np.linspace(0.1, 1.4, 9))
+    # the footprint is a square, not a disc: its corner reaches sqrt(2) m diagonally from the path's end
+    assert filled(10.0 + 0.9, -0.9) and not filled(10.0 + 1.2, 0.0)
     assert not filled(2.0, 2.0)
 
 

@@ -32,6 +32,7 @@ class Layout:
     ground: tuple  # (xmin, xmax, ymin, ymax)
     load_size: tuple
     load_shape: str
+    axes_xy: tuple = (0.0, 0.0)  # where the +x/+y arrows stand: just off the lift's own area
 
 
 def crane_pose(motion, t):
@@ -72,6 +73,8 @@ def make_layout(traj, load_size, load_shape="box") -> Layout:
         for xb, yb in ((X.min(), Y.min()), (X.max(), Y.max())):
             pts.append(np.stack([xb + 0.35 * jib * np.cos(ang), yb + 0.35 * jib * np.sin(ang)], -1))
     allp = np.concatenate(pts)
+    core = np.concatenate(pts[:3])
+    axes_xy = tuple(float(v) for v in core.min(axis=0) - 5.0)
     y_lo = float(p[:, 1].min()) - 4.0
     y_hi = float(p[:, 1].max()) + 4.0
     if y_hi - y_lo < 10.0:
@@ -86,7 +89,7 @@ def make_layout(traj, load_size, load_shape="box") -> Layout:
     hi = allp.max(axis=0) + pad
     return Layout(kind=kind, z0=z0, jib_len=jib, counter_len=max(4.0, 0.32 * jib), y_lo=y_lo, y_hi=y_hi,
                   x_lo=x_lo, x_hi=x_hi, ground=(float(lo[0]), float(hi[0]), float(lo[1]), float(hi[1])),
-                  load_size=tuple(load_size), load_shape=load_shape)
+                  load_size=tuple(load_size), load_shape=load_shape, axes_xy=axes_xy)
 
 
 def box(xmin, xmax, ymin, ymax, zmin, zmax) -> pv.PolyData:
@@ -290,9 +293,8 @@ def ground_meshes(lay: Layout, ground_rgb, minor_rgb, major_rgb):
 
 
 def axis_arrows(lay: Layout, length: float):
-    """Arrows along +x and +y at a ground corner, with their label positions."""
-    x0, _, y0, _ = lay.ground
-    o = np.array([x0 + 0.06 * length * 10, y0 + 0.06 * length * 10, 0.1])
+    """Arrows along +x and +y on the ground beside the lift, with their label positions."""
+    o = np.array([lay.axes_xy[0], lay.axes_xy[1], 0.1])
     ax = pv.Arrow(start=o, direction=(1, 0, 0), scale=length, tip_length=0.25, tip_radius=0.08,
                   shaft_radius=0.03)
     ay = pv.Arrow(start=o, direction=(0, 1, 0), scale=length, tip_length=0.25, tip_radius=0.08,
@@ -310,20 +312,22 @@ def polyline(points: np.ndarray) -> pv.PolyData:
     return pv.PolyData(np.asarray(points, dtype=float), lines=np.concatenate([[n], np.arange(n)]))
 
 
-def envelope_image(points: np.ndarray, radius: float, rgb, alpha: int = 120):
-    """Plan-view swing envelope as a ground texture: where the load's footprint passes [m].
+def envelope_image(points: np.ndarray, half_xy, rgb, alpha: int = 120):
+    """Plan-view swing envelope as a ground texture: the ground the load passes over [m].
 
-    Every ground cell within ``radius`` (half the load's plan diagonal: its
-    footprint in any heading) of the load's plan path is filled; the filled
+    A ground cell is filled when it lies under the load's upright footprint (half
+    sizes ``half_xy`` along x and y) at some instant of its plan path: the union of
+    the footprints, as the summary's zone clearances count the load.  The filled
     region's edge is drawn darker.  Returns ``(plane, rgba)``: a ground rectangle
     and its texture (row 0 at the rectangle's low-y edge).
     """
     from scipy.ndimage import binary_erosion
     from scipy.spatial import cKDTree
 
+    hx, hy = (max(0.05, float(h)) for h in half_xy)
     xy = np.asarray(points, dtype=float)[:, :2]
-    lo = xy.min(axis=0) - radius - 1.0
-    hi = xy.max(axis=0) + radius + 1.0
+    lo = xy.min(axis=0) - (hx + 1.0, hy + 1.0)
+    hi = xy.max(axis=0) + (hx + 1.0, hy + 1.0)
     cell = max(0.05, float(np.max(hi - lo)) / 500.0)
     # densify the path so no gap between samples exceeds half a cell
     seg = np.linalg.norm(np.diff(xy, axis=0), axis=1)
@@ -338,7 +342,10 @@ def envelope_image(points: np.ndarray, radius: float, rgb, alpha: int = 120):
     gx = lo[0] + (np.arange(nx) + 0.5) * cell
     gy = lo[1] + (np.arange(ny) + 0.5) * cell
     X, Y = np.meshgrid(gx, gy)  # rows along y
-    dist, _ = cKDTree(path).query(np.column_stack([X.ravel(), Y.ravel()]), distance_upper_bound=radius)
+    # footprint test in units of the half sizes: max(|dx|/hx, |dy|/hy) <= 1 (the inf-norm)
+    scale = np.array([1.0 / hx, 1.0 / hy])
+    dist, _ = cKDTree(path * scale).query(np.column_stack([X.ravel(), Y.ravel()]) * scale,
+                                          distance_upper_bound=1.0 + 1e-9, p=np.inf)
     inside = np.isfinite(dist).reshape(ny, nx)
     edge = inside & ~binary_erosion(inside, iterations=2)
     rgba = np.zeros((ny, nx, 4), dtype=np.uint8)

@@ -136,7 +136,7 @@ class Stage:
         span = max(gb[1] - gb[0], gb[3] - gb[2])
         for pos, text in labels:
             self._label(pos, text, size=0.017, colour=pal["grid_major"])
-        alen = max(3.0, 0.06 * span)
+        alen = max(2.0, 0.04 * span)
         ax, ay, px, py = G.axis_arrows(lay, alen)
         self._add(ax, pal["axis_x"], lighting=False)
         self._add(ay, pal["axis_y"], lighting=False)
@@ -172,8 +172,9 @@ class Stage:
         s = traj.sample(tgrid)
         self.trail_t = tgrid
         self.trail_xyz = s["load"]
-        foot = float(np.hypot(*lay.load_size[:2])) if shape_is_flat(lay) else float(max(lay.load_size[:2]))
-        plane, rgba = G.envelope_image(s["load"], max(0.3, foot / 2), _rgb(pal["envelope"]))
+        lb = G.load_mesh(scene.load.shape, lay.load_size, load_mesh).bounds
+        plane, rgba = G.envelope_image(s["load"], (0.5 * (lb[1] - lb[0]), 0.5 * (lb[3] - lb[2])),
+                                       _rgb(pal["envelope"]))
         self.envelope_rgba = rgba
         tex = pv.Texture(np.ascontiguousarray(rgba[::-1]))  # pyvista: row 0 is the top (high y)
         tex.SetInterpolate(True)
@@ -487,10 +488,6 @@ class Stage:
             self.pl.close()
         except Exception:  # noqa: BLE001 - closing must not hide the real error
             pass
-
-
-def shape_is_flat(lay) -> bool:
-    return lay.load_shape != "cylinder"
 
 
 def _rod(a, b, r):
