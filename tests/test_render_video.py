@@ -6,6 +6,7 @@ model of the OpenGL Programming Guide), not the renderer's code.
 """
 
 import argparse
+from pathlib import Path
 
 import imageio.v3 as iio
 import imageio_ffmpeg
@@ -217,15 +218,24 @@ def test_parallel_segments_join_to_the_same_video(tmp_path):
     assert max(diff) < 3.0  # same pictures, up to the encoder's rounding at the segment seam
 
 
-@pytest.mark.parametrize("path", scene_files(), ids=lambda p: p.name)
-def test_every_bundled_scene_renders(path, tmp_path):
+DATA = Path(__file__).parent / "data"
+# every bundled scene, and the render test scenes (a cylinder load, a custom [view]), through all views
+CASES = [(p, ("side", "plan")) for p in scene_files()] + [
+    (DATA / "render_tower.toml", ("oblique", "end")), (DATA / "render_gantry.toml", ("follow", "side")),
+    (DATA / "render_mobile.toml", ("custom", "follow"))]
+
+
+@pytest.mark.parametrize("path,views", CASES, ids=lambda c: c.name if isinstance(c, Path) else ",".join(c))
+def test_every_scene_renders(path, views, tmp_path):
     from swingsim.scene import load_scene
 
     traj = simulate(load_scene(path))
-    paths = render_scene(traj, None, tmp_path, size=(192, 108), fps=4, fmt="png", window=(0.0, 0.5),
-                         split=("side", "plan"), quiet=True)
+    paths = render_scene(traj, None, tmp_path, size=(320, 180), fps=4, fmt="png", window=(0.0, 0.5),
+                         split=views, quiet=True)
     assert len(paths) >= 3
-    assert iio.imread(paths[1]).std() > 15
+    still = iio.imread(paths[1])
+    assert still.std() > 15
+    assert _is_load_colour(still).any()  # the load is in the picture
 
 
 def test_no_opengl_is_one_clear_line(monkeypatch, tmp_path, capsys):
