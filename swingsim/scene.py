@@ -17,10 +17,12 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+import numpy as np
+
 from . import schema as S
 from .errors import SceneError
 
-__all__ = ["Scene", "Move", "Zone", "load_scene", "scene_from_dict", "read_table"]
+__all__ = ["Scene", "Move", "Zone", "View", "load_scene", "scene_from_dict", "read_table"]
 
 
 @dataclass(frozen=True)
@@ -56,9 +58,10 @@ class Load:
     size_m: tuple | None
     wind_area_m2: float | None
     drag_coefficient: float
+    shape: str = "box"
+    mesh_file: str | None = None  # as written in the scene, relative to Scene.base_dir
     # rigid load (hook-and-load models); a point mass when both are None
     inertia_kg_m2: tuple | None = None
-    shape: str = "box"
     cg_offset_m: tuple = (0.0, 0.0, 0.0)
 
     @property
@@ -68,6 +71,16 @@ class Load:
         Whether it is *modelled* as one is :attr:`Scene.rigid_load`.
         """
         return self.size_m is not None or self.inertia_kg_m2 is not None
+
+
+@dataclass(frozen=True)
+class View:
+    """The scene's custom camera (``[view]``), for drawing only."""
+
+    position_m: tuple
+    focus_m: tuple
+    up: tuple
+    view_angle_deg: float
 
 
 @dataclass(frozen=True)
@@ -170,6 +183,7 @@ class Scene:
     limits: Limits
     zones: tuple
     notes: str = ""
+    view: View | None = None
     file: str = "<scene>"
     base_dir: Path = field(default_factory=Path)
     raw: dict = field(default_factory=dict)
@@ -487,6 +501,8 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
     wind = r.table(data, "wind", S.TABLES["wind"])
     output = r.table(data, "output", S.TABLES["output"])
     limits = r.table(data, "limits", S.TABLES["limits"])
+    view = _read_view(r, data)
+    _check_mesh_file(r, load)
 
     moves = []
     raw_moves = data.get("moves", [])
@@ -517,7 +533,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         crane=Crane(**crane), rope=rope_o, load=load_o,
         start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
         wind=Wind(**wind), sample_hz=output["sample_hz"], limits=Limits(**limits),
-        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data),
+        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
         hook=hook_o, rigging=rig_o,
     )
     for hook in EXTRA_VALIDATORS:
@@ -527,6 +543,38 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
 
         build_motion(scene)
     return scene
+
+
+#: File types a load mesh may have (read with pyvista).
+MESH_SUFFIXES = (".stl", ".obj", ".ply")
+
+
+def _read_view(r: _Reader, data: dict):
+    """The optional ``[view]`` table; its position and focus are required when it is there."""
+    if "view" not in data:
+        return None
+    v = r.table(data, "view", S.TABLES["view"])
+    pos, foc, up = (np.asarray(v[k]) for k in ("position_m", "focus_m", "up"))
+    if np.linalg.norm(pos - foc) < 1e-6:
+        raise r.err("view.focus_m", "must differ from view.position_m", list(v["focus_m"]))
+    if np.linalg.norm(up) < 1e-9:
+        raise r.err("view.up", "must not be the zero vector", list(v["up"]))
+    d = (foc - pos) / np.linalg.norm(foc - pos)
+    if np.linalg.norm(np.cross(d, up / np.linalg.norm(up))) < 1e-3:
+        raise r.err("view.up", "must not point along the line of sight (position_m to focus_m)", list(v["up"]))
+    return View(**v)
+
+
+def _check_mesh_file(r: _Reader, load: dict) -> None:
+    name = load.get("mesh_file")
+    if name is None:
+        return
+    if Path(name).suffix.lower() not in MESH_SUFFIXES:
+        raise r.err("load.mesh_file", "expected an STL, OBJ or PLY file (.stl, .obj, .ply)", name)
+    p = Path(name)
+    full = p if p.is_absolute() else r.base_dir / p
+    if not full.is_file():
+        raise r.err("load.mesh_file", "file not found (relative to the scene file's folder)", name)
 
 
 #: Tables added by model extensions: name -> schema (read by their validators).
@@ -573,13 +621,9 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
             if any(getattr(start, k)):
                 raise r.err(f"start.{k}", "must be zero with rope_preload = 'lift-off' (the load rests "
                             "supported until it lifts off)", list(getattr(start, k)))
-    if load.shape == "cylinder":
-        if load.size_m is None:
-            raise r.err("load.shape", "a cylinder needs load.size_m", "cylinder")
-        a, b, c = load.size_m
-        if not (a == b or b == c or a == c):
-            raise r.err("load.size_m", "for shape = 'cylinder' two sizes must be equal (the "
-                        "diameter); the third is the length along the axis", list(load.size_m))
+    if load.shape == "cylinder" and load.size_m is None and load.inertia_kg_m2 is None \
+            and (hook_t is not None or rig_t is not None):
+        raise r.err("load.shape", "a cylinder needs load.size_m (or give load.inertia_kg_m2)", "cylinder")
     if load.inertia_kg_m2 is not None:
         i1, i2, i3 = load.inertia_kg_m2
         if i1 + i2 < i3 * (1 - 1e-9) or i2 + i3 < i1 * (1 - 1e-9) or i1 + i3 < i2 * (1 - 1e-9):

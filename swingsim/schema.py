@@ -136,9 +136,12 @@ TABLES: dict[str, dict[str, Key]] = {
         "inertia_kg_m2": Key("vec3", "Moments of inertia [Ixx, Iyy, Izz] about the centre of gravity, "
                              "load axes [kg m^2]; with it (or with size_m) the load is a rigid body.",
                              gt=0.0),
-        "shape": Key("str", "Shape for the inertia from size_m: a uniform box, or a uniform solid "
-                     "cylinder whose axis is the one size that differs from the other two.",
-                     default="box", choices=("box", "cylinder")),
+        "shape": Key("str", "Shape of the load: box (size_m), or cylinder: its axis is the side of "
+                     "size_m that differs when the other two are equal, else the longest side; its "
+                     "diameter the larger of the other two. Drawing, and the inertia of a rigid load "
+                     "(uniform solid).", default="box", choices=("box", "cylinder")),
+        "mesh_file": Key("path", "Surface mesh drawn as the load instead of the box (STL, OBJ or PLY; "
+                         "metres, origin at the load's centre of gravity, z up). Drawing only."),
         "cg_offset_m": Key("vec3", "Centre of gravity relative to the centre of the size_m box, load "
                            "axes [m] (drawing, and the default attachment point).",
                            default=(0.0, 0.0, 0.0)),
@@ -205,6 +208,15 @@ TABLES: dict[str, dict[str, Key]] = {
                           gt=0.0, lt=45.0),
         "clearance_m": Key("float", "Largest allowed horizontal excursion of the load from the plumb line "
                            "below the suspension point [m].", gt=0.0),
+    },
+    # Camera of `swingsim render --view custom`; the whole table is optional, and
+    # position_m and focus_m are required when it is given (checked in scene.py).
+    "view": {
+        "position_m": Key("vec3", "Camera position [x, y, z] [m] of the custom view.", required=True),
+        "focus_m": Key("vec3", "Point the custom view looks at [x, y, z] [m].", required=True),
+        "up": Key("vec3", "Direction that is up in the picture [-].", default=(0.0, 0.0, 1.0)),
+        "view_angle_deg": Key("float", "Vertical field of view of the custom view [deg].",
+                              default=30.0, gt=1.0, lt=120.0),
     },
 }
 

@@ -65,22 +65,30 @@ def box_inertia(mass_kg: float, size_m) -> np.ndarray:
     return mass_kg / 12.0 * np.array([b * b + c * c, a * a + c * c, a * a + b * b])
 
 
-def cylinder_inertia(mass_kg: float, size_m) -> np.ndarray:
-    """Principal moments of a uniform solid cylinder about its centre [kg m^2].
+def cylinder_axis(size_m) -> tuple[int, float, float]:
+    """Axis index, diameter and length of the cylinder a ``size_m`` box describes.
 
-    The axis is the one size that differs from the other two (x when all are equal).
+    The axis is the side that differs when the other two are equal (a drum
+    standing on end as well as a pipe lying down), otherwise the longest side;
+    the diameter is the larger of the other two.  One rule for the inertia and
+    for the drawing.
     """
     s = [float(v) for v in size_m]
-    if s[1] == s[2]:
+    if s[1] == s[2] and s[0] != s[1]:
         ax = 0
-    elif s[0] == s[2]:
+    elif s[0] == s[2] and s[1] != s[0]:
         ax = 1
-    elif s[0] == s[1]:
+    elif s[0] == s[1] and s[2] != s[0]:
         ax = 2
     else:
-        raise ValueError("a cylinder needs two equal sizes (the diameter)")
-    D = s[(ax + 1) % 3]
-    ell = s[ax]
+        ax = int(np.argmax(s))
+    D = max(v for i, v in enumerate(s) if i != ax)
+    return ax, D, s[ax]
+
+
+def cylinder_inertia(mass_kg: float, size_m) -> np.ndarray:
+    """Principal moments of a uniform solid cylinder about its centre [kg m^2] (see cylinder_axis)."""
+    ax, D, ell = cylinder_axis(size_m)
     I = np.full(3, mass_kg / 12.0 * (0.75 * D * D + ell * ell))
     I[ax] = mass_kg * D * D / 8.0
     return I
