@@ -188,3 +188,15 @@ def test_implausibly_stiff_rope_is_refused_unless_allowed():
     assert "rope.stiffness_kN_per_m = 100000000.0" in msg and "Hz" in msg
     assert check_plausible(sc, allow=True)
     assert check_plausible(make_scene({"rope": {"stiffness_kN_per_m": 1e3}})) == []
+
+
+def test_spreader_geometry_outputs_hang_from_the_hook():
+    # the top slings' end lugs lie at top_leg_length_m from the hook, the drop legs at
+    # leg_length_m from their attachment points (rigid assembly: at every instant)
+    sc = load_scene(ROOT / "scenes" / "springy_multifall_rope.toml")
+    traj = simulate(sc)
+    s = traj.sample(np.linspace(0, traj.t_end_s, 50))
+    d_top = np.linalg.norm(s["spreader_ends"] - s["hook"][:, None, :], axis=2)
+    assert np.allclose(d_top, sc.rigging.top_leg_length_m, atol=1e-9)
+    d_drop = np.linalg.norm(s["spreader_lugs"] - s["attach_points"], axis=2)
+    assert np.allclose(d_drop, sc.rigging.leg_length_m[0], atol=1e-9)

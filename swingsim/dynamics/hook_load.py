@@ -800,8 +800,9 @@ class HookLoadModel:
 
         Adds ``hook`` (N, 3) (None without a hook block), ``leg_tension_N`` (N, k),
         ``attach_points`` (N, k, 3), ``load_rotation`` (N, 3, 3), ``load_tilt_deg``
-        (N, 2) (None for a point load), ``top_sling_tension_N`` (N, 2) for a
-        spreader, ``rope_stretch_m`` for an elastic rope, and the static leg loads.
+        (N, 2) (None for a point load), ``top_sling_tension_N`` (N, 2),
+        ``spreader_lugs`` (N, k, 3) and ``spreader_ends`` (N, 2, 3) for a spreader,
+        ``rope_stretch_m`` for an elastic rope, and the static leg loads.
         """
         t = np.asarray(t, dtype=float)
         Y = np.asarray(Y, dtype=float)
@@ -864,6 +865,10 @@ class HookLoadModel:
             extra["load_tilt_y_deg"] = tilt[:, 1]
         for j in range(k):
             extra[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
+        if self.kind == "spreader" and self.body:
+            # world positions of the beam's drop-leg lugs and end lugs (for drawing the beam)
+            out["spreader_lugs"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geom.lugs_b)
+            out["spreader_ends"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geom.ends_b)
         if tops is not None:
             out["top_sling_tension_N"] = tops
             for j in range(2):
