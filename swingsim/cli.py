@@ -19,7 +19,9 @@ from .errors import InputError, SimulationError
 
 #: Extension subcommands: name -> (module, help).  Each module exposes
 #: ``add_arguments(parser)`` and ``main(args) -> int``.
-COMMANDS: dict[str, tuple[str, str]] = {}
+COMMANDS: dict[str, tuple[str, str]] = {
+    "render": ("swingsim.render.cli", "render a 3D briefing video (MP4/GIF/PNG frames) and stills of a scene"),
+}
 
 # -- batch comparisons and move planning (issue 4) --
 COMMANDS["compare"] = ("swingsim.compare", "run every variant of a sweep file and rank them "
@@ -76,6 +78,9 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _run_video_args(p):
     p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
+    from .render.cli import add_arguments  # the render options (no pyvista import)
+
+    add_arguments(p, scene=False)
 
 
 def _print(args, text):
@@ -124,6 +129,13 @@ def _do_run(args, scene_path, default_out) -> int:
     want_video = getattr(args, "video", False)
     if want_video:
         _render_available()
+        from .render.api import check_options  # bad video options: one line, before anything is written
+
+        o = _video_options(args, scene)
+        check_options(scene, **{k: o[k] for k in ("size", "fps", "fmt", "view", "speed", "window", "split")
+                                if k in o} | {k: v for k, v in (("size", (1280, 720)), ("fps", 30), ("fmt", "mp4"),
+                                                                ("view", "oblique"), ("speed", 1.0),
+                                                                ("window", None), ("split", None)) if k not in o})
     from . import simulate, summarize
 
     traj = simulate(scene)
@@ -133,7 +145,7 @@ def _do_run(args, scene_path, default_out) -> int:
     if want_video and traj.valid:
         from .render import render_scene
 
-        written += render_scene(traj, summary, out, **_video_options(args))
+        written += render_scene(traj, summary, out, **_video_options(args, scene))
     _print(args, _headline(summary))
     _print(args, f"wrote {len(written)} files to {out}")
     if not traj.valid:
@@ -142,10 +154,15 @@ def _do_run(args, scene_path, default_out) -> int:
     return 0
 
 
-def _video_options(args) -> dict:
+def _video_options(args, scene=None) -> dict:
     opts = {"quiet": getattr(args, "quiet", False)}
     if getattr(args, "command", "") == "demo":
-        opts.update(size=(960, 540), fps=24, window=None)
+        # short and modest, so the first command stays quick: the moves and the start of settling
+        opts.update(size=(854, 480), fps=24, window=(0.0, 24.0))
+    elif scene is not None:
+        from .render.cli import options
+
+        opts.update(options(args, scene))
     return opts
 
 
@@ -154,6 +171,9 @@ def _render_available():
         importlib.import_module("swingsim.render")
     except ImportError as exc:  # pragma: no cover
         raise SimulationError(f"the renderer is not available: {exc}") from None
+    from .render.gl import require_opengl  # no OpenGL: one line naming the packages, before any file
+
+    require_opengl()
 
 
 def cmd_run(args) -> int:
@@ -169,9 +189,16 @@ def cmd_demo(args) -> int:
 def _has_renderer() -> bool:
     try:
         importlib.import_module("swingsim.render")
-        return True
     except ImportError:
         return False
+    from .render.gl import RenderUnavailableError, require_opengl
+
+    try:
+        require_opengl()
+    except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
+        sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
+        return False
+    return True
 
 
 def _on_sigterm(signum, frame):

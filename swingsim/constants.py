@@ -44,3 +44,7 @@ ATOL = 1e-12
 
 #: Default output sample rate [Hz].
 SAMPLE_HZ = 50.0
+
+#: Metallic area of a stranded wire rope over the area of its circle [-] (from
+#: memory; Feyrer, *Wire Ropes*, typical 0.5-0.65).  Only a default.
+ROPE_FILL_FACTOR = 0.58

@@ -36,6 +36,7 @@ from scipy.special import ellipk
 
 from . import __version__
 from . import cautions
+from .metrics_models import model_metrics, model_warnings
 
 #: Metric sample rate floor [Hz] and samples per natural period (whichever is finer).
 _MIN_RATE_HZ = 50.0
@@ -269,5 +270,8 @@ def summarize(traj) -> Summary:
     }
     if not traj.valid:
         data["invalid_reason"] = traj.message
-    data["cautions"] = [cautions.CAUTION] + cautions.scenario_warnings(data, scene)
+    # -- hook block, rigging, rigid load, elastic rope (metrics_models.py; empty for point mass) --
+    data.update(model_metrics(traj, t, s))
+    data["cautions"] = ([cautions.CAUTION] + cautions.scenario_warnings(data, scene)
+                        + model_warnings(data, scene))
     return Summary(data)

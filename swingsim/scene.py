@@ -17,10 +17,12 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+import numpy as np
+
 from . import schema as S
 from .errors import SceneError
 
-__all__ = ["Scene", "Move", "Zone", "load_scene", "scene_from_dict", "read_table"]
+__all__ = ["Scene", "Move", "Zone", "View", "load_scene", "scene_from_dict", "read_table"]
 
 
 @dataclass(frozen=True)
@@ -36,6 +38,18 @@ class Rope:
     diameter_m: float | None
     drag_coefficient: float
     wll_kN: float | None
+    # elastic rope (hook-and-load models); inextensible when both are None
+    stiffness_kN_per_m: float | None = None
+    modulus_GPa: float | None = None
+    fill_factor: float = 0.58
+    falls: int = 1
+    lead_length_m: float = 0.0
+    bounce_damping_ratio: float = 0.0
+    stiffness_source: str = ""
+
+    @property
+    def elastic(self) -> bool:
+        return self.stiffness_kN_per_m is not None or self.modulus_GPa is not None
 
 
 @dataclass(frozen=True)
@@ -44,12 +58,66 @@ class Load:
     size_m: tuple | None
     wind_area_m2: float | None
     drag_coefficient: float
+    shape: str = "box"
+    mesh_file: str | None = None  # as written in the scene, relative to Scene.base_dir
+    # rigid load (hook-and-load models); a point mass when both are None
+    inertia_kg_m2: tuple | None = None
+    cg_offset_m: tuple = (0.0, 0.0, 0.0)
+
+    @property
+    def rigid(self) -> bool:
+        """Whether the load has the data of a rigid body (size or inertia).
+
+        Whether it is *modelled* as one is :attr:`Scene.rigid_load`.
+        """
+        return self.size_m is not None or self.inertia_kg_m2 is not None
+
+
+@dataclass(frozen=True)
+class View:
+    """The scene's custom camera (``[view]``), for drawing only."""
+
+    position_m: tuple
+    focus_m: tuple
+    up: tuple
+    view_angle_deg: float
 
 
 @dataclass(frozen=True)
 class Start:
     swing_deg: tuple
     swing_rate_deg_s: tuple
+    rope_preload: str = "static"
+    rope_slack_m: float = 0.0
+
+
+@dataclass(frozen=True)
+class Hook:
+    """The hook block as a body of its own on the hoist rope."""
+
+    mass_kg: float
+    size_m: tuple | None
+    drag_coefficient: float
+
+
+@dataclass(frozen=True)
+class Rigging:
+    """Slings between the hook and the load (load axes, from the load's centre of gravity).
+
+    ``leg_length_m`` and ``wll_kN`` have one entry per leg (drop legs for a
+    spreader); ``attach_m`` one point per leg.
+    """
+
+    kind: str
+    leg_length_m: tuple
+    attach_m: tuple
+    wll_kN: tuple | None
+    top_leg_length_m: float | None = None
+    top_wll_kN: float | None = None
+
+    @property
+    def legs(self) -> int:
+        return len(self.attach_m)
 
 
 @dataclass(frozen=True)
@@ -115,9 +183,22 @@ class Scene:
     limits: Limits
     zones: tuple
     notes: str = ""
+    view: View | None = None
     file: str = "<scene>"
     base_dir: Path = field(default_factory=Path)
     raw: dict = field(default_factory=dict)
+    hook: Hook | None = None
+    rigging: Rigging | None = None
+
+    @property
+    def rigid_load(self) -> bool:
+        """The load is modelled as a rigid body: ``load.inertia_kg_m2`` is given, or
+        ``load.size_m`` together with a ``[hook]`` or ``[rigging]`` table.
+
+        A ``size_m`` alone (no hook block, no rigging) keeps the core's meaning:
+        the size of a point-mass load for drawing and clearance.
+        """
+        return _rigid(self.load, self.hook is not None, self.rigging is not None)
 
     @property
     def name(self) -> str:
@@ -436,6 +517,8 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
     wind = r.table(data, "wind", S.TABLES["wind"])
     output = r.table(data, "output", S.TABLES["output"])
     limits = r.table(data, "limits", S.TABLES["limits"])
+    view = _read_view(r, data)
+    _check_mesh_file(r, load)
 
     moves = []
     raw_moves = data.get("moves", [])
@@ -455,13 +538,19 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
             raise r.err(f"zones[{i}].max_m", "must exceed min_m in every coordinate", list(v["max_m"]))
         zones.append(Zone(**v))
 
+    hook_t = r.table(data, "hook", S.TABLES["hook"]) if "hook" in data else None
+    rig_t = r.table(data, "rigging", S.TABLES["rigging"]) if "rigging" in data else None
+    rope_o, load_o, start_o = Rope(**rope), Load(**load), Start(**start)
+    hook_o, rig_o = _read_hook_rigging(r, hook_t, rig_t, rope_o, load_o, start_o, top["gravity_m_s2"])
+
     scene = Scene(
         title=top["title"], duration_s=top["duration_s"], gravity_m_s2=top["gravity_m_s2"],
         notes=top["notes"],
-        crane=Crane(**crane), rope=Rope(**rope), load=Load(**load),
-        start=Start(**start), moves=tuple(moves), damping_ratio=damping["ratio"],
+        crane=Crane(**crane), rope=rope_o, load=load_o,
+        start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
         wind=Wind(**wind), sample_hz=output["sample_hz"], limits=Limits(**limits),
-        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data),
+        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
+        hook=hook_o, rigging=rig_o,
     )
     for hook in EXTRA_VALIDATORS:
         scene = hook(r, data, scene)
@@ -472,10 +561,172 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
     return scene
 
 
+#: File types a load mesh may have (read with pyvista).
+MESH_SUFFIXES = (".stl", ".obj", ".ply")
+
+
+def _read_view(r: _Reader, data: dict):
+    """The optional ``[view]`` table; its position and focus are required when it is there."""
+    if "view" not in data:
+        return None
+    v = r.table(data, "view", S.TABLES["view"])
+    pos, foc, up = (np.asarray(v[k]) for k in ("position_m", "focus_m", "up"))
+    if np.linalg.norm(pos - foc) < 1e-6:
+        raise r.err("view.focus_m", "must differ from view.position_m", list(v["focus_m"]))
+    if np.linalg.norm(up) < 1e-9:
+        raise r.err("view.up", "must not be the zero vector", list(v["up"]))
+    d = (foc - pos) / np.linalg.norm(foc - pos)
+    if np.linalg.norm(np.cross(d, up / np.linalg.norm(up))) < 1e-3:
+        raise r.err("view.up", "must not point along the line of sight (position_m to focus_m)", list(v["up"]))
+    return View(**v)
+
+
+def _check_mesh_file(r: _Reader, load: dict) -> None:
+    name = load.get("mesh_file")
+    if name is None:
+        return
+    if Path(name).suffix.lower() not in MESH_SUFFIXES:
+        raise r.err("load.mesh_file", "expected an STL, OBJ or PLY file (.stl, .obj, .ply)", name)
+    p = Path(name)
+    full = p if p.is_absolute() else r.base_dir / p
+    if not full.is_file():
+        raise r.err("load.mesh_file", "file not found (relative to the scene file's folder)", name)
+
+
 #: Tables added by model extensions: name -> schema (read by their validators).
 EXTRA_TABLES: dict[str, dict] = {}
 #: Functions ``(reader, data, scene) -> scene`` that validate extension tables.
 EXTRA_VALIDATORS: list = []
+
+
+# ----------------------------------------------------------------------------
+# hook block, rigging, rigid load, elastic rope (hook-and-load models)
+
+
+def _per_leg(r, values, n, key):
+    if values is None:
+        return None
+    if isinstance(values, float):
+        return (values,) * n
+    if len(values) == 1:
+        return tuple(values) * n
+    if len(values) != n:
+        raise r.err(key, f"expected one value or one per leg ({n} legs)", list(values))
+    return tuple(values)
+
+
+def _rigid(load, has_hook: bool, has_rigging: bool) -> bool:
+    return load.inertia_kg_m2 is not None or (load.size_m is not None and (has_hook or has_rigging))
+
+
+def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
+    """Cross-checks of the hook-and-load keys; returns (Hook or None, Rigging or None)."""
+    if rope.stiffness_kN_per_m is not None and rope.modulus_GPa is not None:
+        raise r.err("rope.modulus_GPa", "give either rope.stiffness_kN_per_m or rope.modulus_GPa, "
+                    "not both", rope.modulus_GPa)
+    if rope.modulus_GPa is not None and rope.diameter_m is None:
+        raise r.err("rope.modulus_GPa", "needs rope.diameter_m to derive the rope stiffness",
+                    rope.modulus_GPa)
+    if start.rope_preload != "static" and not rope.elastic:
+        raise r.err("start.rope_preload", "only for an elastic rope (set rope.stiffness_kN_per_m "
+                    "or rope.modulus_GPa)", start.rope_preload)
+    if start.rope_slack_m and start.rope_preload != "lift-off":
+        raise r.err("start.rope_slack_m", "only with start.rope_preload = 'lift-off'", start.rope_slack_m)
+    if start.rope_preload == "lift-off":
+        for k in ("swing_deg", "swing_rate_deg_s"):
+            if any(getattr(start, k)):
+                raise r.err(f"start.{k}", "must be zero with rope_preload = 'lift-off' (the load rests "
+                            "supported until it lifts off)", list(getattr(start, k)))
+    if load.shape == "cylinder" and load.size_m is None and load.inertia_kg_m2 is None \
+            and (hook_t is not None or rig_t is not None):
+        raise r.err("load.shape", "a cylinder needs load.size_m (or give load.inertia_kg_m2)", "cylinder")
+    if load.inertia_kg_m2 is not None:
+        i1, i2, i3 = load.inertia_kg_m2
+        if i1 + i2 < i3 * (1 - 1e-9) or i2 + i3 < i1 * (1 - 1e-9) or i1 + i3 < i2 * (1 - 1e-9):
+            raise r.err("load.inertia_kg_m2", "not a real body: each moment must not exceed the sum "
+                        "of the other two (triangle inequality of principal moments)",
+                        list(load.inertia_kg_m2))
+    if load.cg_offset_m != (0.0, 0.0, 0.0) and load.size_m is None:
+        raise r.err("load.cg_offset_m", "needs load.size_m (it is measured from the box centre)",
+                    list(load.cg_offset_m))
+    hook = Hook(**hook_t) if hook_t is not None else None
+    if rope.elastic:
+        from .dynamics.rope import elastic_rope  # local: pure physics
+
+        m = load.mass_kg + (hook.mass_kg if hook else 0.0)
+        try:
+            elastic_rope(rope, m * g, m)
+        except ValueError:
+            key = "rope.stiffness_kN_per_m" if rope.stiffness_kN_per_m is not None else "rope.modulus_GPa"
+            raise r.err(key, f"the rope would stretch more than its length ({rope.length_m:g} m) "
+                        f"under the {m:g} kg it carries; check the value and its unit",
+                        rope.stiffness_kN_per_m or rope.modulus_GPa) from None
+    rigid = _rigid(load, hook_t is not None, rig_t is not None)
+    if rig_t is None:
+        if hook is not None:
+            raise r.err("[rigging]", "missing; a hook block needs the rigging below it "
+                        "(at least rigging.leg_length_m)")
+        if not rigid:
+            return None, None
+        if load.size_m is None:
+            raise r.err("[rigging]", "missing; a load given by inertia_kg_m2 without size_m needs "
+                        "rigging.attach_m (where the rope is attached)")
+        rig_t = {"kind": "single", "leg_length_m": 0.0, "attach_m": None, "wll_kN": None,
+                 "top_leg_length_m": None, "top_wll_kN": None}
+    kind = rig_t["kind"]
+    attach = rig_t["attach_m"]
+    if attach is not None and len(attach) == 3 and all(isinstance(x, float) for x in attach):
+        attach = (attach,)  # pragma: no cover  (vec3s always gives points)
+    if kind == "single":
+        if attach is None:
+            if not rigid:
+                attach = ((0.0, 0.0, 0.0),)
+            elif load.size_m is None:
+                raise r.err("rigging.attach_m", "missing; with no load.size_m the top centre of the "
+                            "load is unknown")
+            else:
+                ox, oy, oz = load.cg_offset_m
+                attach = ((-ox, -oy, -oz + 0.5 * load.size_m[2]),)
+        elif len(attach) != 1:
+            raise r.err("rigging.attach_m", "kind 'single' has one attachment point", [list(a) for a in attach])
+        elif not rigid and any(attach[0]):
+            raise r.err("rigging.attach_m", "a point-mass load has no attachment offset; give "
+                        "load.size_m or load.inertia_kg_m2 for a rigid load", [list(a) for a in attach])
+    else:
+        if not rigid:
+            raise r.err("rigging.kind", f"a {kind} needs a rigid load (load.size_m or "
+                        "load.inertia_kg_m2)", kind)
+        if attach is None:
+            raise r.err("rigging.attach_m", f"missing; kind '{kind}' needs one attachment point per leg")
+        if len(attach) < 2:
+            raise r.err("rigging.attach_m", f"kind '{kind}' needs at least two attachment points",
+                        [list(a) for a in attach])
+    n = len(attach)
+    legs = _per_leg(r, rig_t["leg_length_m"], n, "rigging.leg_length_m")
+    wll = _per_leg(r, rig_t["wll_kN"], n, "rigging.wll_kN")
+    if hook is not None or kind != "single":
+        for L in legs:
+            if L <= 0.0:
+                raise r.err("rigging.leg_length_m", "must be > 0 (only a single leg without a hook "
+                            "block may have length 0: the rope attached to the load directly)",
+                            list(legs) if n > 1 else L)
+    if kind == "spreader":
+        if rig_t["top_leg_length_m"] is None:
+            raise r.err("rigging.top_leg_length_m", "missing; kind 'spreader' needs the length of "
+                        "its two top slings")
+    else:
+        for k in ("top_leg_length_m", "top_wll_kN"):
+            if rig_t[k] is not None:
+                raise r.err(f"rigging.{k}", f"only for kind 'spreader', not '{kind}'", rig_t[k])
+    rig = Rigging(kind=kind, leg_length_m=legs, attach_m=tuple(tuple(a) for a in attach), wll_kN=wll,
+                  top_leg_length_m=rig_t["top_leg_length_m"], top_wll_kN=rig_t["top_wll_kN"])
+    from .dynamics.rigging import RiggingError, rigging_geometry  # local: pure physics
+
+    try:
+        rigging_geometry(rig, load, rigid)
+    except RiggingError as exc:
+        raise r.err(f"rigging.{exc.key}", str(exc)) from None
+    return hook, rig
 
 
 def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:

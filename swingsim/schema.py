@@ -104,6 +104,26 @@ TABLES: dict[str, dict[str, Key]] = {
                                 default=C.ROPE_DRAG_COEFFICIENT, gt=0.0, le=5.0),
         "wll_kN": Key("float", "Working load limit of the hoist rope reeving [kN]; a caution is raised "
                       "when the peak dynamic tension exceeds it.", gt=0.0),
+        # -- elastic hoist rope (hook-and-load models) --
+        "stiffness_kN_per_m": Key("float", "Axial stiffness of the hoist rope reeving at the hook, at the "
+                                  "initial rope length [kN/m]; makes the rope elastic. Scales inversely "
+                                  "with the stretching rope length when hoisting.", gt=0.0),
+        "modulus_GPa": Key("float", "Effective modulus of the wire rope on its metallic area [GPa]; with "
+                           "diameter_m, fill_factor and falls gives the stiffness n^2 E A / L_r "
+                           "(common practice) and makes the rope elastic. Typical 80-110 GPa "
+                           "(from memory, Feyrer, Wire Ropes): take the rope maker's value.",
+                           gt=0.0, le=250.0),
+        "fill_factor": Key("float", "Metallic area of the rope over the area of its circle [-] "
+                           "(default 0.58 from memory, Feyrer, Wire Ropes).",
+                           default=C.ROPE_FILL_FACTOR, gt=0.0, le=1.0),
+        "falls": Key("int", "Number of falls (parts of line) between the suspension point and the "
+                     "hook block [-].", default=1, ge=1, le=64),
+        "lead_length_m": Key("float", "Rope beyond the falls that also stretches (from the top sheave "
+                             "to the drum) [m].", default=0.0, ge=0.0),
+        "bounce_damping_ratio": Key("float", "Equivalent viscous damping ratio of the vertical bounce "
+                                    "on the elastic rope [-].", default=0.0, ge=0.0, lt=1.0),
+        "stiffness_source": Key("str", "Where the stiffness or modulus value comes from (rope maker's "
+                                "data sheet, test, estimate); repeated in the summary.", default=""),
     },
     "load": {
         "mass_kg": Key("float", "Mass of the load including its rigging [kg].", required=True, gt=0.0),
@@ -112,6 +132,46 @@ TABLES: dict[str, dict[str, Key]] = {
                             "force on the load when unset.", ge=0.0),
         "drag_coefficient": Key("float", "Drag (force) coefficient of the load [-].",
                                 default=C.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+        # -- rigid load (hook-and-load models) --
+        "inertia_kg_m2": Key("vec3", "Moments of inertia [Ixx, Iyy, Izz] about the centre of gravity, "
+                             "load axes [kg m^2]; with it (or with size_m) the load is a rigid body.",
+                             gt=0.0),
+        "shape": Key("str", "Shape of the load: box (size_m), or cylinder: its axis is the side of "
+                     "size_m that differs when the other two are equal, else the longest side; its "
+                     "diameter the larger of the other two. Drawing, and the inertia of a rigid load "
+                     "(uniform solid).", default="box", choices=("box", "cylinder")),
+        "mesh_file": Key("path", "Surface mesh drawn as the load instead of the box (STL, OBJ or PLY; "
+                         "metres, origin at the load's centre of gravity, z up). Drawing only."),
+        "cg_offset_m": Key("vec3", "Centre of gravity relative to the centre of the size_m box, load "
+                           "axes [m] (drawing, and the default attachment point).",
+                           default=(0.0, 0.0, 0.0)),
+    },
+    # -- hook block and rigging (hook-and-load models) --
+    "hook": {
+        "mass_kg": Key("float", "Mass of the hook block [kg]; makes the hook a body of its own on "
+                       "the hoist rope, with the load hung below it on the rigging.",
+                       required=True, gt=0.0),
+        "size_m": Key("vec3", "Overall size of the hook block [lx, ly, lz] [m], for drawing; "
+                      "lx * lz is its area facing the wind.", gt=0.0),
+        "drag_coefficient": Key("float", "Drag (force) coefficient of the hook block [-].",
+                                default=C.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+    },
+    "rigging": {
+        "kind": Key("str", "single: one leg from the hook to one attachment point, the load pivots "
+                    "about it; bridle: two or more legs from the hook, legs and load one rigid body "
+                    "pinned at the hook; spreader: a lifting beam on two top slings with vertical "
+                    "drop legs to the load, all one rigid body pinned at the hook.",
+                    default="single", choices=("single", "bridle", "spreader")),
+        "leg_length_m": Key("floats_or_float", "Length of each leg, pin to pin [m]: one value for all "
+                            "legs or one per leg (drop legs for a spreader).", required=True, ge=0.0),
+        "attach_m": Key("vec3s", "Attachment points on the load [[x, y, z], ...], load axes, from its "
+                        "centre of gravity [m]; default for single: the top centre of size_m; "
+                        "required for bridle and spreader."),
+        "wll_kN": Key("floats_or_float", "Working load limit of each leg [kN] (one value for all or one "
+                      "per leg); a caution is raised when a leg's dynamic tension exceeds it.", gt=0.0),
+        "top_leg_length_m": Key("float", "Spreader only: length of each of the two top slings from "
+                                "the hook to the beam's end lugs [m].", gt=0.0),
+        "top_wll_kN": Key("float", "Spreader only: working load limit of each top sling [kN].", gt=0.0),
     },
     "start": {
         "swing_deg": Key("vec2", "Initial rope angle from vertical [in_xz, in_yz]: projected on the x-z plane "
@@ -119,6 +179,14 @@ TABLES: dict[str, dict[str, Key]] = {
                          default=(0.0, 0.0), gt=-89.0, lt=89.0),
         "swing_rate_deg_s": Key("vec2", "Initial rate of those two projected angles [deg/s].",
                                 default=(0.0, 0.0)),
+        "rope_preload": Key("str", "Elastic rope only: static (the rope starts stretched by the "
+                            "hanging weight), none (the weight comes onto an unstretched rope at "
+                            "t = 0, a suddenly applied load) or lift-off (hook, rigging and load rest "
+                            "supported, the rope slack by rope_slack_m, until the hoist has pulled "
+                            "their weight into the rope).", default="static",
+                            choices=("static", "none", "lift-off")),
+        "rope_slack_m": Key("float", "rope_preload = lift-off only: slack rope the hoist takes up "
+                            "before the rope starts to stretch [m].", default=0.0, ge=0.0),
     },
     "damping": {
         "ratio": Key("float", "Equivalent viscous damping ratio of the swing [-].", default=0.0, ge=0.0, lt=1.0),
@@ -140,6 +208,15 @@ TABLES: dict[str, dict[str, Key]] = {
                           gt=0.0, lt=45.0),
         "clearance_m": Key("float", "Largest allowed horizontal excursion of the load from the plumb line "
                            "below the suspension point [m].", gt=0.0),
+    },
+    # Camera of `swingsim render --view custom`; the whole table is optional, and
+    # position_m and focus_m are required when it is given (checked in scene.py).
+    "view": {
+        "position_m": Key("vec3", "Camera position [x, y, z] [m] of the custom view.", required=True),
+        "focus_m": Key("vec3", "Point the custom view looks at [x, y, z] [m].", required=True),
+        "up": Key("vec3", "Direction that is up in the picture [-].", default=(0.0, 0.0, 1.0)),
+        "view_angle_deg": Key("float", "Vertical field of view of the custom view [deg].",
+                              default=30.0, gt=1.0, lt=120.0),
     },
 }
 

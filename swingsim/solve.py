@@ -116,7 +116,8 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
     model = select_model(scene) if model is None else model
     y = np.asarray(model.initial_state(motion), dtype=float)
     T = scene.duration_s
-    cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T})
+    cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T}
+                  | {b for b in getattr(model, "extra_breakpoints", ()) if 0.0 < b < T})
     traj = Trajectory(scene, model, motion)
     for t0, t1 in zip(cuts[:-1], cuts[1:]):
         if t1 - t0 < 1e-12:
@@ -130,7 +131,8 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
         for n in names:
             if events[n](t0, y) <= 0.0:
                 traj.status = n
-                traj.message = _event_message(n, t0)
+                custom = getattr(model, "event_message", None)
+                traj.message = (custom(n, t0) if custom else None) or _event_message(n, t0)
                 if not traj.pieces:  # nothing integrated yet: keep the initial state
                     traj.pieces.append((t0, t0, _Constant(y)))
                     traj.t_end_s = t0
@@ -155,7 +157,9 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
             for n, te in zip(names, res.t_events):
                 if len(te):
                     traj.status = n
-                    traj.message = _event_message(n, float(te[0]))
+                    custom = getattr(model, "event_message", None)
+                    msg = custom(n, float(te[0])) if custom else None
+                    traj.message = msg or _event_message(n, float(te[0]))
                     break
             return traj
         y = res.y[:, -1]
@@ -182,3 +186,8 @@ def _event_message(name: str, t: float) -> str:
         return (f"the swing reached {C.MODEL_ANGLE_LIMIT_DEG:g} deg at t = {t:.3f} s, beyond any "
                 "crane's working range and the model's limit; the results stop there")
     return f"the run stopped at t = {t:.3f} s ({name})"
+
+
+# Registers the model extensions of swingsim.dynamics (hook block, rigid load, elastic
+# rope) in MODELS / MODEL_SELECTORS; at the end, so that both registries exist.
+from . import dynamics as _dynamics  # noqa: E402,F401

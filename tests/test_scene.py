@@ -133,9 +133,12 @@ def test_every_key_documented():
     for t in tables:
         for name, key in t.items():
             assert len(key.doc) > 10, name
-            # dimensionless: ratios, coefficients, the input shaper's tolerance (a fraction)
-            dimensionless = name in ("ratio", "drag_coefficient") or name.endswith(("_ratio", "_tolerance"))
-            if key.kind in ("float", "vec2", "vec3", "floats") and not dimensionless:
+            # dimensionless quantities say so in their name (ratio, coefficient, factor) and [-] in the doc
+            dimensionless = name.endswith(("ratio", "coefficient", "factor", "tolerance"))  # tolerance: EI shaper
+            if dimensionless and key.kind == "float":
+                assert "[-]" in key.doc, name
+            if key.kind in ("float", "vec2", "vec3", "floats", "floats_or_float") and not dimensionless \
+                    and name != "up":
                 # a quantity's unit is in its name
                 assert any(name.endswith(u) for u in ("_s", "_m", "_kg", "_m2", "_m_s", "_m_s2", "_m_s3",
                                                       "_deg", "_deg_s", "_deg_s2", "_deg_s3", "_hz", "_kN",

@@ -1,4 +1,21 @@
 """Equations of motion: one model per module, pure functions of state and time.
 
 Nothing here imports I/O, plotting, the renderer or the command line.
+
+Importing this package registers the hook-and-load models (``hook_load.py``)
+in :data:`swingsim.solve.MODELS` / :data:`swingsim.solve.MODEL_SELECTORS`;
+``swingsim.solve`` imports it, so ``simulate`` always sees them.
 """
+
+
+def _register() -> None:
+    from .. import solve
+    from .hook_load import MODEL_NAMES, HookLoadModel, model_name
+
+    for name in MODEL_NAMES:
+        solve.MODELS.setdefault(name, HookLoadModel)
+    if model_name not in solve.MODEL_SELECTORS:
+        solve.MODEL_SELECTORS.append(model_name)
+
+
+_register()

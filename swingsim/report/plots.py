@@ -153,6 +153,13 @@ def plan_figure(traj, summary):
 FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": plan_figure}
 
 
+def _register_model_figures():
+    # hook block, rigging, rigid load (plots_rigging.py): drawn only when the model has legs
+    from .plots_rigging import rigging_figure
+
+    FIGURES["rigging.png"] = rigging_figure
+
+
 def write_plots(traj, summary, out_dir) -> list:
     from pathlib import Path
 
@@ -161,9 +168,12 @@ def write_plots(traj, summary, out_dir) -> list:
     matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
 
+    _register_model_figures()
     paths = []
     for name, fn in FIGURES.items():
         fig = fn(traj, summary)
+        if fig is None:  # a figure the run's model has nothing for
+            continue
         buf = io.BytesIO()
         fig.savefig(buf, format="png", metadata={"Software": None})
         plt.close(fig)

@@ -14,6 +14,7 @@ import numpy as np
 
 from .. import cautions
 from ..metrics import angle_between, rope_angle_rad
+from ..metrics_models import model_summary_lines
 
 
 def _clean(x):
@@ -127,13 +128,13 @@ def summary_text(summary, scene) -> str:
     w.append(f"  Static                           {_fmt(d['static_rope_tension_kN'], 'kN')}")
     w.append(f"  Peak                             {_fmt(d['peak_rope_tension_kN'], 'kN')}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}")
     w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 3)}")
-    for key, label in (("leg_tensions", "Sling legs"),):
-        if d.get(key):
-            w.append(f"  {label}: " + "; ".join(str(x) for x in d[key]))
+    # -- hook block, rigging, rigid load, elastic rope (swingsim/metrics_models.py) --
+    w.extend(model_summary_lines(d))
     w.append("")
     w.append("Swing period")
     mp = d["mode_periods_s"]
-    w.append(f"  Small-angle (2 pi sqrt(L/g))     {_fmt(d['natural_period_s'], 's', 3)}"
+    label = "Small-angle (2 pi sqrt(L/g))" if d["model"] == "point-mass" else "Longest mode (small angle)"
+    w.append(f"  {label:<33}{_fmt(d['natural_period_s'], 's', 3)}"
              + (f"; at the final rope length {_fmt(d['natural_period_end_s'], 's', 3)}" if abs(d['natural_period_end_s'] - d['natural_period_s']) > 1e-9 else ""))
     if len(mp) > 1:
         w.append("  Modes (small amplitude)          " + ", ".join(f"{p:.3f} s" for p in mp))

@@ -1,0 +1,912 @@
+"""Hook block and load: two-body swing, rigid loads on rigging, elastic hoist rope.
+
+One model class covers every combination the scene can describe:
+
+- a hook block (``[hook]``) of its own mass on the hoist rope, or none;
+- the load as a point mass or as a rigid body (``load.size_m`` /
+  ``load.inertia_kg_m2``) hung on a single leg, a bridle or a spreader
+  (``[rigging]``);
+- an inextensible hoist rope (length prescribed by the hoist motion) or an
+  elastic one (``rope.stiffness_kN_per_m`` / ``rope.modulus_GPa``), whose
+  stretched length is then a state.
+
+Generalised coordinates (all regular at hanging rest)
+------------------------------------------------------
+``u1, v1``
+    Horizontal components of the unit rope direction
+    :math:`n_1 = (u_1, v_1, -w_1)`, the chart of the point-mass model.
+``u2, v2``
+    Same for the sling leg below a hook block (single leg only).
+``a, b``
+    Tilt of a rigid load, :math:`R = R_x(a) R_y(b)`; yaw (turning about the
+    vertical) is held fixed: the load keeps its heading, an ideal constraint
+    torque about the vertical holds it.
+``ell``
+    Stretched rope length of an elastic rope.
+
+Notes
+-----
+Positions: hook :math:`H = p(t) + \\ell n_1` (plus the leg below for a hook
+that is only the rope's end), leg end :math:`A = H + l_2 n_2`, load CG
+:math:`G = P + R c` with :math:`P` the pivot (:math:`A` or :math:`H`) and
+:math:`c` the CG seen from the pivot in load axes.  Every point's acceleration
+is linear in :math:`\\ddot q`: :math:`\\ddot r_i = J_i \\ddot q + b_i(q, \\dot q, t)`,
+and the angular acceleration :math:`\\dot\\omega = J_\\omega \\ddot q + b_\\omega`,
+with :math:`\\omega = \\dot a\\, e_x + \\dot b\\, R_x(a) e_y`.  Kane's equations
+(the principle of virtual power; Kane & Levinson, *Dynamics: Theory and
+Applications*, 1985) give
+
+.. math::
+    M(q)\\,\\ddot q = Q, \\qquad
+    M = \\sum_i m_i J_i^T J_i + J_\\omega^T I_w J_\\omega,
+
+    Q = \\sum_i J_i^T (F_i - m_i b_i)
+        - J_\\omega^T\\left(I_w b_\\omega + \\omega \\times I_w \\omega\\right),
+
+:math:`I_w = R\\, I\\, R^T`, :math:`F_i` the applied forces (gravity,
+equivalent viscous damping of the swing, air drag and wind, the elastic
+rope's tension).  The inextensible rope's and the legs' tensions are
+constraint forces: they come out afterwards from each body's momentum balance
+(hoist rope :math:`T = n_1 \\cdot \\sum_i (F_i - m_i \\ddot r_i)`; single leg
+:math:`T_2 = n_2 \\cdot (F_G - m \\ddot r_G)`; bridle legs: the force the hook
+exerts on the load, :math:`m \\ddot r_G - F_G`, resolved along the legs, least
+squares, minimum norm for four legs).  The same equations are derived
+independently with ``sympy.physics.mechanics`` in the tests.
+
+Damping: a force :math:`-2\\zeta\\omega_d m_i (\\dot r_i - \\dot p - \\dot\\ell n_1
+- \\Omega \\hat z \\times (r_i - p))` on every mass (relative to the slewing jib,
+:math:`\\Omega` its slew rate, as in the point-mass model), :math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the
+hanging distance from the rope's end to the load's CG: the core model's
+damping in the point-mass limit (mass-proportional, so faster modes are damped
+less).  Drag acts at the CG (no aerodynamic moment), on the hook block when it
+has a size, and half the rope's drag acts at the rope's end as in the
+point-mass model.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import numpy as np
+
+from .. import constants as C
+from .pendulum import direction_from_projected
+from .rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
+from .rope import elastic_rope
+
+def _cx(a, b):
+    """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""
+    return (a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0])
+
+
+#: Names under which this model is registered in ``swingsim.solve.MODELS``.
+MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load")
+
+
+def model_name(scene) -> str | None:
+    """Which variant of this model a scene needs; None when the point-mass model fits.
+
+    ``hook-load``: a hook block; ``rigid-load``: a rigid load on the rope's end;
+    ``elastic-rope``: a point load on an elastic rope; ``sling-load``: a point
+    load on a sling leg below the rope's end (no hook block).
+    """
+    if scene.hook is not None:
+        return "hook-load"
+    if scene.rigid_load:
+        return "rigid-load"
+    if scene.rope.elastic:
+        return "elastic-rope"
+    if scene.rigging is not None:
+        return "sling-load"
+    return None
+
+
+class HookLoadModel:
+    """Hook block, rigid or point load on rigging, inextensible or elastic rope.
+
+    Same interface as :class:`~swingsim.dynamics.pendulum.PointMassModel`.
+    """
+
+    #: the solver passes ``Motion.local(t0, t1, with_slew_rate=True)`` as ``kin``
+    needs_slew_rate = True
+
+    def __init__(self, scene):
+        self.scene = scene
+        load, rope, wind = scene.load, scene.rope, scene.wind
+        rig, hook = scene.rigging, scene.hook
+        self.g = g = scene.gravity_m_s2
+        self.zeta = scene.damping_ratio
+        d = math.radians(wind.direction_deg)
+        self.wx, self.wy = wind.speed_m_s * math.cos(d), wind.speed_m_s * math.sin(d)
+        rho = wind.air_density_kg_m3
+        self.m = load.mass_kg
+        self.kd_load = 0.5 * rho * load.drag_coefficient * load.wind_area_m2 if load.wind_area_m2 else 0.0
+        self.kr = 0.5 * rho * rope.drag_coefficient * rope.diameter_m if rope.diameter_m else 0.0
+        self.has_hook = hook is not None
+        self.m_h = hook.mass_kg if hook else 0.0
+        self.kd_hook = 0.0
+        if hook and hook.size_m:
+            self.kd_hook = 0.5 * rho * hook.drag_coefficient * hook.size_m[0] * hook.size_m[2]
+        self.body = scene.rigid_load
+        self.kind = rig.kind if rig else "single"
+        legs = rig.leg_length_m if rig else (0.0,)
+        # a leg with a direction of its own only below a hook block
+        self.link2 = self.has_hook and self.kind == "single"
+        self.l2 = legs[0] if self.link2 else 0.0
+        self.extra = legs[0] if (not self.has_hook and self.kind == "single") else 0.0
+        self.geom = rigging_geometry(rig, load) if (rig is not None and self.body) else None
+        if self.body:
+            self.I_b = load_inertia(load)
+            self.c_b = self.geom.cg_from_pivot_b.copy()
+            self.attach_b = self.geom.attach_b
+        else:
+            self.I_b = None
+            self.c_b = np.zeros(3)
+            self.attach_b = np.zeros((1, 3))
+        self.m_total = self.m + self.m_h
+        self.rope = elastic_rope(rope, self.m_total * g, self.m_total)
+        self.elastic = self.rope is not None
+        self.lift_off = self.elastic and scene.start.rope_preload == "lift-off"
+        #: instant the load lifts off [s] (rope_preload = lift-off); set by initial_state
+        self.t_lift = None
+        #: instants where the solver must restart (read by swingsim.solve.simulate)
+        self.extra_breakpoints = ()
+        if self.lift_off:
+            # at t = 0 the rope is unstretched and slack by rope_slack_m
+            self.rope = replace(self.rope, lambda0_m=rope.length_m + scene.start.rope_slack_m)
+        self.L0 = rope.length_m
+        # hanging distance from the rope's end to the CG (for the damping frequency)
+        self.d_rest = self.extra + self.l2 + float(np.linalg.norm(self.c_b))
+        names = ["u1", "v1"]
+        if self.link2:
+            names += ["u2", "v2"]
+        self.ia = None
+        if self.body:
+            self.ia = len(names)
+            names += ["tilt_a", "tilt_b"]
+        self.il = None
+        if self.elastic:
+            self.il = len(names)
+            names += ["rope_len"]
+        self.nq = len(names)
+        self.state_names = tuple(names) + tuple("d" + n for n in names)
+        self.angle_limit_rad = math.radians(C.MODEL_ANGLE_LIMIT_DEG)
+        self._wlim = math.cos(self.angle_limit_rad)
+        self.k_legs = 1 if self.kind == "single" else len(self.attach_b)
+        self.wll_N = None
+        if rig is not None and rig.wll_kN is not None:
+            self.wll_N = np.array(rig.wll_kN) * 1e3
+        self.name = model_name(scene)
+        self._out_cache = []
+
+    # -- set-up ------------------------------------------------------------------
+    def initial_state(self, motion) -> np.ndarray:
+        """The whole hanging system tilted rigidly to ``start.swing_deg``, at rest relative to the support.
+
+        The suspension point, hook and load CG lie on one straight line; a rate
+        ``start.swing_rate_deg_s`` turns everything rigidly about the suspension
+        point (yaw part dropped for a rigid load).
+        """
+        sw = self.scene.start
+        u, v, du, dv = direction_from_projected(
+            math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
+            math.radians(sw.swing_rate_deg_s[0]), math.radians(sw.swing_rate_deg_s[1]))
+        w = math.sqrt(1.0 - u * u - v * v)
+        n1 = np.array([u, v, -w])
+        n1d = np.array([du, dv, (u * du + v * dv) / w])
+        Om = np.cross(n1, n1d)
+        q = [u, v]
+        qd = [du, dv]
+        if self.link2:
+            q += [u, v]
+            qd += [du, dv]
+        if self.body:
+            a0, b0 = self.geom.rest_tilt_rad
+            a, b = tilt_to_align(self.c_b, n1, guess=(a0, b0))
+            q += [a, b]
+            Jw = np.array([[1.0, 0.0], [0.0, math.cos(a)], [0.0, math.sin(a)]])
+            rates = np.linalg.lstsq(Jw, Om, rcond=None)[0]
+            qd += [float(rates[0]), float(rates[1])]
+        if self.elastic:
+            if sw.rope_preload == "none":
+                q.append(self.rope.lambda0_m)
+            else:  # static stretch, or resting at the hanging position (lift-off)
+                q.append(self.L0)
+            qd.append(0.0)
+        if self.lift_off:
+            self.t_lift = self.lift_off_time(motion)
+            # the solver restarts there: the equations change at lift-off
+            self.extra_breakpoints = (self.t_lift,) if math.isfinite(self.t_lift) else ()
+        return np.array(q + qd, dtype=float)
+
+    def lift_off_time(self, motion) -> float:
+        """First instant the rope's pull reaches the weight of everything it lifts [s] (inf if never).
+
+        While the load rests, the rope's stretched length stays the hanging length
+        and the hoist reels in unstretched rope: T(t) = k (L0 - lambda(t)) + c lambda'(t)
+        when taut.
+        """
+        from scipy.optimize import brentq
+
+        W = self.m_total * self.g
+        T_end = self.scene.duration_s
+
+        def excess(t):
+            e = motion.evaluate(np.array([t]))
+            T = self.rope.tension(self.L0, 0.0, float(e["L"][0]), float(e["dL"][0]))
+            lam = self.rope.unstretched(float(e["L"][0]))
+            return (T if self.L0 > lam else 0.0) - W
+
+        ts = np.union1d(np.linspace(0.0, T_end, 4001), [b for b in motion.breakpoints if b <= T_end])
+        prev_t, prev = ts[0], excess(ts[0])
+        if prev >= 0:
+            return 0.0
+        for t in ts[1:]:
+            v = excess(t)
+            if v >= 0:
+                return float(brentq(excess, prev_t, t, xtol=1e-13))
+            prev_t, prev = t, v
+        return math.inf
+
+    def rest_direction(self, rope_length_m: float) -> np.ndarray:
+        """Hoist rope direction with everything hanging at rest in the steady wind.
+
+        The massless rope carries the sum of the forces on everything below it:
+        gravity, the wind's drag on the load and hook, and half the rope's own
+        drag (fixed-point iteration, as for the point-mass model).
+        """
+        wv = np.array([self.wx, self.wy, 0.0])
+        sp = float(np.linalg.norm(wv))
+        F0 = np.array([0.0, 0.0, -self.m_total * self.g]) + (self.kd_load + self.kd_hook) * sp * wv
+        n = F0 / np.linalg.norm(F0)
+        for _ in range(60):
+            wn = wv - (wv @ n) * n
+            F = F0 + 0.5 * self.kr * rope_length_m * float(np.linalg.norm(wn)) * wn
+            n_new = F / np.linalg.norm(F)
+            if np.abs(n_new - n).sum() < 1e-15:
+                return n_new
+            n = n_new
+        return n
+
+    def rest_state(self, rope_length_m=None) -> np.ndarray:
+        """State of the hanging system at rest (fixed support) [chart units]."""
+        q = [0.0, 0.0]
+        if self.link2:
+            q += [0.0, 0.0]
+        if self.body:
+            q += list(self.geom.rest_tilt_rad)
+        if self.elastic:
+            L = self.L0 if rope_length_m is None else rope_length_m
+            lam = self.rope.unstretched(L)
+            q.append(lam + self.m_total * self.g / self.rope.stiffness(lam))
+        return np.array(q + [0.0] * self.nq)
+
+    # -- the equations -------------------------------------------------------------
+    def _qdd(self, y, kt):
+        """Generalised accelerations only: the solver's fast path (same equations as :meth:`_eval`).
+
+        Plain float arithmetic and one stacked Jacobian; the load's rotation in its own
+        axes, where the angular velocity is :math:`\\omega_b = (\\dot a \\cos b, \\dot b,
+        \\dot a \\sin b)` and the inertia is diagonal.  Checked against :meth:`_eval` and
+        the sympy derivation in the tests.
+        """
+        nq = self.nq
+        yl = y.tolist()
+        q, qd = yl[:nq], yl[nq:]
+        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt[:12]
+        om_s = kt[12] if len(kt) > 12 else 0.0
+        g = self.g
+        sqrt = math.sqrt
+        u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
+        w1 = sqrt(1.0 - u1 * u1 - v1 * v1)
+        s1 = u1 * du1 + v1 * dv1
+        n1z_d = s1 / w1
+        h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
+        il = self.il
+        if self.elastic:
+            ell, dell = q[il], qd[il]
+            T = self.rope.tension(ell, dell, L, dL)
+            T = T if T > 0.0 else 0.0
+            ddL_b = 0.0
+        else:
+            ell, dell = L, dL
+            T = 0.0
+            ddL_b = ddL
+        le = ell + self.extra
+        Hx, Hy, Hz = px + le * u1, py + le * v1, pz - le * w1
+        Hdx = vx + dell * u1 + le * du1
+        Hdy = vy + dell * v1 + le * dv1
+        Hdz = vz - dell * w1 + le * n1z_d
+        z = [0.0] * nq
+        Jx, Jy, Jz = z[:], z[:], z[:]
+        Jx[0] = le
+        Jy[1] = le
+        Jz[0] = le * u1 / w1
+        Jz[1] = le * v1 / w1
+        if il is not None:
+            Jx[il], Jy[il], Jz[il] = u1, v1, -w1
+        bx = ax + ddL_b * u1 + 2 * dell * du1
+        by = ay + ddL_b * v1 + 2 * dell * dv1
+        bz = az - ddL_b * w1 + 2 * dell * n1z_d + le * h1
+        rfx, rfy, rfz = vx + dell * u1, vy + dell * v1, vz - dell * w1
+        Ld = ell + self.d_rest
+        cdamp = 2.0 * self.zeta * sqrt(g / Ld) if Ld > 0.0 else 0.0
+        wx, wy = self.wx, self.wy
+        # forces at the rope's end
+        Fx = -T * u1
+        Fy = -T * v1
+        Fz = T * w1
+        if self.kr:
+            mx = 0.5 * (vx + Hdx) - wx
+            my = 0.5 * (vy + Hdy) - wy
+            mz = 0.5 * (vz + Hdz)
+            al = mx * u1 + my * v1 - mz * w1
+            nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
+            f = 0.5 * self.kr * ell * sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
+            Fx -= f * nx_
+            Fy -= f * ny_
+            Fz -= f * nz_
+        body, link2 = self.body, self.link2
+        mH = self.m_h + (0.0 if (body or link2) else self.m)
+        if mH > 0.0:
+            cm = cdamp * mH
+            Fx -= cm * (Hdx - rfx + om_s * (Hy - py))
+            Fy -= cm * (Hdy - rfy - om_s * (Hx - px))
+            Fz -= cm * (Hdz - rfz) + mH * g
+            kd = self.kd_hook if self.has_hook else self.kd_load
+            if kd:
+                rx, ry, rz = Hdx - wx, Hdy - wy, Hdz
+                sp = kd * sqrt(rx * rx + ry * ry + rz * rz)
+                Fx -= sp * rx
+                Fy -= sp * ry
+                Fz -= sp * rz
+        rows = [Jx, Jy, Jz]
+        fvec = [Fx - mH * bx, Fy - mH * by, Fz - mH * bz]
+        masses = [mH, mH, mH]
+        if body or link2:
+            Px, Py, Pz, Pdx, Pdy, Pdz = Hx, Hy, Hz, Hdx, Hdy, Hdz
+            Gx_, Gy_, Gz_ = Jx[:], Jy[:], Jz[:]
+            gbx, gby, gbz = bx, by, bz
+            if link2:
+                l2 = self.l2
+                u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
+                w2 = sqrt(1.0 - u2 * u2 - v2 * v2)
+                s2 = u2 * du2 + v2 * dv2
+                Px, Py, Pz = Hx + l2 * u2, Hy + l2 * v2, Hz - l2 * w2
+                Pdx, Pdy, Pdz = Hdx + l2 * du2, Hdy + l2 * dv2, Hdz + l2 * s2 / w2
+                Gx_[2] += l2
+                Gy_[3] += l2
+                Gz_[2] += l2 * u2 / w2
+                Gz_[3] += l2 * v2 / w2
+                gbz += l2 * ((du2 * du2 + dv2 * dv2) / w2 + s2 * s2 / (w2 * w2 * w2))
+            if body:
+                ia = self.ia
+                a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
+                ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
+                c0, c1, c2 = self.c_b
+                r0 = cb * c0 + sb * c2
+                r1 = sa * sb * c0 + ca * c1 - sa * cb * c2
+                r2 = -ca * sb * c0 + sa * c1 + ca * cb * c2
+                o0, o1, o2 = da, db * ca, db * sa  # world angular velocity
+                wr0, wr1, wr2 = o1 * r2 - o2 * r1, o2 * r0 - o0 * r2, o0 * r1 - o1 * r0
+                Gx, Gy, Gz = Px + r0, Py + r1, Pz + r2
+                Gdx, Gdy, Gdz = Pdx + wr0, Pdy + wr1, Pdz + wr2
+                # columns of a, b: ex x r, ey' x r
+                Gy_[ia] -= r2
+                Gz_[ia] += r1
+                Gx_[ia + 1] += ca * r2 - sa * r1
+                Gy_[ia + 1] += sa * r0
+                Gz_[ia + 1] -= ca * r0
+                # bias: bw x r + w x (w x r), bw = da db (0, -sa, ca)
+                k_ = da * db
+                bw1, bw2 = -k_ * sa, k_ * ca
+                gbx += bw1 * r2 - bw2 * r1 + (o1 * wr2 - o2 * wr1)
+                gby += bw2 * r0 + (o2 * wr0 - o0 * wr2)
+                gbz += -bw1 * r0 + (o0 * wr1 - o1 * wr0)
+            else:
+                Gx, Gy, Gz, Gdx, Gdy, Gdz = Px, Py, Pz, Pdx, Pdy, Pdz
+            m = self.m
+            cm = cdamp * m
+            FGx = -cm * (Gdx - rfx + om_s * (Gy - py))
+            FGy = -cm * (Gdy - rfy - om_s * (Gx - px))
+            FGz = -cm * (Gdz - rfz) - m * g
+            if self.kd_load:
+                rx, ry, rz = Gdx - wx, Gdy - wy, Gdz
+                sp = self.kd_load * sqrt(rx * rx + ry * ry + rz * rz)
+                FGx -= sp * rx
+                FGy -= sp * ry
+                FGz -= sp * rz
+            rows += [Gx_, Gy_, Gz_]
+            fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
+            masses += [m, m, m]
+        B = np.array(rows)
+        mw = np.array(masses)
+        M = B.T @ (mw[:, None] * B)
+        Q = B.T @ np.array(fvec)
+        if body:
+            I0, I1, I2 = self.I_b
+            # body-frame angular velocity and its bias; Euler's equations about the CG
+            wb0, wb1, wb2 = da * cb, db, da * sb
+            ab0, ab2 = -da * db * sb, da * db * cb
+            h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
+            h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
+            h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
+            M[ia, ia] += I0 * cb * cb + I2 * sb * sb
+            M[ia + 1, ia + 1] += I1
+            Q[ia] -= cb * h0 + sb * h2
+            Q[ia + 1] -= h1_
+        return np.linalg.solve(M, Q)
+
+    def _eval(self, y, kt, full=False, applied=True):
+        """Accelerations (and, with ``full``, everything the outputs need) at one instant.
+
+        ``kt`` is the 12-tuple of Motion.local; ``applied=False`` leaves out
+        damping, drag and wind (for the linearisation).
+        """
+        nq = self.nq
+        q, qd = y[:nq], y[nq:]
+        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt[:12]
+        om_s = kt[12] if len(kt) > 12 else 0.0  # the jib's slew rate (damping reference)
+        g = self.g
+        u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
+        w1 = math.sqrt(1.0 - u1 * u1 - v1 * v1)
+        s1 = u1 * du1 + v1 * dv1
+        n1z_d = s1 / w1
+        h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
+        if self.elastic:
+            ell, dell = q[self.il], qd[self.il]
+            rope_T = self.rope.tension(ell, dell, L, dL)
+            rope_Tc = rope_T if rope_T > 0.0 else 0.0
+            ddL_b = 0.0
+        else:
+            ell, dell = L, dL
+            ddL_b = ddL
+        le = ell + self.extra
+        # hook (rope end)
+        H = (px + le * u1, py + le * v1, pz - le * w1)
+        Hd = (vx + dell * u1 + le * du1, vy + dell * v1 + le * dv1, vz - dell * w1 + le * n1z_d)
+        JH = np.zeros((3, nq))
+        JH[0, 0] = le
+        JH[1, 1] = le
+        JH[2, 0] = le * u1 / w1
+        JH[2, 1] = le * v1 / w1
+        if self.elastic:
+            JH[:, self.il] = (u1, v1, -w1)
+        bH = np.array([ax + ddL_b * u1 + 2 * dell * du1,
+                       ay + ddL_b * v1 + 2 * dell * dv1,
+                       az - ddL_b * w1 + 2 * dell * n1z_d + le * h1])
+        # relative-velocity reference for damping: support + rope pay-out
+        ref = (vx + dell * u1, vy + dell * v1, vz - dell * w1)
+        Ld = ell + self.d_rest
+        cdamp = 2.0 * self.zeta * math.sqrt(g / Ld) if (applied and Ld > 0.0) else 0.0
+        wx, wy = (self.wx, self.wy) if applied else (0.0, 0.0)
+
+        pts_m, pts_J, pts_b, pts_F = [], [], [], []
+        # forces at the rope's end: rope drag (half the rope's), elastic tension
+        FH = np.zeros(3)
+        if applied and self.kr:
+            mx = 0.5 * (vx + Hd[0]) - wx
+            my = 0.5 * (vy + Hd[1]) - wy
+            mz = 0.5 * (vz + Hd[2])
+            al = mx * u1 + my * v1 - mz * w1
+            nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
+            spn = math.sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
+            f = 0.5 * self.kr * ell * spn
+            FH -= (f * nx_, f * ny_, f * nz_)
+        if self.elastic:
+            FH -= (rope_Tc * u1, rope_Tc * v1, -rope_Tc * w1)
+        mH = self.m_h + (0.0 if (self.body or self.link2) else self.m)
+        if mH > 0.0:
+            FH[2] -= mH * g
+            cm = cdamp * mH
+            FH -= (cm * (Hd[0] - ref[0] + om_s * (H[1] - py)), cm * (Hd[1] - ref[1] - om_s * (H[0] - px)),
+                   cm * (Hd[2] - ref[2]))
+            kd = self.kd_hook if self.has_hook else self.kd_load
+            if applied and kd:
+                rx, ry, rz = Hd[0] - wx, Hd[1] - wy, Hd[2]
+                sp = math.sqrt(rx * rx + ry * ry + rz * rz)
+                FH -= (kd * sp * rx, kd * sp * ry, kd * sp * rz)
+        pts_m.append(mH)
+        pts_J.append(JH)
+        pts_b.append(bH)
+        pts_F.append(FH)
+        P, Pd, JP, bP = H, Hd, JH, bH
+        n2 = None
+        if self.link2:
+            l2 = self.l2
+            u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
+            w2 = math.sqrt(1.0 - u2 * u2 - v2 * v2)
+            s2 = u2 * du2 + v2 * dv2
+            h2 = (du2 * du2 + dv2 * dv2) / w2 + s2 * s2 / (w2 * w2 * w2)
+            n2 = (u2, v2, -w2)
+            P = (H[0] + l2 * u2, H[1] + l2 * v2, H[2] - l2 * w2)
+            Pd = (Hd[0] + l2 * du2, Hd[1] + l2 * dv2, Hd[2] + l2 * s2 / w2)
+            JP = JH.copy()
+            JP[0, 2] += l2
+            JP[1, 3] += l2
+            JP[2, 2] += l2 * u2 / w2
+            JP[2, 3] += l2 * v2 / w2
+            bP = bH + (0.0, 0.0, l2 * h2)
+        m = self.m
+        if self.body:
+            ia = self.ia
+            a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
+            ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
+            R = np.array([[cb, 0.0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]])
+            c0, c1, c2 = self.c_b
+            r = (cb * c0 + sb * c2, sa * sb * c0 + ca * c1 - sa * cb * c2,
+                 -ca * sb * c0 + sa * c1 + ca * cb * c2)
+            om = (da, db * ca, db * sa)
+            bw = (0.0, -da * db * sa, da * db * ca)
+            G = np.array((P[0] + r[0], P[1] + r[1], P[2] + r[2]))
+            wxr = _cx(om, r)
+            Gd = np.array((Pd[0] + wxr[0], Pd[1] + wxr[1], Pd[2] + wxr[2]))
+            JG = JP.copy()
+            JG[:, ia] += (0.0, -r[2], r[1])
+            JG[:, ia + 1] += (ca * r[2] - sa * r[1], sa * r[0], -ca * r[0])
+            bG = bP + _cx(bw, r) + _cx(om, wxr)
+            Iw = (R * self.I_b) @ R.T
+            Jw = np.zeros((3, nq))
+            Jw[0, ia] = 1.0
+            Jw[1, ia + 1] = ca
+            Jw[2, ia + 1] = sa
+        else:
+            G, Gd, JG, bG = np.array(P), np.array(Pd), JP, bP
+        if self.body or self.link2:
+            FG = np.array([0.0, 0.0, -m * g])
+            FG -= cdamp * m * (Gd - ref + om_s * np.array([G[1] - py, px - G[0], 0.0]))
+            if applied and self.kd_load:
+                rel = Gd - (wx, wy, 0.0)
+                FG -= self.kd_load * math.sqrt(rel @ rel) * rel
+            pts_m.append(m)
+            pts_J.append(JG)
+            pts_b.append(bG)
+            pts_F.append(FG)
+        if len(pts_m) == 1:
+            J0 = pts_J[0]
+            M = pts_m[0] * (J0.T @ J0)
+            Qv = J0.T @ (pts_F[0] - pts_m[0] * pts_b[0])
+        else:
+            J0, J1 = pts_J
+            m0, m1 = pts_m
+            M = (m0 * J0.T) @ J0 + (m1 * J1.T) @ J1
+            Qv = J0.T @ (pts_F[0] - m0 * pts_b[0]) + J1.T @ (pts_F[1] - m1 * pts_b[1])
+        if self.body:
+            Iom = Iw @ om
+            M += Jw.T @ Iw @ Jw
+            Qv -= Jw.T @ (Iw @ bw + _cx(om, Iom))
+        qdd = np.linalg.solve(M, Qv)
+        if not full:
+            return qdd
+        out = {"qdd": qdd, "M": M, "Q": Qv, "H": np.array(H), "Hd": np.array(Hd), "G": G, "Gd": Gd,
+               "n1": np.array([u1, v1, -w1]), "ell": ell, "dell": dell}
+        aH = JH @ qdd + bH
+        aG = JG @ qdd + bG
+        if self.elastic:
+            out["rope_T"] = rope_Tc
+            out["rope_T_raw"] = rope_T
+        else:
+            # massless rope: T n1 = sum(F) - sum(m a) over all bodies (FH holds no tension here)
+            tot = FH - mH * aH
+            if self.body or self.link2:
+                tot = tot + FG - m * aG
+            out["rope_T"] = float(out["n1"] @ tot)
+        R_out = R if self.body else np.eye(3)
+        out["R"] = R_out
+        if self.body:
+            out["tilt"] = (a, b)
+            out["omega"] = om
+            out["Iw"] = Iw
+            out["Jw"] = Jw
+            out["bw"] = bw
+        # force the rigging exerts on the load
+        if self.body or self.link2:
+            Pload = m * aG - FG
+        else:
+            Pload = None
+        out["P_load"] = Pload
+        out["A"] = np.array(P)
+        out["legs_T"] = self._leg_tensions(out, n2, Pload)
+        out["top_T"] = self._top_tensions(out, Pload) if self.kind == "spreader" else None
+        e = 0.5 * mH * (np.dot(Hd, Hd)) + mH * g * H[2]
+        if self.body or self.link2:
+            e += 0.5 * m * float(Gd @ Gd) + m * g * float(G[2])
+        if self.body:
+            e += 0.5 * float(om @ (Iw @ om))
+        if self.elastic:
+            e += self.rope.energy(ell, L)
+        out["energy"] = e
+        return out
+
+    def _leg_tensions(self, o, n2, Pload):
+        """Tension in each sling leg [N] (see module Notes)."""
+        if self.kind == "single":
+            if self.link2:
+                return np.array([-float(np.dot(n2, Pload))])
+            return np.array([o["rope_T"]])
+        R, G = o["R"], o["G"]
+        Aw = G + self.attach_b @ R.T
+        if self.kind == "bridle":
+            E = o["A"] - Aw
+            E = E / np.linalg.norm(E, axis=1)[:, None]
+            return np.linalg.lstsq(E.T, Pload, rcond=None)[0]
+        # spreader drop legs, parallel to the load's z axis: the force along them and the
+        # moment about G the load needs (I_w alpha + omega x I_w omega), least squares
+        dz = R[:, 2]
+        A_mat = np.vstack([np.ones(len(Aw)), np.cross(Aw - G, dz).T])  # (4, k)
+        alpha = o["Jw"] @ o["qdd"] + o["bw"]
+        Iw, om = o["Iw"], o["omega"]
+        need = Iw @ alpha + np.cross(om, Iw @ om)
+        rhs = np.concatenate([[float(dz @ Pload)], need])
+        return np.linalg.lstsq(A_mat, rhs, rcond=None)[0]
+
+    def _resting_tensions(self, o):
+        """While resting: the rope's pull, and the legs' share of what it lifts beyond the hook block."""
+        T = max(o["rope_T"], 0.0)
+        share = min(max((T - self.m_h * self.g) / (self.m * self.g), 0.0), 1.0)
+        o["legs_T"] = np.asarray(self._hanging()["legs_T"], float) * share
+        if o.get("top_T") is not None:
+            o["top_T"] = self._hanging()["top_T"] * share
+
+    def _top_tensions(self, o, Pload):
+        R = o["R"]
+        ends = o["G"] + self.geom.ends_b @ R.T
+        E = o["A"] - ends
+        E = E / np.linalg.norm(E, axis=1)[:, None]
+        return np.linalg.lstsq(E.T, Pload, rcond=None)[0]
+
+    def accelerations(self, t, y, motion_or_kin, applied=True):
+        """Generalised accelerations at one state (tests, cross-checks)."""
+        kt = motion_or_kin(t) if callable(motion_or_kin) else motion_or_kin
+        y = np.asarray(y, float)
+        if applied:
+            return self._qdd(y, kt)
+        return self._eval(y, kt, applied=False)
+
+    def make_rhs(self, kin):
+        nq = self.nq
+        ev = self._eval
+
+        t_lift = self.t_lift if self.lift_off else None
+
+        fast = self._qdd
+
+        def rhs(t, y):
+            out = np.empty(2 * nq)
+            out[:nq] = y[nq:]
+            if t_lift is not None and t < t_lift:
+                out[nq:] = 0.0  # resting, supported: nothing moves until lift-off
+                return out
+            out[nq:] = fast(y, kin(t))
+            return out
+
+        return rhs
+
+    def make_events(self, kin):
+        """Terminal events: hoist rope or single leg slack; rope, leg or tilt at the chart's limit."""
+        wlim = self._wlim
+        ev = self._eval
+
+        # an elastic rope may start just taut (rope_preload = "none"): zero tension then is
+        # not slack; slack is a tension below a billionth of the weight
+        eps = 1e-9 * self.m_total * self.g if self.elastic else 0.0
+
+        t_lift = self.t_lift if self.lift_off else None
+
+        il, nq, rope = self.il, self.nq, self.rope
+
+        def slack(t, y):
+            if t_lift is not None and t <= t_lift:
+                return 1.0  # a slack rope before lift-off is the set-up, not a failure
+            if self.elastic:  # the spring law alone, no dynamics needed
+                k = kin(t)
+                return rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
+            return ev(y, kin(t), full=True)["rope_T"]
+
+        slack.terminal = True
+        slack.direction = -1
+        events = {"slack": slack}
+        if self.link2:
+            def leg_slack(t, y):
+                if t_lift is not None and t <= t_lift:
+                    return 1.0
+                return float(ev(y, kin(t), full=True)["legs_T"][0]) + 1e-9 * self.m * self.g
+
+            leg_slack.terminal = True
+            leg_slack.direction = -1
+            events["leg_slack"] = leg_slack
+
+        def overswing(t, y):
+            u, v = y[0], y[1]
+            val = math.sqrt(max(1.0 - u * u - v * v, 0.0)) - wlim
+            if self.link2:
+                val = min(val, math.sqrt(max(1.0 - y[2] ** 2 - y[3] ** 2, 0.0)) - wlim)
+            if self.body:
+                ia = self.ia
+                c = math.cos(y[ia]) * math.cos(y[ia + 1])  # R[2,2]: cosine of the tilt
+                val = min(val, c - wlim)
+            return val
+
+        overswing.terminal = True
+        overswing.direction = -1
+        events["overswing"] = overswing
+        return events
+
+    def event_message(self, name: str, t: float) -> str | None:
+        if name == "slack" and self.elastic:
+            return (f"the elastic hoist rope would go slack at t = {t:.3f} s (its tension falls to "
+                    "zero): the load would be thrown upward and snatch the rope on the way down; "
+                    "the results stop there")
+        if name == "leg_slack":
+            return (f"the sling leg would go slack at t = {t:.3f} s (its tension falls to zero): "
+                    "the load would snatch the sling; the results stop there")
+        return None
+
+    # -- small oscillations ----------------------------------------------------------
+    def _linear_MK(self, rope_length_m=None):
+        """Mass and stiffness matrices of the swing about hanging rest (fixed support)."""
+        L = self.L0 if rope_length_m is None else rope_length_m
+        y0 = self.rest_state(L)
+        kt = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, L, 0.0, 0.0)
+        nq = self.nq
+        M = self._eval(y0, kt, full=True, applied=False)["M"]
+        K = np.zeros((nq, nq))
+        h = 1e-6
+        for j in range(nq):
+            yp, ym = y0.copy(), y0.copy()
+            yp[j] += h
+            ym[j] -= h
+            Qp = self._eval(yp, kt, full=True, applied=False)["Q"]
+            Qm = self._eval(ym, kt, full=True, applied=False)["Q"]
+            K[:, j] = -(Qp - Qm) / (2 * h)
+        return M, 0.5 * (K + K.T)
+
+    def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
+        """Small-amplitude periods of the swing modes about hanging rest, longest first [s].
+
+        Linearised about rest with the support fixed: :math:`K \\phi = \\omega^2 M \\phi`
+        (generalised eigenproblem, scipy).  A degenerate pair of modes (the two
+        swing planes of a symmetric system) is listed once, as for the point-mass
+        model; a rigid load has distinct modes in its two planes, all listed.
+        The elastic rope's vertical bounce is
+        left out (see :meth:`bounce_period_s`); it does not couple with the swing
+        at rest.
+        """
+        from scipy.linalg import eigh
+
+        M, K = self._linear_MK(rope_length_m)
+        keep = [i for i in range(self.nq) if i != self.il]
+        w2 = eigh(K[np.ix_(keep, keep)], M[np.ix_(keep, keep)], eigvals_only=True)
+        w2 = np.sort(w2[w2 > 0])
+        out = []
+        for x in w2:  # a degenerate pair (both swing planes alike) counts once
+            if out and abs(x - out[-1]) <= 1e-9 * x:
+                continue
+            out.append(float(x))
+        return [2 * math.pi / math.sqrt(x) for x in out]
+
+    def bounce_period_s(self, rope_length_m: float | None = None) -> float | None:
+        """Period of the vertical bounce on the elastic rope, 2 pi sqrt(m / k) [s]; None if inextensible."""
+        if not self.elastic:
+            return None
+        L = self.L0 if rope_length_m is None else rope_length_m
+        k = self.rope.stiffness(self.rope.unstretched(L))
+        return 2 * math.pi * math.sqrt(self.m_total / k)
+
+    # -- outputs -----------------------------------------------------------------------
+    def outputs(self, t, Y, motion) -> dict:
+        """Derived quantities at times ``t`` for states ``Y`` (N, n); see PointMassModel.outputs.
+
+        Adds ``hook`` (N, 3) (None without a hook block), ``leg_tension_N`` (N, k),
+        ``attach_points`` (N, k, 3), ``load_rotation`` (N, 3, 3), ``load_tilt_deg``
+        (N, 2) (None for a point load), ``top_sling_tension_N`` (N, 2),
+        ``spreader_lugs`` (N, k, 3) and ``spreader_ends`` (N, 2, 3) for a spreader,
+        ``rope_stretch_m`` for an elastic rope, and the static leg loads.
+        """
+        t = np.asarray(t, dtype=float)
+        Y = np.asarray(Y, dtype=float)
+        key = (hash(t.tobytes()), hash(Y.tobytes()), t.shape, id(motion))
+        for k_, v_ in self._out_cache:  # plots, tables and metrics ask for the same samples
+            if k_ == key:
+                return dict(v_)
+        out = self._outputs(t, Y, motion)
+        self._out_cache = ([(key, out)] + self._out_cache)[:4]
+        return dict(out)
+
+    def _outputs(self, t, Y, motion) -> dict:
+        e = motion.evaluate(t)
+        N = len(t)
+        k = self.k_legs
+        keys = ("p", "dp", "ddp")
+        res = {n: np.empty((N, 3)) for n in ("H", "Hd", "G", "Gd", "n1")}
+        rope_T = np.empty(N)
+        legs = np.empty((N, k))
+        tops = np.empty((N, 2)) if self.kind == "spreader" else None
+        rot = np.empty((N, 3, 3))
+        tilt = np.empty((N, 2)) if self.body else None
+        ell = np.empty(N)
+        energy = np.empty(N)
+        for i in range(N):
+            kt = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
+                float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]), float(e["slew_rate"][i]))
+            o = self._eval(Y[i], kt, full=True)
+            if self.lift_off and t[i] < self.t_lift:
+                self._resting_tensions(o)
+            for n in res:
+                res[n][i] = o[n]
+            rope_T[i] = o["rope_T"]
+            legs[i] = o["legs_T"]
+            if tops is not None:
+                tops[i] = o["top_T"]
+            rot[i] = o["R"]
+            if tilt is not None:
+                tilt[i] = np.degrees(o["tilt"])
+            ell[i] = o["ell"]
+            energy[i] = o["energy"]
+        attach = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.attach_b) if self.body \
+            else res["G"][:, None, :].copy()
+        out = {
+            "suspension": e["p"], "suspension_vel": e["dp"], "rope_length": ell,
+            "load": res["G"], "load_vel": res["Gd"],
+            "hook": res["H"] if self.has_hook else None,
+            "hook_vel": res["Hd"] if self.has_hook else None,
+            "rope_dir": res["n1"], "rope_tension_N": rope_T, "energy_J": energy,
+            "static_rope_load_N": self.m_total * self.g,
+            "leg_tension_N": legs, "attach_points": attach, "load_rotation": rot,
+            "load_tilt_deg": tilt,
+            "static_leg_tension_N": self.static_leg_tension_N(),
+            "hanging_leg_tension_N": self.hanging_leg_tension_N(),
+        }
+        extra = {}
+        if tilt is not None:
+            extra["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))
+            extra["load_tilt_x_deg"] = tilt[:, 0]
+            extra["load_tilt_y_deg"] = tilt[:, 1]
+        for j in range(k):
+            extra[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
+        if self.kind == "spreader" and self.body:
+            # world positions of the beam's drop-leg lugs and end lugs (for drawing the beam)
+            out["spreader_lugs"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geom.lugs_b)
+            out["spreader_ends"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geom.ends_b)
+        if tops is not None:
+            out["top_sling_tension_N"] = tops
+            for j in range(2):
+                extra[f"top_sling_{j + 1}_tension_kN"] = tops[:, j] / 1e3
+        if self.elastic:
+            lam = np.array([self.rope.unstretched(x) for x in e["L"]])
+            out["rope_stretch_m"] = ell - lam
+            extra["rope_stretch_m"] = out["rope_stretch_m"]
+        out["extra_columns"] = extra
+        return out
+
+    # -- static leg loads ------------------------------------------------------------------
+    def _hanging(self) -> dict:
+        if getattr(self, "_hanging_cache", None) is None:
+            y0 = self.rest_state()
+            kt = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.L0, 0.0, 0.0)
+            self._hanging_cache = self._eval(y0, kt, full=True, applied=False)
+        return self._hanging_cache
+
+    def hanging_leg_tension_N(self) -> np.ndarray:
+        """Leg tensions with the system hanging at rest (static equilibrium, this model) [N]."""
+        return np.asarray(self._hanging()["legs_T"], float).copy()
+
+    def static_leg_tension_N(self) -> np.ndarray:
+        """Rigging rule: the load's weight shared equally over the legs, over cos(leg angle) [N].
+
+        Common practice (sling angle factor); the leg angle from vertical at rest.
+        Exact for a symmetric bridle; the hanging value of this model
+        (:meth:`hanging_leg_tension_N`) also holds for an off-centre CG.
+        """
+        W = self.m * self.g
+        if self.kind == "single":
+            return np.array([W])
+        R = rotation(*self.geom.rest_tilt_rad)
+        k = self.k_legs
+        if self.kind == "bridle":
+            d = (self.geom.hook_b - self.attach_b) @ R.T
+            cos = d[:, 2] / np.linalg.norm(d, axis=1)
+        else:
+            cos = np.full(k, R[2, 2])
+        return W / k / cos

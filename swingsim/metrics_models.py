@@ -1,0 +1,272 @@
+"""Summary numbers of the hook-and-load models: legs, tilt, bounce, measured modes.
+
+Kept apart from ``metrics.py`` (which measures what every model has): this
+module reads the extra outputs of :class:`~swingsim.dynamics.hook_load.HookLoadModel`
+and returns the extra ``summary.json`` keys, the extra cautions and the extra
+lines of ``summary.txt``.  A model without these outputs adds nothing.
+
+Definitions
+-----------
+leg dynamic factor
+    Peak tension of a leg over its tension with the system hanging at rest
+    (static equilibrium of the same model, which for a symmetric rig is the
+    rigging rule :math:`W / (n \\cos\\theta)`, common practice).
+measured mode periods
+    After the last move: the spectral peak of the swing coordinates (Hann
+    window, zero-padded FFT, parabolic peak interpolation) nearest each
+    small-amplitude mode period, where the motion has energy there.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+#: Leg angle from vertical above which a caution is raised [deg].  Common practice: slings
+#: at less than 30 deg from horizontal (60 deg from vertical) are not to be used, and legs
+#: beyond 45 deg from vertical carry markedly more than their share (rule of thumb).
+LEG_ANGLE_CAUTION_DEG = 45.0
+LEG_ANGLE_LIMIT_DEG = 60.0
+#: Tilt of the hanging load from level above which a caution is raised [deg] (rule of thumb).
+REST_TILT_CAUTION_DEG = 5.0
+
+
+def _peak(t, x):
+    i = int(np.argmax(x))
+    return float(x[i]), float(t[i])
+
+
+def measured_mode_periods(t, q, periods, t_from):
+    """Periods [s] measured from the spectrum of ``q`` (N, n) after ``t_from``; None where unseen."""
+    sel = t >= t_from
+    out = [None] * len(periods)
+    if sel.sum() < 64 or not periods:
+        return out
+    ts, qs = t[sel], q[sel]
+    span = ts[-1] - ts[0]
+    if span < 3.0 * max(periods):
+        return out
+    dt = float(np.median(np.diff(ts)))
+    tu = np.arange(ts[0], ts[-1], dt)
+    qu = np.column_stack([np.interp(tu, ts, qs[:, j]) for j in range(qs.shape[1])])
+    qu = qu - qu.mean(axis=0)
+    win = np.hanning(len(tu))
+    nfft = 1 << int(math.ceil(math.log2(len(tu) * 8)))
+    spec = np.zeros(nfft // 2 + 1)
+    for j in range(qu.shape[1]):
+        a = np.abs(np.fft.rfft(qu[:, j] * win, nfft))
+        if a.max() > 0:
+            spec += a / a.max()
+    f = np.fft.rfftfreq(nfft, dt)
+    if spec.max() <= 0:
+        return out
+    fs = [1.0 / T for T in periods]
+    res = 1.0 / span  # resolution of the record: modes closer than that cannot be told apart
+    for k, f0 in enumerate(fs):
+        others = [x for j, x in enumerate(fs) if j != k]
+        lo = max([0.85 * f0] + [0.5 * (f0 + x) for x in others if x < f0])
+        hi = min([1.15 * f0] + [0.5 * (f0 + x) for x in others if x > f0])
+        if hi - lo < 2 * res:
+            continue
+        band = np.nonzero((f > lo) & (f < hi))[0]
+        if band.size < 3:
+            continue
+        i = band[int(np.argmax(spec[band]))]
+        if i in (band[0], band[-1]) or spec[i] < 2e-3 * spec.max():
+            continue
+        y0, y1, y2 = spec[i - 1], spec[i], spec[i + 1]
+        den = y0 - 2 * y1 + y2
+        shift = 0.5 * (y0 - y2) / den if den != 0 else 0.0
+        fp = f[i] + shift * (f[1] - f[0])
+        out[k] = 1.0 / fp if fp > 0 else None
+    return out
+
+
+def model_metrics(traj, t, s) -> dict:
+    """Extra summary keys for a hook-and-load trajectory (empty for the point-mass model)."""
+    if "leg_tension_N" not in s:
+        return {}
+    model, scene = traj.model, traj.scene
+    d: dict = {}
+    d["hook_mass_kg"] = model.m_h if model.has_hook else None
+    d["load_modelled_as"] = "rigid body" if model.body else "point mass"
+    d["rigging_kind"] = model.kind if scene.rigging is not None else None
+    d["yaw_held_fixed"] = bool(model.body)
+    legs = s["leg_tension_N"]
+    static = model.static_leg_tension_N()
+    hanging = model.hanging_leg_tension_N()
+    wll = model.wll_N
+    rows = []
+    leg_dirs = _leg_angles_deg(traj, model, s)
+    for j in range(legs.shape[1]):
+        pk, pk_t = _peak(t, legs[:, j])
+        mn_i = int(np.argmin(legs[:, j]))
+        rows.append({
+            "leg": j + 1,
+            "peak_kN": pk / 1e3, "peak_time_s": pk_t,
+            "min_kN": float(legs[mn_i, j]) / 1e3, "min_time_s": float(t[mn_i]),
+            "static_rule_kN": float(static[j]) / 1e3,
+            "hanging_kN": float(hanging[j]) / 1e3,
+            "dynamic_factor": pk / float(hanging[j]) if hanging[j] > 0 else None,
+            "wll_kN": None if wll is None else float(wll[j]) / 1e3,
+            "peak_over_wll": None if wll is None else pk / float(wll[j]),
+            "angle_from_vertical_deg": None if leg_dirs is None else leg_dirs[j],
+        })
+    d["leg_tensions"] = rows
+    d["peak_leg_tension_kN"] = max(r["peak_kN"] for r in rows)
+    d["leg_peak_tensions_kN"] = [r["peak_kN"] for r in rows]
+    d["leg_dynamic_factors"] = [r["dynamic_factor"] for r in rows]
+    dfs = [r["dynamic_factor"] for r in rows if r["dynamic_factor"] is not None]
+    d["leg_dynamic_factor"] = max(dfs) if dfs else None
+    if "top_sling_tension_N" in s:
+        top = s["top_sling_tension_N"]
+        d["top_sling_peak_tension_kN"] = [float(np.max(top[:, j])) / 1e3 for j in range(2)]
+        d["top_sling_wll_kN"] = scene.rigging.top_wll_kN
+    if model.body:
+        tilt = s["extra_columns"]["load_tilt_deg"]
+        R0 = _rest_rotation(model)
+        d["rest_tilt_deg"] = float(np.degrees(np.arccos(np.clip(R0[2, 2], -1, 1))))
+        pk, pk_t = _peak(t, tilt)
+        d["peak_tilt_deg"], d["peak_tilt_time_s"] = pk, pk_t
+        # tilt relative to the hanging attitude (what the swing adds)
+        rz = s["load_rotation"][:, :, 2]
+        dev = np.degrees(np.arccos(np.clip(rz @ R0[:, 2], -1.0, 1.0)))
+        d["peak_tilt_from_rest_deg"] = float(np.max(dev))
+        post = t >= traj.motion.last_move_end_s - 1e-12
+        d["residual_tilt_from_rest_deg"] = float(np.max(dev[post])) if post.any() else None
+    if model.has_hook:
+        hor = s["hook"][:, :2] - s["suspension"][:, :2]
+        d["peak_hook_excursion_m"] = float(np.max(np.hypot(hor[:, 0], hor[:, 1])))
+    if model.elastic:
+        rp = model.rope
+        d["rope_elastic"] = True
+        d["rope_stiffness_kN_per_m"] = rp.stiffness(rp.lambda0_m) / 1e3
+        d["rope_stiffness_from"] = rp.source
+        d["bounce_period_s"] = model.bounce_period_s()
+        d["peak_rope_stretch_m"] = float(np.max(s["rope_stretch_m"]))
+        d["static_rope_stretch_m"] = model.m_total * model.g / rp.stiffness(rp.lambda0_m)
+        if model.lift_off:
+            d["lift_off_s"] = model.t_lift if math.isfinite(model.t_lift) else None
+    else:
+        d["rope_elastic"] = False
+    # measured periods of the swing modes after the last move
+    Y = traj.state(t)
+    cols = [i for i in range(model.nq) if i != model.il]
+    d["measured_mode_periods_s"] = measured_mode_periods(
+        t, Y[:, cols], list(model.mode_periods_s(float(traj.motion.evaluate(np.array([t[-1]]))["L"][0]))),
+        traj.motion.last_move_end_s)
+    return d
+
+
+def _rest_rotation(model):
+    from .dynamics.rigging import rotation
+
+    return rotation(*model.geom.rest_tilt_rad) if model.geom is not None else np.eye(3)
+
+
+def _leg_angles_deg(traj, model, s):
+    """Each leg's angle from vertical with the system hanging at rest [deg]."""
+    if model.kind == "single" or model.geom is None:
+        return [0.0]
+    R0 = _rest_rotation(model)
+    if model.kind == "bridle":
+        v = (model.geom.hook_b - model.attach_b) @ R0.T
+    else:
+        v = np.tile(R0[:, 2], (len(model.attach_b), 1))
+    return [float(np.degrees(np.arccos(np.clip(x[2] / np.linalg.norm(x), -1, 1)))) for x in v]
+
+
+def model_warnings(s: dict, scene) -> list[str]:
+    """Cautions about the rigging and the hook-and-load results."""
+    out = []
+    rows = s.get("leg_tensions") or []
+    many = len(rows) > 1
+    for r in rows:
+        name = f"Sling leg {r['leg']}" if many else "The sling leg"
+        if r["wll_kN"] is not None and r["peak_kN"] > r["wll_kN"]:
+            out.append(f"{name}: peak dynamic tension {r['peak_kN']:.2f} kN at t = {r['peak_time_s']:.1f} s "
+                       f"exceeds its declared working load limit of {r['wll_kN']:g} kN: the rigging "
+                       "plan, the sling selection and the competent person decide; do not lift on "
+                       "these numbers.")
+        elif r["wll_kN"] is not None and r["peak_kN"] > 0.9 * r["wll_kN"]:
+            out.append(f"{name}: peak dynamic tension {r['peak_kN']:.2f} kN is within 10% of its declared "
+                       f"working load limit of {r['wll_kN']:g} kN: little margin; check the rigging plan.")
+        if r["min_kN"] < 0.0:
+            out.append(f"{name} would go slack (its tension falls below zero at t = {r['min_time_s']:.1f} s): "
+                       "the load would shift in the rigging and snatch it; the rigid-rigging model "
+                       "does not hold there.")
+        a = r.get("angle_from_vertical_deg")
+        if a is not None and a > LEG_ANGLE_LIMIT_DEG:
+            out.append(f"{name} hangs {a:.0f} deg from vertical (less than 30 deg from horizontal): "
+                       "common practice is not to use slings at such angles.")
+        elif a is not None and a > LEG_ANGLE_CAUTION_DEG:
+            out.append(f"{name} hangs {a:.0f} deg from vertical: the leg carries "
+                       f"{1 / math.cos(math.radians(a)):.2f} times its share of the weight "
+                       "(rule of thumb caution angle 45 deg).")
+    if len(rows) >= 4 and scene.rigging is not None and scene.rigging.kind == "bridle":
+        out.append("A bridle of four or more legs on a rigid load is statically indeterminate: the "
+                   "leg tensions shown share the load evenly (minimum norm), but small differences in "
+                   "leg length can put it on two legs; common practice rates such a bridle as if "
+                   "only two legs carried the load (from memory): follow the rigging plan.")
+    if s.get("top_sling_peak_tension_kN") and s.get("top_sling_wll_kN"):
+        for j, pk in enumerate(s["top_sling_peak_tension_kN"]):
+            if pk > s["top_sling_wll_kN"]:
+                out.append(f"Spreader top sling {j + 1}: peak tension {pk:.2f} kN exceeds its declared "
+                           f"working load limit of {s['top_sling_wll_kN']:g} kN: check the rigging plan.")
+            elif pk > 0.9 * s["top_sling_wll_kN"]:
+                out.append(f"Spreader top sling {j + 1}: peak tension {pk:.2f} kN is within 10% of its "
+                           f"declared working load limit of {s['top_sling_wll_kN']:g} kN: little margin; "
+                           "check the rigging plan.")
+    rt = s.get("rest_tilt_deg")
+    if rt is not None and rt > REST_TILT_CAUTION_DEG:
+        out.append(f"The load hangs {rt:.1f} deg out of level at rest: its centre of gravity is not "
+                   "under the hook point; check the CG and the rigging geometry.")
+    if s.get("yaw_held_fixed"):
+        out.append("The rigid load's yaw (turning about the vertical) is held fixed in this model: "
+                   "spinning of the load is not simulated; use tag lines as the lift plan says.")
+    if "lift_off_s" in s and s["lift_off_s"] is None:
+        out.append("The load never lifts off in the simulated time: the hoist does not pull its weight "
+                   "into the rope.")
+    ldf = s.get("leg_dynamic_factor")
+    if ldf is not None and ldf > 1.15 and many:
+        out.append(f"Motion raises the sling leg tensions to {ldf:.2f} times their hanging values.")
+    return out
+
+
+def model_summary_lines(d: dict) -> list[str]:
+    """Extra lines of summary.txt (empty for the point-mass model)."""
+    if "leg_tensions" not in d:
+        return []
+    w = ["", "Hook block and rigging"]
+    if d.get("hook_mass_kg"):
+        w.append(f"  Hook block {d['hook_mass_kg']:g} kg; peak hook excursion "
+                 f"{d.get('peak_hook_excursion_m', 0.0):.2f} m")
+    w.append(f"  Load as a {d['load_modelled_as']}"
+             + (f" on a {d['rigging_kind']} rig" if d.get("rigging_kind") else ""))
+    for r in d["leg_tensions"]:
+        line = (f"  Leg {r['leg']}: peak {r['peak_kN']:.2f} kN at t = {r['peak_time_s']:.1f} s; "
+                f"hanging {r['hanging_kN']:.2f} kN (rule {r['static_rule_kN']:.2f} kN)")
+        if r["dynamic_factor"] is not None:
+            line += f"; dynamic factor {r['dynamic_factor']:.3f}"
+        if r["wll_kN"] is not None:
+            line += f"; WLL {r['wll_kN']:g} kN ({100 * r['peak_over_wll']:.0f}%)"
+        w.append(line)
+    if d.get("top_sling_peak_tension_kN"):
+        w.append("  Spreader top slings: peak " + ", ".join(f"{x:.2f} kN" for x in d["top_sling_peak_tension_kN"]))
+    if d.get("peak_tilt_deg") is not None:
+        w.append(f"  Load tilt: {d['rest_tilt_deg']:.2f} deg at rest; peak {d['peak_tilt_deg']:.2f} deg "
+                 f"from level, {d['peak_tilt_from_rest_deg']:.2f} deg from its hanging attitude "
+                 "(yaw held fixed)")
+    if d.get("rope_elastic"):
+        w.append(f"  Elastic rope: {d['rope_stiffness_kN_per_m']:.0f} kN/m ({d['rope_stiffness_from']}); "
+                 f"bounce period {d['bounce_period_s']:.3f} s; peak stretch {1000 * d['peak_rope_stretch_m']:.1f} mm "
+                 f"(static {1000 * d['static_rope_stretch_m']:.1f} mm)")
+    if "lift_off_s" in d:
+        w.append("  Lift-off: " + ("the hoist never pulls the weight into the rope" if d["lift_off_s"] is None
+                                   else f"at t = {d['lift_off_s']:.2f} s"))
+    mm = d.get("measured_mode_periods_s")
+    if mm and any(x is not None for x in mm):
+        w.append("  Measured mode periods after the moves: "
+                 + ", ".join("n/a" if x is None else f"{x:.3f} s" for x in mm))
+    return w

@@ -1,0 +1,301 @@
+"""render_scene: a run -> a video (MP4, GIF or PNG frames) and stills, headless.
+
+Frames are drawn at their true simulated times (the trajectory's dense output),
+posed on a stage that is built once, and streamed to the encoder.  A long MP4
+is split into frame ranges drawn by worker processes, whose segments are
+joined without re-encoding.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import sys
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import InputError
+from . import facts as F
+from .views import VIEWS
+
+FORMATS = ("mp4", "gif", "png")
+#: Frames drawn per sampling call: bounds memory for any clip length.
+CHUNK = 64
+#: Below this many frames one process draws everything: starting a worker costs about
+#: 1.5 s of CPU, and one process already renders 1280x720 at well over 30 frames/s
+#: on 2 cores; from about 15 s of video on, two workers are faster
+#: (benchmarks/bench_render.py: 20 s clip, 56 frames/s in one process, 70 with two).
+PARALLEL_MIN_FRAMES = 450
+
+
+def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:
+    """Simulated times of the frames of the window [t0, t1] [s].
+
+    ``round((t1 - t0) * fps / speed)`` frames, ``speed / fps`` simulated seconds apart,
+    the first at ``t0``.
+    """
+    n = max(1, int(round((t1 - t0) * fps / speed)))
+    return t0 + np.arange(n) * (speed / fps)
+
+
+def output_names(scene, out_dir, fmt, stills=True) -> dict:
+    """The files a render writes: {"video": path, "stills": {kind: path}}."""
+    out = Path(out_dir)
+    stem = scene.name
+    video = out / (f"{stem}.{fmt}" if fmt != "png" else f"{stem}_frames")
+    st = {k: out / f"{stem}_{k}.png" for k in ("peak_swing", "end_of_moves", "settled", "stopped")}
+    return {"video": video, "stills": st if stills else {}}
+
+
+def check_options(scene, *, size, fps, fmt, view, speed, window, split, source="render"):
+    """Validate render options; raise InputError (one line) naming the option and what is allowed."""
+    def bad(key, value, what):
+        return InputError(source, key, what, value)
+
+    w, h = size
+    if not (isinstance(w, int) and isinstance(h, int)) or w < 64 or h < 64 or w > 7680 or h > 4320:
+        raise bad("--size", f"{w}x{h}", "expected WIDTHxHEIGHT in pixels, each 64 to 7680 (height to 4320)")
+    if fmt == "mp4" and (w % 2 or h % 2):
+        raise bad("--size", f"{w}x{h}", "width and height must be even for H.264 (yuv420p) video")
+    if not (isinstance(fps, (int, float)) and math.isfinite(fps) and 1 <= fps <= 120):
+        raise bad("--fps", fps, "expected a frame rate from 1 to 120")
+    if fmt not in FORMATS:
+        raise bad("--format", fmt, "expected one of " + ", ".join(FORMATS))
+    if not (isinstance(speed, (int, float)) and math.isfinite(speed) and 0.01 <= speed <= 100):
+        raise bad("--speed", speed, "expected a playback speed from 0.01 (slow motion) to 100 (time-lapse)")
+    views = list(split) if split else [view]
+    if split and len(views) != 2:
+        raise bad("--split", ",".join(views), "expected two views separated by a comma, e.g. side,plan")
+    for v in views:
+        if v not in VIEWS:
+            raise bad("--split" if split else "--view", v, "expected one of " + ", ".join(VIEWS))
+        if v == "custom" and scene.view is None:
+            raise InputError(scene.file, "[view]", "the custom view needs a [view] table with "
+                             "position_m and focus_m in the scene")
+    if window is not None:
+        t0, t1 = window
+        if not (math.isfinite(t0) and math.isfinite(t1)) or t0 < 0 or t1 <= t0:
+            raise bad("--from/--to", f"{t0:g}..{t1:g}", "expected 0 <= from < to (seconds)")
+        if t0 >= scene.duration_s:
+            raise bad("--from", t0, f"must be before the end of the run (duration_s = {scene.duration_s:g})")
+    return views
+
+
+def _read_mesh(scene):
+    if scene.load.mesh_file is None:
+        return None
+    import pyvista as pv
+
+    from ..errors import SceneError
+
+    p = Path(scene.load.mesh_file)
+    full = p if p.is_absolute() else Path(scene.base_dir) / p
+    import warnings
+
+    import vtk
+
+    shown = vtk.vtkObject.GetGlobalWarningDisplay()
+    vtk.vtkObject.GlobalWarningDisplayOff()  # a bad file is reported once, below, not by VTK too
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            mesh = pv.read(full)
+    except Exception as exc:  # noqa: BLE001 - any reader failure is bad input
+        raise SceneError(scene.file, "load.mesh_file", f"cannot be read as a mesh ({type(exc).__name__})",
+                         scene.load.mesh_file) from None
+    finally:
+        vtk.vtkObject.SetGlobalWarningDisplay(shown)
+    if not isinstance(mesh, pv.PolyData):
+        mesh = mesh.extract_surface()
+    if mesh.n_points == 0:
+        raise SceneError(scene.file, "load.mesh_file", "the mesh has no points", scene.load.mesh_file)
+    return mesh.triangulate()
+
+
+def _progress(total, quiet, desc):
+    from tqdm import tqdm
+
+    return tqdm(total=total, unit="frame", desc=desc, disable=quiet or not sys.stderr.isatty(),
+                leave=False, dynamic_ncols=True)
+
+
+def _rows(samp: dict, n: int):
+    """Split a dict of sampled arrays (leading axis n) into one dict per sample."""
+    keys = [k for k, v in samp.items() if isinstance(v, np.ndarray) and v.ndim and len(v) == n]
+    const = {k: v for k, v in samp.items() if k not in keys}
+    for i in range(n):
+        row = dict(const)
+        for k in keys:
+            row[k] = samp[k][i]
+        yield row
+
+
+def draw_frames(stage, traj, times, video_t0_index=0, fps=30.0, on_frame=None):
+    """Pose and photograph ``stage`` at each of ``times``, yielding frames one by one."""
+    from .geometry import crane_pose
+
+    for c0 in range(0, len(times), CHUNK):
+        ts = times[c0:c0 + CHUNK]
+        samp = traj.sample(ts)
+        X, Y, phi, rho = crane_pose(traj.motion, ts)
+        for i, row in enumerate(_rows(samp, len(ts))):
+            k = video_t0_index + c0 + i
+            stage.pose(float(ts[i]), row, (float(X[i]), float(Y[i]), float(phi[i]), float(rho[i])),
+                       video_t=k / fps)
+            yield stage.grab()
+            if on_frame:
+                on_frame()
+
+
+def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4", view="oblique",
+                 speed=1.0, window=None, split=None, quiet=False, stills=True, workers=None,
+                 overwrite=True):
+    """Render a run as a 3D video and stills.
+
+    Parameters
+    ----------
+    traj : Trajectory
+        The solved run (``swingsim.simulate``).
+    summary : Summary or dict or None
+        Its measures (``swingsim.metrics.summarize``); measured from ``traj`` when None.
+    out_dir : str or Path
+        Folder to write into (made if missing).
+    size : (int, int)
+        Frame width and height [px].
+    fps : float
+        Frames per second of the video [1/s].
+    fmt : {"mp4", "gif", "png"}
+        H.264 MP4, animated GIF, or a folder of numbered PNG frames.
+    view : str
+        Camera: side, end, plan, oblique, follow, or custom (the scene's ``[view]``).
+    speed : float
+        Playback speed: 0.5 is slow motion, 2 a time-lapse [-].
+    window : (float, float) or None
+        Simulated time window [s] to show; the whole run by default.
+    split : (str, str) or None
+        Two views side by side instead of ``view``.
+    quiet : bool
+        No progress bar (there is none when stderr is not a terminal either).
+    stills : bool
+        Also write PNG stills at peak swing, at the end of the last move and when settled.
+    workers : int or None
+        Worker processes for MP4 (None: one per CPU when the clip is long enough).
+    overwrite : bool
+        Replace existing outputs; when False, an existing output is an InputError.
+
+    Returns
+    -------
+    list of Path
+        The video (file, or folder of PNG frames) first, then the stills.
+    """
+    from .gl import require_opengl
+
+    scene = traj.scene
+    size = tuple(size)
+    views = check_options(scene, size=size, fps=fps, fmt=fmt, view=view, speed=speed, window=window,
+                          split=split)
+    names = output_names(scene, out_dir, fmt, stills)
+    if not overwrite:
+        for p in [names["video"], *names["stills"].values()]:
+            if p.exists():
+                raise InputError(str(p), "", "exists already; use --force to replace it")
+    require_opengl()
+    mesh = _read_mesh(scene)
+    facts = F.collect(traj, summary)
+    t_end = float(traj.t_end_s)
+    t0, t1 = (0.0, t_end) if window is None else (float(window[0]), min(float(window[1]), t_end))
+    times = frame_times(t0, t1, fps, speed)
+    video_len = len(times) / fps
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    nproc = workers if workers is not None else (os.cpu_count() or 1)
+    parallel = fmt == "mp4" and nproc > 1 and len(times) >= (PARALLEL_MIN_FRAMES if workers is None else 2)
+    written = []
+    if parallel:
+        from .parallel import render_parallel
+
+        written.append(render_parallel(traj, summary, names["video"], times, size=size, fps=fps,
+                                       views=views, speed=speed, video_len=video_len, workers=nproc,
+                                       quiet=quiet))
+        stage = None
+    else:
+        stage = _stage(traj, facts, size, views, mesh, speed, video_len)
+        try:
+            written.append(_write_video(stage, traj, names["video"], times, size, fps, fmt, quiet))
+        except BaseException:
+            stage.close()
+            raise
+    if names["stills"]:
+        if stage is None:
+            stage = _stage(traj, facts, size, views, mesh, speed, video_len)
+        try:
+            written += write_stills(stage, traj, facts, names["stills"])
+        finally:
+            stage.close()
+    elif stage is not None:
+        stage.close()
+    return written
+
+
+def _stage(traj, facts, size, views, mesh, speed, video_len):
+    from .stage import Stage
+
+    return Stage(traj, facts, size=size, views=views, load_mesh=mesh, speed=speed, video_len_s=video_len)
+
+
+def _write_video(stage, traj, target, times, size, fps, fmt, quiet, video_t0_index=0, video_len=None):
+    from . import writers as W
+
+    if fmt == "mp4":
+        sink = W.Mp4Writer(target, size, fps)
+    elif fmt == "gif":
+        k = np.linspace(0, len(times) - 1, min(8, len(times))).round().astype(int)
+        sample = list(draw_frames(stage, traj, times[k], fps=fps))
+        sink = W.GifWriter(target, size, fps, sample)
+    else:
+        sink = W.PngSequenceWriter(target, size, fps)
+    bar = _progress(len(times), quiet, Path(target).name)
+    try:
+        for frame in draw_frames(stage, traj, times, video_t0_index, fps, on_frame=lambda: bar.update()):
+            sink.write(frame)
+        path = sink.close()
+    except BaseException:
+        sink.abort()
+        raise
+    finally:
+        bar.close()
+    return path
+
+
+def still_times(facts) -> dict:
+    """Times of the stills [s]: peak swing, end of the last move, settled (when it settles).
+
+    A run that stopped early (slack rope, overswing) has a still of its last valid
+    instant instead of the moments it never reached.
+    """
+    t = {"peak_swing": facts.peak_time_s}
+    if 0 < facts.last_move_end_s <= facts.t_end_s:
+        t["end_of_moves"] = facts.last_move_end_s
+    if facts.settled_at_s is not None:
+        t["settled"] = facts.settled_at_s
+    if facts.status != "ok":
+        t["stopped"] = facts.t_end_s
+    return t
+
+
+def write_stills(stage, traj, facts, targets: dict) -> list:
+    """PNG stills at the moments of :func:`still_times`, with the caution line (no banner)."""
+    from . import writers as W
+    from .geometry import crane_pose
+
+    out = []
+    for kind, t in still_times(facts).items():
+        if kind not in targets:
+            continue
+        ts = np.array([t])
+        row = next(_rows(traj.sample(ts), 1))
+        X, Y, phi, rho = crane_pose(traj.motion, ts)
+        stage.pose(t, row, (float(X[0]), float(Y[0]), float(phi[0]), float(rho[0])), video_t=None)
+        out.append(W.write_png(targets[kind], stage.grab()))
+    return out

@@ -1,0 +1,116 @@
+"""``swingsim render SCENE --out DIR``: a 3D briefing video and stills of a scene.
+
+An extension subcommand: ``add_arguments(parser)`` fills an argparse parser and
+``main(args) -> int`` runs it.  Importing this module does not import pyvista.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from .views import VIEWS
+
+HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
+
+
+def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> None:
+    """Options of ``swingsim render`` (also used by ``swingsim run --video``)."""
+    if scene:
+        parser.add_argument("scene", metavar="SCENE", help="scene file (TOML)")
+        parser.add_argument("--out", "-o", metavar="DIR", default=None,
+                            help="folder for the video and stills (default: <scene name>-video)")
+        parser.add_argument("--force", action="store_true",
+                            help="write into a non-empty output folder, replacing only this render's files")
+        parser.add_argument("--quiet", "-q", action="store_true", help="no progress bar, no list of files")
+    g = parser.add_argument_group("video")
+    g.add_argument("--size", metavar="WxH", default="1280x720", help="frame size in pixels (default 1280x720)")
+    g.add_argument("--fps", type=float, default=30.0, help="frames per second (default 30)")
+    g.add_argument("--format", dest="fmt", choices=("mp4", "gif", "png"), default="mp4",
+                   help="mp4 (H.264), gif, or png (a folder of numbered frames); default mp4")
+    g.add_argument("--view", default="oblique", metavar="VIEW",
+                   help="camera: " + ", ".join(VIEWS) + " (custom: the scene's [view]); default oblique")
+    g.add_argument("--split", metavar="VIEW1,VIEW2", default=None,
+                   help="two views side by side, e.g. side,plan")
+    g.add_argument("--speed", type=float, default=1.0,
+                   help="playback speed: 0.5 slow motion, 2 time-lapse (default 1)")
+    g.add_argument("--from", dest="t_from", type=float, default=None, metavar="SECONDS",
+                   help="start of the time window shown [s]")
+    g.add_argument("--to", dest="t_to", type=float, default=None, metavar="SECONDS",
+                   help="end of the time window shown [s]")
+    g.add_argument("--no-stills", dest="stills", action="store_false",
+                   help="do not write the PNG stills")
+
+
+def parse_size(text: str):
+    """``"1280x720"`` -> (1280, 720); raises InputError on anything else."""
+    from ..errors import InputError
+
+    try:
+        w, h = (int(x) for x in str(text).lower().split("x"))
+    except ValueError:
+        raise InputError("render", "--size", "expected WIDTHxHEIGHT in pixels, e.g. 1280x720", text) from None
+    return w, h
+
+
+def options(args, scene) -> dict:
+    """Keyword arguments of :func:`render_scene` from parsed arguments."""
+    window = None
+    if args.t_from is not None or args.t_to is not None:
+        window = (args.t_from if args.t_from is not None else 0.0,
+                  args.t_to if args.t_to is not None else scene.duration_s)
+    split = tuple(v.strip() for v in args.split.split(",")) if args.split else None
+    return dict(size=parse_size(args.size), fps=args.fps, fmt=args.fmt, view=args.view, speed=args.speed,
+                window=window, split=split, stills=getattr(args, "stills", True))
+
+
+def main(args) -> int:
+    """Run ``swingsim render``; returns the exit code (0 done, 1 run or renderer failed, 2 bad input)."""
+    from ..errors import InputError, SimulationError
+    from ..scene import load_scene
+    from ..solve import simulate
+    from .api import check_options
+    from .gl import RenderUnavailableError
+
+    from ..report.files import check_out_dir
+
+    try:
+        scene = load_scene(args.scene)
+        opts = options(args, scene)
+        check_options(scene, **{k: v for k, v in opts.items() if k != "stills"})
+        out = check_out_dir(args.out or f"{Path(args.scene).stem}-video", args.force)
+    except InputError as exc:
+        print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
+        return 2
+    try:
+        traj = simulate(scene)
+        summary = _summary(traj)
+        from .api import render_scene
+
+        paths = render_scene(traj, summary, out, quiet=args.quiet, **opts)
+    except InputError as exc:
+        print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
+        return 2
+    except (RenderUnavailableError, SimulationError) as exc:
+        print(f"swingsim: {exc}", file=sys.stderr)
+        return 1
+    except OSError as exc:
+        print(f"swingsim: cannot write to {out}: {exc.strerror or exc}", file=sys.stderr)
+        return 1
+    except RuntimeError as exc:  # encoder or worker failure, already one line
+        print(f"swingsim: {exc}", file=sys.stderr)
+        return 1
+    if not args.quiet:
+        for p in paths:
+            print(p)
+    if not traj.valid:
+        print(f"swingsim: run invalid: {traj.message}; the video stops there", file=sys.stderr)
+        return 1
+    return 0
+
+
+def _summary(traj):
+    from ..metrics import summarize
+
+    return summarize(traj)

@@ -1,0 +1,82 @@
+"""What the renderer needs to know about a run: event times and the quantities shown.
+
+Reads them from the run's :class:`~swingsim.metrics.Summary` (``summary.data``;
+made with :func:`swingsim.metrics.summarize` when none is given), so the video
+labels the same peak and settling instants as the report.  No drawing here.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+
+@dataclass(frozen=True)
+class Event:
+    """A labelled instant of the lift [s]."""
+
+    t_s: float
+    label: str
+    kind: str  # "move_start", "move_end", "peak", "settled", "stopped"
+
+
+@dataclass(frozen=True)
+class Facts:
+    """Event times of a run [s] and the peak swing [deg]."""
+
+    t_end_s: float
+    peak_angle_deg: float
+    peak_time_s: float
+    last_move_end_s: float
+    settled_at_s: float | None
+    status: str
+    message: str
+    events: tuple = field(default_factory=tuple)
+
+
+def rope_angle_deg(rope_dir) -> np.ndarray:
+    """Rope angle from the vertical [deg] of unit rope directions (N, 3) pointing down."""
+    n = np.asarray(rope_dir, dtype=float)
+    return np.degrees(np.arccos(np.clip(-n[..., 2], -1.0, 1.0)))
+
+
+def _get(summary, name):
+    if summary is None:
+        return None
+    data = getattr(summary, "data", summary)
+    try:
+        return data.get(name)
+    except AttributeError:
+        return None
+
+
+def collect(traj, summary=None) -> Facts:
+    """Facts of a run, from ``summary`` (``swingsim.metrics.summarize``; made when None)."""
+    if summary is None:
+        from ..metrics import summarize
+
+        summary = summarize(traj)
+    peak = float(_get(summary, "peak_rope_angle_deg"))
+    peak_t = float(_get(summary, "peak_rope_angle_time_s"))
+    last = _get(summary, "last_move_end_s")
+    last = float(traj.motion.last_move_end_s if last is None else last)
+    settled = _get(summary, "settled_at_s")
+    events = []
+    scene = traj.scene
+    for (axis, prof), move in zip(traj.motion.moves, scene.moves):
+        events.append(Event(float(prof.start_s), f"{move.name}: starts", "move_start"))
+        events.append(Event(float(prof.end_s), f"{move.name}: ends", "move_end"))
+    events.append(Event(float(peak_t), f"Peak swing {float(peak):.1f} deg", "peak"))
+    if settled is not None and math.isfinite(settled):
+        events.append(Event(float(settled), "Settled: swing below "
+                            f"{scene.limits.settle_deg:g} deg", "settled"))
+    else:
+        settled = None
+    if traj.status != "ok":
+        events.append(Event(float(traj.t_end_s), f"Run stopped: {traj.status}", "stopped"))
+    events.sort(key=lambda e: e.t_s)
+    return Facts(t_end_s=float(traj.t_end_s), peak_angle_deg=float(peak), peak_time_s=float(peak_t),
+                 last_move_end_s=float(last), settled_at_s=settled, status=traj.status,
+                 message=traj.message, events=tuple(events))

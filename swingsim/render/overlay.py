@@ -1,0 +1,117 @@
+"""The words drawn over each frame: readouts, event labels and the caution.
+
+Pure functions of a frame's time and sampled state, so the text of every frame
+can be checked without rendering anything.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+try:  # one place for the caution wording once the core has it
+    from ..cautions import CAUTION as _CAUTION, CAUTION_SHORT as _CAUTION_SHORT
+except ImportError:  # pragma: no cover - until swingsim.cautions is on main
+    _CAUTION = ("Planning and training preview only. It does not replace the lift plan, the crane "
+                "manufacturer's data, local regulations, or the competent person in charge of the lift.")
+    _CAUTION_SHORT = "Preview only - the lift plan and the competent person decide."
+
+#: Seconds of video at the start and at the end that carry the full caution banner.
+BANNER_S = 3.0
+#: Seconds of simulated time an event label stays on screen.
+EVENT_HOLD_S = 2.5
+
+
+def caution_line(max_chars: int = 200) -> str:
+    """The small caution shown on every frame, wrapped to ``max_chars`` a line."""
+    return _wrap(_CAUTION_SHORT, max_chars)
+
+
+def banner_text(max_chars: int = 70) -> str:
+    """The caution banner of the first and last seconds (wrapped for the screen)."""
+    return _wrap(_CAUTION, max_chars)
+
+
+def _wrap(text: str, width: int) -> str:
+    import textwrap
+
+    return "\n".join(textwrap.wrap(text, width))
+
+
+def banner_on(video_t_s: float, video_len_s: float) -> bool:
+    """Whether the banner shows at video time ``video_t_s`` of a clip ``video_len_s`` long."""
+    if video_t_s is None:  # a still
+        return False
+    hold = min(BANNER_S, 0.25 * video_len_s) if video_len_s > 0 else BANNER_S
+    return video_t_s < hold or video_t_s >= video_len_s - hold
+
+
+@dataclass(frozen=True)
+class FrameText:
+    """All text of one frame."""
+
+    clock: str
+    readout: str
+    event: str
+    zone: str
+    caution: str
+    banner: str
+    stopped: str = ""
+
+    def strings(self) -> list[str]:
+        return [self.clock, self.readout, self.event, self.zone, self.caution, self.banner, self.stopped]
+
+
+def clock_text(t_s: float, speed: float) -> str:
+    tag = ""
+    if speed < 0.999:
+        tag = f"   slow motion x{speed:g}"
+    elif speed > 1.001:
+        tag = f"   time-lapse x{speed:g}"
+    return f"t = {t_s:6.2f} s{tag}"
+
+
+def readout_text(angle_deg: float, speed_m_s: float, tension_kN: float, rope_m: float) -> str:
+    rows = [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
+            ("tension", f"{tension_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
+    return "\n".join(f"{a:<12}{b:>7} {c:<3}" for a, b, c in rows)
+
+
+def event_text(t_s: float, events) -> str:
+    """Labels of the events in the last EVENT_HOLD_S seconds, newest last."""
+    on = [e.label for e in events if e.t_s <= t_s + 1e-9 and t_s - e.t_s < EVENT_HOLD_S]
+    return "\n".join(on[-3:])
+
+
+def zone_text(names) -> str:
+    if not names:
+        return ""
+    return "Load near zone: " + ", ".join(names)
+
+
+def stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
+    """Near the end of a run that stopped early: when and why (the results stop there)."""
+    if facts is None or facts.status == "ok" or t_s < facts.t_end_s - hold_s:
+        return ""
+    why = facts.message.split(" at t = ")[0].split(":")[0] if facts.message else facts.status
+    return f"RUN STOPPED at t = {facts.t_end_s:.2f} s: {why}.\nNothing after this instant can be shown."
+
+
+def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
+               events, near_zones, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
+    """The text of the frame at simulated time ``t_s`` (``row``: one sample of the run)."""
+    from .facts import rope_angle_deg
+
+    ang = float(rope_angle_deg(row["rope_dir"]))
+    spd = float(np.linalg.norm(row["load_vel"]))
+    ten = float(row["rope_tension_N"]) / 1000.0
+    return FrameText(
+        clock=clock_text(t_s, speed),
+        readout=readout_text(ang, spd, ten, float(row["rope_length"])),
+        event=event_text(t_s, events),
+        zone=zone_text(near_zones),
+        caution=caution_line(line_chars),
+        banner=banner_text(banner_chars) if banner_on(video_t_s, video_len_s) else "",
+        stopped=stopped_text(t_s, facts),
+    )

@@ -1,0 +1,202 @@
+"""Frame sinks that stream to disk: MP4 (H.264, yuv420p), GIF and numbered PNGs.
+
+Each writes under a temporary name in the target's own folder
+(``swingsim.report.files``) and renames it into place on success (so a reader never sees half a file, and a failed render
+leaves nothing behind); frames are passed on one at a time, never all held.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import subprocess
+import tempfile
+from pathlib import Path
+
+import numpy as np
+
+from ..report.files import TMP_PREFIX, WRITTEN, atomic_path
+
+#: H.264 settings: 'veryfast' keeps the encoder ahead of the renderer on two cores;
+#: CRF 20 is visually clean for flat-shaded pictures (common practice: 18-23).
+X264_PRESET = "veryfast"
+X264_CRF = "20"
+
+
+def _tmp_name(target: Path, suffix: str = "") -> Path:
+    """A temporary file beside ``target`` that ``report.files.clean_partials`` knows to remove."""
+    fd, name = tempfile.mkstemp(prefix=TMP_PREFIX + target.name + "-", suffix=suffix, dir=target.parent)
+    os.close(fd)
+    return Path(name)
+
+
+def replace(tmp: Path, target: Path) -> None:
+    """Move the folder ``tmp`` onto ``target``, replacing an older folder of that name."""
+    if target.is_dir() and not target.is_symlink():
+        old = target.with_name(f"{TMP_PREFIX}{target.name}-old-{os.getpid()}")
+        os.replace(target, old)
+        os.replace(tmp, target)
+        shutil.rmtree(old, ignore_errors=True)
+    else:
+        os.replace(tmp, target)
+
+
+class _Atomic:
+    """``report.files.atomic_path`` held open across many writes: finish() renames, abort() removes."""
+
+    def __init__(self, target: Path):
+        self._cm = atomic_path(target, suffix=".part")
+        self.tmp = self._cm.__enter__()
+
+    def finish(self):
+        self._cm.__exit__(None, None, None)
+
+    def abort(self):
+        err = RuntimeError("aborted")
+        self._cm.__exit__(RuntimeError, err, None)
+
+
+def write_png(path, image: np.ndarray) -> Path:
+    """One PNG, written atomically."""
+    import imageio.v3 as iio
+
+    with atomic_path(path) as tmp:
+        iio.imwrite(tmp, image, extension=".png", compress_level=3)
+    return Path(path)
+
+
+class _Pipe:
+    """ffmpeg reading raw RGB frames from a pipe."""
+
+    def __init__(self, target: Path, size, fps: float, out_args: list, extra_inputs: list = ()):
+        import imageio_ffmpeg
+
+        self.target = Path(target)
+        self.target.parent.mkdir(parents=True, exist_ok=True)
+        self._file = _Atomic(self.target)
+        self.tmp = self._file.tmp
+        w, h = size
+        cmd = [imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "rawvideo",
+               "-pix_fmt", "rgb24", "-s", f"{w}x{h}", "-r", f"{fps:g}", "-i", "pipe:0",
+               *extra_inputs, *out_args, str(self.tmp)]
+        self.proc = subprocess.Popen(cmd, stdin=subprocess.PIPE, stdout=subprocess.DEVNULL,
+                                     stderr=subprocess.PIPE)
+        self.count = 0
+
+    def write(self, frame: np.ndarray) -> None:
+        try:
+            self.proc.stdin.write(np.ascontiguousarray(frame, dtype=np.uint8).tobytes())
+        except BrokenPipeError:
+            self._fail()
+        self.count += 1
+
+    def _fail(self):
+        err = self.proc.stderr.read().decode(errors="replace").strip().splitlines()
+        self.abort()
+        raise RuntimeError("the video encoder (ffmpeg) failed: " + (err[-1] if err else "no message"))
+
+    def close(self) -> Path:
+        self.proc.stdin.close()
+        rc = self.proc.wait()
+        if rc != 0:
+            self._fail()
+        self.proc.stderr.close()
+        self._file.finish()
+        return self.target
+
+    def abort(self) -> None:
+        try:
+            self.proc.kill()
+            self.proc.wait()
+        except OSError:
+            pass
+        self._file.abort()
+
+
+class Mp4Writer(_Pipe):
+    """H.264 in MP4 with yuv420p colour, which ordinary players and slide software open."""
+
+    def __init__(self, target, size, fps, threads=None):
+        extra = [] if threads is None else ["-threads", str(threads)]
+        super().__init__(target, size, fps, ["-an", "-c:v", "libx264", "-preset", X264_PRESET,
+                                             "-crf", X264_CRF, "-pix_fmt", "yuv420p", *extra,
+                                             "-movflags", "+faststart", "-f", "mp4"])
+
+
+class GifWriter(_Pipe):
+    """Animated GIF with one palette made beforehand from sample frames (so frames stream)."""
+
+    def __init__(self, target, size, fps, palette_frames):
+        self._pal = _tmp_name(Path(target), ".png")
+        write_palette(self._pal, palette_frames)
+        super().__init__(target, size, fps, ["-lavfi", "[0:v][1:v]paletteuse=dither=bayer:bayer_scale=4",
+                                             "-loop", "0", "-f", "gif"], extra_inputs=["-i", str(self._pal)])
+
+    def close(self):
+        try:
+            return super().close()
+        finally:
+            self._pal.unlink(missing_ok=True)
+
+    def abort(self):
+        super().abort()
+        self._pal.unlink(missing_ok=True)
+
+
+def write_palette(path: Path, frames) -> None:
+    """A 16x16 PNG of the 256 colours that best cover ``frames`` (median cut, Pillow)."""
+    from PIL import Image
+
+    stack = np.concatenate([np.asarray(f)[::2, ::2] for f in frames], axis=0)
+    q = Image.fromarray(stack).quantize(colors=256, method=Image.Quantize.MEDIANCUT)
+    pal = np.array(q.getpalette()[:768], dtype=np.uint8).reshape(-1, 3)
+    if len(pal) < 256:
+        pal = np.concatenate([pal, np.repeat(pal[-1:], 256 - len(pal), axis=0)])
+    Image.fromarray(pal.reshape(16, 16, 3)).save(path, format="PNG")
+
+
+class PngSequenceWriter:
+    """Numbered PNGs ``frame_00000.png``... in a folder, renamed into place at the end."""
+
+    def __init__(self, target, size, fps):
+        self.target = Path(target)
+        self.target.parent.mkdir(parents=True, exist_ok=True)
+        self.tmp = Path(tempfile.mkdtemp(prefix=TMP_PREFIX + self.target.name + "-", dir=self.target.parent))
+        mask = os.umask(0)
+        os.umask(mask)
+        os.chmod(self.tmp, 0o777 & ~mask)
+        self.count = 0
+
+    def write(self, frame):
+        import imageio.v3 as iio
+
+        iio.imwrite(self.tmp / f"frame_{self.count:05d}.png", frame, extension=".png", compress_level=1)
+        self.count += 1
+
+    def close(self) -> Path:
+        replace(self.tmp, self.target)
+        WRITTEN.append(self.target)
+        return self.target
+
+    def abort(self):
+        shutil.rmtree(self.tmp, ignore_errors=True)
+
+
+def concat_mp4(parts, target: Path) -> Path:
+    """Join MP4 segments of identical encoding into one file without re-encoding (ffmpeg concat)."""
+    import imageio_ffmpeg
+
+    target = Path(target)
+    listing = _tmp_name(target, ".txt")
+    try:
+        listing.write_text("".join(f"file '{Path(p).resolve().as_posix()}'\n" for p in parts), encoding="utf-8")
+        with atomic_path(target, suffix=".part") as tmp:
+            r = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "concat",
+                                "-safe", "0", "-i", str(listing), "-c", "copy", "-movflags", "+faststart",
+                                "-f", "mp4", str(tmp)], capture_output=True)
+            if r.returncode != 0:
+                msg = r.stderr.decode(errors="replace").strip().splitlines()
+                raise RuntimeError("joining the video segments failed: " + (msg[-1] if msg else "no message"))
+    finally:
+        listing.unlink(missing_ok=True)
+    return target

@@ -1,0 +1,74 @@
+"""rigging.png: sling leg tensions against their limits, and the load's tilt or the hook's whip.
+
+Drawn only for the hook-and-load models (``leg_tension_N`` in the outputs).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .plots import GREY, INK, LIMIT, LOAD, ROPE, _figure, _footer, _moves
+from .tables import timeseries_columns
+
+LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
+
+
+def rigging_figure(traj, summary):
+    """Leg tensions (top) and the load's tilt, or the leg's angle to the rope (bottom); None if no legs."""
+    c = timeseries_columns(traj)
+    legs = [k for k in c if k.startswith("leg_") and k.endswith("_tension_kN")]
+    if not legs:
+        return None
+    d = summary.data
+    t = c["t_s"]
+    plt, fig = _figure(10.0, 7.0)
+    ax = fig.add_axes([0.08, 0.46, 0.88, 0.44])
+    for j, k in enumerate(legs):
+        ax.plot(t, c[k], color=LEG_COLOURS[j % len(LEG_COLOURS)], lw=1.4, label=f"leg {j + 1}")
+    for j, k in enumerate(x for x in c if x.startswith("top_sling_")):
+        ax.plot(t, c[k], color=GREY, lw=1.1, ls="--" if j == 0 else ":", label=f"top sling {j + 1}")
+    rows = d.get("leg_tensions") or []
+    hang = sorted({round(r["hanging_kN"], 6) for r in rows})
+    for h in hang:
+        ax.axhline(h, color=INK, lw=0.8, ls=":", zorder=1)
+    if hang:
+        ax.plot([], [], color=INK, lw=0.8, ls=":", label="hanging at rest")
+    wlls = sorted({r["wll_kN"] for r in rows if r["wll_kN"] is not None})
+    for w in wlls:
+        ax.axhline(w, color=LIMIT, lw=1.2, ls="-.", zorder=1)
+    if wlls:
+        ax.plot([], [], color=LIMIT, lw=1.2, ls="-.", label="declared leg WLL")
+    if d.get("top_sling_wll_kN") and d.get("top_sling_peak_tension_kN"):
+        ax.axhline(d["top_sling_wll_kN"], color=GREY, lw=1.2, ls="-.", zorder=1)
+        ax.plot([], [], color=GREY, lw=1.2, ls="-.", label="declared top sling WLL")
+    ax.set_ylabel("tension [kN]")
+    lo, hi = ax.get_ylim()
+    ax.set_ylim(min(lo, 0.0) if np.min([c[k].min() for k in legs]) < 0 else lo, hi)
+    _moves(ax, traj.scene, traj.motion)
+    ax.legend(loc="lower right", fontsize=8, framealpha=0.9)
+    ax.grid(alpha=0.3)
+    ax.tick_params(labelbottom=False)
+    ax2 = fig.add_axes([0.08, 0.10, 0.88, 0.32], sharex=ax)
+    if "load_tilt_deg" in c:
+        ax2.plot(t, c["load_tilt_x_deg"], color=ROPE, lw=1.3, label="tilt about x")
+        ax2.plot(t, c["load_tilt_y_deg"], color=LOAD, lw=1.3, label="tilt about y")
+        ax2.plot(t, c["load_tilt_deg"], color=INK, lw=0.9, ls=":", label="out of level (either way)")
+        ax2.set_ylabel("tilt [deg]")
+    else:
+        s = traj.sample(t)
+        if s.get("hook") is not None:
+            n1 = s["rope_dir"]
+            leg = s["load"] - s["hook"]
+            leg = leg / np.linalg.norm(leg, axis=1)[:, None]
+            ang = np.degrees(np.arctan2(np.linalg.norm(np.cross(n1, leg), axis=1), np.sum(n1 * leg, axis=1)))
+            ax2.plot(t, ang, color=LOAD, lw=1.5, label="sling leg to hoist rope (whip)")
+            ax2.set_ylabel("angle [deg]")
+        elif "rope_stretch_m" in c:
+            ax2.plot(t, 1000 * c["rope_stretch_m"], color=ROPE, lw=1.5, label="rope stretch")
+            ax2.set_ylabel("stretch [mm]")
+    ax2.set_xlabel("time [s]")
+    ax2.grid(alpha=0.3)
+    if ax2.lines:
+        ax2.legend(loc="upper right", fontsize=8, framealpha=0.9)
+    _footer(fig, f"{traj.scene.title}: sling legs and load attitude")
+    return fig

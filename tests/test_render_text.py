@@ -1,0 +1,202 @@
+"""Render pieces that need no OpenGL: frame timing, overlay words, options, scene keys.
+
+These run everywhere (no pyvista import); the drawing itself is tested in
+``test_render_video.py``.
+"""
+
+import argparse
+import sys
+
+import numpy as np
+import pytest
+
+from swingsim import cautions
+from swingsim.errors import InputError, SceneError
+from swingsim.render import overlay as O
+from swingsim.render.api import check_options, frame_times, output_names, still_times
+from swingsim.render.facts import collect, rope_angle_deg
+from swingsim.solve import simulate
+
+from conftest import make_scene
+
+MOVE = {"axis": "x", "profile": "trapezoid", "start_s": 1.0, "distance_m": 6.0, "speed_m_s": 1.0,
+        "accel_m_s2": 0.5, "label": "travel east"}
+
+
+def test_import_does_not_load_pyvista():
+    import subprocess
+
+    code = ("import sys; import swingsim, swingsim.render, swingsim.render.cli, swingsim.render.api; "
+            "print(any(m.split('.')[0] in ('pyvista', 'vtk', 'vtkmodules') for m in sys.modules))")
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert r.stdout.strip() == "False"
+
+
+@pytest.mark.parametrize("t0,t1,fps,speed", [(0, 2, 30, 1), (0, 2, 30, 0.5), (1.5, 4.0, 24, 2.0), (0, 1, 7, 0.3)])
+def test_frame_times_count_and_spacing(t0, t1, fps, speed):
+    t = frame_times(t0, t1, fps, speed)
+    # Frames of a clip of (t1 - t0) simulated seconds played at `speed`: duration * fps / speed.
+    assert len(t) == round((t1 - t0) * fps / speed)
+    assert t[0] == t0
+    np.testing.assert_allclose(np.diff(t), speed / fps, rtol=1e-12)
+    assert t[-1] < t1
+
+
+def test_caution_in_every_frame_and_banner_only_at_the_ends():
+    s = make_scene(moves=[MOVE])
+    traj = simulate(s)
+    facts = collect(traj)
+    times = frame_times(0, s.duration_s, 10, 1.0)
+    video_len = len(times) / 10
+    samp = traj.sample(times)
+    banner = []
+    for i, t in enumerate(times):
+        row = {k: (v[i] if isinstance(v, np.ndarray) and v.ndim and len(v) == len(times) else v)
+               for k, v in samp.items()}
+        ft = O.frame_text(t, i / 10, video_len, 1.0, row, facts.events, [])
+        text = " ".join(ft.strings())
+        # The short caution (from swingsim.cautions, one place for the wording) is on every frame.
+        assert " ".join(ft.caution.split()) == cautions.CAUTION_SHORT
+        assert "competent person" in text
+        banner.append(bool(ft.banner))
+        if ft.banner:
+            assert " ".join(ft.banner.split()) == cautions.CAUTION
+    banner = np.array(banner)
+    hold = int(O.BANNER_S * 10)
+    assert banner[:hold].all() and banner[-hold:].all()
+    assert not banner[hold:-hold].any()
+
+
+def test_readout_matches_the_run():
+    s = make_scene(moves=[MOVE])
+    traj = simulate(s)
+    row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([3.0]).items()}
+    ft = O.frame_text(3.0, 3.0, 20.0, 1.0, row, (), [])
+    n = row["rope_dir"]
+    # Rope angle from the vertical: arccos of the downward component of the unit rope vector.
+    ang = np.degrees(np.arccos(-n[2]))
+    assert f"{ang:6.1f}" in ft.readout
+    assert f"{np.linalg.norm(row['load_vel']):6.2f}" in ft.readout
+    assert f"{row['rope_tension_N'] / 1000:6.1f}" in ft.readout
+    assert ft.clock.startswith("t =") and "3.00 s" in ft.clock
+    assert "slow motion x0.5" in O.clock_text(1.0, 0.5) and "time-lapse x2" in O.clock_text(1.0, 2.0)
+    assert rope_angle_deg(np.array([0.0, np.sin(0.1), -np.cos(0.1)])) == pytest.approx(np.degrees(0.1))
+
+
+def test_events_from_the_summary():
+    s = make_scene({"damping": {"ratio": 0.08}}, moves=[MOVE], duration_s=40.0)
+    traj = simulate(s)
+    from swingsim.metrics import summarize
+
+    sm = summarize(traj)
+    facts = collect(traj, sm)
+    kinds = [e.kind for e in facts.events]
+    assert kinds.count("move_start") == 1 and kinds.count("move_end") == 1
+    assert facts.peak_time_s == pytest.approx(sm.data["peak_rope_angle_time_s"])
+    assert facts.settled_at_s == pytest.approx(sm.data["settled_at_s"])
+    assert "settled" in kinds
+    st = still_times(facts)
+    assert set(st) == {"peak_swing", "end_of_moves", "settled"}
+    assert st["end_of_moves"] == pytest.approx(traj.motion.last_move_end_s)
+    t_start = [e.t_s for e in facts.events if e.kind == "move_start"][0]
+    assert O.event_text(t_start + 0.5, facts.events) == "travel east: starts"
+    assert "travel east: starts" not in O.event_text(t_start + O.EVENT_HOLD_S + 0.1, facts.events)
+    assert O.event_text(facts.peak_time_s + 0.1, facts.events).endswith(f"Peak swing {facts.peak_angle_deg:.1f} deg")
+
+
+def test_no_settled_still_when_it_never_settles():
+    s = make_scene(moves=[MOVE], duration_s=12.0)
+    facts = collect(simulate(s))
+    assert facts.settled_at_s is None
+    assert set(still_times(facts)) == {"peak_swing", "end_of_moves"}
+
+
+@pytest.mark.parametrize("kw,key", [
+    (dict(size=(641, 360)), "--size"), (dict(size=(20, 20)), "--size"), (dict(fps=0), "--fps"),
+    (dict(fmt="avi"), "--format"), (dict(view="top"), "--view"), (dict(split=("side",)), "--split"),
+    (dict(split=("side", "sky")), "--split"), (dict(speed=0.0), "--speed"), (dict(window=(3.0, 1.0)), "--from/--to"),
+    (dict(window=(25.0, 30.0)), "--from"), (dict(view="custom"), "[view]"),
+])
+def test_bad_options_are_one_line(kw, key):
+    s = make_scene()
+    opts = dict(size=(320, 240), fps=10, fmt="mp4", view="side", speed=1.0, window=None, split=None)
+    opts.update(kw)
+    with pytest.raises(InputError) as e:
+        check_options(s, **opts)
+    assert key in str(e.value) and "\n" not in str(e.value)
+
+
+def test_output_names():
+    s = make_scene()
+    n = output_names(s, "out", "mp4")
+    assert n["video"].name == "scene.mp4"
+    assert sorted(p.name for p in n["stills"].values()) == ["scene_end_of_moves.png", "scene_peak_swing.png",
+                                                            "scene_settled.png", "scene_stopped.png"]
+    assert output_names(s, "out", "png")["video"].name == "scene_frames"
+
+
+def test_view_table_is_read_and_checked():
+    s = make_scene({"view": {"position_m": [30, -20, 10], "focus_m": [0, 0, 20]}})
+    assert s.view.position_m == (30.0, -20.0, 10.0) and s.view.up == (0.0, 0.0, 1.0)
+    assert s.view.view_angle_deg == 30.0
+    assert make_scene().view is None
+    with pytest.raises(SceneError, match=r"view.focus_m.*missing"):
+        make_scene({"view": {"position_m": [30, -20, 10]}})
+    with pytest.raises(SceneError, match=r"view.up.*line of sight"):
+        make_scene({"view": {"position_m": [0, 0, 50], "focus_m": [0, 0, 0]}})
+    with pytest.raises(SceneError, match=r"view.fov_deg: unknown key.*view_angle_deg"):
+        make_scene({"view": {"position_m": [1, 0, 0], "focus_m": [0, 0, 0], "fov_deg": 20}})
+
+
+def test_load_mesh_file_is_checked(tmp_path):
+    from swingsim.scene import scene_from_dict
+
+    from conftest import BASE
+
+    def scene(name):
+        d = dict(BASE, load={"mass_kg": 1000.0, "mesh_file": name})
+        return scene_from_dict(d, file="s.toml", base_dir=tmp_path)
+
+    with pytest.raises(SceneError, match=r"s.toml: load.mesh_file = 'part.step': expected an STL, OBJ or PLY"):
+        scene("part.step")
+    with pytest.raises(SceneError, match=r"load.mesh_file = 'missing.stl': file not found"):
+        scene("missing.stl")
+    (tmp_path / "ok.STL").write_bytes(b"solid x\nendsolid x\n")
+    assert scene("ok.STL").load.mesh_file == "ok.STL"
+    with pytest.raises(SceneError, match="load.shape"):
+        scene_from_dict(dict(BASE, load={"mass_kg": 1.0, "shape": "sphere"}))
+
+
+def test_cli_bad_size_is_exit_2_and_writes_nothing(tmp_path, capsys):
+    from swingsim.render import cli
+
+    p = argparse.ArgumentParser()
+    cli.add_arguments(p)
+    scene = tmp_path / "s.toml"
+    scene.write_text('title = "t"\nduration_s = 5.0\n[crane]\nsuspension_m = [0.0, 0.0, 20.0]\n'
+                     '[rope]\nlength_m = 8.0\n[load]\nmass_kg = 500.0\n')
+    out = tmp_path / "out"
+    for bad in (["--size", "big"], ["--size", "321x240"], ["--split", "side"], ["--view", "custom"],
+                ["--from", "9"]):
+        rc = cli.main(p.parse_args([str(scene), "--out", str(out), *bad]))
+        err = capsys.readouterr().err
+        assert rc == 2, bad
+        assert err.count("\n") == 1 and err.startswith("swingsim: error: "), err
+    assert not out.exists()
+    rc = cli.main(p.parse_args([str(tmp_path / "nope.toml"), "--out", str(out)]))
+    assert rc == 2 and "file not found" in capsys.readouterr().err
+
+
+def test_a_run_that_stops_early_says_so_at_its_end():
+    # hoisting down at 12 m/s^2, more than g: the rope goes slack when the move starts
+    s = make_scene(moves=[{"axis": "hoist", "profile": "trapezoid", "start_s": 2.0, "distance_m": -6.0,
+                           "speed_m_s": 8.0, "accel_m_s2": 12.0}], duration_s=8.0)
+    traj = simulate(s)
+    assert traj.status == "slack"
+    facts = collect(traj)
+    assert set(still_times(facts)) == {"peak_swing", "stopped"}
+    row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([1.9]).items()}
+    late = O.frame_text(traj.t_end_s - 0.1, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
+    early = O.frame_text(0.2, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
+    assert late.stopped.startswith(f"RUN STOPPED at t = {traj.t_end_s:.2f} s: the hoist rope would go slack.")
+    assert early.stopped == ""
