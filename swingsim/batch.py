@@ -67,7 +67,7 @@ __all__ = ["run_batch", "run_chunk", "supported", "chunks", "SUMMARY_KEYS",
 #: Fixed steps per shortest swing period (see the module docstring).
 DEFAULT_STEPS_PER_PERIOD = 12
 #: Samples of the dense interpolant per step.
-DEFAULT_SAMPLES_PER_STEP = 4
+DEFAULT_SAMPLES_PER_STEP = 3
 #: Target number of values per sampled array of a chunk.
 _CHUNK_VALUES = 400_000
 
@@ -261,12 +261,12 @@ class _Kin:
         """
         extra = tau.ndim - (c.ndim - 2)
 
-        def poly(a):
+        def poly(a, need_pos=True):
             k = c[..., a, :]
             k0, k1, k2, k3 = (k[..., i] for i in range(4))
             if extra:
                 k0, k1, k2, k3 = (x[..., None] for x in (k0, k1, k2, k3))
-            pos = k0 + tau * (k1 + tau * (k2 + tau * k3))
+            pos = k0 + tau * (k1 + tau * (k2 + tau * k3)) if need_pos else None
             vel = k1 + tau * (2.0 * k2 + 3.0 * tau * k3)
             acc = 2.0 * k2 + 6.0 * tau * k3
             return pos, vel, acc
@@ -274,15 +274,16 @@ class _Kin:
         def ext(a):
             return a.reshape(a.shape + (1,) * (tau.ndim - 1))
 
-        zero = np.zeros_like(tau)
+        zero = 0.0  # a scalar: an axis that does not move costs no array work
         ix, iy, isl, ir, ih = range(5)
-        X = poly(ix) if self.used[ix] else (zero, zero, zero)
-        Y = poly(iy) if self.used[iy] else (zero, zero, zero)
+        # travel positions are not needed: the point-mass model sees only p' and p''
+        X = poly(ix, False) if self.used[ix] else (zero, zero, zero)
+        Y = poly(iy, False) if self.used[iy] else (zero, zero, zero)
         if self.used[ih]:
             H, dH, ddH = poly(ih)
             L, dL, ddL = ext(self.L0) - H, -dH, -ddH
         else:
-            L, dL, ddL = ext(self.L0) + zero, zero, zero
+            L, dL, ddL = ext(self.L0), zero, zero
         if self.slewing:
             S, dS, ddS = poly(isl)
             R, dR, ddR = poly(ir)
@@ -297,7 +298,7 @@ class _Kin:
             ay = Y[2] + ar * sn + at * cs
             return vx, vy, ax, ay, L, dL, ddL, dS
         if self.radial:  # radius moves without slewing: a fixed direction
-            R, dR, ddR = poly(ir)
+            R, dR, ddR = poly(ir, False)
             cs, sn = ext(self.cos0), ext(self.sin0)
             return (X[1] + dR * cs, Y[1] + dR * sn, X[2] + ddR * cs, Y[2] + ddR * sn,
                     L, dL, ddL, 0.0)
@@ -536,14 +537,18 @@ def _dense(run: _Run, sel, S: int):
     h = np.diff(tg, axis=1)[..., None]          # (b, N, 1)
     frac = np.arange(S) / S
     H, dH = _hermite_basis(frac)                # (6, S)
-    Y = run.Y[:, :, sel]                          # (N+1, 4, b)
+    # rows of this block, each quantity contiguous along time
+    Y = np.ascontiguousarray(run.Y[:, :, sel].transpose(2, 1, 0))     # (b, 4, N+1)
+    A0 = np.ascontiguousarray(run.A0[:, :, sel].transpose(2, 1, 0))   # (b, 2, N)
+    A1 = np.ascontiguousarray(run.A1[:, :, sel].transpose(2, 1, 0))
     out = []
     h2 = h[..., 0]
     hs = np.where(h2 > 0, h2, 1.0)[..., None]
+    hh = h2 * h2
     for q in (0, 1):
-        b0 = Y[:-1, q + 2].T
-        coefs = np.stack([Y[:-1, q].T, h2 * b0, h2 * h2 * run.A0[:, q, sel].T,
-                          Y[1:, q].T, h2 * Y[1:, q + 2].T, h2 * h2 * run.A1[:, q, sel].T], axis=-1)
+        b0 = Y[:, q + 2, :-1]
+        coefs = np.stack([Y[:, q, :-1], h2 * b0, hh * A0[:, q],
+                          Y[:, q, 1:], h2 * Y[:, q + 2, 1:], hh * A1[:, q]], axis=-1)
         # explicit sums (not matmul/BLAS, see _combine): the same rounding for every element
         val = coefs[..., 0, None] * H[0]
         der = coefs[..., 0, None] * dH[0]
@@ -551,8 +556,8 @@ def _dense(run: _Run, sel, S: int):
             val = val + coefs[..., m, None] * H[m]
             der = der + coefs[..., m, None] * dH[m]
         der = np.where(h > 0, der / hs, b0[..., None])
-        out.append(np.concatenate([val.reshape(Bs, -1), Y[-1, q, :, None]], axis=1))
-        out.append(np.concatenate([der.reshape(Bs, -1), Y[-1, q + 2, :, None]], axis=1))
+        out.append(np.concatenate([val.reshape(Bs, -1), Y[:, q, -1:]], axis=1))
+        out.append(np.concatenate([der.reshape(Bs, -1), Y[:, q + 2, -1:]], axis=1))
     u, du, v, dv = out
     ts = np.concatenate([(tg[:, :-1, None] + frac * h).reshape(Bs, -1), tg[:, -1:]], axis=1)
     # kinematics at the samples, on each step's own segment
@@ -568,8 +573,10 @@ def _dense(run: _Run, sel, S: int):
     kl = kin(c[:, -1], (tg[:, -1] - run.t0s[sel][ar[:, 0], sg[:, -1]]))
     kin_s = []
     for a, b in zip(kk, kl):
-        if np.isscalar(a):
-            kin_s.append(a)
+        if np.ndim(a) == 0:
+            kin_s.append(a)              # zero for every sample
+        elif np.shape(a) != tau.shape:
+            kin_s.append(np.reshape(a, (Bs, 1)))  # constant in time (a rope that is not hoisted)
         else:
             kin_s.append(np.concatenate([a.reshape(Bs, -1), np.asarray(b)[:, None]], axis=1))
     # samples at a step start that begins a new segment sit on a breakpoint
@@ -624,6 +631,7 @@ def _measure(variants, run: _Run, sel, S: int):
         "settle_rad": np.radians([x.scene.limits.settle_deg for x in vs]),
         "L0": np.array([x.scene.rope.length_m for x in vs]),
         "L_end": np.array([x.L_end for x in vs]),
+        "fixed_length": np.array([not bool(x.coef[:, AXES.index("hoist")].any()) for x in vs]),
         "rest_vertical": np.all(rest[:, :2] == 0.0, axis=1),
         "kink": kink,
         "real": real,
@@ -669,7 +677,7 @@ def summaries_from_samples(t, r2, dot, swing_at, off, tension_N, static_N, exc2,
         Squared load speed [m^2/s^2].
     info : dict
         Arrays (B,): ``move_end``, ``t_end``, ``period0``, ``period_end``, ``settle_rad``,
-        ``L0``, ``L_end``, ``rest_vertical``; optional arrays (B, N): ``kink`` (first sample
+        ``L0``, ``L_end``, ``rest_vertical``, ``fixed_length`` (no hoisting); optional arrays (B, N): ``kink`` (first sample
         of a segment after a breakpoint), ``real`` (False for padding samples); optional
         ``newton(t0) -> (t, r2)``, a local maximiser of ``r2`` on the dense interpolant.
 
@@ -721,6 +729,7 @@ def summaries_from_samples(t, r2, dot, swing_at, off, tension_N, static_N, exc2,
             tn, xn = newton(np.maximum(cand_r[:, j], move_end))
             better = (xn > res) & (tn >= lo) & anyp
             res = np.where(better, xn, res)
+    pk_r2 = pk
     pk = np.arcsin(np.sqrt(np.clip(pk, 0.0, 1.0)))
     res = np.arcsin(np.sqrt(np.clip(res, 0.0, 1.0)))
     vertical = np.asarray(info.get("rest_vertical", np.zeros(B, dtype=bool)))
@@ -736,7 +745,11 @@ def summaries_from_samples(t, r2, dot, swing_at, off, tension_N, static_N, exc2,
     sa, sb_ = swing_at(r, j - 1), swing_at(r, j)
     wgt = np.clip(np.where(tb > ta, (move_end - ta) / np.where(tb > ta, tb - ta, 1.0), 1.0), 0.0, 1.0)
     sw_end = sa + wgt * (sb_ - sa)
-    exc = np.sqrt(np.maximum(_best_peak(t, exc2, None, kink)[2], 0.0))
+    # excursion L |n_h|: with a constant rope its peak is L times the refined peak of |n_h|
+    fixed = np.asarray(info.get("fixed_length", np.zeros(B, dtype=bool)))
+    exc = info["L0"] * np.sqrt(np.clip(pk_r2, 0.0, 1.0))
+    if not np.all(fixed):
+        exc = np.where(fixed, exc, np.sqrt(np.maximum(_best_peak(t, exc2, None, kink)[2], 0.0)))
     Tmax = _best_peak(t, tension_N, None, kink)[2]
     Tmin = np.min(tension_N, axis=1)
     speed = np.sqrt(np.max(speed2, axis=1))
@@ -821,7 +834,7 @@ def summaries_from_samples(t, r2, dot, swing_at, off, tension_N, static_N, exc2,
 
 
 #: Rows of a chunk measured together (bounds the memory of the dense samples).
-_MEASURE_ROWS = 256
+_MEASURE_ROWS = 128
 
 
 def _chunk_batch(variants, samples_per_step):
