@@ -129,13 +129,13 @@ def _do_run(args, scene_path, default_out) -> int:
     want_video = getattr(args, "video", False)
     if want_video:
         _render_available()
+        from .plausibility import check_frames
         from .render.api import check_options  # bad video options: one line, before anything is written
 
-        o = _video_options(args, scene)
-        check_options(scene, **{k: o[k] for k in ("size", "fps", "fmt", "view", "speed", "window", "split")
-                                if k in o} | {k: v for k, v in (("size", (1280, 720)), ("fps", 30), ("fmt", "mp4"),
-                                                                ("view", "oblique"), ("speed", 1.0),
-                                                                ("window", None), ("split", None)) if k not in o})
+        o = dict(size=(1280, 720), fps=30.0, fmt="mp4", view="oblique", speed=1.0, window=None, split=None)
+        o.update({k: v for k, v in _video_options(args, scene).items() if k in o})
+        check_options(scene, **o)
+        check_frames(scene, o["fps"], o["speed"], o["window"], allow=args.allow_implausible)
     from . import simulate, summarize
 
     traj = simulate(scene)

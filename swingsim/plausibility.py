@@ -68,3 +68,19 @@ def _model_values(scene) -> dict:
         k = rope.stiffness(rope.lambda0_m)
         out["bounce frequency"] = math.sqrt(k / m) / (2 * math.pi)
     return out
+
+
+#: Most video frames a render makes without ``--allow-implausible`` (an hour at 30 fps).
+MAX_FRAMES = 108_000
+
+
+def check_frames(scene, fps: float, speed: float, window=None, allow: bool = False) -> int:
+    """Frame count of a render; refuse more than :data:`MAX_FRAMES` unless ``allow``."""
+    t0, t1 = window if window is not None else (0.0, scene.duration_s)
+    t1 = min(t1, scene.duration_s)
+    frames = int(round((t1 - t0) * fps / speed))
+    if frames > MAX_FRAMES and not allow:
+        raise SceneError("render", "--fps/--speed", f"the video would have {frames} frames, beyond the "
+                         f"plausibility limit of {MAX_FRAMES} (an hour at 30 fps); pass --allow-implausible "
+                         "to render it anyway", f"{fps:g} fps at speed {speed:g}")
+    return frames

@@ -5,6 +5,7 @@ These run everywhere (no pyvista import); the drawing itself is tested in
 """
 
 import argparse
+from pathlib import Path
 import sys
 
 import numpy as np
@@ -200,3 +201,14 @@ def test_a_run_that_stops_early_says_so_at_its_end():
     early = O.frame_text(0.2, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
     assert late.stopped.startswith(f"RUN STOPPED at t = {traj.t_end_s:.2f} s: the hoist rope would go slack.")
     assert early.stopped == ""
+
+
+def test_render_refuses_implausible_frame_count(tmp_path, capsys):
+    # 60 s at 120 fps in slow motion 0.05: 144,000 frames, beyond the limit
+    from swingsim.cli import main
+
+    demo = Path(__file__).resolve().parent.parent / "swingsim" / "data" / "demo.toml"
+    rc = main(["render", str(demo), "--out", str(tmp_path / "v"), "--fps", "120", "--speed", "0.05"])
+    err = capsys.readouterr().err
+    assert rc == 2 and "plausibility limit" in err and "--allow-implausible" in err
+    assert not (tmp_path / "v").exists()

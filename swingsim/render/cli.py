@@ -24,6 +24,8 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
         parser.add_argument("--force", action="store_true",
                             help="write into a non-empty output folder, replacing only this render's files")
         parser.add_argument("--quiet", "-q", action="store_true", help="no progress bar, no list of files")
+        parser.add_argument("--allow-implausible", action="store_true",
+                            help="accept values beyond the plausibility limits (very long runs or videos)")
     g = parser.add_argument_group("video")
     g.add_argument("--size", metavar="WxH", default="1280x720", help="frame size in pixels (default 1280x720)")
     g.add_argument("--fps", type=float, default=30.0, help="frames per second (default 30)")
@@ -79,6 +81,10 @@ def main(args) -> int:
         scene = load_scene(args.scene)
         opts = options(args, scene)
         check_options(scene, **{k: v for k, v in opts.items() if k != "stills"})
+        from ..plausibility import check_frames, check_plausible
+
+        check_plausible(scene, allow=args.allow_implausible)
+        check_frames(scene, opts["fps"], opts["speed"], opts["window"], allow=args.allow_implausible)
         out = check_out_dir(args.out or f"{Path(args.scene).stem}-video", args.force)
     except InputError as exc:
         print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
