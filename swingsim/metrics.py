@@ -176,8 +176,11 @@ def summarize(traj) -> Summary:
         off = (n - rest[None, :])[post][:, :2]
         off = off - off.mean(axis=0)
         if np.max(np.abs(off)) > math.radians(0.02):
-            _, _, vt = np.linalg.svd(off, full_matrices=False)
-            x = off @ vt[0]
+            # principal axis of the swing, with a definite sign (the batch engine uses the same)
+            sxx, syy, sxy = (float(np.sum(a * b)) for a, b in
+                             ((off[:, 0], off[:, 0]), (off[:, 1], off[:, 1]), (off[:, 0], off[:, 1])))
+            th = 0.5 * math.atan2(2.0 * sxy, sxx - syy)
+            x = off[:, 0] * math.cos(th) + off[:, 1] * math.sin(th)
             meas, n_cross = crossings_period(t[post], x)
             amp_deg = float(np.degrees(np.max(swing[post])))
 

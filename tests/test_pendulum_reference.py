@@ -272,3 +272,16 @@ def test_tolerance_convergence():
     ta, tb = simulate(sc), simulate(sc, rtol=C.RTOL / 10, atol=C.ATOL / 10)
     t = np.linspace(0, 40, 801)
     assert np.max(np.abs(ta.state(t)[:, :2] - tb.state(t)[:, :2])) < 1e-6
+
+
+def test_summary_measured_period_at_large_amplitude():
+    # The summary's measured period against the exact elliptic-integral period at 30 deg;
+    # REFERENCES.md gives T/T0 = 1.017409 at 30 deg (A&S 17.3 / scipy.special.ellipk).
+    sc = make_scene({"start": {"swing_deg": [30.0, 0.0]}}, duration_s=40.0)
+    s = summarize(simulate(sc))
+    T0 = 2 * math.pi * math.sqrt(10.0 / G)
+    exact = 4 * math.sqrt(10.0 / G) * ellipk(math.sin(math.radians(15.0)) ** 2)
+    assert s["measured_period_s"] == pytest.approx(exact, rel=1e-6)
+    assert s["period_difference_pct"] == pytest.approx(100 * (exact / T0 - 1), abs=1e-3)
+    assert exact / T0 == pytest.approx(1.017409, abs=1e-6)
+    assert s["period_exact_at_amplitude_s"] == pytest.approx(exact, rel=1e-5)
