@@ -40,7 +40,7 @@ import numpy as np
 from . import batch
 from .errors import InputError
 from .scene import scene_from_dict
-from .sweep import get_dotted, load_sweep
+from .sweep import PLAUSIBLE_VARIANTS, get_dotted, load_sweep
 
 CSV_NAME = "comparison.csv"
 OUTPUTS = (CSV_NAME, "ranking.csv", "sensitivity.csv", "report.html")
@@ -377,6 +377,8 @@ def add_arguments(p):
     p.add_argument("--chunk", type=int, metavar="N", help="variants per chunk (default: sized for memory)")
     p.add_argument("--no-sensitivity", action="store_true", help="skip the shaper sensitivity study")
     p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    p.add_argument("--allow-implausible", action="store_true",
+                   help=f"accept more than {PLAUSIBLE_VARIANTS:,} variants")
 
 
 def main(args) -> int:
@@ -388,7 +390,7 @@ def main(args) -> int:
         raise InputError("--cluster", "", "expected the scheduler's address, e.g. tcp://10.0.0.5:8786", args.cluster)
     if args.resume and args.force:
         raise InputError("--resume", "", "cannot be combined with --force (which starts again)")
-    sweep = load_sweep(args.sweep)
+    sweep = load_sweep(args.sweep, allow_implausible=getattr(args, "allow_implausible", False))
     out = Path(args.out) if args.out else Path(Path(args.sweep).stem + "-comparison")
     quiet = getattr(args, "quiet", False)
     bar = None

@@ -46,6 +46,8 @@ OBJECTIVE_KEYS = (
 
 #: Largest number of variants a sweep may expand to.
 MAX_VARIANTS = 1_000_000
+#: Variants beyond which a sweep needs ``--allow-implausible`` (plausibility limit).
+PLAUSIBLE_VARIANTS = 100_000
 
 _TOP = {
     "base": "path of the base scene, relative to the sweep file",
@@ -88,7 +90,7 @@ class Sweep:
         return [v.scene for v in self.variants]
 
 
-def load_sweep(path) -> Sweep:
+def load_sweep(path, *, allow_implausible: bool = False) -> Sweep:
     """Read and validate a sweep file (see the module docstring).
 
     Raises
@@ -106,7 +108,7 @@ def load_sweep(path) -> Sweep:
         raise InputError(shown, "", "not a UTF-8 text file (a sweep is a TOML text file)") from None
     except tomllib.TOMLDecodeError as exc:
         raise InputError(shown, "", f"TOML syntax error: {str(exc).split(' (at ')[0]}") from None
-    return sweep_from_dict(data, file=shown, base_dir=path.parent)
+    return sweep_from_dict(data, file=shown, base_dir=path.parent, allow_implausible=allow_implausible)
 
 
 def _flatten(table: dict, prefix: str = "", leaf_range: bool = True) -> dict:
@@ -187,7 +189,8 @@ def _describe(values: dict) -> str:
     return ", ".join(f"{k} = {v!r}" for k, v in values.items())
 
 
-def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str = ".") -> Sweep:
+def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str = ".",
+                    allow_implausible: bool = False) -> Sweep:
     """Validate a parsed sweep document and expand its variants (validated scenes)."""
     base_dir = Path(base_dir)
     for k in data:
@@ -256,6 +259,9 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
     if n_prod + len(named) > MAX_VARIANTS:
         raise InputError(file, "vary", f"expands to {n_prod + len(named)} variants; at most "
                          f"{MAX_VARIANTS} are allowed (split the study)")
+    if n_prod + len(named) > PLAUSIBLE_VARIANTS and not allow_implausible:
+        raise InputError(file, "vary", f"expands to {n_prod + len(named)} variants, beyond the plausibility "
+                         f"limit of {PLAUSIBLE_VARIANTS}; pass --allow-implausible to run it anyway")
 
     cases = []
     for combo in itertools.product(*lists.values()) if lists else ():

@@ -110,3 +110,17 @@ def test_cli_bad_sweep_exit_2_one_line_nothing_written(tmp_path):
     assert r.returncode == 2
     assert r.stderr.count("\n") == 1 and "rope.lenght_m" in r.stderr and "Traceback" not in r.stderr
     assert not out.exists()
+
+
+def test_implausible_variant_count_needs_override(tmp_path):
+    # 400 x 300 = 120,000 variants: beyond the plausibility limit unless allowed
+    from swingsim.errors import InputError
+    from swingsim.sweep import PLAUSIBLE_VARIANTS, sweep_from_dict
+
+    root = Path(__file__).resolve().parent.parent / "scenes"
+    data = {"base": "yard_gantry_travel.toml",
+            "vary": {"rope.length_m": {"from": 5.0, "to": 20.0, "count": 400},
+                     "moves.0.accel_m_s2": {"from": 0.1, "to": 0.4, "count": 300}}}
+    assert 400 * 300 > PLAUSIBLE_VARIANTS
+    with pytest.raises(InputError, match="--allow-implausible"):
+        sweep_from_dict(data, file="big.toml", base_dir=root)

@@ -35,8 +35,12 @@ def _figure(w=10.0, h=5.6):
     return plt, fig
 
 
-def _footer(fig, title):
+def _footer(fig, title, summary=None):
     fig.text(0.01, 0.985, title, ha="left", va="top", fontsize=11, weight="bold", color=INK)
+    if summary is not None and not summary.get("valid", True):
+        fig.text(0.99, 0.985, f"RESULT INVALID: the run stopped at t = {summary['simulated_until_s']:.2f} s",
+                 ha="right", va="top", fontsize=10, weight="bold", color="white",
+                 bbox={"facecolor": LIMIT, "edgecolor": LIMIT, "pad": 3})
     fig.text(0.5, 0.008, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7.5, color=LIMIT)
 
 
@@ -73,7 +77,7 @@ def swing_figure(traj, summary):
     ax.set_ylabel("angle [deg]")
     ax.grid(alpha=0.3)
     ax.legend(fontsize=8, loc="lower right", framealpha=0.9)
-    _footer(fig, f"{scene.title}: swing angle (shaded: moves)")
+    _footer(fig, f"{scene.title}: swing angle (shaded: moves)", summary)
     return fig
 
 
@@ -92,7 +96,7 @@ def speed_figure(traj, summary):
     ax.set_ylabel("speed [m/s]")
     ax.grid(alpha=0.3)
     ax.legend(fontsize=8, loc="upper right", framealpha=0.9)
-    _footer(fig, f"{scene.title}: speeds")
+    _footer(fig, f"{scene.title}: speeds", summary)
     return fig
 
 
@@ -146,7 +150,7 @@ def plan_figure(traj, summary):
     ax2.grid(alpha=0.3)
     ax2.legend(fontsize=8, loc="upper right", framealpha=0.9)
     ax2.set_title("load relative to the point below the suspension point", fontsize=9)
-    _footer(fig, f"{scene.title}: load path")
+    _footer(fig, f"{scene.title}: load path", summary)
     return fig
 
 

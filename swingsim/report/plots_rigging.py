@@ -70,5 +70,5 @@ def rigging_figure(traj, summary):
     ax2.grid(alpha=0.3)
     if ax2.lines:
         ax2.legend(loc="upper right", fontsize=8, framealpha=0.9)
-    _footer(fig, f"{traj.scene.title}: sling legs and load attitude")
+    _footer(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
     return fig
