@@ -394,3 +394,67 @@ def test_custom_view_is_the_scenes_camera():
         assert stage.last_text.banner == "" and "competent person" in stage.last_text.caution
     finally:
         stage.close()
+
+
+def _is_beam_colour(px):
+    """The lifting beam's yellow (the hook block's colour) under any shading: red and green high, blue low."""
+    px = np.asarray(px, dtype=float)
+    r, g, b = px[..., 0], px[..., 1], px[..., 2]
+    return (r > 90) & (g > 0.6 * r) & (g < 0.97 * r) & (b < 0.6 * g)
+
+
+def test_spreader_beam_is_where_the_model_says(tmp_path):
+    """The beam of a spreader scene: drawn between the model's end lugs, moved (not rebuilt) each frame."""
+    import tomllib
+
+    from swingsim.render.api import draw_frames
+    from swingsim.render.facts import collect
+    from swingsim.render.stage import Stage
+    from swingsim.scene import scene_from_dict
+
+    path = next(p for p in scene_files() if 'kind = "spreader"' in p.read_text())
+    d = tomllib.loads(path.read_text())
+    # a close camera square to the beam (which runs along y), so the beam is many pixels deep
+    d["view"] = {"position_m": [13.0, -5.0, 9.0], "focus_m": [28.0, 0.0, 6.5]}
+    traj = simulate(scene_from_dict(d, file=path.name, base_dir=path.parent))
+    render_scene(traj, None, tmp_path, size=SIZE, fps=5, fmt="png", view="custom", window=(0.0, 3.0),
+                 quiet=True, stills=False)
+    files = sorted((tmp_path / f"{path.stem}_frames").glob("frame_*.png"))
+    assert len(files) == 15
+    ks = [0, 10, 14]
+    t = np.array(ks) / 5.0
+    s = traj.sample(t)
+    mid = s["spreader_ends"].mean(axis=1)  # the beam's midpoint, from the model
+    stage = Stage(traj, collect(traj), size=SIZE, views=("custom",))
+    try:
+        beam, beam_line = stage.beam_actors
+        local = np.array(beam.GetMapper().GetInput().points)
+        for i, frame in enumerate(draw_frames(stage, traj, t)):
+            # the beam's end lugs (local x = -+span/2) land on the model's end lugs
+            m = beam.user_matrix
+            for j, x in enumerate((-stage.beam_span / 2, stage.beam_span / 2)):
+                np.testing.assert_allclose(m[:3, :3] @ (x, 0, 0) + m[:3, 3], s["spreader_ends"][i, j], atol=1e-9)
+            np.testing.assert_allclose(beam_line.user_matrix, m)
+            # top slings from the hook block to the end lugs, drop legs from the lugs to the load
+            legs = stage.sling_lines.points.reshape(-1, 2, 3)
+            np.testing.assert_allclose(legs[:2, 1], s["spreader_ends"][i], atol=1e-9)
+            assert np.linalg.norm(legs[0, 0] - s["hook"][i]) < stage.hook_size
+            np.testing.assert_allclose(legs[2:4], np.stack([s["spreader_lugs"][i], s["attach_points"][i]], 1),
+                                       atol=1e-9)
+            assert sum(a.GetVisibility() for a in stage.slings) == 4
+        # posed by its transform, never rebuilt
+        np.testing.assert_array_equal(np.array(beam.GetMapper().GetInput().points), local)
+        cam = stage.renderers[0].GetActiveCamera()
+        px = _pinhole(cam, mid, SIZE)
+        np.testing.assert_allclose(stage.project(mid), px, atol=0.5)  # the renderer agrees
+    finally:
+        stage.close()
+    # the beam rises with the spool after lift-off: a moving check, not a fixed spot
+    assert px[0, 1] - px[-1, 1] > 12, px
+    for k, (c, r) in zip(ks, px):
+        img = iio.imread(files[k])
+        r, c = int(round(r)), int(round(c))
+        assert _is_beam_colour(img[r - 1:r + 2, c - 2:c + 3]).mean() > 0.6, (k, img[r, c])
+    # where the beam was at the start there is no beam colour at the end
+    c0, r0 = (int(round(v)) for v in px[0])
+    assert _is_beam_colour(iio.imread(files[ks[-1]])[r0 - 1:r0 + 2, c0 - 2:c0 + 3]).mean() == 0.0

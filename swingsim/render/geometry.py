@@ -245,6 +245,22 @@ def top_attach_points(mesh: pv.PolyData, shape: str) -> np.ndarray:
                      [xmax * fx, ymax * fy, zmax], [xmin * fx, ymax * fy, zmax]])
 
 
+def spreader_beam(span_m: float):
+    """A lifting beam in its own frame: along x, centred on the origin [m].
+
+    The beam reaches a little past its end lugs (which lie at x = +-span/2 on
+    its centre line); its depth follows the span (7 %, 0.2 m to 1 m; a
+    schematic proportion, not a design).  Returns ``(solid, centre_line)``: the
+    box, and a line along it that stays a pixel or two wide however far the camera.
+    """
+    span = max(float(span_m), 0.1)
+    depth = min(1.0, max(0.2, 0.07 * span))
+    width, over = 0.6 * depth, 0.5 * depth
+    solid = box(-span / 2 - over, span / 2 + over, -width / 2, width / 2, -depth / 2, depth / 2)
+    line = polyline(np.array([[-span / 2 - over, 0.0, 0.0], [span / 2 + over, 0.0, 0.0]]))
+    return solid, line
+
+
 def rigging_height(attach: np.ndarray) -> float:
     """Height of the sling apex above the lifting points for legs about 55 deg from horizontal."""
     d = float(np.max(np.linalg.norm(attach[:, :2], axis=1)))

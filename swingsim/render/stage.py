@@ -20,7 +20,8 @@ from . import transforms as T
 from . import views as V
 from .gl import RenderUnavailableError, _message
 
-# The project's own plain palette: light sky, sand ground, slate crane, signal-orange load.
+# The project's own plain palette: light sky, sand ground, slate crane, signal-orange load; the hook block and
+# a spreader beam share the hook's yellow.
 PALETTE = {
     "sky": "#dfe7ec",
     "ground": "#d8d2c2", "grid_minor": "#c3bba6", "grid_major": "#8f8672",
@@ -196,13 +197,25 @@ class Stage:
         self.attach_local = G.top_attach_points(mesh, scene.load.shape if load_mesh is None else "box")
         self.rig_h = G.rigging_height(self.attach_local)
         self.sling_r = max(0.02, 0.6 * rope_r)
-        self.slings = [self._add(sling_mesh, pal["sling"], ambient=0.4) for _ in range(8)]
+        # A spreader (lifting beam): the model gives its end lugs and drop-leg lugs; the beam is
+        # built once along x, then posed by its user_matrix; its legs are two top slings from
+        # the hook to the end lugs and the drop legs from the lugs to the load.
+        self.beam_actors = ()
+        n_legs = 8
+        if s.get("spreader_ends") is not None:
+            ends0 = np.asarray(s["spreader_ends"][0], dtype=float)
+            self.beam_span = float(np.linalg.norm(ends0[1] - ends0[0]))
+            solid, line = G.spreader_beam(self.beam_span)
+            self.beam_actors = (self._add(solid, pal["hook"], ambient=0.4),
+                                self._add(line, pal["hook"], line_width=3, lighting=False))
+            n_legs = max(8, np.asarray(s["spreader_lugs"]).shape[1] + 2)
+        self.slings = [self._add(sling_mesh, pal["sling"], ambient=0.4) for _ in range(n_legs)]
         # The same rope and legs as lines too, never thinner than a pixel or two however far
         # the camera (a tube a few centimetres thick breaks up at site scale).
         self.rope_line = G.polyline(np.zeros((2, 3)))
         self._add(self.rope_line, pal["rope"], line_width=2, lighting=False)
-        self.sling_lines = pv.PolyData(np.zeros((16, 3)), lines=np.column_stack(
-            [np.full(8, 2), np.arange(0, 16, 2), np.arange(1, 16, 2)]).ravel())
+        self.sling_lines = pv.PolyData(np.zeros((2 * n_legs, 3)), lines=np.column_stack(
+            [np.full(n_legs, 2), np.arange(0, 2 * n_legs, 2), np.arange(1, 2 * n_legs, 2)]).ravel())
         self._add(self.sling_lines, pal["sling"], line_width=2, lighting=False)
         self.load_actor = self._add(mesh, pal["load"], ambient=0.45, diffuse=0.7)
         hs = max(0.25, 0.35 * min(lay.load_size))
@@ -380,7 +393,13 @@ class Stage:
         if attach is None:
             attach = load + self.attach_local @ rot.T
         attach = np.asarray(attach, dtype=float).reshape(-1, 3)
-        if hook is None:
+        ends = row.get("spreader_ends") if self.beam_actors else None
+        if hook is None and ends is not None:
+            # A spreader with no hook block: the top slings meet at the rope's end.
+            apex = p + float(row["rope_length"]) * np.asarray(row["rope_dir"], dtype=float)
+            self.hook_actor.SetVisibility(False)
+            rope_end = apex
+        elif hook is None:
             # No hook block in the model: the rope's modelled length runs to the load's centre
             # of gravity; draw the last part of it as the rigging above the load.
             top = float(self.attach_local[:, 2].max())
@@ -397,12 +416,23 @@ class Stage:
         self.rope.user_matrix = _rod(p, rope_end, self.rope_r)
         self.rope_line.points[:] = (p, rope_end)
         self.rope_line.Modified()
-        sp = np.empty((16, 3))
+        if ends is not None:
+            ends = np.asarray(ends, dtype=float).reshape(2, 3)
+            lugs = np.asarray(row["spreader_lugs"], dtype=float).reshape(-1, 3)
+            m = T.pose(T.frame_x_up(ends[1] - ends[0], up), 0.5 * (ends[0] + ends[1]))
+            for a in self.beam_actors:
+                a.user_matrix = m
+            # two top slings, hook to end lugs, then the drop legs, lugs to lifting points
+            legs = [(apex, ends[0]), (apex, ends[1])] + list(zip(lugs, attach))
+        else:
+            legs = [(apex, a) for a in attach]
+        sp = np.empty((2 * len(self.slings), 3))
         for i, s in enumerate(self.slings):
-            if i < len(attach):
+            if i < len(legs):
+                a, b = legs[i]
                 s.SetVisibility(True)
-                s.user_matrix = _rod(apex, attach[i], self.sling_r)
-                sp[2 * i], sp[2 * i + 1] = apex, attach[i]
+                s.user_matrix = _rod(a, b, self.sling_r)
+                sp[2 * i], sp[2 * i + 1] = a, b
             else:
                 s.SetVisibility(False)
                 sp[2 * i] = sp[2 * i + 1] = apex

@@ -41,6 +41,24 @@ def frame_from_axis(d: np.ndarray, axis: int = 2) -> np.ndarray:
     return np.eye(3) + vx + vx @ vx / (1.0 + c)
 
 
+def frame_x_up(x, up) -> np.ndarray:
+    """Rotation (3x3) whose local x runs along ``x`` and whose local z is ``up`` made square to it.
+
+    Gram-Schmidt: z = (up - (up . x) x) / |...|, y = z cross x.  For a body
+    (a lifting beam) whose length is ``x`` and that leans with the load's ``up``.
+    """
+    x = np.asarray(x, dtype=float)
+    x = x / np.linalg.norm(x)
+    z = np.asarray(up, dtype=float) - float(np.dot(up, x)) * x
+    n = float(np.linalg.norm(z))
+    if n < 1e-9:  # up along the body: any square frame will do
+        z = np.array([0.0, 0.0, 1.0]) if abs(x[2]) < 0.9 else np.array([1.0, 0.0, 0.0])
+        z = z - float(z @ x) * x
+        n = float(np.linalg.norm(z))
+    z = z / n
+    return np.column_stack([x, np.cross(z, x), z])
+
+
 def segment(a, b, axis: int = 2) -> np.ndarray:
     """Transform that maps a unit-length body along local ``axis`` (from 0 to 1) onto a -> b."""
     a = np.asarray(a, dtype=float)
