@@ -394,8 +394,9 @@ class Stage:
             attach = load + self.attach_local @ rot.T
         attach = np.asarray(attach, dtype=float).reshape(-1, 3)
         ends = row.get("spreader_ends") if self.beam_actors else None
-        if hook is None and ends is not None:
-            # A spreader with no hook block: the top slings meet at the rope's end.
+        if hook is None and (ends is not None or row.get("attach_points") is not None):
+            # Rigging from the model but no hook block: the legs (or a spreader's top slings)
+            # meet at the rope's end, the model's pin.
             apex = p + float(row["rope_length"]) * np.asarray(row["rope_dir"], dtype=float)
             self.hook_actor.SetVisibility(False)
             rope_end = apex
