@@ -458,3 +458,34 @@ def test_spreader_beam_is_where_the_model_says(tmp_path):
     # where the beam was at the start there is no beam colour at the end
     c0, r0 = (int(round(v)) for v in px[0])
     assert _is_beam_colour(iio.imread(files[ks[-1]])[r0 - 1:r0 + 2, c0 - 2:c0 + 3]).mean() == 0.0
+
+
+def test_bridle_legs_without_hook_meet_at_the_models_pin():
+    """A bridle hung straight on the rope: the drawn legs run from the rope's end to the attachment points."""
+    import tomllib
+
+    from swingsim.render.api import draw_frames
+    from swingsim.render.facts import collect
+    from swingsim.render.stage import Stage
+    from swingsim.scene import scene_from_dict
+
+    path = next(p for p in scene_files() if 'kind = "bridle"' in p.read_text())
+    d = tomllib.loads(path.read_text())
+    d.pop("hook", None)
+    traj = simulate(scene_from_dict(d, file=path.name, base_dir=path.parent))
+    assert traj.model.name == "rigid-load"
+    t = np.array([0.0, 10.0, 20.0])
+    s = traj.sample(t)
+    pin = s["suspension"] + s["rope_length"][:, None] * s["rope_dir"]
+    stage = Stage(traj, collect(traj), size=SIZE, views=("oblique",))
+    try:
+        for i, _ in enumerate(draw_frames(stage, traj, t)):
+            legs = stage.sling_lines.points.reshape(-1, 2, 3)
+            k = s["attach_points"].shape[1]
+            np.testing.assert_allclose(legs[:k, 0], np.repeat(pin[i][None], k, 0), atol=1e-9)
+            np.testing.assert_allclose(legs[:k, 1], s["attach_points"][i], atol=1e-9)
+            # the model's legs have their declared length (6 m in the bridle scene)
+            leg = np.linalg.norm(legs[:k, 1] - legs[:k, 0], axis=1)
+            np.testing.assert_allclose(leg, traj.scene.rigging.leg_length_m, rtol=1e-9)
+    finally:
+        stage.close()
