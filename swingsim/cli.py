@@ -120,7 +120,7 @@ def cmd_check(args) -> int:
 def _do_run(args, scene_path, default_out) -> int:
     from .plausibility import check_plausible
     from .report.files import check_out_dir, clean_partials
-    from .report.outputs import RUN_FILES, write_run_outputs
+    from .report.outputs import write_run_outputs
     from .scene import load_scene
 
     scene = load_scene(scene_path)
@@ -128,7 +128,7 @@ def _do_run(args, scene_path, default_out) -> int:
     out = check_out_dir(args.out or default_out, args.force)
     want_video = getattr(args, "video", False)
     if want_video:
-        _render_available()
+        _require_renderer()
         from .plausibility import check_frames
         from .render.api import check_options  # bad video options: one line, before anything is written
 
@@ -166,12 +166,9 @@ def _video_options(args, scene=None) -> dict:
     return opts
 
 
-def _render_available():
-    try:
-        importlib.import_module("swingsim.render")
-    except ImportError as exc:  # pragma: no cover
-        raise SimulationError(f"the renderer is not available: {exc}") from None
-    from .render.gl import require_opengl  # no OpenGL: one line naming the packages, before any file
+def _require_renderer():
+    """No OpenGL: one line naming the packages to install, before any file is written."""
+    from .render.gl import require_opengl
 
     require_opengl()
 
@@ -182,23 +179,16 @@ def cmd_run(args) -> int:
 
 
 def cmd_demo(args) -> int:
-    args.video = not args.no_video and _has_renderer()
+    args.video = False
+    if not args.no_video:
+        from .render.gl import RenderUnavailableError
+
+        try:
+            _require_renderer()
+            args.video = True
+        except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
+            sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
     return _do_run(args, DEMO_SCENE, "swingsim-demo")
-
-
-def _has_renderer() -> bool:
-    try:
-        importlib.import_module("swingsim.render")
-    except ImportError:
-        return False
-    from .render.gl import RenderUnavailableError, require_opengl
-
-    try:
-        require_opengl()
-    except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
-        sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
-        return False
-    return True
 
 
 def _on_sigterm(signum, frame):

@@ -499,7 +499,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
     r = _Reader(file, base_dir)
     if not isinstance(data, dict):
         raise r.err("", "a scene must be a TOML document of tables")
-    known = set(S.TOP) | set(S.TABLES) | set(S.ARRAYS) | set(EXTRA_TABLES)
+    known = set(S.TOP) | set(S.TABLES) | set(S.ARRAYS)
     for name in data:
         if name not in known:
             raise r.err(name, _suggest(name, sorted(known)))
@@ -552,8 +552,6 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
         hook=hook_o, rigging=rig_o,
     )
-    for hook in EXTRA_VALIDATORS:
-        scene = hook(r, data, scene)
     if validate_motion:
         from .motion.build import build_motion  # local: motion imports nothing from here
 
@@ -592,11 +590,6 @@ def _check_mesh_file(r: _Reader, load: dict) -> None:
     if not full.is_file():
         raise r.err("load.mesh_file", "file not found (relative to the scene file's folder)", name)
 
-
-#: Tables added by model extensions: name -> schema (read by their validators).
-EXTRA_TABLES: dict[str, dict] = {}
-#: Functions ``(reader, data, scene) -> scene`` that validate extension tables.
-EXTRA_VALIDATORS: list = []
 
 
 # ----------------------------------------------------------------------------

@@ -6,21 +6,19 @@ from pathlib import Path
 
 from .files import atomic_write_text
 from .plots import write_plots
-from .tables import summary_json, summary_text, timeseries_csv
-
-#: The files ``swingsim run`` writes, in order.
-RUN_FILES = ("summary.json", "timeseries.csv", "summary.txt", "swing.png", "speed.png", "plan.png")
+from .tables import summary_json, summary_text, timeseries_columns, timeseries_csv
 
 
 def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Path]:
     out = Path(out_dir)
     # compute everything that can fail before the first file appears
+    cols = timeseries_columns(traj)  # sampled once, for the CSV and every plot
     texts = {
         "summary.json": summary_json(summary),
-        "timeseries.csv": timeseries_csv(traj),
+        "timeseries.csv": timeseries_csv(traj, cols),
         "summary.txt": summary_text(summary, traj.scene),
     }
     written = [atomic_write_text(out / name, text) for name, text in texts.items()]
     if plots:
-        written += write_plots(traj, summary, out)
+        written += write_plots(traj, summary, out, cols)
     return written

@@ -52,9 +52,9 @@ def _moves(ax, scene, motion):
                 rotation=0, clip_on=True)
 
 
-def swing_figure(traj, summary):
+def swing_figure(traj, summary, cols=None):
     scene = traj.scene
-    c = timeseries_columns(traj)
+    c = timeseries_columns(traj) if cols is None else cols
     plt, fig = _figure()
     ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
     t = c["t_s"]
@@ -81,9 +81,9 @@ def swing_figure(traj, summary):
     return fig
 
 
-def speed_figure(traj, summary):
+def speed_figure(traj, summary, cols=None):
     scene = traj.scene
-    c = timeseries_columns(traj)
+    c = timeseries_columns(traj) if cols is None else cols
     plt, fig = _figure()
     ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
     t = c["t_s"]
@@ -100,11 +100,11 @@ def speed_figure(traj, summary):
     return fig
 
 
-def plan_figure(traj, summary):
+def plan_figure(traj, summary, cols=None):
     from matplotlib.patches import Circle, Rectangle
 
     scene = traj.scene
-    c = timeseries_columns(traj)
+    c = timeseries_columns(traj) if cols is None else cols
     plt, fig = _figure(11.0, 5.8)
     ax1 = fig.add_axes([0.06, 0.12, 0.42, 0.76])
     ax2 = fig.add_axes([0.56, 0.12, 0.40, 0.76])
@@ -164,7 +164,7 @@ def _register_model_figures():
     FIGURES["rigging.png"] = rigging_figure
 
 
-def write_plots(traj, summary, out_dir) -> list:
+def write_plots(traj, summary, out_dir, cols=None) -> list:
     from pathlib import Path
 
     import matplotlib
@@ -175,7 +175,7 @@ def write_plots(traj, summary, out_dir) -> list:
     _register_model_figures()
     paths = []
     for name, fn in FIGURES.items():
-        fig = fn(traj, summary)
+        fig = fn(traj, summary, cols)
         if fig is None:  # a figure the run's model has nothing for
             continue
         buf = io.BytesIO()

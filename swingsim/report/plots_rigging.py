@@ -13,9 +13,9 @@ from .tables import timeseries_columns
 LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
 
 
-def rigging_figure(traj, summary):
+def rigging_figure(traj, summary, cols=None):
     """Leg tensions (top) and the load's tilt, or the leg's angle to the rope (bottom); None if no legs."""
-    c = timeseries_columns(traj)
+    c = timeseries_columns(traj) if cols is None else cols
     legs = [k for k in c if k.startswith("leg_") and k.endswith("_tension_kN")]
     if not legs:
         return None

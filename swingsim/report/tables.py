@@ -72,8 +72,8 @@ def timeseries_columns(traj, t=None) -> dict:
     return cols
 
 
-def timeseries_csv(traj) -> str:
-    cols = timeseries_columns(traj)
+def timeseries_csv(traj, cols=None) -> str:
+    cols = timeseries_columns(traj) if cols is None else cols
     names = list(cols)
     data = np.column_stack([np.asarray(cols[k], dtype=float) for k in names])
     buf = io.StringIO()
