@@ -38,8 +38,9 @@ class Facts:
 
 def rope_angle_deg(rope_dir) -> np.ndarray:
     """Rope angle from the vertical [deg] of unit rope directions (N, 3) pointing down."""
-    n = np.asarray(rope_dir, dtype=float)
-    return np.degrees(np.arccos(np.clip(-n[..., 2], -1.0, 1.0)))
+    from ..metrics import rope_angle_rad  # the summary's own definition, so the overlay agrees with it
+
+    return np.degrees(rope_angle_rad(np.asarray(rope_dir, dtype=float)))
 
 
 def _get(summary, name):
