@@ -14,31 +14,31 @@ in charge of the lift.
 
 __version__ = "0.1.0"
 
-from .errors import InputError, SceneError, SimulationError  # noqa: E402
-from .scene import Scene, load_scene, scene_from_dict  # noqa: E402
+from swingsim.errors import InputError, SceneError, SimulationError  # noqa: E402
+from swingsim.scene import Scene, load_scene, scene_from_dict  # noqa: E402
 
 
 def simulate(scene, **kw):
     """Integrate a scene; see :func:`swingsim.solve.simulate`."""
-    from .solve import simulate as _simulate
+    from swingsim.solve import simulate as _simulate
 
     return _simulate(scene, **kw)
 
 
 def summarize(traj):
     """Measure a trajectory; see :func:`swingsim.metrics.summarize`."""
-    from .metrics import summarize as _summarize
+    from swingsim.metrics import summarize as _summarize
 
     return _summarize(traj)
 
 
 def __getattr__(name):
     if name == "Trajectory":
-        from .solve import Trajectory
+        from swingsim.solve import Trajectory
 
         return Trajectory
     if name == "Summary":
-        from .metrics import Summary
+        from swingsim.metrics import Summary
 
         return Summary
     raise AttributeError(name)

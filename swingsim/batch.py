@@ -54,12 +54,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from . import constants as C
-from .dynamics.pendulum import (PointMassModel, accelerations, specific_force,
+from swingsim import constants as C
+from swingsim.dynamics.pendulum import (PointMassModel, accelerations, specific_force,
                                 tension_per_mass)
-from .motion import profiles as P
-from .motion.build import build_motion
-from .motion.crane import AXES
+from swingsim.motion import profiles as P
+from swingsim.motion.build import build_motion
+from swingsim.motion.crane import AXES
 
 __all__ = ["run_batch", "run_chunk", "supported", "chunks", "SUMMARY_KEYS",
            "summaries_from_samples", "DEFAULT_STEPS_PER_PERIOD"]
@@ -135,7 +135,7 @@ def _hermite_basis(s):
 
 def supported(scene) -> bool:
     """True when the batch engine integrates this scene (point-mass model)."""
-    from .solve import select_model
+    from swingsim.solve import select_model
 
     try:
         return type(select_model(scene)) is PointMassModel
@@ -852,11 +852,11 @@ def _chunk_batch(variants, samples_per_step):
 
 def _single(scene) -> dict:
     """Summary of one scene by the single-run solver (the reference path)."""
-    from .solve import simulate
+    from swingsim.solve import simulate
 
     traj = simulate(scene)
     try:
-        from .metrics import summarize
+        from swingsim.metrics import summarize
     except ImportError:  # pragma: no cover - metrics is part of the core
         summarize = None
     if summarize is not None:

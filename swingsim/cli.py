@@ -14,8 +14,8 @@ import signal
 import sys
 from pathlib import Path
 
-from . import __version__
-from .errors import InputError, SimulationError
+from swingsim import __version__
+from swingsim.errors import InputError, SimulationError
 
 #: Extension subcommands: name -> (module, help).  Each module exposes
 #: ``add_arguments(parser)`` and ``main(args) -> int``.
@@ -78,7 +78,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _run_video_args(p):
     p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
-    from .render.cli import add_arguments  # the render options (no pyvista import)
+    from swingsim.render.cli import add_arguments  # the render options (no pyvista import)
 
     add_arguments(p, scene=False)
 
@@ -105,10 +105,10 @@ def _headline(summary) -> str:
 
 
 def cmd_check(args) -> int:
-    from .scene import load_scene
+    from swingsim.scene import load_scene
 
     scene = load_scene(args.scene)
-    from .plausibility import check_plausible
+    from swingsim.plausibility import check_plausible
 
     notes = check_plausible(scene, allow=True)
     print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
@@ -118,10 +118,10 @@ def cmd_check(args) -> int:
 
 
 def _do_run(args, scene_path, default_out) -> int:
-    from .plausibility import check_plausible
-    from .report.files import check_out_dir, clean_partials
-    from .report.outputs import write_run_outputs
-    from .scene import load_scene
+    from swingsim.plausibility import check_plausible
+    from swingsim.report.files import check_out_dir, clean_partials
+    from swingsim.report.outputs import write_run_outputs
+    from swingsim.scene import load_scene
 
     scene = load_scene(scene_path)
     check_plausible(scene, allow=args.allow_implausible)
@@ -129,21 +129,21 @@ def _do_run(args, scene_path, default_out) -> int:
     want_video = getattr(args, "video", False)
     if want_video:
         _require_renderer()
-        from .plausibility import check_frames
-        from .render.api import check_options  # bad video options: one line, before anything is written
+        from swingsim.plausibility import check_frames
+        from swingsim.render.api import check_options  # bad video options: one line, before anything is written
 
         o = dict(size=(1280, 720), fps=30.0, fmt="mp4", view="oblique", speed=1.0, window=None, split=None)
         o.update({k: v for k, v in _video_options(args, scene).items() if k in o})
         check_options(scene, **o)
         check_frames(scene, o["fps"], o["speed"], o["window"], allow=args.allow_implausible)
-    from . import simulate, summarize
+    from swingsim import simulate, summarize
 
     traj = simulate(scene)
     summary = summarize(traj)
     clean_partials(out)
     written = write_run_outputs(traj, summary, out, plots=not args.no_plots)
     if want_video and traj.valid:
-        from .render import render_scene
+        from swingsim.render import render_scene
 
         written += render_scene(traj, summary, out, **_video_options(args, scene))
     _print(args, _headline(summary))
@@ -160,7 +160,7 @@ def _video_options(args, scene=None) -> dict:
         # short and modest, so the first command stays quick: the moves and the start of settling
         opts.update(size=(854, 480), fps=24, window=(0.0, 24.0))
     elif scene is not None:
-        from .render.cli import options
+        from swingsim.render.cli import options
 
         opts.update(options(args, scene))
     return opts
@@ -168,7 +168,7 @@ def _video_options(args, scene=None) -> dict:
 
 def _require_renderer():
     """No OpenGL: one line naming the packages to install, before any file is written."""
-    from .render.gl import require_opengl
+    from swingsim.render.gl import require_opengl
 
     require_opengl()
 
@@ -181,7 +181,7 @@ def cmd_run(args) -> int:
 def cmd_demo(args) -> int:
     args.video = False
     if not args.no_video:
-        from .render.gl import RenderUnavailableError
+        from swingsim.render.gl import RenderUnavailableError
 
         try:
             _require_renderer()
@@ -213,7 +213,7 @@ def main(argv=None) -> int:
         sys.stderr.write(f"swingsim: {exc}\n")
         return 1
     except KeyboardInterrupt:
-        from .report.files import WRITTEN
+        from swingsim.report.files import WRITTEN
 
         done = ", ".join(p.name for p in WRITTEN) or "none"
         sys.stderr.write(f"swingsim: interrupted; files finished before the stop: {done}; "

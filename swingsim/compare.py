@@ -37,10 +37,10 @@ from pathlib import Path
 
 import numpy as np
 
-from . import batch
-from .errors import InputError
-from .scene import scene_from_dict
-from .sweep import PLAUSIBLE_VARIANTS, get_dotted, load_sweep
+from swingsim import batch
+from swingsim.errors import InputError
+from swingsim.scene import scene_from_dict
+from swingsim.sweep import PLAUSIBLE_VARIANTS, get_dotted, load_sweep
 
 CSV_NAME = "comparison.csv"
 OUTPUTS = (CSV_NAME, "ranking.csv", "sensitivity.csv", "report.html")
@@ -186,7 +186,7 @@ def sensitivity_scenes(base):
 
     Returns (move label, design length, design period, [(profile, error, scene)]).
     """
-    from .solve import select_model
+    from swingsim.solve import select_model
 
     idx = next((i for i, m in enumerate(base.moves) if m.axis in _TRAVEL and m.profile in _SHAPEABLE), None)
     if idx is None:
@@ -306,8 +306,8 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
     Returns a dict with ``summaries`` (variant order), ``ranking``, ``ran``
     (variants run now) and ``reused`` (taken from an earlier run).
     """
-    from .report.files import atomic_write_text, check_out_dir, clean_partials
-    from .report.html import comparison_html
+    from swingsim.report.files import atomic_write_text, check_out_dir, clean_partials
+    from swingsim.report.html import comparison_html
 
     out = Path(out)
     csv_path = out / CSV_NAME
@@ -407,7 +407,7 @@ def main(args) -> int:
         if bar:
             bar.close()
     if not quiet:
-        from . import cautions
+        from swingsim import cautions
 
         print(f"{len(sweep.variants)} variants ({res['ran']} run now"
               + (f", {res['reused']} from the earlier run" if res["reused"] else "") + f") -> {out}/")

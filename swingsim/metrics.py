@@ -34,9 +34,9 @@ import numpy as np
 from scipy.optimize import minimize_scalar
 from scipy.special import ellipk
 
-from . import __version__
-from . import cautions
-from .metrics_models import model_metrics, model_warnings
+from swingsim import __version__
+from swingsim import cautions
+from swingsim.metrics_models import model_metrics, model_warnings
 
 #: Metric sample rate floor [Hz] and samples per natural period (whichever is finer).
 _MIN_RATE_HZ = 50.0

@@ -160,7 +160,7 @@ def model_metrics(traj, t, s) -> dict:
 
 
 def _rest_rotation(model):
-    from .dynamics.rigging import rotation
+    from swingsim.dynamics.rigging import rotation
 
     return rotation(*model.geom.rest_tilt_rad) if model.geom is not None else np.eye(3)
 

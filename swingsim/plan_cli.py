@@ -24,9 +24,9 @@ import math
 import os
 from pathlib import Path
 
-from . import cautions
-from .errors import InputError
-from .scene import load_scene, scene_from_dict
+from swingsim import cautions
+from swingsim.errors import InputError
+from swingsim.scene import load_scene, scene_from_dict
 
 #: The search keeps this share of the bound in hand, for rope lengths between its samples.
 SEARCH_MARGIN = 0.9
@@ -60,9 +60,9 @@ def _verify(scene, index, table_name, out_dir, lengths, snippet_move):
     once more with the single-run solver (scipy DOP853 at tight tolerance),
     whose result is then the one reported for that length.
     """
-    from . import batch
-    from .metrics import summarize
-    from .solve import simulate
+    from swingsim import batch
+    from swingsim.metrics import summarize
+    from swingsim.solve import simulate
 
     g = scene.gravity_m_s2
     extra = 2.5 * 2 * math.pi * math.sqrt(max(lengths) / g)
@@ -92,7 +92,7 @@ def table_limits(t, x):
     """Peak speed and acceleration of a table profile as the scene will interpolate it."""
     import numpy as np
 
-    from .motion.profiles import from_table
+    from swingsim.motion.profiles import from_table
 
     p = from_table(0.0, t, x)
     tt = np.linspace(0.0, float(t[-1]), 20 * len(t) + 1)
@@ -101,8 +101,8 @@ def table_limits(t, x):
 
 
 def main(args) -> int:
-    from . import planning
-    from .report.files import atomic_write_text, check_out_dir
+    from swingsim import planning
+    from swingsim.report.files import atomic_write_text, check_out_dir
 
     scene = load_scene(args.scene)
     lo, hi = _parse_range(args.rope_range)

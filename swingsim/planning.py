@@ -26,9 +26,9 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from . import batch
-from .errors import InputError
-from .scene import scene_from_dict
+from swingsim import batch
+from swingsim.errors import InputError
+from swingsim.scene import scene_from_dict
 
 __all__ = ["Candidate", "plan_move", "candidate_moves", "rope_lengths"]
 
@@ -174,7 +174,7 @@ def evaluate(scene, index, candidates, lengths, **kw):
 
 
 def _move_end(scene, index):
-    from .motion.build import build_profile
+    from swingsim.motion.build import build_profile
 
     return float(build_profile(scene.moves[index], scene).end_s)
 
@@ -229,7 +229,7 @@ def sample_profile(scene, index, move, dt_max=0.02):
     Samples every ``dt_max`` seconds at most, plus every breakpoint, so the
     table's spline follows the profile closely.
     """
-    from .motion.build import build_profile
+    from swingsim.motion.build import build_profile
 
     d = dict(scene.raw)
     d["moves"] = list(scene.raw["moves"])

@@ -7,7 +7,7 @@ engineering limits.
 
 from __future__ import annotations
 
-from .errors import SceneError
+from swingsim.errors import SceneError
 
 #: key path -> (limit, unit, why)
 LIMITS = {
@@ -61,7 +61,7 @@ def _model_values(scene) -> dict:
     if getattr(scene, "rigging", None) is not None:
         out["rigging.leg_length_m"] = max(scene.rigging.leg_length_m)
     if scene.rope.elastic:
-        from .dynamics.rope import elastic_rope
+        from swingsim.dynamics.rope import elastic_rope
 
         m = scene.load.mass_kg + (scene.hook.mass_kg if scene.hook else 0.0)
         rope = elastic_rope(scene.rope, m * scene.gravity_m_s2, m)

@@ -19,8 +19,8 @@ from typing import Any
 
 import numpy as np
 
-from . import schema as S
-from .errors import SceneError
+from swingsim import schema as S
+from swingsim.errors import SceneError
 
 __all__ = ["Scene", "Move", "Zone", "View", "load_scene", "scene_from_dict", "read_table"]
 
@@ -553,7 +553,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         hook=hook_o, rigging=rig_o,
     )
     if validate_motion:
-        from .motion.build import build_motion  # local: motion imports nothing from here
+        from swingsim.motion.build import build_motion  # local: motion imports nothing from here
 
         build_motion(scene)
     return scene
@@ -644,7 +644,7 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
                     list(load.cg_offset_m))
     hook = Hook(**hook_t) if hook_t is not None else None
     if rope.elastic:
-        from .dynamics.rope import elastic_rope  # local: pure physics
+        from swingsim.dynamics.rope import elastic_rope  # local: pure physics
 
         m = load.mass_kg + (hook.mass_kg if hook else 0.0)
         try:
@@ -713,7 +713,7 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
                 raise r.err(f"rigging.{k}", f"only for kind 'spreader', not '{kind}'", rig_t[k])
     rig = Rigging(kind=kind, leg_length_m=legs, attach_m=tuple(tuple(a) for a in attach), wll_kN=wll,
                   top_leg_length_m=rig_t["top_leg_length_m"], top_wll_kN=rig_t["top_wll_kN"])
-    from .dynamics.rigging import RiggingError, rigging_geometry  # local: pure physics
+    from swingsim.dynamics.rigging import RiggingError, rigging_geometry  # local: pure physics
 
     try:
         rigging_geometry(rig, load, rigid)

@@ -12,7 +12,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from . import constants as C
+from swingsim import constants as C
 
 
 @dataclass(frozen=True)

@@ -15,9 +15,9 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.integrate import solve_ivp
 
-from . import constants as C
-from .motion.build import build_motion
-from .motion.crane import Motion
+from swingsim import constants as C
+from swingsim.motion.build import build_motion
+from swingsim.motion.crane import Motion
 
 #: Model classes by name; extensions register here (see DEVELOPERS.md).
 MODELS: dict = {}
@@ -27,7 +27,7 @@ MODEL_SELECTORS: list = []
 
 def select_model(scene):
     """The model that fits the scene (point mass unless an extension claims it)."""
-    from .dynamics.pendulum import PointMassModel
+    from swingsim.dynamics.pendulum import PointMassModel
 
     for sel in MODEL_SELECTORS:
         name = sel(scene)
@@ -190,4 +190,4 @@ def _event_message(name: str, t: float) -> str:
 
 # Registers the model extensions of swingsim.dynamics (hook block, rigid load, elastic
 # rope) in MODELS / MODEL_SELECTORS; at the end, so that both registries exist.
-from . import dynamics as _dynamics  # noqa: E402,F401
+from swingsim import dynamics as _dynamics  # noqa: E402,F401

@@ -9,8 +9,8 @@ in :data:`swingsim.solve.MODELS` / :data:`swingsim.solve.MODEL_SELECTORS`;
 
 
 def _register() -> None:
-    from .. import solve
-    from .hook_load import MODEL_NAMES, HookLoadModel, model_name
+    from swingsim import solve
+    from swingsim.dynamics.hook_load import MODEL_NAMES, HookLoadModel, model_name
 
     for name in MODEL_NAMES:
         solve.MODELS.setdefault(name, HookLoadModel)

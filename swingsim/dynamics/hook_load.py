@@ -70,10 +70,10 @@ from dataclasses import replace
 
 import numpy as np
 
-from .. import constants as C
-from .pendulum import direction_from_projected
-from .rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
-from .rope import elastic_rope
+from swingsim import constants as C
+from swingsim.dynamics.pendulum import direction_from_projected
+from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
+from swingsim.dynamics.rope import elastic_rope
 
 def _cx(a, b):
     """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""

@@ -35,8 +35,8 @@ import math
 
 import numpy as np
 
-from .. import constants as C
-from .forces import drag_coefficient_per_mass
+from swingsim import constants as C
+from swingsim.dynamics.forces import drag_coefficient_per_mass
 
 
 def _zero(x) -> bool:

@@ -12,10 +12,10 @@ import math
 
 import numpy as np
 
-from .. import constants as C
-from ..errors import SceneError
-from . import profiles as P
-from .crane import Motion
+from swingsim import constants as C
+from swingsim.errors import SceneError
+from swingsim.motion import profiles as P
+from swingsim.motion.crane import Motion
 
 
 def _trapezoid(move, scene, scale):
@@ -36,7 +36,7 @@ def _table(move, scene, scale):
 PROFILE_BUILDERS = {"trapezoid": _trapezoid, "s-curve": _s_curve, "table": _table}
 
 # input shaping (zv, zvd, ei, whole-period): swingsim/motion/shaping.py
-from . import shaping as _shaping  # noqa: E402
+from swingsim.motion import shaping as _shaping  # noqa: E402
 
 PROFILE_BUILDERS.update({name: _shaping.build_shaped for name in _shaping.SHAPERS})
 PROFILE_BUILDERS["whole-period"] = _shaping.build_whole_period

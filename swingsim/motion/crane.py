@@ -35,7 +35,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .profiles import Profile
+from swingsim.motion.profiles import Profile
 
 AXES = ("x", "y", "slew", "radius", "hoist")
 

@@ -83,7 +83,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import fsolve
 
-from . import profiles as P
+from swingsim.motion import profiles as P
 
 __all__ = ["Shaper", "zv", "zvd", "ei", "convolve", "residual_vibration", "shaped",
            "whole_period_trapezoid", "whole_period_s_curve", "SHAPERS", "SHAPED_PROFILES"]
@@ -316,7 +316,7 @@ def tuning(move, scene) -> tuple[float, float]:
     """Undamped period [s] and damping ratio [-] a shaped move is tuned to."""
     T = move.extra.get("shaper_period_s")
     if T is None:
-        from ..solve import select_model  # lazy: solve imports motion
+        from swingsim.solve import select_model  # lazy: solve imports motion
 
         T = float(select_model(scene).mode_periods_s()[0])
     z = move.extra.get("shaper_damping_ratio")

@@ -14,14 +14,14 @@ __all__ = ["render_scene", "RenderUnavailableError"]
 
 def render_scene(traj, summary, out_dir, **options):
     """Render a run as a video and stills; see :func:`swingsim.render.api.render_scene`."""
-    from .api import render_scene as _render
+    from swingsim.render.api import render_scene as _render
 
     return _render(traj, summary, out_dir, **options)
 
 
 def __getattr__(name):
     if name == "RenderUnavailableError":
-        from .gl import RenderUnavailableError
+        from swingsim.render.gl import RenderUnavailableError
 
         return RenderUnavailableError
     raise AttributeError(name)

@@ -15,9 +15,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import InputError
-from . import facts as F
-from .views import VIEWS
+from swingsim.errors import InputError
+from swingsim.render import facts as F
+from swingsim.render.views import VIEWS
 
 FORMATS = ("mp4", "gif", "png")
 #: Frames drawn per sampling call: bounds memory for any clip length.
@@ -87,7 +87,7 @@ def _read_mesh(scene):
         return None
     import pyvista as pv
 
-    from ..errors import SceneError
+    from swingsim.errors import SceneError
 
     p = Path(scene.load.mesh_file)
     full = p if p.is_absolute() else Path(scene.base_dir) / p
@@ -133,7 +133,7 @@ def _rows(samp: dict, n: int):
 
 def draw_frames(stage, traj, times, video_t0_index=0, fps=30.0, on_frame=None):
     """Pose and photograph ``stage`` at each of ``times``, yielding frames one by one."""
-    from .geometry import crane_pose
+    from swingsim.render.geometry import crane_pose
 
     for c0 in range(0, len(times), CHUNK):
         ts = times[c0:c0 + CHUNK]
@@ -189,7 +189,7 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
     list of Path
         The video (file, or folder of PNG frames) first, then the stills.
     """
-    from .gl import require_opengl
+    from swingsim.render.gl import require_opengl
 
     scene = traj.scene
     size = tuple(size)
@@ -213,7 +213,7 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
     parallel = fmt == "mp4" and nproc > 1 and len(times) >= (PARALLEL_MIN_FRAMES if workers is None else 2)
     written = []
     if parallel:
-        from .parallel import render_parallel
+        from swingsim.render.parallel import render_parallel
 
         written.append(render_parallel(traj, summary, names["video"], times, size=size, fps=fps,
                                        views=views, speed=speed, video_len=video_len, workers=nproc,
@@ -239,13 +239,13 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
 
 
 def _stage(traj, facts, size, views, mesh, speed, video_len):
-    from .stage import Stage
+    from swingsim.render.stage import Stage
 
     return Stage(traj, facts, size=size, views=views, load_mesh=mesh, speed=speed, video_len_s=video_len)
 
 
 def _write_video(stage, traj, target, times, size, fps, fmt, quiet, video_t0_index=0, video_len=None):
-    from . import writers as W
+    from swingsim.render import writers as W
 
     if fmt == "mp4":
         sink = W.Mp4Writer(target, size, fps)
@@ -286,8 +286,8 @@ def still_times(facts) -> dict:
 
 def write_stills(stage, traj, facts, targets: dict) -> list:
     """PNG stills at the moments of :func:`still_times`, with the caution line (no banner)."""
-    from . import writers as W
-    from .geometry import crane_pose
+    from swingsim.render import writers as W
+    from swingsim.render.geometry import crane_pose
 
     out = []
     for kind, t in still_times(facts).items():

@@ -10,7 +10,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from .views import VIEWS
+from swingsim.render.views import VIEWS
 
 HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
 
@@ -47,7 +47,7 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
 
 def parse_size(text: str):
     """``"1280x720"`` -> (1280, 720); raises InputError on anything else."""
-    from ..errors import InputError
+    from swingsim.errors import InputError
 
     try:
         w, h = (int(x) for x in str(text).lower().split("x"))
@@ -69,19 +69,19 @@ def options(args, scene) -> dict:
 
 def main(args) -> int:
     """Run ``swingsim render``; returns the exit code (0 done, 1 run or renderer failed, 2 bad input)."""
-    from ..errors import InputError, SimulationError
-    from ..scene import load_scene
-    from ..solve import simulate
-    from .api import check_options
-    from .gl import RenderUnavailableError
+    from swingsim.errors import InputError, SimulationError
+    from swingsim.scene import load_scene
+    from swingsim.solve import simulate
+    from swingsim.render.api import check_options
+    from swingsim.render.gl import RenderUnavailableError
 
-    from ..report.files import check_out_dir
+    from swingsim.report.files import check_out_dir
 
     try:
         scene = load_scene(args.scene)
         opts = options(args, scene)
         check_options(scene, **{k: v for k, v in opts.items() if k != "stills"})
-        from ..plausibility import check_frames, check_plausible
+        from swingsim.plausibility import check_frames, check_plausible
 
         check_plausible(scene, allow=args.allow_implausible)
         check_frames(scene, opts["fps"], opts["speed"], opts["window"], allow=args.allow_implausible)
@@ -92,7 +92,7 @@ def main(args) -> int:
     try:
         traj = simulate(scene)
         summary = _summary(traj)
-        from .api import render_scene
+        from swingsim.render.api import render_scene
 
         paths = render_scene(traj, summary, out, quiet=args.quiet, **opts)
     except InputError as exc:
@@ -117,6 +117,6 @@ def main(args) -> int:
 
 
 def _summary(traj):
-    from ..metrics import summarize
+    from swingsim.metrics import summarize
 
     return summarize(traj)

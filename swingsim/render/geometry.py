@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 import pyvista as pv
 
-from . import transforms as T
+from swingsim.render import transforms as T
 
 
 @dataclass(frozen=True)
@@ -218,7 +218,7 @@ def load_mesh(shape: str, size, mesh=None) -> pv.PolyData:
         return mesh
     lx, ly, lz = size
     if shape == "cylinder":
-        from ..dynamics.rigging import cylinder_axis  # one rule for the drawing and the inertia
+        from swingsim.dynamics.rigging import cylinder_axis  # one rule for the drawing and the inertia
 
         axis, d, _ = cylinder_axis(size)
         direction = [0.0, 0.0, 0.0]

@@ -12,7 +12,7 @@ from __future__ import annotations
 import ctypes.util
 import os
 
-from ..errors import SimulationError
+from swingsim.errors import SimulationError
 
 #: System packages that provide offscreen OpenGL on Debian/Ubuntu.
 SYSTEM_PACKAGES = "libegl1 libgl1-mesa-dri"

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 
 try:  # one place for the caution wording once the core has it
-    from ..cautions import CAUTION as _CAUTION, CAUTION_SHORT as _CAUTION_SHORT
+    from swingsim.cautions import CAUTION as _CAUTION, CAUTION_SHORT as _CAUTION_SHORT
 except ImportError:  # pragma: no cover - until swingsim.cautions is on main
     _CAUTION = ("Planning and training preview only. It does not replace the lift plan, the crane "
                 "manufacturer's data, local regulations, or the competent person in charge of the lift.")
@@ -101,7 +101,7 @@ def stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
                events, near_zones, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
     """The text of the frame at simulated time ``t_s`` (``row``: one sample of the run)."""
-    from .facts import rope_angle_deg
+    from swingsim.render.facts import rope_angle_deg
 
     ang = float(rope_angle_deg(row["rope_dir"]))
     spd = float(np.linalg.norm(row["load_vel"]))

@@ -21,15 +21,15 @@ from pathlib import Path
 
 import numpy as np
 
-from ..report.files import TMP_PREFIX
+from swingsim.report.files import TMP_PREFIX
 
 
 def _draw_range(job: dict) -> None:
     """Worker: draw the frames of ``job["times"]`` into ``job["segment"]``."""
-    from . import facts as F
-    from . import writers as W
-    from .api import _read_mesh, _stage, draw_frames
-    from .gl import require_opengl
+    from swingsim.render import facts as F
+    from swingsim.render import writers as W
+    from swingsim.render.api import _read_mesh, _stage, draw_frames
+    from swingsim.render.gl import require_opengl
 
     require_opengl()
     traj = job["traj"]
@@ -57,8 +57,8 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
     """Render ``times`` into the MP4 ``target`` with ``workers`` processes; returns the path."""
     import selectors
 
-    from . import writers as W
-    from .api import _progress
+    from swingsim.render import writers as W
+    from swingsim.render.api import _progress
 
     target = Path(target)
     workers = max(1, min(workers, len(times)))

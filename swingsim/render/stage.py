@@ -13,12 +13,12 @@ import pyvista as pv
 import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
-from ..metrics import load_half_size_m, zone_distance
-from . import geometry as G
-from . import overlay as O
-from . import transforms as T
-from . import views as V
-from .gl import RenderUnavailableError, _message
+from swingsim.metrics import load_half_size_m, zone_distance
+from swingsim.render import geometry as G
+from swingsim.render import overlay as O
+from swingsim.render import transforms as T
+from swingsim.render import views as V
+from swingsim.render.gl import RenderUnavailableError, _message
 
 # The project's own plain palette: light sky, sand ground, slate crane, signal-orange load; the hook block and
 # a spreader beam share the hook's yellow.

@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..report.files import TMP_PREFIX, WRITTEN, atomic_path
+from swingsim.report.files import TMP_PREFIX, WRITTEN, atomic_path
 
 #: H.264 settings: 'veryfast' keeps the encoder ahead of the renderer on two cores;
 #: CRF 20 is visually clean for flat-shaded pictures (common practice: 18-23).

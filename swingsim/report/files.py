@@ -13,7 +13,7 @@ import os
 import tempfile
 from pathlib import Path
 
-from ..errors import InputError
+from swingsim.errors import InputError
 
 TMP_PREFIX = ".swingsim-partial-"
 

@@ -13,8 +13,8 @@ import html
 import io
 import math
 
-from .. import cautions
-from .plots import GREY, INK, LIMIT, LOAD, ROPE
+from swingsim import cautions
+from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE
 
 # one colour per category, our own palette
 _COLOURS = [ROPE, LOAD, "#4f7d3a", "#7a4fa0", "#b08a1e", "#2d8f8f", INK, "#a0507a"]

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .files import atomic_write_text
-from .plots import write_plots
-from .tables import summary_json, summary_text, timeseries_columns, timeseries_csv
+from swingsim.report.files import atomic_write_text
+from swingsim.report.plots import write_plots
+from swingsim.report.tables import summary_json, summary_text, timeseries_columns, timeseries_csv
 
 
 def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Path]:

@@ -11,9 +11,9 @@ import math
 
 import numpy as np
 
-from .. import cautions
-from .files import atomic_write_bytes
-from .tables import timeseries_columns
+from swingsim import cautions
+from swingsim.report.files import atomic_write_bytes
+from swingsim.report.tables import timeseries_columns
 
 # our own plain palette, legible on a projector
 INK = "#1d2731"
@@ -159,7 +159,7 @@ FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": pla
 
 def _register_model_figures():
     # hook block, rigging, rigid load (plots_rigging.py): drawn only when the model has legs
-    from .plots_rigging import rigging_figure
+    from swingsim.report.plots_rigging import rigging_figure
 
     FIGURES["rigging.png"] = rigging_figure
 

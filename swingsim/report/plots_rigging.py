@@ -7,8 +7,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from .plots import GREY, INK, LIMIT, LOAD, ROPE, _figure, _footer, _moves
-from .tables import timeseries_columns
+from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE, _figure, _footer, _moves
+from swingsim.report.tables import timeseries_columns
 
 LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
 

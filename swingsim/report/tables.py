@@ -12,9 +12,9 @@ import math
 
 import numpy as np
 
-from .. import cautions
-from ..metrics import angle_between, rope_angle_rad
-from ..metrics_models import model_summary_lines
+from swingsim import cautions
+from swingsim.metrics import angle_between, rope_angle_rad
+from swingsim.metrics_models import model_summary_lines
 
 
 def _clean(x):
