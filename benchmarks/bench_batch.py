@@ -4,7 +4,7 @@ Scene: a single pendulum (point-mass load on the hoist rope) under a trolley
 making one trapezoid move, simulated for 60 s.  The variants differ in rope
 length, acceleration, speed and travel (a seeded random draw).
 
-* Loop: for each variant, :func:`swingsim.solve.simulate` -- scipy ``solve_ivp``
+* Loop: for each variant, :func:`swingsim.simulation.simulate` -- scipy ``solve_ivp``
   with DOP853 at rtol 1e-8 (atol 1e-10), restarted at the move's breakpoints --
   then the peak and residual rope angles from its dense output sampled at the
   metric sample times (``swingsim.metrics.metric_times``) with a parabola
@@ -36,10 +36,10 @@ from scipy.optimize import minimize_scalar
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
 
-from swingsim import batch  # noqa: E402
-from swingsim.metrics import metric_times  # noqa: E402
+from swingsim.batch import engine as batch  # noqa: E402
+from swingsim.metrics.single import metric_times  # noqa: E402
 from swingsim.scene import scene_from_dict  # noqa: E402
-from swingsim.solve import simulate  # noqa: E402
+from swingsim.simulation import simulate  # noqa: E402
 
 BASE = {
     "title": "Benchmark: trolley move under a tower crane (invented)",
@@ -72,7 +72,7 @@ def loop_angles(traj):
 
     Sampled at the metric sample times (``swingsim.metrics.metric_times``), then
     refined on the run's dense interpolant by a bounded scalar search between the
-    neighbours of the largest sample, as ``swingsim.metrics`` does.
+    neighbours of the largest sample, as ``swingsim.metrics.single`` does.
     """
     t = metric_times(traj)
     Y = traj.state(t)

@@ -19,26 +19,26 @@ from swingsim.scene import Scene, load_scene, scene_from_dict  # noqa: E402
 
 
 def simulate(scene, **kw):
-    """Integrate a scene; see :func:`swingsim.solve.simulate`."""
-    from swingsim.solve import simulate as _simulate
+    """Integrate a scene; see :func:`swingsim.simulation.simulate`."""
+    from swingsim.simulation import simulate as _simulate
 
     return _simulate(scene, **kw)
 
 
 def summarize(traj):
     """Measure a trajectory; see :func:`swingsim.metrics.summarize`."""
-    from swingsim.metrics import summarize as _summarize
+    from swingsim.metrics.single import summarize as _summarize
 
     return _summarize(traj)
 
 
 def __getattr__(name):
     if name == "Trajectory":
-        from swingsim.solve import Trajectory
+        from swingsim.simulation import Trajectory
 
         return Trajectory
     if name == "Summary":
-        from swingsim.metrics import Summary
+        from swingsim.metrics.single import Summary
 
         return Summary
     raise AttributeError(name)

@@ -1,5 +1,5 @@
 import sys
 
-from swingsim.cli import main
+from swingsim.cli.main import main
 
 sys.exit(main())

@@ -16,7 +16,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from swingsim import schema
+from swingsim.scene import schema
 from swingsim.errors import SceneError
 from swingsim.scene import load_scene, scene_from_dict
 

@@ -1,7 +1,7 @@
 """The batch engine against scipy's solve_ivp (DOP853 at tight tolerance) and the single-run metrics.
 
 Reference: scipy.integrate.solve_ivp, method DOP853, rtol 1e-12, atol 1e-14, restarted
-at every breakpoint (swingsim.solve.simulate), and swingsim.metrics.summarize on it.
+at every breakpoint (swingsim.simulation.simulate), and swingsim.metrics.summarize on it.
 Random variants cover large nonlinear swings (up to 60 deg), wind and drag, damping,
 slewing, radius, hoisting, s-curves, shaped moves and table profiles.
 """
@@ -10,9 +10,9 @@ slewing, radius, hoisting, s-curves, shaped moves and table profiles.
 import numpy as np
 import pytest
 
-from swingsim import batch
-from swingsim.metrics import summarize
-from swingsim.solve import simulate
+from swingsim.batch import engine as batch
+from swingsim.metrics.single import summarize
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 

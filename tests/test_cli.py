@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from swingsim.cli import main
+from swingsim.cli.main import main
 
 from test_scene import GOOD, scene_files
 

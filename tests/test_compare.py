@@ -13,9 +13,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from swingsim import batch, compare
+from swingsim.batch import engine as batch
+
+from swingsim.study import compare
 from swingsim.errors import InputError
-from swingsim.sweep import load_sweep
+from swingsim.study.variants import load_sweep
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLE = ROOT / "scenes" / "yard_gantry_sweep.toml"

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 from swingsim.motion import profiles as P
-from swingsim.motion.crane import Motion
+from swingsim.motion.kinematics import Motion
 
 
 def _motion():

@@ -6,10 +6,10 @@ import numpy as np
 import pytest
 
 from swingsim import constants as C
-from swingsim.cli import main
+from swingsim.cli.main import main
 from swingsim.dynamics.pendulum import PointMassModel
-from swingsim.metrics import summarize
-from swingsim.solve import simulate
+from swingsim.metrics.single import summarize
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 

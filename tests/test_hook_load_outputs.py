@@ -9,11 +9,11 @@ import pytest
 
 from swingsim import constants as C
 from swingsim import load_scene
-from swingsim.cli import main
+from swingsim.cli.main import main
 from swingsim.dynamics.hook_load import HookLoadModel
-from swingsim.metrics import summarize
+from swingsim.metrics.single import summarize
 from swingsim.report.tables import timeseries_columns
-from swingsim.solve import MODEL_SELECTORS, MODELS, simulate
+from swingsim.simulation import MODEL_SELECTORS, MODELS, simulate
 
 from conftest import make_scene
 
@@ -179,7 +179,7 @@ def test_steady_wind_offset_of_hook_and_rigid_load():
 
 def test_implausibly_stiff_rope_is_refused_unless_allowed():
     from swingsim.errors import SceneError
-    from swingsim.plausibility import check_plausible
+    from swingsim.scene.plausibility import check_plausible
 
     sc = make_scene({"rope": {"stiffness_kN_per_m": 1e8}})  # bounce near 1.6 kHz for a tonne
     with pytest.raises(SceneError) as ei:

@@ -13,8 +13,8 @@ from scipy.linalg import eigh
 from swingsim import constants as C
 from swingsim.dynamics.hook_load import HookLoadModel
 from swingsim.dynamics.rigging import box_inertia, cylinder_inertia
-from swingsim.metrics import summarize
-from swingsim.solve import simulate
+from swingsim.metrics.single import summarize
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 

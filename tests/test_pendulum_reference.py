@@ -12,8 +12,8 @@ from scipy.optimize import brentq
 from scipy.special import ellipk, j1, y1
 
 from swingsim import constants as C
-from swingsim.metrics import rope_angle_rad, summarize
-from swingsim.solve import simulate
+from swingsim.metrics.single import rope_angle_rad, summarize
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 

@@ -2,7 +2,7 @@
 
 The check is independent of the planner's own search: the written CSV is read back
 as a scene's ``table`` profile and simulated with the single-run solver (scipy DOP853,
-swingsim.solve.simulate) at rope lengths that the search did not use.
+swingsim.simulation.simulate) at rope lengths that the search did not use.
 """
 
 import json
@@ -12,12 +12,12 @@ from argparse import Namespace
 import numpy as np
 import pytest
 
-from swingsim import plan_cli
+from swingsim.cli import plan as plan_cli
 from swingsim.errors import InputError
-from swingsim.metrics import summarize
+from swingsim.metrics.single import summarize
 from swingsim.motion.profiles import from_table
 from swingsim.scene import load_scene, scene_from_dict
-from swingsim.solve import simulate
+from swingsim.simulation import simulate
 
 SCENE = """
 title = "plan test: short gantry travel (invented)"

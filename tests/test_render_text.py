@@ -11,12 +11,12 @@ import sys
 import numpy as np
 import pytest
 
-from swingsim import cautions
+from swingsim.metrics import cautions
 from swingsim.errors import InputError, SceneError
 from swingsim.render import overlay as O
 from swingsim.render.api import check_options, frame_times, output_names, still_times
 from swingsim.render.facts import collect, rope_angle_deg
-from swingsim.solve import simulate
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 
@@ -27,7 +27,7 @@ MOVE = {"axis": "x", "profile": "trapezoid", "start_s": 1.0, "distance_m": 6.0, 
 def test_import_does_not_load_pyvista():
     import subprocess
 
-    code = ("import sys; import swingsim, swingsim.render, swingsim.render.cli, swingsim.render.api; "
+    code = ("import sys; import swingsim, swingsim.render, swingsim.cli.render, swingsim.render.api; "
             "print(any(m.split('.')[0] in ('pyvista', 'vtk', 'vtkmodules') for m in sys.modules))")
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert r.stdout.strip() == "False"
@@ -56,7 +56,7 @@ def test_caution_in_every_frame_and_banner_only_at_the_ends():
                for k, v in samp.items()}
         ft = O.frame_text(t, i / 10, video_len, 1.0, row, facts.events, [])
         text = " ".join(ft.strings())
-        # The short caution (from swingsim.cautions, one place for the wording) is on every frame.
+        # The short caution (from swingsim.metrics.cautions, one place for the wording) is on every frame.
         assert " ".join(ft.caution.split()) == cautions.CAUTION_SHORT
         assert "competent person" in text
         banner.append(bool(ft.banner))
@@ -87,7 +87,7 @@ def test_readout_matches_the_run():
 def test_events_from_the_summary():
     s = make_scene({"damping": {"ratio": 0.08}}, moves=[MOVE], duration_s=40.0)
     traj = simulate(s)
-    from swingsim.metrics import summarize
+    from swingsim.metrics.single import summarize
 
     sm = summarize(traj)
     facts = collect(traj, sm)
@@ -169,7 +169,7 @@ def test_load_mesh_file_is_checked(tmp_path):
 
 
 def test_cli_bad_size_is_exit_2_and_writes_nothing(tmp_path, capsys):
-    from swingsim.render import cli
+    from swingsim.cli import render as cli
 
     p = argparse.ArgumentParser()
     cli.add_arguments(p)
@@ -205,7 +205,7 @@ def test_a_run_that_stops_early_says_so_at_its_end():
 
 def test_render_refuses_implausible_frame_count(tmp_path, capsys):
     # 60 s at 120 fps in slow motion 0.05: 144,000 frames, beyond the limit
-    from swingsim.cli import main
+    from swingsim.cli.main import main
 
     demo = Path(__file__).resolve().parent.parent / "swingsim" / "data" / "demo.toml"
     rc = main(["render", str(demo), "--out", str(tmp_path / "v"), "--fps", "120", "--speed", "0.05"])

@@ -15,7 +15,7 @@ import pytest
 
 from swingsim.render import gl
 from swingsim.render.api import render_scene
-from swingsim.solve import simulate
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 from test_scene import scene_files
@@ -166,7 +166,7 @@ def test_zone_turns_warning_colour_near_the_load():
             gap_z = max(0.0, (load[2] - 1.0) - 5.5)
             assert (np.hypot(gap_x, gap_z) <= 1.0) == near
             # the same moment the summary counts as within the margin
-            from swingsim.metrics import summarize
+            from swingsim.metrics.single import summarize
 
             first = summarize(traj).data["zones"][0]["first_within_margin_s"]
             assert (t >= first) == near
@@ -245,7 +245,7 @@ def test_no_opengl_is_one_clear_line(monkeypatch, tmp_path, capsys):
     with pytest.raises(gl.RenderUnavailableError) as e:
         gl.require_opengl()
     assert "libegl1 libgl1-mesa-dri" in str(e.value) and "\n" not in str(e.value)
-    from swingsim.render import cli
+    from swingsim.cli import render as cli
 
     p = argparse.ArgumentParser()
     cli.add_arguments(p)
@@ -268,7 +268,7 @@ def test_egl_chosen_without_a_display(monkeypatch):
 
 
 def test_envelope_covers_the_load_path_and_nothing_far():
-    from swingsim.render.geometry import envelope_image
+    from swingsim.scene3d.geometry import envelope_image
 
     # a quarter circle of radius 10 m, as a slew would sweep
     a = np.linspace(0, np.pi / 2, 200)
@@ -294,7 +294,7 @@ def test_envelope_covers_the_load_path_and_nothing_far():
 def test_hook_block_and_sling_legs_from_model_outputs():
     """A model with a hook block gives outputs["hook"]; one with rigging gives attach_points (N, k, 3)."""
     from swingsim.render.facts import collect
-    from swingsim.render.geometry import crane_pose
+    from swingsim.scene3d.geometry import crane_pose
     from swingsim.render.stage import Stage
 
     traj = simulate(_scene())
@@ -321,7 +321,7 @@ def test_hook_block_and_sling_legs_from_model_outputs():
 
 
 def test_swingsim_render_command(tmp_path, capsys):
-    from swingsim.cli import main
+    from swingsim.cli.main import main
 
     scene = tmp_path / "lift.toml"
     scene.write_text('title = "t"\nduration_s = 3.0\n[crane]\nkind = "bridge"\nsuspension_m = [0.0, 0.0, 12.0]\n'
@@ -355,7 +355,7 @@ def test_progress_bar_only_on_a_terminal(monkeypatch):
 
 
 def test_run_video_without_opengl_writes_nothing(monkeypatch, tmp_path, capsys):
-    from swingsim.cli import main
+    from swingsim.cli.main import main
 
     monkeypatch.setattr(gl, "find_gl_libraries", lambda: {"EGL": False, "OSMesa": False, "GL": False})
     monkeypatch.delenv("VTK_DEFAULT_OPENGL_WINDOW", raising=False)

@@ -10,7 +10,7 @@ from pathlib import Path
 import imageio.v3 as iio
 import pytest
 
-from swingsim.report.files import TMP_PREFIX, atomic_write_text
+from swingsim.io.files import TMP_PREFIX, atomic_write_text
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "swingsim" / "data" / "demo.toml"
@@ -92,7 +92,7 @@ def test_atomic_write_keeps_old_file_on_failure(tmp_path):
     class Boom(Exception):
         pass
 
-    from swingsim.report import files
+    from swingsim.io import files
 
     with pytest.raises(Boom):
         with files.atomic_path(p) as tmp:

@@ -5,7 +5,7 @@ from pathlib import Path
 
 import pytest
 
-from swingsim import schema
+from swingsim.scene import schema
 from swingsim.errors import SceneError
 from swingsim.scene import load_scene
 
@@ -148,7 +148,7 @@ def test_every_key_documented():
 def test_reference_doc_in_sync():
     doc = (ROOT / "docs" / "scene-reference.md").read_text()
     assert doc.strip() == schema.reference_markdown().strip(), \
-        "run: python -m swingsim.schema > docs/scene-reference.md"
+        "run: python -m swingsim.scene.schema > docs/scene-reference.md"
 
 
 def scene_files():

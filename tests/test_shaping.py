@@ -21,7 +21,7 @@ from scipy.integrate import solve_ivp
 from swingsim.errors import SceneError
 from swingsim.motion import profiles as P
 from swingsim.motion import shaping as SH
-from swingsim.motion.build import build_motion
+from swingsim.motion.registry import build_motion
 
 from conftest import make_scene
 

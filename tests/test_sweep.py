@@ -7,7 +7,7 @@ from pathlib import Path
 import pytest
 
 from swingsim.errors import InputError
-from swingsim.sweep import load_sweep
+from swingsim.study.variants import load_sweep
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -115,7 +115,7 @@ def test_cli_bad_sweep_exit_2_one_line_nothing_written(tmp_path):
 def test_implausible_variant_count_needs_override(tmp_path):
     # 400 x 300 = 120,000 variants: beyond the plausibility limit unless allowed
     from swingsim.errors import InputError
-    from swingsim.sweep import PLAUSIBLE_VARIANTS, sweep_from_dict
+    from swingsim.study.variants import PLAUSIBLE_VARIANTS, sweep_from_dict
 
     root = Path(__file__).resolve().parent.parent / "scenes"
     data = {"base": "yard_gantry_travel.toml",

@@ -3,13 +3,13 @@
 Nothing here imports I/O, plotting, the renderer or the command line.
 
 Importing this package registers the hook-and-load models (``hook_load.py``)
-in :data:`swingsim.solve.MODELS` / :data:`swingsim.solve.MODEL_SELECTORS`;
-``swingsim.solve`` imports it, so ``simulate`` always sees them.
+in :data:`swingsim.simulation.MODELS` / :data:`swingsim.simulation.MODEL_SELECTORS`;
+``swingsim.simulation`` imports it, so ``simulate`` always sees them.
 """
 
 
 def _register() -> None:
-    from swingsim import solve
+    from swingsim import simulation as solve
     from swingsim.dynamics.hook_load import MODEL_NAMES, HookLoadModel, model_name
 
     for name in MODEL_NAMES:

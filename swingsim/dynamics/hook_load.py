@@ -80,7 +80,7 @@ def _cx(a, b):
     return (a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0])
 
 
-#: Names under which this model is registered in ``swingsim.solve.MODELS``.
+#: Names under which this model is registered in ``swingsim.simulation.MODELS``.
 MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load")
 
 
@@ -150,7 +150,7 @@ class HookLoadModel:
         self.lift_off = self.elastic and scene.start.rope_preload == "lift-off"
         #: instant the load lifts off [s] (rope_preload = lift-off); set by initial_state
         self.t_lift = None
-        #: instants where the solver must restart (read by swingsim.solve.simulate)
+        #: instants where the solver must restart (read by swingsim.simulation.simulate)
         self.extra_breakpoints = ()
         if self.lift_off:
             # at t = 0 the rope is unstretched and slack by rope_slack_m

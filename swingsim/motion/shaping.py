@@ -316,7 +316,7 @@ def tuning(move, scene) -> tuple[float, float]:
     """Undamped period [s] and damping ratio [-] a shaped move is tuned to."""
     T = move.extra.get("shaper_period_s")
     if T is None:
-        from swingsim.solve import select_model  # lazy: solve imports motion
+        from swingsim.simulation import select_model  # lazy: solve imports motion
 
         T = float(select_model(scene).mode_periods_s()[0])
     z = move.extra.get("shaper_damping_ratio")
@@ -337,7 +337,7 @@ def _base_name(move) -> str:
 
 
 def build_shaped(move, scene, scale) -> P.Profile:
-    """Profile builder for ``zv``, ``zvd``, ``ei`` (see :data:`swingsim.motion.build.PROFILE_BUILDERS`)."""
+    """Profile builder for ``zv``, ``zvd``, ``ei`` (see :data:`swingsim.motion.registry.PROFILE_BUILDERS`)."""
     T, z = tuning(move, scene)
     decel = None if move.decel is None else move.decel * scale
     if _base_name(move) == "s-curve":

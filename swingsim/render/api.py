@@ -133,7 +133,7 @@ def _rows(samp: dict, n: int):
 
 def draw_frames(stage, traj, times, video_t0_index=0, fps=30.0, on_frame=None):
     """Pose and photograph ``stage`` at each of ``times``, yielding frames one by one."""
-    from swingsim.render.geometry import crane_pose
+    from swingsim.scene3d.geometry import crane_pose
 
     for c0 in range(0, len(times), CHUNK):
         ts = times[c0:c0 + CHUNK]
@@ -287,7 +287,7 @@ def still_times(facts) -> dict:
 def write_stills(stage, traj, facts, targets: dict) -> list:
     """PNG stills at the moments of :func:`still_times`, with the caution line (no banner)."""
     from swingsim.render import writers as W
-    from swingsim.render.geometry import crane_pose
+    from swingsim.scene3d.geometry import crane_pose
 
     out = []
     for kind, t in still_times(facts).items():

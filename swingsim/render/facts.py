@@ -38,7 +38,7 @@ class Facts:
 
 def rope_angle_deg(rope_dir) -> np.ndarray:
     """Rope angle from the vertical [deg] of unit rope directions (N, 3) pointing down."""
-    from swingsim.metrics import rope_angle_rad  # the summary's own definition, so the overlay agrees with it
+    from swingsim.metrics.single import rope_angle_rad  # the summary's own definition, so the overlay agrees with it
 
     return np.degrees(rope_angle_rad(np.asarray(rope_dir, dtype=float)))
 
@@ -56,7 +56,7 @@ def _get(summary, name):
 def collect(traj, summary=None) -> Facts:
     """Facts of a run, from ``summary`` (``swingsim.metrics.summarize``; made when None)."""
     if summary is None:
-        from swingsim.metrics import summarize
+        from swingsim.metrics.single import summarize
 
         summary = summarize(traj)
     peak = float(_get(summary, "peak_rope_angle_deg"))

@@ -11,8 +11,8 @@ from dataclasses import dataclass
 import numpy as np
 
 try:  # one place for the caution wording once the core has it
-    from swingsim.cautions import CAUTION as _CAUTION, CAUTION_SHORT as _CAUTION_SHORT
-except ImportError:  # pragma: no cover - until swingsim.cautions is on main
+    from swingsim.metrics.cautions import CAUTION as _CAUTION, CAUTION_SHORT as _CAUTION_SHORT
+except ImportError:  # pragma: no cover - until swingsim.metrics.cautions is on main
     _CAUTION = ("Planning and training preview only. It does not replace the lift plan, the crane "
                 "manufacturer's data, local regulations, or the competent person in charge of the lift.")
     _CAUTION_SHORT = "Preview only - the lift plan and the competent person decide."

@@ -21,7 +21,7 @@ from pathlib import Path
 
 import numpy as np
 
-from swingsim.report.files import TMP_PREFIX
+from swingsim.io.files import TMP_PREFIX
 
 
 def _draw_range(job: dict) -> None:

@@ -13,10 +13,10 @@ import pyvista as pv
 import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
-from swingsim.metrics import load_half_size_m, zone_distance
-from swingsim.render import geometry as G
+from swingsim.metrics.single import load_half_size_m, zone_distance
+from swingsim.scene3d import geometry as G
 from swingsim.render import overlay as O
-from swingsim.render import transforms as T
+from swingsim.scene3d import transforms as T
 from swingsim.render import views as V
 from swingsim.render.gl import RenderUnavailableError, _message
 

@@ -1,7 +1,7 @@
 """Frame sinks that stream to disk: MP4 (H.264, yuv420p), GIF and numbered PNGs.
 
 Each writes under a temporary name in the target's own folder
-(``swingsim.report.files``) and renames it into place on success (so a reader never sees half a file, and a failed render
+(``swingsim.io.files``) and renames it into place on success (so a reader never sees half a file, and a failed render
 leaves nothing behind); frames are passed on one at a time, never all held.
 """
 
@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
-from swingsim.report.files import TMP_PREFIX, WRITTEN, atomic_path
+from swingsim.io.files import TMP_PREFIX, WRITTEN, atomic_path
 
 #: H.264 settings: 'veryfast' keeps the encoder ahead of the renderer on two cores;
 #: CRF 20 is visually clean for flat-shaded pictures (common practice: 18-23).

@@ -13,7 +13,7 @@ import html
 import io
 import math
 
-from swingsim import cautions
+from swingsim.metrics import cautions
 from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE
 
 # one colour per category, our own palette

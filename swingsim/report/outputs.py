@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from swingsim.report.files import atomic_write_text
+from swingsim.io.files import atomic_write_text
 from swingsim.report.plots import write_plots
 from swingsim.report.tables import summary_json, summary_text, timeseries_columns, timeseries_csv
 

@@ -11,8 +11,8 @@ import math
 
 import numpy as np
 
-from swingsim import cautions
-from swingsim.report.files import atomic_write_bytes
+from swingsim.metrics import cautions
+from swingsim.io.files import atomic_write_bytes
 from swingsim.report.tables import timeseries_columns
 
 # our own plain palette, legible on a projector

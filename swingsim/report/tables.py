@@ -12,9 +12,9 @@ import math
 
 import numpy as np
 
-from swingsim import cautions
-from swingsim.metrics import angle_between, rope_angle_rad
-from swingsim.metrics_models import model_summary_lines
+from swingsim.metrics import cautions
+from swingsim.metrics.single import angle_between, rope_angle_rad
+from swingsim.metrics.models import model_summary_lines
 
 
 def _clean(x):
@@ -128,7 +128,7 @@ def summary_text(summary, scene) -> str:
     w.append(f"  Static                           {_fmt(d['static_rope_tension_kN'], 'kN')}")
     w.append(f"  Peak                             {_fmt(d['peak_rope_tension_kN'], 'kN')}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}")
     w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 3)}")
-    # -- hook block, rigging, rigid load, elastic rope (swingsim/metrics_models.py) --
+    # -- hook block, rigging, rigid load, elastic rope (swingsim/metrics/models.py) --
     w.extend(model_summary_lines(d))
     w.append("")
     w.append("Swing period")

@@ -26,7 +26,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from swingsim import batch
+from swingsim.batch import engine as batch
 from swingsim.errors import InputError
 from swingsim.scene import scene_from_dict
 
@@ -174,7 +174,7 @@ def evaluate(scene, index, candidates, lengths, **kw):
 
 
 def _move_end(scene, index):
-    from swingsim.motion.build import build_profile
+    from swingsim.motion.registry import build_profile
 
     return float(build_profile(scene.moves[index], scene).end_s)
 
@@ -229,7 +229,7 @@ def sample_profile(scene, index, move, dt_max=0.02):
     Samples every ``dt_max`` seconds at most, plus every breakpoint, so the
     table's spline follows the profile closely.
     """
-    from swingsim.motion.build import build_profile
+    from swingsim.motion.registry import build_profile
 
     d = dict(scene.raw)
     d["moves"] = list(scene.raw["moves"])

@@ -19,7 +19,7 @@ from typing import Any
 
 import numpy as np
 
-from swingsim import schema as S
+from swingsim.scene import schema as S
 from swingsim.errors import SceneError
 
 __all__ = ["Scene", "Move", "Zone", "View", "load_scene", "scene_from_dict", "read_table"]
@@ -553,7 +553,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         hook=hook_o, rigging=rig_o,
     )
     if validate_motion:
-        from swingsim.motion.build import build_motion  # local: motion imports nothing from here
+        from swingsim.motion.registry import build_motion  # local: motion imports nothing from here
 
         build_motion(scene)
     return scene

@@ -16,8 +16,8 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from swingsim import constants as C
-from swingsim.motion.build import build_motion
-from swingsim.motion.crane import Motion
+from swingsim.motion.registry import build_motion
+from swingsim.motion.kinematics import Motion
 
 #: Model classes by name; extensions register here (see DEVELOPERS.md).
 MODELS: dict = {}

@@ -5,7 +5,7 @@ for a whole chunk of variants together: every array operation acts on all the
 variants of the chunk, so the Python-level cost of a step is paid once per
 chunk, not once per variant.  Variants whose model the engine does not handle,
 or whose run the model cannot carry on (slack rope, swing at the model's
-limit, non-finite state), are solved one by one with :func:`swingsim.solve.simulate`
+limit, non-finite state), are solved one by one with :func:`swingsim.simulation.simulate`
 instead, so every result is one a single run would give.
 
 Method
@@ -58,8 +58,8 @@ from swingsim import constants as C
 from swingsim.dynamics.pendulum import (PointMassModel, accelerations, specific_force,
                                 tension_per_mass)
 from swingsim.motion import profiles as P
-from swingsim.motion.build import build_motion
-from swingsim.motion.crane import AXES
+from swingsim.motion.registry import build_motion
+from swingsim.motion.kinematics import AXES
 
 __all__ = ["run_batch", "run_chunk", "supported", "chunks", "SUMMARY_KEYS",
            "summaries_from_samples", "DEFAULT_STEPS_PER_PERIOD"]
@@ -135,7 +135,7 @@ def _hermite_basis(s):
 
 def supported(scene) -> bool:
     """True when the batch engine integrates this scene (point-mass model)."""
-    from swingsim.solve import select_model
+    from swingsim.simulation import select_model
 
     try:
         return type(select_model(scene)) is PointMassModel
@@ -688,7 +688,7 @@ def summaries_from_samples(t, r2, dot, swing_at, off, tension_N, static_N, exc2,
 
     Notes
     -----
-    Definitions as in :mod:`swingsim.metrics`: the rope angle is
+    Definitions as in :mod:`swingsim.metrics.single`: the rope angle is
     :math:`\arctan2(|n_h|, -n_z)`; the swing is the angle between ``n`` and
     the rest direction; the residual is the largest after the last move's
     end; the settle time is when the swing last falls below
@@ -852,11 +852,11 @@ def _chunk_batch(variants, samples_per_step):
 
 def _single(scene) -> dict:
     """Summary of one scene by the single-run solver (the reference path)."""
-    from swingsim.solve import simulate
+    from swingsim.simulation import simulate
 
     traj = simulate(scene)
     try:
-        from swingsim.metrics import summarize
+        from swingsim.metrics.single import summarize
     except ImportError:  # pragma: no cover - metrics is part of the core
         summarize = None
     if summarize is not None:
@@ -879,7 +879,7 @@ def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
     samples_per_step : int
         Dense samples per step for the summary.
     engine : {"batch", "single"}
-        ``"single"`` solves every scene with :func:`swingsim.solve.simulate`.
+        ``"single"`` solves every scene with :func:`swingsim.simulation.simulate`.
 
     Returns
     -------

@@ -35,8 +35,8 @@ from scipy.optimize import minimize_scalar
 from scipy.special import ellipk
 
 from swingsim import __version__
-from swingsim import cautions
-from swingsim.metrics_models import model_metrics, model_warnings
+from swingsim.metrics import cautions
+from swingsim.metrics.models import model_metrics, model_warnings
 
 #: Metric sample rate floor [Hz] and samples per natural period (whichever is finer).
 _MIN_RATE_HZ = 50.0
@@ -134,7 +134,7 @@ def load_half_size_m(scene) -> np.ndarray:
 
 
 def summarize(traj) -> Summary:
-    """Measure a :class:`~swingsim.solve.Trajectory` into a :class:`Summary`."""
+    """Measure a :class:`~swingsim.simulation.Trajectory` into a :class:`Summary`."""
     scene, model, motion = traj.scene, traj.model, traj.motion
     g = scene.gravity_m_s2
     t = metric_times(traj)

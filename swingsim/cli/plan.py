@@ -1,6 +1,6 @@
 """``swingsim plan-move SCENE --move N --max-residual-deg X --rope-range LOW:HIGH``.
 
-Finds the shortest move (see :mod:`swingsim.planning`) whose residual swing
+Finds the shortest move (see :mod:`swingsim.study.plan`) whose residual swing
 stays under X degrees for every rope length from LOW to HIGH metres, writes it
 as a ``table`` profile the scene can use, verifies that table by simulating it
 with the single-run solver at rope lengths between and at the search lengths,
@@ -24,7 +24,7 @@ import math
 import os
 from pathlib import Path
 
-from swingsim import cautions
+from swingsim.metrics import cautions
 from swingsim.errors import InputError
 from swingsim.scene import load_scene, scene_from_dict
 
@@ -60,9 +60,9 @@ def _verify(scene, index, table_name, out_dir, lengths, snippet_move):
     once more with the single-run solver (scipy DOP853 at tight tolerance),
     whose result is then the one reported for that length.
     """
-    from swingsim import batch
-    from swingsim.metrics import summarize
-    from swingsim.solve import simulate
+    from swingsim.batch import engine as batch
+    from swingsim.metrics.single import summarize
+    from swingsim.simulation import simulate
 
     g = scene.gravity_m_s2
     extra = 2.5 * 2 * math.pi * math.sqrt(max(lengths) / g)
@@ -101,8 +101,8 @@ def table_limits(t, x):
 
 
 def main(args) -> int:
-    from swingsim import planning
-    from swingsim.report.files import atomic_write_text, check_out_dir
+    from swingsim.study import plan as planning
+    from swingsim.io.files import atomic_write_text, check_out_dir
 
     scene = load_scene(args.scene)
     lo, hi = _parse_range(args.rope_range)

@@ -1,7 +1,7 @@
 """The scene-file schema: every key, its type, unit, default, range and meaning.
 
 This table is the single source of truth for validation (``scene.py``) and for
-the key reference in ``docs/scene-reference.md`` (``python -m swingsim.schema``
+the key reference in ``docs/scene-reference.md`` (``python -m swingsim.scene.schema``
 regenerates it; a test checks that the two agree).  SI units everywhere; each
 quantity's unit is in its key name.
 """
@@ -274,7 +274,7 @@ ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
 def reference_markdown() -> str:
     """The scene key reference as Markdown (docs/scene-reference.md)."""
     out = ["# Scene file reference", "",
-           "Generated from `swingsim/schema.py` by `python -m swingsim.schema`; do not edit by hand.",
+           "Generated from `swingsim/scene/schema.py` by `python -m swingsim.scene.schema`; do not edit by hand.",
            "SI units; every quantity's unit is in its key name.", ""]
 
     def table(title, keys):

@@ -31,9 +31,9 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from swingsim import schema as S
+from swingsim.scene import schema as S
 from swingsim.errors import InputError, SceneError
-from swingsim.scene import Scene, load_scene, scene_from_dict, set_dotted
+from swingsim.scene.read import Scene, load_scene, scene_from_dict, set_dotted
 
 __all__ = ["Sweep", "Variant", "load_sweep", "sweep_from_dict", "OBJECTIVE_KEYS", "MAX_VARIANTS"]
 

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 import pyvista as pv
 
-from swingsim.render import transforms as T
+from swingsim.scene3d import transforms as T
 
 
 @dataclass(frozen=True)

@@ -20,16 +20,16 @@ from swingsim.errors import InputError, SimulationError
 #: Extension subcommands: name -> (module, help).  Each module exposes
 #: ``add_arguments(parser)`` and ``main(args) -> int``.
 COMMANDS: dict[str, tuple[str, str]] = {
-    "render": ("swingsim.render.cli", "render a 3D briefing video (MP4/GIF/PNG frames) and stills of a scene"),
+    "render": ("swingsim.cli.render", "render a 3D briefing video (MP4/GIF/PNG frames) and stills of a scene"),
 }
 
 # -- batch comparisons and move planning (issue 4) --
-COMMANDS["compare"] = ("swingsim.compare", "run every variant of a sweep file and rank them "
+COMMANDS["compare"] = ("swingsim.study.compare", "run every variant of a sweep file and rank them "
                        "(comparison.csv, report.html)")
-COMMANDS["plan-move"] = ("swingsim.plan_cli", "find the fastest move whose residual swing stays "
+COMMANDS["plan-move"] = ("swingsim.cli.plan", "find the fastest move whose residual swing stays "
                          "under a bound over a range of rope lengths")
 
-DEMO_SCENE = Path(__file__).parent / "data" / "demo.toml"
+DEMO_SCENE = Path(__file__).parent.parent / "data" / "demo.toml"
 
 
 class _Parser(argparse.ArgumentParser):
@@ -78,7 +78,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _run_video_args(p):
     p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
-    from swingsim.render.cli import add_arguments  # the render options (no pyvista import)
+    from swingsim.cli.render import add_arguments  # the render options (no pyvista import)
 
     add_arguments(p, scene=False)
 
@@ -108,7 +108,7 @@ def cmd_check(args) -> int:
     from swingsim.scene import load_scene
 
     scene = load_scene(args.scene)
-    from swingsim.plausibility import check_plausible
+    from swingsim.scene.plausibility import check_plausible
 
     notes = check_plausible(scene, allow=True)
     print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
@@ -118,8 +118,8 @@ def cmd_check(args) -> int:
 
 
 def _do_run(args, scene_path, default_out) -> int:
-    from swingsim.plausibility import check_plausible
-    from swingsim.report.files import check_out_dir, clean_partials
+    from swingsim.scene.plausibility import check_plausible
+    from swingsim.io.files import check_out_dir, clean_partials
     from swingsim.report.outputs import write_run_outputs
     from swingsim.scene import load_scene
 
@@ -129,7 +129,7 @@ def _do_run(args, scene_path, default_out) -> int:
     want_video = getattr(args, "video", False)
     if want_video:
         _require_renderer()
-        from swingsim.plausibility import check_frames
+        from swingsim.scene.plausibility import check_frames
         from swingsim.render.api import check_options  # bad video options: one line, before anything is written
 
         o = dict(size=(1280, 720), fps=30.0, fmt="mp4", view="oblique", speed=1.0, window=None, split=None)
@@ -160,7 +160,7 @@ def _video_options(args, scene=None) -> dict:
         # short and modest, so the first command stays quick: the moves and the start of settling
         opts.update(size=(854, 480), fps=24, window=(0.0, 24.0))
     elif scene is not None:
-        from swingsim.render.cli import options
+        from swingsim.cli.render import options
 
         opts.update(options(args, scene))
     return opts
@@ -213,7 +213,7 @@ def main(argv=None) -> int:
         sys.stderr.write(f"swingsim: {exc}\n")
         return 1
     except KeyboardInterrupt:
-        from swingsim.report.files import WRITTEN
+        from swingsim.io.files import WRITTEN
 
         done = ", ".join(p.name for p in WRITTEN) or "none"
         sys.stderr.write(f"swingsim: interrupted; files finished before the stop: {done}; "

@@ -71,17 +71,17 @@ def main(args) -> int:
     """Run ``swingsim render``; returns the exit code (0 done, 1 run or renderer failed, 2 bad input)."""
     from swingsim.errors import InputError, SimulationError
     from swingsim.scene import load_scene
-    from swingsim.solve import simulate
+    from swingsim.simulation import simulate
     from swingsim.render.api import check_options
     from swingsim.render.gl import RenderUnavailableError
 
-    from swingsim.report.files import check_out_dir
+    from swingsim.io.files import check_out_dir
 
     try:
         scene = load_scene(args.scene)
         opts = options(args, scene)
         check_options(scene, **{k: v for k, v in opts.items() if k != "stills"})
-        from swingsim.plausibility import check_frames, check_plausible
+        from swingsim.scene.plausibility import check_frames, check_plausible
 
         check_plausible(scene, allow=args.allow_implausible)
         check_frames(scene, opts["fps"], opts["speed"], opts["window"], allow=args.allow_implausible)
@@ -117,6 +117,6 @@ def main(args) -> int:
 
 
 def _summary(traj):
-    from swingsim.metrics import summarize
+    from swingsim.metrics.single import summarize
 
     return summarize(traj)

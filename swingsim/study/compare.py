@@ -19,7 +19,7 @@ Writes into DIR:
     A self-contained page: the caution, the ranking table, plots of residual
     swing and move time against each varied quantity, the sensitivity plot.
 
-Variants run in chunks on the batch engine (``swingsim.batch``), in this
+Variants run in chunks on the batch engine (``swingsim.batch.engine``), in this
 process or on Dask (``--workers N`` starts a local cluster on this machine,
 ``--cluster ADDRESS`` uses a running scheduler).  A chunk is the unit of work
 either way, and the engine's result for a variant does not depend on the
@@ -37,10 +37,10 @@ from pathlib import Path
 
 import numpy as np
 
-from swingsim import batch
+from swingsim.batch import engine as batch
 from swingsim.errors import InputError
 from swingsim.scene import scene_from_dict
-from swingsim.sweep import PLAUSIBLE_VARIANTS, get_dotted, load_sweep
+from swingsim.study.variants import PLAUSIBLE_VARIANTS, get_dotted, load_sweep
 
 CSV_NAME = "comparison.csv"
 OUTPUTS = (CSV_NAME, "ranking.csv", "sensitivity.csv", "report.html")
@@ -186,7 +186,7 @@ def sensitivity_scenes(base):
 
     Returns (move label, design length, design period, [(profile, error, scene)]).
     """
-    from swingsim.solve import select_model
+    from swingsim.simulation import select_model
 
     idx = next((i for i, m in enumerate(base.moves) if m.axis in _TRAVEL and m.profile in _SHAPEABLE), None)
     if idx is None:
@@ -306,7 +306,7 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
     Returns a dict with ``summaries`` (variant order), ``ranking``, ``ran``
     (variants run now) and ``reused`` (taken from an earlier run).
     """
-    from swingsim.report.files import atomic_write_text, check_out_dir, clean_partials
+    from swingsim.io.files import atomic_write_text, check_out_dir, clean_partials
     from swingsim.report.html import comparison_html
 
     out = Path(out)
@@ -407,7 +407,7 @@ def main(args) -> int:
         if bar:
             bar.close()
     if not quiet:
-        from swingsim import cautions
+        from swingsim.metrics import cautions
 
         print(f"{len(sweep.variants)} variants ({res['ran']} run now"
               + (f", {res['reused']} from the earlier run" if res["reused"] else "") + f") -> {out}/")

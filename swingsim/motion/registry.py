@@ -1,4 +1,4 @@
-"""Scene moves -> :class:`~swingsim.motion.crane.Motion`.
+"""Scene moves -> :class:`~swingsim.motion.kinematics.Motion`.
 
 Profiles are looked up by name in :data:`PROFILE_BUILDERS`; a new profile is
 added by registering a builder ``f(move, scene, scale) -> Profile`` there
@@ -15,7 +15,7 @@ import numpy as np
 from swingsim import constants as C
 from swingsim.errors import SceneError
 from swingsim.motion import profiles as P
-from swingsim.motion.crane import Motion
+from swingsim.motion.kinematics import Motion
 
 
 def _trapezoid(move, scene, scale):

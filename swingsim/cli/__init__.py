@@ -1,0 +1,1 @@
+"""The command line: argument parsing and printing only, one module per command."""

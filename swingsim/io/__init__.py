@@ -1,0 +1,1 @@
+"""File-system plumbing: atomic writes, the output-folder guard."""

@@ -1,0 +1,1 @@
+"""Studies over many variants: sweep tables, comparisons and rankings, move planning."""
