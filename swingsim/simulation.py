@@ -122,7 +122,7 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
     for t0, t1 in zip(cuts[:-1], cuts[1:]):
         if t1 - t0 < 1e-12:
             continue
-        kin = motion.local(t0, t1, with_slew_rate=getattr(model, "needs_slew_rate", False))
+        kin = motion.local(t0, t1)
         rhs = model.make_rhs(kin)
         events = model.make_events(kin)
         names = list(events)

@@ -108,8 +108,6 @@ class HookLoadModel:
     Same interface as :class:`~swingsim.dynamics.pendulum.PointMassModel`.
     """
 
-    #: the solver passes ``Motion.local(t0, t1, with_slew_rate=True)`` as ``kin``
-    needs_slew_rate = True
 
     def __init__(self, scene):
         self.scene = scene

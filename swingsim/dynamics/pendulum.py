@@ -178,11 +178,9 @@ class PointMassModel:
         return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
 
     # -- the equations -------------------------------------------------------
-    #: the solver passes ``Motion.local(t0, t1, with_slew_rate=True)`` as ``kin``
-    needs_slew_rate = True
 
     def make_rhs(self, kin):
-        """Right-hand side f(t, y) for one segment; ``kin`` is Motion.local(..., with_slew_rate=True)."""
+        """Right-hand side f(t, y) for one segment; ``kin`` is ``Motion.local(t0, t1)`` (a SuspensionState at any t)."""
         par = self.par
         sf, acc = specific_force, accelerations
 

@@ -36,16 +36,8 @@ class Layout:
 
 
 def crane_pose(motion, t):
-    """Axis positions at times ``t``: base x, y [m], jib angle phi [rad], radius rho [m]."""
-    t = np.asarray(t, dtype=float)
-    X = motion.axis("x", t)[0]
-    Y = motion.axis("y", t)[0]
-    S = motion.axis("slew", t)[0]
-    R = motion.axis("radius", t)[0]
-    x0, y0, _ = motion.origin_m
-    phi = math.atan2(y0, x0) + S
-    rho = math.hypot(x0, y0) + R
-    return X, Y, phi, rho
+    """Axis positions at times ``t``: base x, y [m], jib angle phi [rad], radius rho [m] (``Motion.pose``)."""
+    return motion.pose(t)
 
 
 def default_load_size(mass_kg: float) -> tuple:
