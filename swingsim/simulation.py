@@ -16,24 +16,30 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from swingsim import constants as C
-from swingsim.motion.registry import build_motion
+from swingsim.dynamics.registry import select_model
 from swingsim.motion.kinematics import Motion
-
-#: Model classes by name; extensions register here (see DEVELOPERS.md).
-MODELS: dict = {}
-#: Functions ``scene -> model name or None`` tried in order to pick a model.
-MODEL_SELECTORS: list = []
+from swingsim.motion.registry import build_motion, needs_swing_period
 
 
-def select_model(scene):
-    """The model that fits the scene (point mass unless an extension claims it)."""
-    from swingsim.dynamics.pendulum import PointMassModel
+def prepare(scene, model=None):
+    """The model and the motion of a scene: the model is chosen first, so that profiles
+    tuned to the swing period (input shaping) are built with the model's own period.
 
-    for sel in MODEL_SELECTORS:
-        name = sel(scene)
-        if name:
-            return MODELS[name](scene)
-    return PointMassModel(scene)
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+    model : SwingModel, optional
+        A model to use instead of the one the scene selects.
+
+    Returns
+    -------
+    tuple
+        ``(model, motion)``.
+    """
+    model = select_model(scene) if model is None else model
+    period = float(model.mode_periods_s()[0]) if needs_swing_period(scene) else None
+    return model, build_motion(scene, swing_period_s=period)
 
 
 @dataclass
@@ -112,8 +118,7 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
         Check ``status``: a run that the model cannot carry on (slack rope,
         swing at the model's limit, a failing solver) stops early and says why.
     """
-    motion = build_motion(scene)
-    model = select_model(scene) if model is None else model
+    model, motion = prepare(scene, model)
     y = np.asarray(model.initial_state(motion), dtype=float)
     T = scene.duration_s
     cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T}
@@ -187,7 +192,3 @@ def _event_message(name: str, t: float) -> str:
                 "crane's working range and the model's limit; the results stop there")
     return f"the run stopped at t = {t:.3f} s ({name})"
 
-
-# Registers the model extensions of swingsim.dynamics (hook block, rigid load, elastic
-# rope) in MODELS / MODEL_SELECTORS; at the end, so that both registries exist.
-from swingsim import dynamics as _dynamics  # noqa: E402,F401

@@ -13,7 +13,8 @@ from swingsim.cli.main import main
 from swingsim.dynamics.hook_load import HookLoadModel
 from swingsim.metrics.single import summarize
 from swingsim.report.tables import timeseries_columns
-from swingsim.simulation import MODEL_SELECTORS, MODELS, simulate
+from swingsim.dynamics.registry import MODELS, SELECTORS as MODEL_SELECTORS
+from swingsim.simulation import simulate
 
 from conftest import make_scene
 

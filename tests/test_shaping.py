@@ -21,7 +21,7 @@ from scipy.integrate import solve_ivp
 from swingsim.errors import SceneError
 from swingsim.motion import profiles as P
 from swingsim.motion import shaping as SH
-from swingsim.motion.registry import build_motion
+from swingsim.simulation import prepare
 
 from conftest import make_scene
 
@@ -224,7 +224,7 @@ def _move(**kw):
 
 def test_scene_tunes_to_its_own_period_and_damping():
     sc = make_scene({"moves": [_move(profile="zvd")], "damping": {"ratio": 0.04}}, duration_s=40.0)
-    prof = build_motion(sc).moves[0][1]
+    prof = prepare(sc)[1].moves[0][1]
     T = 2 * math.pi * math.sqrt(10.0 / G)  # the scene's small-angle period (textbook)
     ref = SH.zvd(T, 0.04)
     assert [w for w, _, _ in prof.parts] == pytest.approx(ref.amplitudes, rel=1e-14)
@@ -234,7 +234,7 @@ def test_scene_tunes_to_its_own_period_and_damping():
 def test_scene_shaper_keys():
     sc = make_scene({"moves": [_move(profile="ei", shaper_period_s=5.0, shaper_tolerance=0.1,
                                      shaper_damping_ratio=0.0, jerk_m_s3=1.0)]}, duration_s=40.0)
-    prof = build_motion(sc).moves[0][1]
+    prof = prepare(sc)[1].moves[0][1]
     assert [w for w, _, _ in prof.parts] == pytest.approx([0.275, 0.45, 0.275], rel=1e-14)
     assert isinstance(prof.parts[0][2], P.PiecewiseCubic)
     # with a jerk limit the base is the s-curve: its acceleration is continuous

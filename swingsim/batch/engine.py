@@ -58,8 +58,8 @@ from swingsim import constants as C
 from swingsim.dynamics.pendulum import (PointMassModel, accelerations, specific_force,
                                 tension_per_mass)
 from swingsim.motion import profiles as P
-from swingsim.motion.registry import build_motion
 from swingsim.motion.kinematics import AXES
+from swingsim.simulation import prepare
 
 __all__ = ["run_batch", "run_chunk", "supported", "chunks", "SUMMARY_KEYS",
            "summaries_from_samples", "DEFAULT_STEPS_PER_PERIOD"]
@@ -135,7 +135,7 @@ def _hermite_basis(s):
 
 def supported(scene) -> bool:
     """True when the batch engine integrates this scene (point-mass model)."""
-    from swingsim.simulation import select_model
+    from swingsim.dynamics.registry import select_model
 
     try:
         return type(select_model(scene)) is PointMassModel
@@ -177,8 +177,7 @@ class _Variant:
 
 
 def _prepare(scene, steps_per_period) -> _Variant:
-    motion = build_motion(scene)
-    model = PointMassModel(scene)
+    model, motion = prepare(scene, PointMassModel(scene))
     T = scene.duration_s
     pts = {0.0, T}
     for _, prof in motion.moves:

@@ -80,7 +80,7 @@ def _cx(a, b):
     return (a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0])
 
 
-#: Names under which this model is registered in ``swingsim.simulation.MODELS``.
+#: Names under which this model is listed in ``swingsim.dynamics.registry.MODELS``.
 MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load")
 
 

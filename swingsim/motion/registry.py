@@ -9,47 +9,112 @@ added by registering a builder ``f(move, scene, scale) -> Profile`` there
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
+from typing import Callable
 
 import numpy as np
 
 from swingsim import constants as C
 from swingsim.errors import SceneError
 from swingsim.motion import profiles as P
+from swingsim.motion import shaping as _shaping
 from swingsim.motion.kinematics import Motion
 
 
-def _trapezoid(move, scene, scale):
+@dataclass(frozen=True)
+class ProfileSpec:
+    """A motion profile as the scene and the builder know it.
+
+    Attributes
+    ----------
+    build : callable
+        ``f(move, scene, scale, swing_period_s) -> Profile``.
+    needs : tuple of str
+        Quantities the profile needs (``distance``, ``speed``, ``accel``, ``jerk``);
+        ``table`` needs a file instead.
+    optional : tuple of str
+        Quantities it may take.
+    keys : tuple of str
+        Scene keys only this profile (and others listing them) takes; every other
+        profile refuses them.
+    needs_swing_period : bool
+        True when the profile is tuned to the lift's swing period unless the move
+        gives ``shaper_period_s``; :func:`build_motion` then needs ``swing_period_s``.
+    """
+
+    build: Callable
+    needs: tuple = ()
+    optional: tuple = ()
+    keys: tuple = ()
+    needs_swing_period: bool = False
+
+
+def _trapezoid(move, scene, scale, swing_period_s=None):
     return P.trapezoid(move.start_s, move.distance * scale, move.speed * scale,
                        move.accel * scale, None if move.decel is None else move.decel * scale)
 
 
-def _s_curve(move, scene, scale):
+def _s_curve(move, scene, scale, swing_period_s=None):
     return P.s_curve(move.start_s, move.distance * scale, move.speed * scale, move.accel * scale,
                      move.jerk * scale, None if move.decel is None else move.decel * scale)
 
 
-def _table(move, scene, scale):
+def _table(move, scene, scale, swing_period_s=None):
     t, x = move.table
     return P.from_table(move.start_s, t, np.asarray(x) * scale)
 
 
-PROFILE_BUILDERS = {"trapezoid": _trapezoid, "s-curve": _s_curve, "table": _table}
+_SHAPER_KEYS = ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio")
+_MOTION = ("distance", "speed", "accel")
 
-# input shaping (zv, zvd, ei, whole-period): swingsim/motion/shaping.py
-from swingsim.motion import shaping as _shaping  # noqa: E402
+#: Every motion profile by name (input shaping: swingsim/motion/shaping.py).
+PROFILES: dict[str, ProfileSpec] = {
+    "trapezoid": ProfileSpec(_trapezoid, _MOTION, ("decel",)),
+    "s-curve": ProfileSpec(_s_curve, _MOTION + ("jerk",), ("decel",)),
+    "table": ProfileSpec(_table),
+    "zv": ProfileSpec(_shaping.build_shaped, _MOTION, ("decel", "jerk"), _SHAPER_KEYS, True),
+    "zvd": ProfileSpec(_shaping.build_shaped, _MOTION, ("decel", "jerk"), _SHAPER_KEYS, True),
+    "ei": ProfileSpec(_shaping.build_shaped, _MOTION, ("decel", "jerk"),
+                      _SHAPER_KEYS + ("shaper_tolerance",), True),
+    "whole-period": ProfileSpec(_shaping.build_whole_period, _MOTION, ("jerk",),
+                                ("shaper_period_s",), True),
+}
 
-PROFILE_BUILDERS.update({name: _shaping.build_shaped for name in _shaping.SHAPERS})
-PROFILE_BUILDERS["whole-period"] = _shaping.build_whole_period
+
+def needs_swing_period(scene) -> bool:
+    """True when some move is tuned to the swing period and does not give it."""
+    return any(PROFILES[m.profile].needs_swing_period and m.profile_keys.get("shaper_period_s") is None
+               for m in scene.moves)
 
 
 def move_key(move) -> str:
     return f"moves[{move.index}]"
 
 
-def build_profile(move, scene) -> P.Profile:
+def build_profile(move, scene, swing_period_s: float | None = None) -> P.Profile:
+    """Build one move's profile in internal units (rad for slew).
+
+    Parameters
+    ----------
+    move : Move
+        The scene's move.
+    scene : Scene
+        The scene it belongs to (for its file name in errors and its damping ratio).
+    swing_period_s : float, optional
+        The lift's first swing period [s], for profiles tuned to it.
+
+    Returns
+    -------
+    Profile
+
+    Raises
+    ------
+    SceneError
+        When the profile cannot be built from the move's values.
+    """
     scale = math.pi / 180.0 if move.axis == "slew" else 1.0
     try:
-        return PROFILE_BUILDERS[move.profile](move, scene, scale)
+        return PROFILES[move.profile].build(move, scene, scale, swing_period_s)
     except P.ProfileError as exc:
         raise SceneError(scene.file, move_key(move), str(exc)) from None
     except ArithmeticError:  # overflow or division by zero from extreme (valid-typed) numbers
@@ -58,8 +123,20 @@ def build_profile(move, scene) -> P.Profile:
                          "or vanishes); check the values and units") from None
 
 
-def build_motion(scene) -> Motion:
+def build_motion(scene, swing_period_s: float | None = None) -> Motion:
     """Build the suspension-point and rope-length motion of a scene.
+
+    Parameters
+    ----------
+    scene : Scene
+        A scene whose keys are valid.
+    swing_period_s : float, optional
+        The lift's first swing period [s] (from the model, chosen first); needed when
+        :func:`needs_swing_period` is true.
+
+    Returns
+    -------
+    Motion
 
     Raises
     ------
@@ -69,7 +146,7 @@ def build_motion(scene) -> Motion:
     """
     moves = []
     for m in scene.moves:
-        prof = build_profile(m, scene)
+        prof = build_profile(m, scene, swing_period_s)
         if prof.end_s > scene.duration_s + 1e-9:
             raise SceneError(scene.file, f"{move_key(m)}", f"ends at {prof.end_s:.3f} s, after the end of "
                              f"the simulation (duration_s = {scene.duration_s:g}); lengthen duration_s")

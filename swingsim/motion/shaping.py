@@ -86,7 +86,7 @@ from scipy.optimize import fsolve
 from swingsim.motion import profiles as P
 
 __all__ = ["Shaper", "zv", "zvd", "ei", "convolve", "residual_vibration", "shaped",
-           "whole_period_trapezoid", "whole_period_s_curve", "SHAPERS", "SHAPED_PROFILES"]
+           "whole_period_trapezoid", "whole_period_s_curve", "SHAPERS"]
 
 
 @dataclass(frozen=True)
@@ -245,15 +245,6 @@ SHAPERS = {
     "ei": lambda T, z, tol: ei(T, z, tol),
 }
 
-#: Every profile name this module adds, with its own move keys.
-SHAPED_PROFILES = {
-    "zv": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
-    "zvd": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
-    "ei": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio",
-           "shaper_tolerance"),
-    "whole-period": ("shaper_period_s",),
-}
-
 _MAX_PERIODS = 1000
 
 
@@ -312,21 +303,38 @@ def whole_period_s_curve(start_s: float, distance: float, speed: float, accel: f
     return P.s_curve(start_s, distance, v, a, jerk)
 
 
-def tuning(move, scene) -> tuple[float, float]:
-    """Undamped period [s] and damping ratio [-] a shaped move is tuned to."""
-    T = move.extra.get("shaper_period_s")
-    if T is None:
-        from swingsim.simulation import select_model  # lazy: solve imports motion
+def tuning(move, scene, swing_period_s: float | None = None) -> tuple[float, float]:
+    """Undamped period [s] and damping ratio [-] a shaped move is tuned to.
 
-        T = float(select_model(scene).mode_periods_s()[0])
-    z = move.extra.get("shaper_damping_ratio")
+    Parameters
+    ----------
+    move : Move
+        The move; its ``shaper_period_s`` and ``shaper_damping_ratio`` win when given.
+    scene : Scene
+        Its scene (the damping ratio otherwise).
+    swing_period_s : float, optional
+        The lift's first swing period [s] (the model's, passed down by whoever built the
+        model first); used when the move gives no period.
+
+    Returns
+    -------
+    tuple of float
+        ``(period_s, damping_ratio)``.
+    """
+    T = move.profile_keys.get("shaper_period_s")
+    if T is None:
+        if swing_period_s is None:
+            raise P.ProfileError("needs the lift's swing period (build the motion with the model's "
+                                 "period, or give shaper_period_s)")
+        T = float(swing_period_s)
+    z = move.profile_keys.get("shaper_damping_ratio")
     if z is None:
         z = scene.damping_ratio
     return float(T), float(z)
 
 
 def _base_name(move) -> str:
-    base = move.extra.get("shaper_base")
+    base = move.profile_keys.get("shaper_base")
     if base is None:
         base = "s-curve" if move.jerk is not None else "trapezoid"
     if base == "trapezoid" and move.jerk is not None:
@@ -336,9 +344,9 @@ def _base_name(move) -> str:
     return base
 
 
-def build_shaped(move, scene, scale) -> P.Profile:
-    """Profile builder for ``zv``, ``zvd``, ``ei`` (see :data:`swingsim.motion.registry.PROFILE_BUILDERS`)."""
-    T, z = tuning(move, scene)
+def build_shaped(move, scene, scale, swing_period_s=None) -> P.Profile:
+    """Profile builder for ``zv``, ``zvd``, ``ei`` (see :data:`swingsim.motion.registry.PROFILES`)."""
+    T, z = tuning(move, scene, swing_period_s)
     decel = None if move.decel is None else move.decel * scale
     if _base_name(move) == "s-curve":
         base = P.s_curve(move.start_s, move.distance * scale, move.speed * scale,
@@ -346,17 +354,17 @@ def build_shaped(move, scene, scale) -> P.Profile:
     else:
         base = P.trapezoid(move.start_s, move.distance * scale, move.speed * scale,
                            move.accel * scale, decel)
-    tol = float(move.extra.get("shaper_tolerance", 0.05))
+    tol = float(move.profile_keys.get("shaper_tolerance", 0.05))
     sh = SHAPERS[move.profile](T, z, tol)
-    T2 = move.extra.get("shaper_second_period_s")
+    T2 = move.profile_keys.get("shaper_second_period_s")
     if T2 is not None:
         sh = convolve(sh, SHAPERS[move.profile](float(T2), z, tol))
     return shaped(base, sh)
 
 
-def build_whole_period(move, scene, scale) -> P.Profile:
+def build_whole_period(move, scene, scale, swing_period_s=None) -> P.Profile:
     """Profile builder for ``whole-period``."""
-    T, _ = tuning(move, scene)
+    T, _ = tuning(move, scene, swing_period_s)
     if move.jerk is not None:
         return whole_period_s_curve(move.start_s, move.distance * scale, move.speed * scale,
                                     move.accel * scale, move.jerk * scale, T)

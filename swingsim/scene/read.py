@@ -20,7 +20,9 @@ from typing import Any
 import numpy as np
 
 from swingsim.scene import schema as S
+from swingsim.dynamics.registry import select_model
 from swingsim.errors import SceneError
+from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 
 __all__ = ["Scene", "Move", "Zone", "View", "load_scene", "scene_from_dict", "read_table"]
 
@@ -149,7 +151,8 @@ class Move:
     decel: float | None = None
     jerk: float | None = None
     table: tuple | None = None  # (times_s, positions) when profile == "table"
-    extra: dict = field(default_factory=dict)  # further keys for profiles added later
+    #: the keys only this move's profile takes (``ProfileSpec.keys``, e.g. ``shaper_period_s``)
+    profile_keys: dict = field(default_factory=dict)
 
     @property
     def name(self) -> str:
@@ -411,36 +414,6 @@ _LINEAR = {"distance": "distance_m", "speed": "speed_m_s", "accel": "accel_m_s2"
 _ANGULAR = {"distance": "angle_deg", "speed": "speed_deg_s", "accel": "accel_deg_s2",
             "decel": "decel_deg_s2", "jerk": "jerk_deg_s3"}
 
-#: Profile name -> the quantities it needs ("table" needs a file instead).
-PROFILE_NEEDS = {
-    "trapezoid": ("distance", "speed", "accel"),
-    "s-curve": ("distance", "speed", "accel", "jerk"),
-    "table": (),
-    "zv": ("distance", "speed", "accel"),
-    "zvd": ("distance", "speed", "accel"),
-    "ei": ("distance", "speed", "accel"),
-    "whole-period": ("distance", "speed", "accel"),
-}
-#: Optional quantities of each profile.
-PROFILE_OPTIONAL = {
-    "trapezoid": ("decel",),
-    "s-curve": ("decel",),
-    "table": (),
-    "zv": ("decel", "jerk"),
-    "zvd": ("decel", "jerk"),
-    "ei": ("decel", "jerk"),
-    "whole-period": ("jerk",),
-}
-#: Keys that only some profiles take (profile -> keys); other profiles refuse them.
-PROFILE_KEYS = {
-    "zv": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
-    "zvd": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio"),
-    "ei": ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio",
-           "shaper_tolerance"),
-    "whole-period": ("shaper_period_s",),
-}
-
-
 def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str = "<scene>"):
     """Read a table profile's CSV: header ``t_s,position_m`` (``t_s,angle_deg`` for slew).
 
@@ -553,9 +526,10 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         hook=hook_o, rigging=rig_o,
     )
     if validate_motion:
-        from swingsim.motion.registry import build_motion  # local: motion imports nothing from here
-
-        build_motion(scene)
+        # a move that cannot be built is bad input; a profile tuned to the swing period is
+        # built with the period of the model the scene selects, as the run will
+        period = float(select_model(scene).mode_periods_s()[0]) if needs_swing_period(scene) else None
+        build_motion(scene, swing_period_s=period)
     return scene
 
 
@@ -733,8 +707,8 @@ def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
         if key in m:
             kind = "a slew move" if axis == "slew" else f"a linear ({axis}) move"
             raise r.err(f"{where}.{key}", f"not a key of {kind}; use {names[q]}", m[key])
-    needs = PROFILE_NEEDS.get(profile, ())
-    optional = PROFILE_OPTIONAL.get(profile, ())
+    spec = PROFILES[profile]
+    needs, optional = spec.needs, spec.optional
     for q in names:
         key = names[q]
         if q in needs and v[key] is None:
@@ -742,10 +716,10 @@ def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
                         + ", ".join(names[n] for n in needs))
         if q not in needs and q not in optional and key in m:
             raise r.err(f"{where}.{key}", f"not used by profile '{profile}'", m[key])
-    own = PROFILE_KEYS.get(profile, ())
-    for key in sorted({k for ks in PROFILE_KEYS.values() for k in ks}):
+    own = spec.keys
+    for key in sorted({k for sp in PROFILES.values() for k in sp.keys}):
         if key in m and key not in own:
-            users = ", ".join(p for p, ks in PROFILE_KEYS.items() if key in ks)
+            users = ", ".join(p for p, sp in PROFILES.items() if key in sp.keys)
             raise r.err(f"{where}.{key}", f"not used by profile '{profile}' (only by {users})", m[key])
     if profile == "table":
         if v["table_file"] is None:
@@ -760,11 +734,10 @@ def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
     if v["start_s"] >= duration_s:
         raise r.err(f"{where}.start_s", f"must be before the end of the simulation (duration_s = "
                     f"{duration_s:g})", v["start_s"])
-    extra = {k: m[k] for k in m if k in S.MOVE and k not in _LINEAR.values()
-             and k not in _ANGULAR.values() and k not in ("axis", "profile", "start_s", "label", "table_file")}
+    profile_keys = {k: m[k] for k in spec.keys if k in m}
     return Move(index=i, axis=axis, profile=profile, start_s=v["start_s"], label=v["label"],
                 distance=v[names["distance"]], speed=v[names["speed"]], accel=v[names["accel"]],
-                decel=v[names["decel"]], jerk=v[names["jerk"]], table=table, extra=extra)
+                decel=v[names["decel"]], jerk=v[names["jerk"]], table=table, profile_keys=profile_keys)
 
 
 def set_dotted(data: dict, dotted: str, value: Any) -> dict:

@@ -186,7 +186,7 @@ def sensitivity_scenes(base):
 
     Returns (move label, design length, design period, [(profile, error, scene)]).
     """
-    from swingsim.simulation import select_model
+    from swingsim.dynamics.registry import select_model
 
     idx = next((i for i, m in enumerate(base.moves) if m.axis in _TRAVEL and m.profile in _SHAPEABLE), None)
     if idx is None:

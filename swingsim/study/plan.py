@@ -174,9 +174,9 @@ def evaluate(scene, index, candidates, lengths, **kw):
 
 
 def _move_end(scene, index):
-    from swingsim.motion.registry import build_profile
+    from swingsim.simulation import prepare
 
-    return float(build_profile(scene.moves[index], scene).end_s)
+    return float(dict(enumerate(prepare(scene)[1].moves))[index][1].end_s)
 
 
 def plan_move(scene, index: int, max_residual_deg: float, low: float, high: float,
@@ -229,14 +229,14 @@ def sample_profile(scene, index, move, dt_max=0.02):
     Samples every ``dt_max`` seconds at most, plus every breakpoint, so the
     table's spline follows the profile closely.
     """
-    from swingsim.motion.registry import build_profile
+    from swingsim.simulation import prepare
 
     d = dict(scene.raw)
     d["moves"] = list(scene.raw["moves"])
     d["moves"][index] = move
     d["duration_s"] = scene.duration_s + 1e4
     sc = scene_from_dict(d, file=scene.file, base_dir=scene.base_dir, validate_motion=False)
-    prof = build_profile(sc.moves[index], sc)
+    prof = prepare(sc)[1].moves[index][1]
     t0, t1 = prof.start_s, prof.end_s
     n = int(math.ceil((t1 - t0) / dt_max))
     t = np.union1d(np.linspace(t0, t1, n + 1), [b for b in prof.breakpoints if t0 <= b <= t1])
