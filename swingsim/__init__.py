@@ -12,7 +12,7 @@ plan, the crane manufacturer's data, local regulations, or the competent person
 in charge of the lift.
 """
 
-__version__ = "0.1.0"
+from swingsim._version import __version__  # noqa: E402
 
 from swingsim.errors import InputError, SceneError, SimulationError  # noqa: E402
 from swingsim.scene import Scene, load_scene, scene_from_dict  # noqa: E402

@@ -14,7 +14,7 @@ import signal
 import sys
 from pathlib import Path
 
-from swingsim import __version__
+from swingsim._version import __version__
 from swingsim.errors import InputError, SimulationError
 
 #: Extension subcommands: name -> (module, help).  Each module exposes
@@ -136,7 +136,8 @@ def _do_run(args, scene_path, default_out) -> int:
         o.update({k: v for k, v in _video_options(args, scene).items() if k in o})
         check_options(scene, **o)
         check_frames(scene, o["fps"], o["speed"], o["window"], allow=args.allow_implausible)
-    from swingsim import simulate, summarize
+    from swingsim.metrics.single import summarize
+    from swingsim.simulation import simulate
 
     traj = simulate(scene)
     summary = summarize(traj)

@@ -34,7 +34,7 @@ import numpy as np
 from scipy.optimize import minimize_scalar
 from scipy.special import ellipk
 
-from swingsim import __version__
+from swingsim._version import __version__
 from swingsim.metrics import cautions
 from swingsim.metrics.models import model_metrics, model_warnings
 
