@@ -15,8 +15,9 @@ import pytest
 
 from swingsim.batch import engine as batch
 
-from swingsim.study import compare
+from swingsim.cli import compare as compare_cli
 from swingsim.errors import InputError
+from swingsim.study import compare
 from swingsim.study.variants import load_sweep
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -33,7 +34,7 @@ def args(sweep, out, **kw):
 @pytest.fixture(scope="module")
 def example_run(tmp_path_factory):
     out = tmp_path_factory.mktemp("cmp") / "out"
-    assert compare.main(args(EXAMPLE, out)) == 0
+    assert compare_cli.main(args(EXAMPLE, out)) == 0
     return out
 
 
@@ -73,7 +74,7 @@ def test_resume_runs_only_the_rest(tmp_path, monkeypatch):
                        'sensitivity = false\n[vary]\n"rope.length_m" = [6.0, 8.0, 10.0, 12.0, 14.0]\n'
                        '"moves.0.accel_m_s2" = [0.2, 0.35]\n')
     full = tmp_path / "full"
-    assert compare.main(args(sw_path, full, chunk=3)) == 0
+    assert compare_cli.main(args(sw_path, full, chunk=3)) == 0
     want = (full / "comparison.csv").read_text()
     # an interrupted run: header, four finished rows, a fifth cut short
     part = tmp_path / "part"
@@ -88,14 +89,14 @@ def test_resume_runs_only_the_rest(tmp_path, monkeypatch):
         return real(scenes, **kw)
 
     monkeypatch.setattr(batch, "run_chunk", spy)
-    assert compare.main(args(sw_path, part, resume=True, chunk=3)) == 0
+    assert compare_cli.main(args(sw_path, part, resume=True, chunk=3)) == 0
     assert sum(seen) == 10 - 4  # the four finished variants were not run again
     assert (part / "comparison.csv").read_text() == want
     # a resume into a folder of another sweep is refused, nothing changed
     other = tmp_path / "o.toml"
     other.write_text(sw_path.read_text().replace("14.0", "15.0"))
     with pytest.raises(InputError) as e:
-        compare.main(args(other, part, resume=True))
+        compare_cli.main(args(other, part, resume=True))
     assert "differ" in str(e.value)
     assert (part / "comparison.csv").read_text() == want
 
@@ -105,7 +106,7 @@ def test_refuses_non_empty_out_without_force(tmp_path):
     out.mkdir()
     (out / "keep.txt").write_text("x")
     with pytest.raises(InputError):
-        compare.main(args(EXAMPLE, out, no_sensitivity=True))
+        compare_cli.main(args(EXAMPLE, out, no_sensitivity=True))
     assert sorted(p.name for p in out.iterdir()) == ["keep.txt"]
 
 

@@ -7,25 +7,60 @@ engineering limits.
 
 from __future__ import annotations
 
+import math
+from typing import NamedTuple
+
+from swingsim.dynamics.rope import elastic_rope
 from swingsim.errors import SceneError
 
-#: key path -> (limit, unit, why)
+
+class Limit(NamedTuple):
+    """A plausibility limit: the largest plausible value, its unit, and what lies beyond it."""
+
+    #: Largest plausible value, in ``unit``.
+    value: float
+    #: Unit of the value, as shown in the message.
+    unit: str
+    #: What a larger value would mean, as shown in the message.
+    why: str
+
+
+#: The limits, by the key path (or quantity) they bound.
 LIMITS = {
-    "duration_s": (3600.0, "s", "a single lift simulated for more than an hour"),
-    "rope.length_m": (600.0, "m", "longer than any crane's hoist rope"),
-    "load.mass_kg": (3.0e6, "kg", "heavier than 3000 t"),
-    "wind.speed_m_s": (60.0, "m/s", "beyond hurricane force"),
-    "samples": (2.0e6, "rows", "timeseries.csv with more than two million rows"),
+    "duration_s": Limit(3600.0, "s", "a single lift simulated for more than an hour"),
+    "rope.length_m": Limit(600.0, "m", "longer than any crane's hoist rope"),
+    "load.mass_kg": Limit(3.0e6, "kg", "heavier than 3000 t"),
+    "wind.speed_m_s": Limit(60.0, "m/s", "beyond hurricane force"),
+    "samples": Limit(2.0e6, "rows", "timeseries.csv with more than two million rows"),
     # -- hook block, rigging, elastic rope (hook-and-load models) --
-    "hook.mass_kg": (2.0e5, "kg", "a hook block heavier than 200 t"),
-    "rigging.leg_length_m": (100.0, "m", "a sling leg longer than 100 m"),
-    "bounce frequency": (200.0, "Hz", "a rope so stiff that its bounce needs tiny time steps (a run "
-                         "of minutes or hours); leave the rope inextensible instead"),
+    "hook.mass_kg": Limit(2.0e5, "kg", "a hook block heavier than 200 t"),
+    "rigging.leg_length_m": Limit(100.0, "m", "a sling leg longer than 100 m"),
+    "bounce frequency": Limit(200.0, "Hz", "a rope so stiff that its bounce needs tiny time steps (a run "
+                              "of minutes or hours); leave the rope inextensible instead"),
 }
 
 
 def check_plausible(scene, allow: bool = False) -> list[str]:
-    """Refuse (or, with ``allow``, list) values beyond the plausibility limits."""
+    """Refuse (or, with ``allow``, list) values beyond the plausibility limits (:data:`LIMITS`).
+
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+    allow : bool, optional
+        List the values beyond a limit instead of refusing the scene
+        (``--allow-implausible``; ``swingsim check`` shows them as notes).
+
+    Returns
+    -------
+    list of str
+        One note per value beyond its limit (empty when there is none).
+
+    Raises
+    ------
+    SceneError
+        Without ``allow``, for the first value beyond its limit.
+    """
     values = {
         "duration_s": scene.duration_s,
         "rope.length_m": scene.rope.length_m,
@@ -36,9 +71,9 @@ def check_plausible(scene, allow: bool = False) -> list[str]:
     values.update(_model_values(scene))
     notes = []
     for key, val in values.items():
-        lim, unit, why = LIMITS[key]
-        if val > lim:
-            what = f"beyond the plausibility limit of {lim:g} {unit} ({why})"
+        limit = LIMITS[key]
+        if val > limit.value:
+            what = f"beyond the plausibility limit of {limit.value:g} {limit.unit} ({limit.why})"
             shown = val
             if key == "bounce frequency":  # name the key the user wrote, and show its value
                 what = f"the load would bounce at {val:.0f} Hz, " + what
@@ -53,16 +88,12 @@ def check_plausible(scene, allow: bool = False) -> list[str]:
 
 def _model_values(scene) -> dict:
     """Values of the hook-and-load keys that the limits above bound."""
-    import math
-
     out = {}
     if getattr(scene, "hook", None) is not None:
         out["hook.mass_kg"] = scene.hook.mass_kg
     if getattr(scene, "rigging", None) is not None:
         out["rigging.leg_length_m"] = max(scene.rigging.leg_length_m)
     if scene.rope.elastic:
-        from swingsim.dynamics.rope import elastic_rope
-
         m = scene.load.mass_kg + (scene.hook.mass_kg if scene.hook else 0.0)
         rope = elastic_rope(scene.rope, m * scene.gravity_m_s2, m)
         k = rope.stiffness(rope.lambda0_m)
@@ -75,7 +106,31 @@ MAX_FRAMES = 108_000
 
 
 def check_frames(scene, fps: float, speed: float, window=None, allow: bool = False) -> int:
-    """Frame count of a render; refuse more than :data:`MAX_FRAMES` unless ``allow``."""
+    """Frame count of a render; refuse more than :data:`MAX_FRAMES` unless ``allow``.
+
+    Parameters
+    ----------
+    scene : Scene
+        The scene to render.
+    fps : float
+        Frames per second of the video [1/s].
+    speed : float
+        Playback speed [-] (2 is a time-lapse at twice real time).
+    window : tuple of float, optional
+        Start and end of the time shown [s]; the whole run when None.
+    allow : bool, optional
+        Accept more than :data:`MAX_FRAMES` frames (``--allow-implausible``).
+
+    Returns
+    -------
+    int
+        Number of frames the video will have.
+
+    Raises
+    ------
+    SceneError
+        Without ``allow``, when the video would have more than :data:`MAX_FRAMES` frames.
+    """
     t0, t1 = window if window is not None else (0.0, scene.duration_s)
     t1 = min(t1, scene.duration_s)
     frames = int(round((t1 - t0) * fps / speed))

@@ -1,8 +1,10 @@
-"""Scene files (TOML) -> validated, frozen :class:`Scene` objects.
+"""Reading scene files: the TOML document, the CSV tables of recorded moves, key by key.
 
 Every error names the file, the key path, the value and what is allowed, and
-suggests the nearest known key when a key is unknown.  The schema lives in
-``schema.py``.  Nothing in a scene file is evaluated: it is data only.
+suggests the nearest known key when a key is unknown.  The keys are those of
+:mod:`swingsim.scene.schema`; checks between keys live in
+:mod:`swingsim.scene.validate`.  Nothing in a scene file is evaluated: it is
+data only.
 """
 
 from __future__ import annotations
@@ -13,203 +15,25 @@ import difflib
 import math
 import re
 import tomllib
-from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import NamedTuple
 
-import numpy as np
-
-from swingsim.scene import schema as S
-from swingsim.dynamics.registry import select_model
 from swingsim.errors import SceneError
-from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
+from swingsim.scene import schema
+from swingsim.scene.model import MoveTable
 
-__all__ = ["Scene", "Move", "Zone", "View", "load_scene", "scene_from_dict", "read_table"]
-
-
-@dataclass(frozen=True)
-class Crane:
-    suspension_m: tuple
-    kind: str
-    wind_limit_m_s: float
+__all__ = ["SceneDocument", "read_document", "line_of_key", "KeyReader", "read_table", "suggest"]
 
 
-@dataclass(frozen=True)
-class Rope:
-    length_m: float
-    diameter_m: float | None
-    drag_coefficient: float
-    wll_kN: float | None
-    # elastic rope (hook-and-load models); inextensible when both are None
-    stiffness_kN_per_m: float | None = None
-    modulus_GPa: float | None = None
-    fill_factor: float = 0.58
-    falls: int = 1
-    lead_length_m: float = 0.0
-    bounce_damping_ratio: float = 0.0
-    stiffness_source: str = ""
+class SceneDocument(NamedTuple):
+    """A scene file parsed as TOML, not yet validated."""
 
-    @property
-    def elastic(self) -> bool:
-        return self.stiffness_kN_per_m is not None or self.modulus_GPa is not None
-
-
-@dataclass(frozen=True)
-class Load:
-    mass_kg: float
-    size_m: tuple | None
-    wind_area_m2: float | None
-    drag_coefficient: float
-    shape: str = "box"
-    mesh_file: str | None = None  # as written in the scene, relative to Scene.base_dir
-    # rigid load (hook-and-load models); a point mass when both are None
-    inertia_kg_m2: tuple | None = None
-    cg_offset_m: tuple = (0.0, 0.0, 0.0)
-
-    @property
-    def rigid(self) -> bool:
-        """Whether the load has the data of a rigid body (size or inertia).
-
-        Whether it is *modelled* as one is :attr:`Scene.rigid_load`.
-        """
-        return self.size_m is not None or self.inertia_kg_m2 is not None
-
-
-@dataclass(frozen=True)
-class View:
-    """The scene's custom camera (``[view]``), for drawing only."""
-
-    position_m: tuple
-    focus_m: tuple
-    up: tuple
-    view_angle_deg: float
-
-
-@dataclass(frozen=True)
-class Start:
-    swing_deg: tuple
-    swing_rate_deg_s: tuple
-    rope_preload: str = "static"
-    rope_slack_m: float = 0.0
-
-
-@dataclass(frozen=True)
-class Hook:
-    """The hook block as a body of its own on the hoist rope."""
-
-    mass_kg: float
-    size_m: tuple | None
-    drag_coefficient: float
-
-
-@dataclass(frozen=True)
-class Rigging:
-    """Slings between the hook and the load (load axes, from the load's centre of gravity).
-
-    ``leg_length_m`` and ``wll_kN`` have one entry per leg (drop legs for a
-    spreader); ``attach_m`` one point per leg.
-    """
-
-    kind: str
-    leg_length_m: tuple
-    attach_m: tuple
-    wll_kN: tuple | None
-    top_leg_length_m: float | None = None
-    top_wll_kN: float | None = None
-
-    @property
-    def legs(self) -> int:
-        return len(self.attach_m)
-
-
-@dataclass(frozen=True)
-class Wind:
-    speed_m_s: float
-    direction_deg: float
-    air_density_kg_m3: float
-
-
-@dataclass(frozen=True)
-class Limits:
-    swing_caution_deg: float
-    settle_deg: float
-    clearance_m: float | None
-
-
-@dataclass(frozen=True)
-class Move:
-    """One move of one axis, in the scene's own units (deg for slew)."""
-
-    index: int
-    axis: str
-    profile: str
-    start_s: float
-    label: str
-    distance: float | None = None  # m, or deg for slew
-    speed: float | None = None
-    accel: float | None = None
-    decel: float | None = None
-    jerk: float | None = None
-    table: tuple | None = None  # (times_s, positions) when profile == "table"
-    #: the keys only this move's profile takes (``ProfileSpec.keys``, e.g. ``shaper_period_s``)
-    profile_keys: dict = field(default_factory=dict)
-
-    @property
-    def name(self) -> str:
-        return self.label or f"move {self.index} ({self.axis})"
-
-
-@dataclass(frozen=True)
-class Zone:
-    name: str
-    kind: str
-    min_m: tuple
-    max_m: tuple
-    margin_m: float
-
-
-@dataclass(frozen=True, eq=False)
-class Scene:
-    """A validated lift scene (SI units; angles in degrees as in the file)."""
-
-    title: str
-    duration_s: float
-    gravity_m_s2: float
-    crane: Crane
-    rope: Rope
-    load: Load
-    start: Start
-    moves: tuple
-    damping_ratio: float
-    wind: Wind
-    sample_hz: float
-    limits: Limits
-    zones: tuple
-    notes: str = ""
-    view: View | None = None
-    file: str = "<scene>"
-    base_dir: Path = field(default_factory=Path)
-    raw: dict = field(default_factory=dict)
-    hook: Hook | None = None
-    rigging: Rigging | None = None
-
-    @property
-    def rigid_load(self) -> bool:
-        """The load is modelled as a rigid body: ``load.inertia_kg_m2`` is given, or
-        ``load.size_m`` together with a ``[hook]`` or ``[rigging]`` table.
-
-        A ``size_m`` alone (no hook block, no rigging) keeps the core's meaning:
-        the size of a point-mass load for drawing and clearance.
-        """
-        return _rigid(self.load, self.hook is not None, self.rigging is not None)
-
-    @property
-    def name(self) -> str:
-        return Path(self.file).stem if self.file != "<scene>" else "scene"
-
-
-# ----------------------------------------------------------------------------
-# reading
+    #: The parsed document, as ``tomllib`` returns it.
+    data: dict
+    #: The file's text (for the line numbers of keys).
+    text: str
+    #: The file's name as the user gave it (never resolved to an absolute path).
+    file: str
 
 
 def _toml_error_line(exc: tomllib.TOMLDecodeError) -> int | None:
@@ -220,18 +44,24 @@ def _toml_error_line(exc: tomllib.TOMLDecodeError) -> int | None:
     return int(m.group(1)) if m else None
 
 
-def load_scene(path, *, validate_motion: bool = True) -> Scene:
-    """Read and validate a scene file.
+def read_document(path) -> SceneDocument:
+    """Read a scene file as a TOML document.
 
     Parameters
     ----------
     path : str or Path
-        The TOML scene file.
+        The TOML scene file, as the user gave it.
+
+    Returns
+    -------
+    SceneDocument
+        The parsed document, its text and the file's name.
 
     Raises
     ------
     SceneError
-        With a one-line message naming file, key, value and what is allowed.
+        When the file is missing, unreadable, not UTF-8 text or not valid TOML
+        (with the line of a syntax error).
     """
     path = Path(path)
     shown = str(path)
@@ -252,20 +82,29 @@ def load_scene(path, *, validate_motion: bool = True) -> Scene:
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc).split(" (at ")[0]
         raise SceneError(shown, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
-    try:
-        return scene_from_dict(data, file=shown, base_dir=path.parent, validate_motion=validate_motion)
-    except SceneError as exc:
-        if exc.line is None and exc.file == shown:
-            exc.line = line_of_key(text, exc.key)
-            exc.args = (exc.one_line(),)
-        raise
+    return SceneDocument(data, text, shown)
 
 
 _KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>\d+)\])?(\.(?P<key>[\w-]+))?")
 
 
 def line_of_key(text: str, key_path: str) -> int | None:
-    """Best-effort line number of a key path like ``moves[1].accel_m_s2`` in TOML text."""
+    """Best-effort line number of a key path like ``moves[1].accel_m_s2`` in TOML text.
+
+    Parameters
+    ----------
+    text : str
+        The scene file's text.
+    key_path : str
+        A key path as errors name it: ``duration_s``, ``rope.length_m``,
+        ``[rigging]``, ``moves[1].accel_m_s2``.
+
+    Returns
+    -------
+    int or None
+        The 1-based line of the key, else of its table's header; None when
+        neither is found.
+    """
     if not key_path:
         return None
     m = _KEY_PATH.match(key_path.strip("[]"))
@@ -312,26 +151,107 @@ def line_of_key(text: str, key_path: str) -> int | None:
     return find_key(start, key) or start + 1
 
 
-def _suggest(name: str, allowed) -> str:
+def suggest(name: str, allowed) -> str:
+    """The problem text for an unknown key, with the nearest allowed key when there is one.
+
+    Parameters
+    ----------
+    name : str
+        The unknown key as written.
+    allowed : iterable of str
+        The keys allowed at that place, in the order to list them.
+
+    Returns
+    -------
+    str
+        ``unknown key (did you mean '...'?); allowed: ...``.
+    """
     near = difflib.get_close_matches(name, list(allowed), n=1, cutoff=0.6)
     hint = f" (did you mean '{near[0]}'?)" if near else ""
     return f"unknown key{hint}; allowed: {', '.join(allowed)}"
 
 
-class _Reader:
+class KeyReader:
+    """Reads the keys of one scene document against the schema, one key at a time.
+
+    Parameters
+    ----------
+    file : str
+        The scene file's name as the user gave it (named in every error).
+    base_dir : Path
+        Folder that relative paths in the scene are relative to.
+    """
+
     def __init__(self, file: str, base_dir: Path):
         self.file = file
         self.base_dir = base_dir
 
     def err(self, key, problem, value=SceneError._MISSING):
+        """A :class:`SceneError` about one key of this scene.
+
+        Parameters
+        ----------
+        key : str
+            Key path, e.g. ``moves[0].accel_m_s2`` (may be empty).
+        problem : str
+            What is wrong and what is allowed.
+        value : object, optional
+            The offending value, shown in the message.
+
+        Returns
+        -------
+        SceneError
+            The error, for the caller to raise.
+        """
         return SceneError(self.file, key, problem, value)
 
-    def check_unknown(self, table: dict, keys: dict, prefix: str):
+    def check_unknown(self, table: dict, keys: dict, prefix: str) -> None:
+        """Refuse the first key of ``table`` that ``keys`` does not name.
+
+        Parameters
+        ----------
+        table : dict
+            A table of the document.
+        keys : dict
+            The schema's keys of that table (name -> :class:`~swingsim.scene.schema.Key`).
+        prefix : str
+            Key path of the table with a trailing dot, e.g. ``rope.`` or ``moves[1].``.
+
+        Raises
+        ------
+        SceneError
+            For an unknown key, with the nearest known one.
+        """
         for name in table:
             if name not in keys:
-                raise self.err(f"{prefix}{name}", _suggest(name, keys))
+                raise self.err(f"{prefix}{name}", suggest(name, keys))
 
-    def value(self, table: dict, name: str, key: S.Key, where: str):
+    def value(self, table: dict, name: str, key: schema.Key, where: str):
+        """One key's value, checked against its schema entry (type, bounds, choices).
+
+        Parameters
+        ----------
+        table : dict
+            The table (or document) that holds the key.
+        name : str
+            The key's name in ``table``.
+        key : swingsim.scene.schema.Key
+            The key's schema entry.
+        where : str
+            The key's full path for errors, e.g. ``rope.length_m``.
+
+        Returns
+        -------
+        object
+            The value: a float for numbers, a tuple of floats for vectors, a
+            tuple of points for point lists, a string or bool as given; a copy
+            of the default when the key is absent.
+
+        Raises
+        ------
+        SceneError
+            When a required key is missing or the value is not allowed.
+        """
         if name not in table:
             if key.required:
                 raise self.err(where, f"missing required key; expected {key.allowed()}")
@@ -380,8 +300,8 @@ class _Reader:
                 if not key.in_bounds(float(v)):
                     raise bad()
                 return float(v)
-            return self.value({name: v}, name, S.Key("floats", key.doc, gt=key.gt, ge=key.ge,
-                                                      lt=key.lt, le=key.le), where)
+            return self.value({name: v}, name, schema.Key("floats", key.doc, gt=key.gt, ge=key.ge,
+                                                           lt=key.lt, le=key.le), where)
         if k == "vec3s":
             if not isinstance(v, list) or not v:
                 raise bad()
@@ -400,6 +320,30 @@ class _Reader:
         raise AssertionError(k)  # pragma: no cover
 
     def table(self, data: dict, name: str, keys: dict, required: bool = False) -> dict:
+        """Every key of one table of the document, checked (defaults for the absent ones).
+
+        Parameters
+        ----------
+        data : dict
+            The whole scene document.
+        name : str
+            The table's name, e.g. ``rope``.
+        keys : dict
+            The schema's keys of the table (name -> :class:`~swingsim.scene.schema.Key`).
+        required : bool, optional
+            Whether the table must be present.
+
+        Returns
+        -------
+        dict
+            Key name -> value (see :meth:`value`), for every key of the schema.
+
+        Raises
+        ------
+        SceneError
+            For a missing required table, a value that is not a table, an
+            unknown key or a value that is not allowed.
+        """
         t = data.get(name, {})
         if name not in data and required:
             raise self.err(f"[{name}]", "missing required table")
@@ -409,16 +353,36 @@ class _Reader:
         return {k: self.value(t, k, key, f"{name}.{k}") for k, key in keys.items()}
 
 
-_LINEAR = {"distance": "distance_m", "speed": "speed_m_s", "accel": "accel_m_s2",
-           "decel": "decel_m_s2", "jerk": "jerk_m_s3"}
-_ANGULAR = {"distance": "angle_deg", "speed": "speed_deg_s", "accel": "accel_deg_s2",
-            "decel": "decel_deg_s2", "jerk": "jerk_deg_s3"}
-
-def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str = "<scene>"):
+def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str = "<scene>") -> MoveTable:
     """Read a table profile's CSV: header ``t_s,position_m`` (``t_s,angle_deg`` for slew).
 
     Errors name the scene file and the key that names the table, with the
     table's row where it applies.
+
+    Parameters
+    ----------
+    file : str
+        The CSV file as the scene names it (``table_file``).
+    base_dir : Path
+        Folder a relative ``file`` is relative to (the scene file's).
+    key : str
+        Key path of ``table_file`` in the scene, e.g. ``moves[0].table_file``.
+    axis : str
+        The move's axis; ``slew`` tables are in degrees, the others in metres.
+    scene_file : str, optional
+        The scene file's name, for errors.
+
+    Returns
+    -------
+    MoveTable
+        Times from the move's start [s] (from 0, strictly increasing) and
+        displacements [m], or [deg] for slew.
+
+    Raises
+    ------
+    SceneError
+        When the file is missing or unreadable, or its header, rows or times
+        are not those of a table profile.
     """
     p = Path(file)
     full = p if p.is_absolute() else base_dir / p
@@ -462,300 +426,4 @@ def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str =
         if ts[i] <= ts[i - 1]:
             raise err(f"data row {i + 1} of the table: times must increase strictly "
                       f"({ts[i - 1]:g} then {ts[i]:g})")
-    return tuple(ts), tuple(xs)
-
-
-def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str = ".",
-                    validate_motion: bool = True) -> Scene:
-    """Validate a parsed scene document (a dict as ``tomllib`` returns it)."""
-    base_dir = Path(base_dir)
-    r = _Reader(file, base_dir)
-    if not isinstance(data, dict):
-        raise r.err("", "a scene must be a TOML document of tables")
-    known = set(S.TOP) | set(S.TABLES) | set(S.ARRAYS)
-    for name in data:
-        if name not in known:
-            raise r.err(name, _suggest(name, sorted(known)))
-    top = {}
-    for name, key in S.TOP.items():
-        top[name] = r.value(data, name, key, name)
-    for name in S.TABLES:
-        if name in data and not isinstance(data[name], dict):
-            raise r.err(name, f"expected a table [{name}]", data[name])
-    crane = r.table(data, "crane", S.TABLES["crane"], required=True)
-    rope = r.table(data, "rope", S.TABLES["rope"], required=True)
-    load = r.table(data, "load", S.TABLES["load"], required=True)
-    start = r.table(data, "start", S.TABLES["start"])
-    damping = r.table(data, "damping", S.TABLES["damping"])
-    wind = r.table(data, "wind", S.TABLES["wind"])
-    output = r.table(data, "output", S.TABLES["output"])
-    limits = r.table(data, "limits", S.TABLES["limits"])
-    view = _read_view(r, data)
-    _check_mesh_file(r, load)
-
-    moves = []
-    raw_moves = data.get("moves", [])
-    if not isinstance(raw_moves, list) or any(not isinstance(m, dict) for m in raw_moves):
-        raise r.err("moves", "expected an array of tables [[moves]]", raw_moves)
-    for i, m in enumerate(raw_moves):
-        moves.append(_read_move(r, m, i, top["duration_s"]))
-
-    zones = []
-    raw_zones = data.get("zones", [])
-    if not isinstance(raw_zones, list) or any(not isinstance(z, dict) for z in raw_zones):
-        raise r.err("zones", "expected an array of tables [[zones]]", raw_zones)
-    for i, z in enumerate(raw_zones):
-        r.check_unknown(z, S.ZONE, f"zones[{i}].")
-        v = {k: r.value(z, k, key, f"zones[{i}].{k}") for k, key in S.ZONE.items()}
-        if any(a >= b for a, b in zip(v["min_m"], v["max_m"])):
-            raise r.err(f"zones[{i}].max_m", "must exceed min_m in every coordinate", list(v["max_m"]))
-        zones.append(Zone(**v))
-
-    hook_t = r.table(data, "hook", S.TABLES["hook"]) if "hook" in data else None
-    rig_t = r.table(data, "rigging", S.TABLES["rigging"]) if "rigging" in data else None
-    rope_o, load_o, start_o = Rope(**rope), Load(**load), Start(**start)
-    hook_o, rig_o = _read_hook_rigging(r, hook_t, rig_t, rope_o, load_o, start_o, top["gravity_m_s2"])
-
-    scene = Scene(
-        title=top["title"], duration_s=top["duration_s"], gravity_m_s2=top["gravity_m_s2"],
-        notes=top["notes"],
-        crane=Crane(**crane), rope=rope_o, load=load_o,
-        start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
-        wind=Wind(**wind), sample_hz=output["sample_hz"], limits=Limits(**limits),
-        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
-        hook=hook_o, rigging=rig_o,
-    )
-    if validate_motion:
-        # a move that cannot be built is bad input; a profile tuned to the swing period is
-        # built with the period of the model the scene selects, as the run will
-        period = float(select_model(scene).mode_periods_s()[0]) if needs_swing_period(scene) else None
-        build_motion(scene, swing_period_s=period)
-    return scene
-
-
-#: File types a load mesh may have (read with pyvista).
-MESH_SUFFIXES = (".stl", ".obj", ".ply")
-
-
-def _read_view(r: _Reader, data: dict):
-    """The optional ``[view]`` table; its position and focus are required when it is there."""
-    if "view" not in data:
-        return None
-    v = r.table(data, "view", S.TABLES["view"])
-    pos, foc, up = (np.asarray(v[k]) for k in ("position_m", "focus_m", "up"))
-    if np.linalg.norm(pos - foc) < 1e-6:
-        raise r.err("view.focus_m", "must differ from view.position_m", list(v["focus_m"]))
-    if np.linalg.norm(up) < 1e-9:
-        raise r.err("view.up", "must not be the zero vector", list(v["up"]))
-    d = (foc - pos) / np.linalg.norm(foc - pos)
-    if np.linalg.norm(np.cross(d, up / np.linalg.norm(up))) < 1e-3:
-        raise r.err("view.up", "must not point along the line of sight (position_m to focus_m)", list(v["up"]))
-    return View(**v)
-
-
-def _check_mesh_file(r: _Reader, load: dict) -> None:
-    name = load.get("mesh_file")
-    if name is None:
-        return
-    if Path(name).suffix.lower() not in MESH_SUFFIXES:
-        raise r.err("load.mesh_file", "expected an STL, OBJ or PLY file (.stl, .obj, .ply)", name)
-    p = Path(name)
-    full = p if p.is_absolute() else r.base_dir / p
-    if not full.is_file():
-        raise r.err("load.mesh_file", "file not found (relative to the scene file's folder)", name)
-
-
-
-# ----------------------------------------------------------------------------
-# hook block, rigging, rigid load, elastic rope (hook-and-load models)
-
-
-def _per_leg(r, values, n, key):
-    if values is None:
-        return None
-    if isinstance(values, float):
-        return (values,) * n
-    if len(values) == 1:
-        return tuple(values) * n
-    if len(values) != n:
-        raise r.err(key, f"expected one value or one per leg ({n} legs)", list(values))
-    return tuple(values)
-
-
-def _rigid(load, has_hook: bool, has_rigging: bool) -> bool:
-    return load.inertia_kg_m2 is not None or (load.size_m is not None and (has_hook or has_rigging))
-
-
-def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
-    """Cross-checks of the hook-and-load keys; returns (Hook or None, Rigging or None)."""
-    if rope.stiffness_kN_per_m is not None and rope.modulus_GPa is not None:
-        raise r.err("rope.modulus_GPa", "give either rope.stiffness_kN_per_m or rope.modulus_GPa, "
-                    "not both", rope.modulus_GPa)
-    if rope.modulus_GPa is not None and rope.diameter_m is None:
-        raise r.err("rope.modulus_GPa", "needs rope.diameter_m to derive the rope stiffness",
-                    rope.modulus_GPa)
-    if start.rope_preload != "static" and not rope.elastic:
-        raise r.err("start.rope_preload", "only for an elastic rope (set rope.stiffness_kN_per_m "
-                    "or rope.modulus_GPa)", start.rope_preload)
-    if start.rope_slack_m and start.rope_preload != "lift-off":
-        raise r.err("start.rope_slack_m", "only with start.rope_preload = 'lift-off'", start.rope_slack_m)
-    if start.rope_preload == "lift-off":
-        for k in ("swing_deg", "swing_rate_deg_s"):
-            if any(getattr(start, k)):
-                raise r.err(f"start.{k}", "must be zero with rope_preload = 'lift-off' (the load rests "
-                            "supported until it lifts off)", list(getattr(start, k)))
-    if load.shape == "cylinder" and load.size_m is None and load.inertia_kg_m2 is None \
-            and (hook_t is not None or rig_t is not None):
-        raise r.err("load.shape", "a cylinder needs load.size_m (or give load.inertia_kg_m2)", "cylinder")
-    if load.inertia_kg_m2 is not None:
-        i1, i2, i3 = load.inertia_kg_m2
-        if i1 + i2 < i3 * (1 - 1e-9) or i2 + i3 < i1 * (1 - 1e-9) or i1 + i3 < i2 * (1 - 1e-9):
-            raise r.err("load.inertia_kg_m2", "not a real body: each moment must not exceed the sum "
-                        "of the other two (triangle inequality of principal moments)",
-                        list(load.inertia_kg_m2))
-    if load.cg_offset_m != (0.0, 0.0, 0.0) and load.size_m is None:
-        raise r.err("load.cg_offset_m", "needs load.size_m (it is measured from the box centre)",
-                    list(load.cg_offset_m))
-    hook = Hook(**hook_t) if hook_t is not None else None
-    if rope.elastic:
-        from swingsim.dynamics.rope import elastic_rope  # local: pure physics
-
-        m = load.mass_kg + (hook.mass_kg if hook else 0.0)
-        try:
-            elastic_rope(rope, m * g, m)
-        except ValueError:
-            key = "rope.stiffness_kN_per_m" if rope.stiffness_kN_per_m is not None else "rope.modulus_GPa"
-            raise r.err(key, f"the rope would stretch more than its length ({rope.length_m:g} m) "
-                        f"under the {m:g} kg it carries; check the value and its unit",
-                        rope.stiffness_kN_per_m or rope.modulus_GPa) from None
-    rigid = _rigid(load, hook_t is not None, rig_t is not None)
-    if rig_t is None:
-        if hook is not None:
-            raise r.err("[rigging]", "missing; a hook block needs the rigging below it "
-                        "(at least rigging.leg_length_m)")
-        if not rigid:
-            return None, None
-        if load.size_m is None:
-            raise r.err("[rigging]", "missing; a load given by inertia_kg_m2 without size_m needs "
-                        "rigging.attach_m (where the rope is attached)")
-        rig_t = {"kind": "single", "leg_length_m": 0.0, "attach_m": None, "wll_kN": None,
-                 "top_leg_length_m": None, "top_wll_kN": None}
-    kind = rig_t["kind"]
-    attach = rig_t["attach_m"]
-    if attach is not None and len(attach) == 3 and all(isinstance(x, float) for x in attach):
-        attach = (attach,)  # pragma: no cover  (vec3s always gives points)
-    if kind == "single":
-        if attach is None:
-            if not rigid:
-                attach = ((0.0, 0.0, 0.0),)
-            elif load.size_m is None:
-                raise r.err("rigging.attach_m", "missing; with no load.size_m the top centre of the "
-                            "load is unknown")
-            else:
-                ox, oy, oz = load.cg_offset_m
-                attach = ((-ox, -oy, -oz + 0.5 * load.size_m[2]),)
-        elif len(attach) != 1:
-            raise r.err("rigging.attach_m", "kind 'single' has one attachment point", [list(a) for a in attach])
-        elif not rigid and any(attach[0]):
-            raise r.err("rigging.attach_m", "a point-mass load has no attachment offset; give "
-                        "load.size_m or load.inertia_kg_m2 for a rigid load", [list(a) for a in attach])
-    else:
-        if not rigid:
-            raise r.err("rigging.kind", f"a {kind} needs a rigid load (load.size_m or "
-                        "load.inertia_kg_m2)", kind)
-        if attach is None:
-            raise r.err("rigging.attach_m", f"missing; kind '{kind}' needs one attachment point per leg")
-        if len(attach) < 2:
-            raise r.err("rigging.attach_m", f"kind '{kind}' needs at least two attachment points",
-                        [list(a) for a in attach])
-    n = len(attach)
-    legs = _per_leg(r, rig_t["leg_length_m"], n, "rigging.leg_length_m")
-    wll = _per_leg(r, rig_t["wll_kN"], n, "rigging.wll_kN")
-    if hook is not None or kind != "single":
-        for L in legs:
-            if L <= 0.0:
-                raise r.err("rigging.leg_length_m", "must be > 0 (only a single leg without a hook "
-                            "block may have length 0: the rope attached to the load directly)",
-                            list(legs) if n > 1 else L)
-    if kind == "spreader":
-        if rig_t["top_leg_length_m"] is None:
-            raise r.err("rigging.top_leg_length_m", "missing; kind 'spreader' needs the length of "
-                        "its two top slings")
-    else:
-        for k in ("top_leg_length_m", "top_wll_kN"):
-            if rig_t[k] is not None:
-                raise r.err(f"rigging.{k}", f"only for kind 'spreader', not '{kind}'", rig_t[k])
-    rig = Rigging(kind=kind, leg_length_m=legs, attach_m=tuple(tuple(a) for a in attach), wll_kN=wll,
-                  top_leg_length_m=rig_t["top_leg_length_m"], top_wll_kN=rig_t["top_wll_kN"])
-    from swingsim.dynamics.rigging import RiggingError, rigging_geometry  # local: pure physics
-
-    try:
-        rigging_geometry(rig, load, rigid)
-    except RiggingError as exc:
-        raise r.err(f"rigging.{exc.key}", str(exc)) from None
-    return hook, rig
-
-
-def _read_move(r: _Reader, m: dict, i: int, duration_s: float) -> Move:
-    where = f"moves[{i}]"
-    r.check_unknown(m, S.MOVE, f"{where}.")
-    v = {k: r.value(m, k, key, f"{where}.{k}") for k, key in S.MOVE.items()}
-    axis, profile = v["axis"], v["profile"]
-    names = _ANGULAR if axis == "slew" else _LINEAR
-    other = _LINEAR if axis == "slew" else _ANGULAR
-    for q, key in other.items():
-        if key in m:
-            kind = "a slew move" if axis == "slew" else f"a linear ({axis}) move"
-            raise r.err(f"{where}.{key}", f"not a key of {kind}; use {names[q]}", m[key])
-    spec = PROFILES[profile]
-    needs, optional = spec.needs, spec.optional
-    for q in names:
-        key = names[q]
-        if q in needs and v[key] is None:
-            raise r.err(f"{where}.{key}", f"missing; profile '{profile}' needs "
-                        + ", ".join(names[n] for n in needs))
-        if q not in needs and q not in optional and key in m:
-            raise r.err(f"{where}.{key}", f"not used by profile '{profile}'", m[key])
-    own = spec.keys
-    for key in sorted({k for sp in PROFILES.values() for k in sp.keys}):
-        if key in m and key not in own:
-            users = ", ".join(p for p, sp in PROFILES.items() if key in sp.keys)
-            raise r.err(f"{where}.{key}", f"not used by profile '{profile}' (only by {users})", m[key])
-    if profile == "table":
-        if v["table_file"] is None:
-            raise r.err(f"{where}.table_file", "missing; profile 'table' needs a CSV file")
-        table = read_table(v["table_file"], r.base_dir, f"{where}.table_file", axis, r.file)
-    else:
-        if v["table_file"] is not None:
-            raise r.err(f"{where}.table_file", f"only for profile 'table', not '{profile}'", v["table_file"])
-        table = None
-        if v[names["distance"]] == 0.0:
-            raise r.err(f"{where}.{names['distance']}", "must not be zero", 0.0)
-    if v["start_s"] >= duration_s:
-        raise r.err(f"{where}.start_s", f"must be before the end of the simulation (duration_s = "
-                    f"{duration_s:g})", v["start_s"])
-    profile_keys = {k: m[k] for k in spec.keys if k in m}
-    return Move(index=i, axis=axis, profile=profile, start_s=v["start_s"], label=v["label"],
-                distance=v[names["distance"]], speed=v[names["speed"]], accel=v[names["accel"]],
-                decel=v[names["decel"]], jerk=v[names["jerk"]], table=table, profile_keys=profile_keys)
-
-
-def set_dotted(data: dict, dotted: str, value: Any) -> dict:
-    """Return a deep copy of ``data`` with ``dotted`` (e.g. ``moves.0.accel_m_s2``) set."""
-    out = copy.deepcopy(data)
-    parts = dotted.split(".")
-    cur: Any = out
-    for j, part in enumerate(parts[:-1]):
-        if isinstance(cur, list):
-            idx = int(part)
-            cur = cur[idx]
-        else:
-            if part not in cur:
-                cur[part] = {}
-            cur = cur[part]
-    last = parts[-1]
-    if isinstance(cur, list):
-        cur[int(last)] = value
-    else:
-        cur[last] = value
-    return out
+    return MoveTable(tuple(ts), tuple(xs))

@@ -1,6 +1,6 @@
 """The scene-file schema: every key, its type, unit, default, range and meaning.
 
-This table is the single source of truth for validation (``scene.py``) and for
+This table is the single source of truth for validation (``read.py``, ``validate.py``) and for
 the key reference in ``docs/scene-reference.md`` (``python -m swingsim.scene.schema``
 regenerates it; a test checks that the two agree).  SI units everywhere; each
 quantity's unit is in its key name.
@@ -12,7 +12,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from swingsim import constants as C
+from swingsim import constants
 
 
 @dataclass(frozen=True)
@@ -20,7 +20,8 @@ class Key:
     """One scene key.
 
     kind: ``float``, ``int``, ``str``, ``bool``, ``vec2``, ``vec3``,
-    ``floats`` (list of numbers), ``path`` (a file relative to the scene).
+    ``floats`` (list of numbers), ``floats_or_float`` (one number or a list),
+    ``vec3s`` (list of [x, y, z] points), ``path`` (a file relative to the scene).
     ``gt``/``ge``/``le``/``lt`` bound numbers (and each component of vectors).
     """
 
@@ -35,7 +36,13 @@ class Key:
     choices: tuple | None = None
 
     def allowed(self) -> str:
-        """Human-readable statement of the allowed values."""
+        """Human-readable statement of the allowed values, as errors and the key reference say it.
+
+        Returns
+        -------
+        str
+            E.g. ``a number > 0 (finite)`` or ``one of 'x', 'y'``.
+        """
         if self.choices:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         what = {
@@ -62,6 +69,18 @@ class Key:
         return what
 
     def in_bounds(self, x: float) -> bool:
+        """Whether a number is finite and within the key's bounds.
+
+        Parameters
+        ----------
+        x : float
+            The value (or one component of a vector), in the key's unit.
+
+        Returns
+        -------
+        bool
+            True when ``x`` is finite and keeps to ``gt``, ``ge``, ``lt`` and ``le``.
+        """
         if not math.isfinite(x):
             return False
         if self.gt is not None and not x > self.gt:
@@ -79,7 +98,7 @@ TOP = {
     "title": Key("str", "Title of the lift, shown on every output.", required=True),
     "duration_s": Key("float", "Simulated time from t = 0 [s].", required=True, gt=0.0),
     "gravity_m_s2": Key("float", "Gravitational acceleration [m/s^2]; standard gravity by default.",
-                        default=C.STANDARD_GRAVITY, gt=0.0),
+                        default=constants.STANDARD_GRAVITY, gt=0.0),
     "notes": Key("str", "Free text about the lift (not used in the calculation).", default=""),
 }
 
@@ -91,9 +110,9 @@ TABLES: dict[str, dict[str, Key]] = {
                     "gantry or bridge (beam on rails), mobile (boom).", default="tower",
                     choices=("tower", "gantry", "bridge", "mobile")),
         "wind_limit_m_s": Key("float", "In-service wind speed limit of this crane [m/s]; "
-                              f"default {C.IN_SERVICE_WIND_LIMIT_M_S:g} m/s is a rule of thumb only: "
+                              f"default {constants.IN_SERVICE_WIND_LIMIT_M_S:g} m/s is a rule of thumb only: "
                               "take the real value from the crane manufacturer.",
-                              default=C.IN_SERVICE_WIND_LIMIT_M_S, gt=0.0),
+                              default=constants.IN_SERVICE_WIND_LIMIT_M_S, gt=0.0),
     },
     "rope": {
         "length_m": Key("float", "Hoist rope length from the suspension point to the hook, "
@@ -101,7 +120,7 @@ TABLES: dict[str, dict[str, Key]] = {
         "diameter_m": Key("float", "Rope diameter [m]; when set, wind acts on the rope too.", gt=0.0, lt=1.0),
         "drag_coefficient": Key("float", "Drag coefficient of the rope across the wind [-] "
                                 "(default: circular cylinder, from memory).",
-                                default=C.ROPE_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+                                default=constants.ROPE_DRAG_COEFFICIENT, gt=0.0, le=5.0),
         "wll_kN": Key("float", "Working load limit of the hoist rope reeving [kN]; a caution is raised "
                       "when the peak dynamic tension exceeds it.", gt=0.0),
         # -- elastic hoist rope (hook-and-load models) --
@@ -115,7 +134,7 @@ TABLES: dict[str, dict[str, Key]] = {
                            gt=0.0, le=250.0),
         "fill_factor": Key("float", "Metallic area of the rope over the area of its circle [-] "
                            "(default 0.58 from memory, Feyrer, Wire Ropes).",
-                           default=C.ROPE_FILL_FACTOR, gt=0.0, le=1.0),
+                           default=constants.ROPE_FILL_FACTOR, gt=0.0, le=1.0),
         "falls": Key("int", "Number of falls (parts of line) between the suspension point and the "
                      "hook block [-].", default=1, ge=1, le=64),
         "lead_length_m": Key("float", "Rope beyond the falls that also stretches (from the top sheave "
@@ -131,7 +150,7 @@ TABLES: dict[str, dict[str, Key]] = {
         "wind_area_m2": Key("float", "Projected area of the load facing the wind [m^2]; no wind "
                             "force on the load when unset.", ge=0.0),
         "drag_coefficient": Key("float", "Drag (force) coefficient of the load [-].",
-                                default=C.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+                                default=constants.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
         # -- rigid load (hook-and-load models) --
         "inertia_kg_m2": Key("vec3", "Moments of inertia [Ixx, Iyy, Izz] about the centre of gravity, "
                              "load axes [kg m^2]; with it (or with size_m) the load is a rigid body.",
@@ -154,7 +173,7 @@ TABLES: dict[str, dict[str, Key]] = {
         "size_m": Key("vec3", "Overall size of the hook block [lx, ly, lz] [m], for drawing; "
                       "lx * lz is its area facing the wind.", gt=0.0),
         "drag_coefficient": Key("float", "Drag (force) coefficient of the hook block [-].",
-                                default=C.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+                                default=constants.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
     },
     "rigging": {
         "kind": Key("str", "single: one leg from the hook to one attachment point, the load pivots "
@@ -195,22 +214,22 @@ TABLES: dict[str, dict[str, Key]] = {
         "speed_m_s": Key("float", "Steady wind speed at load height [m/s].", default=0.0, ge=0.0),
         "direction_deg": Key("float", "Direction the wind blows toward, from +x toward +y [deg].", default=0.0),
         "air_density_kg_m3": Key("float", "Air density [kg/m^3]; ISO 2533 sea level by default.",
-                                 default=C.AIR_DENSITY_SEA_LEVEL, gt=0.0, le=2.0),
+                                 default=constants.AIR_DENSITY_SEA_LEVEL, gt=0.0, le=2.0),
     },
     "output": {
-        "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=C.SAMPLE_HZ, ge=1.0, le=1000.0),
+        "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=constants.SAMPLE_HZ, ge=1.0, le=1000.0),
     },
     "limits": {
         "swing_caution_deg": Key("float", "Rope angle that raises a swing caution [deg] (rule of thumb default).",
-                                 default=C.SWING_CAUTION_DEG, gt=0.0, lt=90.0),
+                                 default=constants.SWING_CAUTION_DEG, gt=0.0, lt=90.0),
         "settle_deg": Key("float", "Swing about the rest position below which the load counts as settled "
-                          "for landing [deg] (rule of thumb default).", default=C.SETTLE_SWING_DEG,
+                          "for landing [deg] (rule of thumb default).", default=constants.SETTLE_SWING_DEG,
                           gt=0.0, lt=45.0),
         "clearance_m": Key("float", "Largest allowed horizontal excursion of the load from the plumb line "
                            "below the suspension point [m].", gt=0.0),
     },
     # Camera of `swingsim render --view custom`; the whole table is optional, and
-    # position_m and focus_m are required when it is given (checked in scene.py).
+    # position_m and focus_m are required when it is given (checked in validate.py).
     "view": {
         "position_m": Key("vec3", "Camera position [x, y, z] [m] of the custom view.", required=True),
         "focus_m": Key("vec3", "Point the custom view looks at [x, y, z] [m].", required=True),
@@ -272,7 +291,13 @@ ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
 
 
 def reference_markdown() -> str:
-    """The scene key reference as Markdown (docs/scene-reference.md)."""
+    """The scene key reference as Markdown (docs/scene-reference.md).
+
+    Returns
+    -------
+    str
+        One table per scene table: key, required, default, allowed values, meaning.
+    """
     out = ["# Scene file reference", "",
            "Generated from `swingsim/scene/schema.py` by `python -m swingsim.scene.schema`; do not edit by hand.",
            "SI units; every quantity's unit is in its key name.", ""]

@@ -1,6 +1,6 @@
-"""``swingsim compare SWEEP --out DIR``: run every variant of a sweep and compare them.
+"""Run every variant of a sweep and compare them (``swingsim compare SWEEP --out DIR``).
 
-Writes into DIR:
+:func:`compare` writes into DIR:
 
 ``comparison.csv``
     One row per variant: ``variant`` (index), ``name``, the varied values in
@@ -24,6 +24,7 @@ process or on Dask (``--workers N`` starts a local cluster on this machine,
 ``--cluster ADDRESS`` uses a running scheduler).  A chunk is the unit of work
 either way, and the engine's result for a variant does not depend on the
 other variants in its chunk, so every way of running gives the same numbers.
+The command line (arguments and printing) is :mod:`swingsim.cli.compare`.
 """
 
 from __future__ import annotations
@@ -32,15 +33,17 @@ import csv
 import io
 import math
 import os
-import sys
+from dataclasses import dataclass
 from pathlib import Path
+from typing import NamedTuple
 
 import numpy as np
 
 from swingsim.batch import engine as batch
+from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
-from swingsim.scene import scene_from_dict
-from swingsim.study.variants import PLAUSIBLE_VARIANTS, get_dotted, load_sweep
+from swingsim.io.files import atomic_write_text, check_out_dir, clean_partials
+from swingsim.scene.edit import get_dotted, with_move
 
 CSV_NAME = "comparison.csv"
 OUTPUTS = (CSV_NAME, "ranking.csv", "sensitivity.csv", "report.html")
@@ -54,7 +57,19 @@ SENSITIVITY_ERRORS = tuple(float(x) for x in np.linspace(-0.3, 0.3, 13))
 
 
 def cell(x) -> str:
-    """One CSV cell: exact for floats (repr round-trips), empty for None."""
+    """One CSV cell: exact for floats (repr round-trips), empty for None.
+
+    Parameters
+    ----------
+    x : object
+        A value of a summary or of a scene key: None, bool, int, float, str,
+        or a list or tuple of them.
+
+    Returns
+    -------
+    str
+        ``repr`` of a float, ``true``/``false``, ``[a, b]`` for a list, ``""`` for None.
+    """
     if x is None:
         return ""
     if isinstance(x, bool):
@@ -67,6 +82,18 @@ def cell(x) -> str:
 
 
 def parse_cell(s: str):
+    """A value back from a CSV cell written by :func:`cell` (lists stay text).
+
+    Parameters
+    ----------
+    s : str
+        The cell.
+
+    Returns
+    -------
+    object
+        None for an empty cell, a bool, int or float where the text is one, else the text.
+    """
     if s == "":
         return None
     if s in ("true", "false"):
@@ -82,10 +109,38 @@ def parse_cell(s: str):
 
 
 def header(sweep) -> list[str]:
+    """Columns of ``comparison.csv``: variant, name, the compared keys, the summary keys.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The sweep.
+
+    Returns
+    -------
+    list of str
+        The column names.
+    """
     return ["variant", "name", *sweep.keys, *batch.SUMMARY_KEYS]
 
 
 def row_cells(sweep, variant, summary) -> list[str]:
+    """One row of ``comparison.csv``, as cells.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The sweep.
+    variant : Variant
+        The variant of the row.
+    summary : dict
+        Its summary numbers (summary key -> value); missing keys give empty cells.
+
+    Returns
+    -------
+    list of str
+        The cells in the order of :func:`header`.
+    """
     vals = [cell(variant.values.get(k, get_dotted(sweep.base.raw, k))) for k in sweep.keys]
     return [str(variant.index), variant.name, *vals, *(cell(summary.get(k)) for k in batch.SUMMARY_KEYS)]
 
@@ -97,9 +152,26 @@ def _csv_line(cells) -> str:
 
 
 def read_done(sweep, path: Path) -> dict:
-    """Finished rows of an earlier run: variant index -> summary dict.
+    """Finished rows of an earlier run's ``comparison.csv``.
 
-    Raises InputError when the file belongs to a different sweep.
+    A row cut short by an interruption is skipped (that variant runs again).
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The sweep being resumed.
+    path : Path
+        The earlier ``comparison.csv``.
+
+    Returns
+    -------
+    dict
+        Variant index -> summary dict, for every complete row.
+
+    Raises
+    ------
+    InputError
+        When the file belongs to a different sweep (other columns, variants or values).
     """
     text = path.read_text(encoding="utf-8")
     rows = list(csv.reader(io.StringIO(text)))
@@ -128,12 +200,44 @@ def read_done(sweep, path: Path) -> dict:
 
 
 def effective_values(sweep, variant) -> dict:
-    """The value of every compared key in a variant (the base scene's where the variant sets none)."""
+    """The value of every compared key in a variant (the base scene's where the variant sets none).
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The sweep.
+    variant : Variant
+        One of its variants.
+
+    Returns
+    -------
+    dict
+        Dotted key -> value, for every key of ``sweep.keys``.
+    """
     return {k: variant.values.get(k, get_dotted(sweep.base.raw, k)) for k in sweep.keys}
 
 
 def rank(sweep, summaries: list) -> list[dict]:
-    """Variants in objective order; ``rank`` None for those outside the limits."""
+    """Variants in objective order; ``rank`` None for those outside the limits.
+
+    A variant is ranked when its run is valid, it has a value of the objective,
+    and it keeps to every limit of the sweep; ranked variants come first, by
+    the objective (ties by index), the others after them in variant order.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The sweep (its objective ``minimize`` and its ``limits``).
+    summaries : list of dict
+        The variants' summaries, in variant order.
+
+    Returns
+    -------
+    list of dict
+        One row per variant: ``index``, ``name``, ``values`` (the compared keys),
+        ``base_values`` (the base scene's), ``summary``, ``note`` (why it is not
+        ranked, else empty) and ``rank`` (from 1, or None).
+    """
     key = sweep.minimize
     rows = []
     for v, s in zip(sweep.variants, summaries):
@@ -162,6 +266,21 @@ def rank(sweep, summaries: list) -> list[dict]:
 
 
 def ranking_csv(sweep, ranking) -> str:
+    """The text of ``ranking.csv``.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The sweep.
+    ranking : list of dict
+        The rows of :func:`rank`.
+
+    Returns
+    -------
+    str
+        CSV: rank, variant, name, the compared keys, the objective, the move's end,
+        peak and residual rope angles, settling time, and the note.
+    """
     key = sweep.minimize
     show = ["last_move_end_s", "peak_rope_angle_deg", "residual_rope_angle_deg", "settled_at_s"]
     cols = ["rank", "variant", "name", *sweep.keys, key, *[c for c in show if c != key], "note"]
@@ -181,13 +300,55 @@ _TRAVEL = ("x", "y", "radius", "slew")
 _SHAPEABLE = ("trapezoid", "s-curve", "zv", "zvd", "ei", "whole-period")
 
 
+class SensitivityCase(NamedTuple):
+    """One run of the sensitivity study."""
+
+    #: The move's profile in this run.
+    profile: str
+    #: Relative error of the rope length against the design length [-].
+    rope_length_error: float
+    #: The base scene with that profile and rope length.
+    scene: object
+
+
+class SensitivityScenes(NamedTuple):
+    """The runs of the sensitivity study of one move."""
+
+    #: The move's name.
+    move: str
+    #: Rope length the shapers are tuned for: the base scene's [m].
+    design_length_m: float
+    #: First swing period of the base scene, the shapers' tuning [s].
+    design_period_s: float
+    #: The runs, profile by profile.
+    cases: list
+
+
 def sensitivity_scenes(base):
     """Scenes of the sensitivity study of the base scene's first travel move, or None.
 
-    Returns (move label, design length, design period, [(profile, error, scene)]).
-    """
-    from swingsim.dynamics.registry import select_model
+    The move is run as its unshaped command (s-curve with a jerk limit, else
+    trapezoid), whole-period, ZV, ZVD and EI, the shaped ones tuned to the base
+    scene's first swing period, at rope lengths from -30 % to +30 % of the base
+    scene's (:data:`SENSITIVITY_ERRORS`).
 
+    Parameters
+    ----------
+    base : Scene
+        The sweep's base scene.
+
+    Returns
+    -------
+    SensitivityScenes or None
+        None when the scene has no travel move with a shapeable profile.  A rope
+        length at which a profile is not a valid scene is left out.
+
+    References
+    ----------
+    Singer, N. C. and Seering, W. P., "Preshaping command inputs to reduce
+    system vibration", J. Dyn. Sys., Meas., Control 112 (1990): the ZV and ZVD
+    shapers and their robustness to a modelling error.
+    """
     idx = next((i for i, m in enumerate(base.moves) if m.axis in _TRAVEL and m.profile in _SHAPEABLE), None)
     if idx is None:
         return None
@@ -206,34 +367,57 @@ def sensitivity_scenes(base):
         if prof not in ("trapezoid", "s-curve"):
             m["shaper_period_s"] = T
         for e in SENSITIVITY_ERRORS:
-            d = dict(base.raw)
-            d["moves"] = list(base.raw["moves"])
-            d["moves"][idx] = m
-            d["rope"] = dict(base.raw["rope"], length_m=L0 * (1.0 + e))
-            d["duration_s"] = base.duration_s + 1.5 * T
             try:
-                sc = scene_from_dict(d, file=base.file, base_dir=base.base_dir)
+                sc = with_move(base, idx, m, rope_length_m=L0 * (1.0 + e), duration_s=base.duration_s + 1.5 * T)
             except InputError:
                 continue  # e.g. a hoist that would shorten the short rope too far
-            out.append((prof, e, sc))
-    label = base.moves[idx].name
-    return label, L0, T, out
+            out.append(SensitivityCase(prof, e, sc))
+    return SensitivityScenes(base.moves[idx].name, L0, T, out)
 
 
 def sensitivity_study(base, **kw):
-    got = sensitivity_scenes(base)
-    if got is None or not got[3]:
+    """Residual swing of the base scene's first travel move against rope-length error, per profile.
+
+    Parameters
+    ----------
+    base : Scene
+        The sweep's base scene.
+    **kw
+        Passed on to :func:`swingsim.batch.engine.run_batch`.
+
+    Returns
+    -------
+    dict or None
+        ``move`` (its name), ``design_length_m`` [m], ``design_period_s`` [s] and
+        ``curves``: profile -> list of (rope-length error [-], residual swing
+        [deg], NaN where the run has none); None when there is nothing to study
+        (see :func:`sensitivity_scenes`).
+    """
+    study = sensitivity_scenes(base)
+    if study is None or not study.cases:
         return None
-    label, L0, T, cases = got
-    sums = batch.run_batch([c[2] for c in cases], **kw)
+    sums = batch.run_batch([case.scene for case in study.cases], **kw)
     curves = {}
-    for (prof, e, _), s in zip(cases, sums):
+    for case, s in zip(study.cases, sums):
         r = s.get("residual_swing_deg")
-        curves.setdefault(prof, []).append((e, math.nan if r is None else r))
-    return {"move": label, "design_length_m": L0, "design_period_s": T, "curves": curves}
+        curves.setdefault(case.profile, []).append((case.rope_length_error, math.nan if r is None else r))
+    return {"move": study.move, "design_length_m": study.design_length_m,
+            "design_period_s": study.design_period_s, "curves": curves}
 
 
 def sensitivity_csv(sens) -> str:
+    """The text of ``sensitivity.csv``.
+
+    Parameters
+    ----------
+    sens : dict
+        The result of :func:`sensitivity_study`.
+
+    Returns
+    -------
+    str
+        CSV: profile, rope_length_error [-], rope_length_m [m], residual_swing_deg [deg].
+    """
     out = [_csv_line(["profile", "rope_length_error", "rope_length_m", "residual_swing_deg"])]
     for prof, pts in sens["curves"].items():
         for e, r in pts:
@@ -276,6 +460,27 @@ def run_chunks(scenes, chunk_ranges, *, workers=None, cluster=None, engine="batc
     """Run ``batch.run_chunk`` on every chunk; ``on_result(range, summaries)`` as each finishes.
 
     In-process when neither ``workers`` nor ``cluster`` is given.
+
+    Parameters
+    ----------
+    scenes : list of Scene
+        Every variant's scene.
+    chunk_ranges : list of list of int
+        Indices into ``scenes``, one list per chunk.
+    workers : int, optional
+        Start a local Dask cluster with this many worker processes.
+    cluster : str, optional
+        Address of a running Dask scheduler.
+    engine : str, optional
+        ``batch`` or ``single`` (see :func:`swingsim.batch.engine.run_chunk`).
+    on_result : callable, optional
+        Called as ``on_result(indices, summaries)`` when a chunk finishes (in
+        the order chunks finish on Dask).
+
+    Raises
+    ------
+    InputError
+        When Dask is needed but not installed, or the scheduler cannot be reached.
     """
     if not workers and not cluster:
         for r in chunk_ranges:
@@ -299,15 +504,64 @@ def run_chunks(scenes, chunk_ranges, *, workers=None, cluster=None, engine="batc
         cl.close()
 
 
+@dataclass(frozen=True)
+class Comparison:
+    """What :func:`compare` did.
+
+    ``summaries`` are the variants' summary dicts in variant order, ``ranking``
+    the rows of :func:`rank`, ``ran`` the number of variants run now, ``reused``
+    the number taken from an earlier run, ``sensitivity`` the result of
+    :func:`sensitivity_study` (None when not run).
+    """
+
+    summaries: list
+    ranking: list
+    ran: int
+    reused: int
+    sensitivity: dict | None
+
+
 def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluster=None,
             engine="batch", chunk_size=None, progress=None, sensitivity=None) -> dict:
     """Run a sweep and write the comparison files (see the module docstring).
 
-    Returns a dict with ``summaries`` (variant order), ``ranking``, ``ran``
-    (variants run now) and ``reused`` (taken from an earlier run).
+    Parameters
+    ----------
+    sweep : Sweep
+        The validated sweep (:func:`swingsim.study.variants.load_sweep`).
+    out : Path or str
+        Output folder.
+    resume : bool, optional
+        Keep the finished rows of an earlier run's ``comparison.csv`` in ``out``
+        and run only the other variants.
+    force : bool, optional
+        Write into a folder that already holds files (only this command's are replaced).
+    workers : int, optional
+        Run the chunks on a local Dask cluster with this many worker processes.
+    cluster : str, optional
+        Address of a running Dask scheduler to send the chunks to.
+    engine : str, optional
+        ``batch`` (the vectorised engine) or ``single`` (one solver run per variant).
+    chunk_size : int, optional
+        Variants per chunk; sized for memory when None.
+    progress : callable, optional
+        Called with the number of variants of each chunk as it finishes.
+    sensitivity : bool, optional
+        Run the shaper sensitivity study; the sweep's ``sensitivity`` key when None.
+
+    Returns
+    -------
+    Comparison
+        The summaries in variant order, the ranking, how many variants ran now
+        and how many were reused, the sensitivity study.
+
+    Raises
+    ------
+    InputError
+        When ``out`` is a file, is not empty (without ``force``), or holds the
+        comparison of another sweep (with ``resume``).
     """
-    from swingsim.io.files import atomic_write_text, check_out_dir, clean_partials
-    from swingsim.report.html import comparison_html
+    from swingsim.report.html import comparison_html  # matplotlib, only when a report is written
 
     out = Path(out)
     csv_path = out / CSV_NAME
@@ -352,71 +606,5 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
     rows = [{"index": v.index, "name": v.name, "values": effective_values(sweep, v), "summary": s}
             for v, s in zip(sweep.variants, summaries)]
     atomic_write_text(out / "report.html", comparison_html(sweep, rows, ranking, sens))
-    return {"summaries": summaries, "ranking": ranking, "ran": len(todo), "reused": len(done),
-            "sensitivity": sens}
-
-
-# ----------------------------------------------------------------------------
-# command line
-
-
-def add_arguments(p):
-    p.add_argument("sweep", help="sweep file (TOML): a base scene and the quantities to vary")
-    p.add_argument("--out", metavar="DIR", help="output folder (default: <sweep name>-comparison)")
-    p.add_argument("--resume", action="store_true",
-                   help="keep the finished rows of an interrupted run in DIR and run only the rest")
-    p.add_argument("--force", action="store_true",
-                   help="write into a non-empty output folder, replacing only this command's files")
-    g = p.add_mutually_exclusive_group()
-    g.add_argument("--workers", type=int, metavar="N",
-                   help="start a local Dask cluster with N worker processes (needs dask.distributed)")
-    g.add_argument("--cluster", metavar="ADDRESS",
-                   help="send the chunks to a running Dask scheduler, e.g. tcp://10.0.0.5:8786")
-    p.add_argument("--engine", choices=("batch", "single"), default="batch",
-                   help="batch: vectorised engine (default); single: one solve_ivp run per variant")
-    p.add_argument("--chunk", type=int, metavar="N", help="variants per chunk (default: sized for memory)")
-    p.add_argument("--no-sensitivity", action="store_true", help="skip the shaper sensitivity study")
-    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
-    p.add_argument("--allow-implausible", action="store_true",
-                   help=f"accept more than {PLAUSIBLE_VARIANTS:,} variants")
-
-
-def main(args) -> int:
-    if args.workers is not None and args.workers < 1:
-        raise InputError("--workers", "value", "expected a whole number >= 1", args.workers)
-    if args.chunk is not None and args.chunk < 1:
-        raise InputError("--chunk", "value", "expected a whole number >= 1", args.chunk)
-    if args.cluster is not None and not args.cluster.strip():
-        raise InputError("--cluster", "", "expected the scheduler's address, e.g. tcp://10.0.0.5:8786", args.cluster)
-    if args.resume and args.force:
-        raise InputError("--resume", "", "cannot be combined with --force (which starts again)")
-    sweep = load_sweep(args.sweep, allow_implausible=getattr(args, "allow_implausible", False))
-    out = Path(args.out) if args.out else Path(Path(args.sweep).stem + "-comparison")
-    quiet = getattr(args, "quiet", False)
-    bar = None
-    if not quiet and sys.stderr.isatty():
-        from tqdm import tqdm
-
-        bar = tqdm(total=len(sweep.variants), unit="variant", desc="compare", file=sys.stderr)
-    try:
-        res = compare(sweep, out, resume=args.resume, force=args.force, workers=args.workers,
-                      cluster=args.cluster, engine=args.engine, chunk_size=args.chunk,
-                      progress=bar.update if bar else None,
-                      sensitivity=False if args.no_sensitivity else None)
-    finally:
-        if bar:
-            bar.close()
-    if not quiet:
-        from swingsim.metrics import cautions
-
-        print(f"{len(sweep.variants)} variants ({res['ran']} run now"
-              + (f", {res['reused']} from the earlier run" if res["reused"] else "") + f") -> {out}/")
-        key = sweep.minimize
-        ranked = [r for r in res["ranking"] if r["rank"] is not None]
-        print(f"best by smallest {key}:" if ranked else f"no variant has a {key} within the limits")
-        for r in ranked[:5]:
-            vals = ", ".join(f"{k} = {cell(v)}" for k, v in sweep.variants[r["index"]].values.items())
-            label = f" '{r['name']}'" if r["name"] else ""
-            print(f"  {r['rank']}. variant {r['index']}{label}: {key} = {r['summary'][key]:.3g} ({vals})")
-        print(cautions.CAUTION_SHORT)
-    return 0
+    return Comparison(summaries=summaries, ranking=ranking, ran=len(todo), reused=len(done),
+                      sensitivity=sens)

@@ -30,10 +30,12 @@ import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import NamedTuple
 
-from swingsim.scene import schema as S
 from swingsim.errors import InputError, SceneError
-from swingsim.scene.read import Scene, load_scene, scene_from_dict, set_dotted
+from swingsim.scene import load_scene, scene_from_dict, schema
+from swingsim.scene.edit import set_dotted
+from swingsim.scene.model import Scene
 
 __all__ = ["Sweep", "Variant", "load_sweep", "sweep_from_dict", "OBJECTIVE_KEYS", "MAX_VARIANTS"]
 
@@ -73,12 +75,17 @@ class Variant:
 
 @dataclass(frozen=True)
 class Sweep:
-    """A validated sweep."""
+    """A validated sweep: the base scene, the compared keys, the variants, the objective.
+
+    ``keys`` are the dotted scene keys of the comparison's columns, in order;
+    ``minimize`` the summary number the ranking sorts by and ``limits`` the upper
+    bounds a variant must keep to be ranked.
+    """
 
     file: str
     title: str
     base: Scene
-    keys: tuple              # dotted keys in column order
+    keys: tuple
     variants: tuple
     minimize: str = "settled_at_s"
     limits: dict = field(default_factory=dict)
@@ -87,11 +94,24 @@ class Sweep:
 
     @property
     def scenes(self) -> list:
+        """The variants' scenes, in variant order."""
         return [v.scene for v in self.variants]
 
 
 def load_sweep(path, *, allow_implausible: bool = False) -> Sweep:
     """Read and validate a sweep file (see the module docstring).
+
+    Parameters
+    ----------
+    path : str or Path
+        The TOML sweep file; its ``base`` scene is relative to its folder.
+    allow_implausible : bool, optional
+        Accept more than :data:`PLAUSIBLE_VARIANTS` variants (``--allow-implausible``).
+
+    Returns
+    -------
+    Sweep
+        The sweep with every variant expanded and validated as a scene.
 
     Raises
     ------
@@ -131,20 +151,20 @@ def _check_path(file: str, where: str, dotted: str, base_raw: dict):
         return InputError(file, where, problem, dotted)
 
     head = parts[0]
-    if head in S.TOP:
+    if head in schema.TOP:
         if len(parts) != 1:
             raise bad(f"'{head}' is a top-level scene key; use \"{head}\"")
         return
-    if head in S.TABLES:
+    if head in schema.TABLES:
         if len(parts) != 2:
-            raise bad(f"expected \"{head}.<key>\" with one of: {', '.join(S.TABLES[head])}")
-        if parts[1] not in S.TABLES[head]:
-            near = difflib.get_close_matches(parts[1], list(S.TABLES[head]), n=1, cutoff=0.6)
+            raise bad(f"expected \"{head}.<key>\" with one of: {', '.join(schema.TABLES[head])}")
+        if parts[1] not in schema.TABLES[head]:
+            near = difflib.get_close_matches(parts[1], list(schema.TABLES[head]), n=1, cutoff=0.6)
             hint = f" (did you mean '{head}.{near[0]}'?)" if near else ""
-            raise bad(f"unknown scene key{hint}; [{head}] has: {', '.join(S.TABLES[head])}")
+            raise bad(f"unknown scene key{hint}; [{head}] has: {', '.join(schema.TABLES[head])}")
         return
-    if head in S.ARRAYS:
-        keys = S.ARRAYS[head]
+    if head in schema.ARRAYS:
+        keys = schema.ARRAYS[head]
         n = len(base_raw.get(head, []) or [])
         if len(parts) != 3 or not parts[1].isdigit():
             raise bad(f"expected \"{head}.<index>.<key>\", e.g. \"{head}.0.{next(iter(keys))}\"")
@@ -156,7 +176,8 @@ def _check_path(file: str, where: str, dotted: str, base_raw: dict):
             hint = f" (did you mean '{head}.{i}.{near[0]}'?)" if near else ""
             raise bad(f"unknown key of [[{head}]]{hint}")
         return
-    near = difflib.get_close_matches(head, list(S.TOP) + list(S.TABLES) + list(S.ARRAYS), n=1, cutoff=0.6)
+    near = difflib.get_close_matches(head, list(schema.TOP) + list(schema.TABLES) + list(schema.ARRAYS),
+                                     n=1, cutoff=0.6)
     hint = f" (did you mean '{near[0]}'?)" if near else ""
     raise bad(f"not a scene key{hint}")
 
@@ -185,13 +206,45 @@ def _values(file: str, where: str, v) -> list:
                      "count = .. }", v)
 
 
+class _Case(NamedTuple):
+    """A variant before it is validated: its name, the dotted keys it sets, where it was given."""
+
+    name: str
+    values: dict
+    where: str
+
+
 def _describe(values: dict) -> str:
     return ", ".join(f"{k} = {v!r}" for k, v in values.items())
 
 
 def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str = ".",
                     allow_implausible: bool = False) -> Sweep:
-    """Validate a parsed sweep document and expand its variants (validated scenes)."""
+    """Validate a parsed sweep document and expand its variants (validated scenes).
+
+    Parameters
+    ----------
+    data : dict
+        The sweep document, as ``tomllib`` returns it.
+    file : str, optional
+        The sweep file's name as the user gave it, named in errors.
+    base_dir : Path or str, optional
+        Folder the ``base`` scene is relative to.
+    allow_implausible : bool, optional
+        Accept more than :data:`PLAUSIBLE_VARIANTS` variants.
+
+    Returns
+    -------
+    Sweep
+        The variants in order: the cartesian product of ``[vary]`` (the first key
+        varying slowest), then the ``[[variants]]``.
+
+    Raises
+    ------
+    InputError
+        One line naming the sweep file, the sweep key and, for a variant that is
+        not a valid scene, the variant and the scene's own error.
+    """
     base_dir = Path(base_dir)
     for k in data:
         if k not in _TOP:
@@ -265,7 +318,7 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
 
     cases = []
     for combo in itertools.product(*lists.values()) if lists else ():
-        cases.append(("", dict(zip(lists, combo)), 'vary'))
+        cases.append(_Case("", dict(zip(lists, combo)), "vary"))
     names = set()
     for i, x in enumerate(named):
         where = f"variants[{i}]"
@@ -279,41 +332,24 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
         vals = _flatten({k: v for k, v in x.items() if k != "name"}, leaf_range=False)
         for k in vals:
             _check_path(file, f'{where}."{k}"', k, base.raw)
-        cases.append((name, vals, where))
+        cases.append(_Case(name, vals, where))
 
     keys = list(lists)
-    for _, vals, _ in cases:
-        for k in vals:
+    for case in cases:
+        for k in case.values:
             if k not in keys:
                 keys.append(k)
     variants = []
-    for idx, (name, vals, where) in enumerate(cases):
+    for idx, case in enumerate(cases):
         d = base.raw
-        for k, val in vals.items():
+        for k, val in case.values.items():
             d = set_dotted(d, k, copy.deepcopy(val))
         try:
             sc = scene_from_dict(d, file=base.file, base_dir=base.base_dir)
         except SceneError as exc:
-            label = f"variant {idx}" + (f" '{name}'" if name else "")
-            raise InputError(file, where, f"{label} ({_describe(vals)}) is not a valid scene: "
+            label = f"variant {idx}" + (f" '{case.name}'" if case.name else "")
+            raise InputError(file, case.where, f"{label} ({_describe(case.values)}) is not a valid scene: "
                              f"{exc.one_line()}") from None
-        variants.append(Variant(idx, name, vals, sc))
+        variants.append(Variant(idx, case.name, case.values, sc))
     return Sweep(file=file, title=title, base=base, keys=tuple(keys), variants=tuple(variants),
                  minimize=minimize, limits=limits, sensitivity=sens, notes=notes)
-
-
-def get_dotted(data: dict, dotted: str, default=None):
-    """Value at a dotted key of a scene dict (``moves.0.accel_m_s2``), or ``default``."""
-    cur = data
-    for part in dotted.split("."):
-        if isinstance(cur, list):
-            if not part.isdigit() or int(part) >= len(cur):
-                return default
-            cur = cur[int(part)]
-        elif isinstance(cur, dict):
-            if part not in cur:
-                return default
-            cur = cur[part]
-        else:
-            return default
-    return cur

@@ -1,0 +1,100 @@
+"""``swingsim compare SWEEP --out DIR``: the arguments, and what is printed.
+
+The comparison itself (running the variants, the files it writes) is
+:mod:`swingsim.study.compare`.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from swingsim.errors import InputError
+from swingsim.metrics import cautions
+from swingsim.study.compare import cell, compare
+from swingsim.study.variants import PLAUSIBLE_VARIANTS, load_sweep
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    """Options of ``swingsim compare``.
+
+    Parameters
+    ----------
+    p : argparse.ArgumentParser
+        The subcommand's parser, filled in place.
+    """
+    p.add_argument("sweep", help="sweep file (TOML): a base scene and the quantities to vary")
+    p.add_argument("--out", metavar="DIR", help="output folder (default: <sweep name>-comparison)")
+    p.add_argument("--resume", action="store_true",
+                   help="keep the finished rows of an interrupted run in DIR and run only the rest")
+    p.add_argument("--force", action="store_true",
+                   help="write into a non-empty output folder, replacing only this command's files")
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--workers", type=int, metavar="N",
+                   help="start a local Dask cluster with N worker processes (needs dask.distributed)")
+    g.add_argument("--cluster", metavar="ADDRESS",
+                   help="send the chunks to a running Dask scheduler, e.g. tcp://10.0.0.5:8786")
+    p.add_argument("--engine", choices=("batch", "single"), default="batch",
+                   help="batch: vectorised engine (default); single: one solve_ivp run per variant")
+    p.add_argument("--chunk", type=int, metavar="N", help="variants per chunk (default: sized for memory)")
+    p.add_argument("--no-sensitivity", action="store_true", help="skip the shaper sensitivity study")
+    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    p.add_argument("--allow-implausible", action="store_true",
+                   help=f"accept more than {PLAUSIBLE_VARIANTS:,} variants")
+
+
+def main(args: argparse.Namespace) -> int:
+    """Run ``swingsim compare``: check the options, run the sweep, print the best variants.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed options of :func:`add_arguments`.
+
+    Returns
+    -------
+    int
+        The exit code: 0 done (bad input raises instead).
+
+    Raises
+    ------
+    InputError
+        For a bad option, sweep file or output folder (exit code 2, see
+        :func:`swingsim.cli.main.main`).
+    """
+    if args.workers is not None and args.workers < 1:
+        raise InputError("--workers", "value", "expected a whole number >= 1", args.workers)
+    if args.chunk is not None and args.chunk < 1:
+        raise InputError("--chunk", "value", "expected a whole number >= 1", args.chunk)
+    if args.cluster is not None and not args.cluster.strip():
+        raise InputError("--cluster", "", "expected the scheduler's address, e.g. tcp://10.0.0.5:8786", args.cluster)
+    if args.resume and args.force:
+        raise InputError("--resume", "", "cannot be combined with --force (which starts again)")
+    sweep = load_sweep(args.sweep, allow_implausible=getattr(args, "allow_implausible", False))
+    out = Path(args.out) if args.out else Path(Path(args.sweep).stem + "-comparison")
+    quiet = getattr(args, "quiet", False)
+    bar = None
+    if not quiet and sys.stderr.isatty():
+        from tqdm import tqdm
+
+        bar = tqdm(total=len(sweep.variants), unit="variant", desc="compare", file=sys.stderr)
+    try:
+        result = compare(sweep, out, resume=args.resume, force=args.force, workers=args.workers,
+                         cluster=args.cluster, engine=args.engine, chunk_size=args.chunk,
+                         progress=bar.update if bar else None,
+                         sensitivity=False if args.no_sensitivity else None)
+    finally:
+        if bar:
+            bar.close()
+    if not quiet:
+        print(f"{len(sweep.variants)} variants ({result.ran} run now"
+              + (f", {result.reused} from the earlier run" if result.reused else "") + f") -> {out}/")
+        key = sweep.minimize
+        ranked = [r for r in result.ranking if r["rank"] is not None]
+        print(f"best by smallest {key}:" if ranked else f"no variant has a {key} within the limits")
+        for r in ranked[:5]:
+            vals = ", ".join(f"{k} = {cell(v)}" for k, v in sweep.variants[r["index"]].values.items())
+            label = f" '{r['name']}'" if r["name"] else ""
+            print(f"  {r['rank']}. variant {r['index']}{label}: {key} = {r['summary'][key]:.3g} ({vals})")
+        print(cautions.CAUTION_SHORT)
+    return 0

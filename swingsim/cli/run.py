@@ -1,0 +1,207 @@
+"""``swingsim run``, ``swingsim demo`` and ``swingsim check``: their arguments, and what they print.
+
+``run`` and ``demo`` simulate a scene and write the run's outputs
+(:func:`swingsim.report.outputs.write_run_outputs`, and the video with
+``--video``); ``check`` validates a scene and lists its plausibility notes.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from swingsim.cli.render import add_arguments as add_render_arguments
+from swingsim.cli.render import options as render_options
+from swingsim.io.files import check_out_dir, clean_partials
+from swingsim.metrics.single import summarize
+from swingsim.scene import load_scene
+from swingsim.scene.plausibility import check_frames, check_plausible
+from swingsim.simulation import simulate
+
+#: The bundled demo scene.
+DEMO_SCENE = Path(__file__).parent.parent / "data" / "demo.toml"
+
+
+def _add_output_arguments(p, scene=True):
+    """Options shared by ``run`` and ``demo``."""
+    if scene:
+        p.add_argument("scene", help="scene file (TOML)")
+    p.add_argument("--out", metavar="DIR", help="output folder (default: <scene name>-results)")
+    p.add_argument("--force", action="store_true",
+                   help="write into a non-empty output folder, replacing only this run's files")
+    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    p.add_argument("--allow-implausible", action="store_true",
+                   help="accept values beyond the plausibility limits (e.g. very long runs)")
+
+
+def add_run_arguments(p: argparse.ArgumentParser) -> None:
+    """Options of ``swingsim run``: the scene, the outputs, and the video options of ``--video``.
+
+    Parameters
+    ----------
+    p : argparse.ArgumentParser
+        The subcommand's parser, filled in place.
+    """
+    _add_output_arguments(p)
+    p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
+    add_render_arguments(p, scene=False)  # the render options (no pyvista import)
+
+
+def add_demo_arguments(p: argparse.ArgumentParser) -> None:
+    """Options of ``swingsim demo``.
+
+    Parameters
+    ----------
+    p : argparse.ArgumentParser
+        The subcommand's parser, filled in place.
+    """
+    _add_output_arguments(p, scene=False)
+    p.add_argument("--no-video", action="store_true", help="skip the demo video and stills")
+
+
+def add_check_arguments(p: argparse.ArgumentParser) -> None:
+    """Options of ``swingsim check``.
+
+    Parameters
+    ----------
+    p : argparse.ArgumentParser
+        The subcommand's parser, filled in place.
+    """
+    p.add_argument("scene", help="scene file (TOML)")
+
+
+def _print(args, text):
+    if not getattr(args, "quiet", False):
+        print(text)
+
+
+def _headline(summary) -> str:
+    """The few lines ``run`` prints: peaks, swing at the end of the moves, tension, cautions."""
+    d = summary.data
+    st = d["settle_time_s"]
+    lines = [
+        f"{d['title']}",
+        f"  peak rope angle {d['peak_rope_angle_deg']:.2f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
+        f"peak excursion {d['peak_excursion_m']:.2f} m",
+        f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.2f} deg; "
+        + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
+        f"  peak rope tension {d['peak_rope_tension_kN']:.1f} kN (dynamic factor {d['dynamic_factor']:.3f})",
+    ]
+    for c in d["cautions"]:
+        lines.append("  ! " + c)
+    return "\n".join(lines)
+
+
+def check(args: argparse.Namespace) -> int:
+    """Run ``swingsim check``: validate the scene, print ``ok`` and its plausibility notes.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed options (``scene``).
+
+    Returns
+    -------
+    int
+        The exit code: 0 (a bad scene raises :class:`~swingsim.errors.SceneError` instead).
+    """
+    scene = load_scene(args.scene)
+    notes = check_plausible(scene, allow=True)
+    print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
+    for n in notes:
+        print(f"  note: {n}")
+    return 0
+
+
+def _do_run(args, scene_path, default_out) -> int:
+    """Simulate a scene and write its outputs (and video); shared by ``run`` and ``demo``."""
+    from swingsim.report.outputs import write_run_outputs  # matplotlib, only when a run writes plots
+
+    scene = load_scene(scene_path)
+    check_plausible(scene, allow=args.allow_implausible)
+    out = check_out_dir(args.out or default_out, args.force)
+    want_video = getattr(args, "video", False)
+    if want_video:
+        _require_renderer()
+        from swingsim.render.api import check_options  # bad video options: one line, before anything is written
+
+        o = dict(size=(1280, 720), fps=30.0, fmt="mp4", view="oblique", speed=1.0, window=None, split=None)
+        o.update({k: v for k, v in _video_options(args, scene).items() if k in o})
+        check_options(scene, **o)
+        check_frames(scene, o["fps"], o["speed"], o["window"], allow=args.allow_implausible)
+    traj = simulate(scene)
+    summary = summarize(traj)
+    clean_partials(out)
+    written = write_run_outputs(traj, summary, out, plots=not args.no_plots)
+    if want_video and traj.valid:
+        from swingsim.render import render_scene
+
+        written += render_scene(traj, summary, out, **_video_options(args, scene))
+    _print(args, _headline(summary))
+    _print(args, f"wrote {len(written)} files to {out}")
+    if not traj.valid:
+        sys.stderr.write(f"swingsim: run invalid: {traj.message}\n")
+        return 1
+    return 0
+
+
+def _video_options(args, scene=None) -> dict:
+    """Keyword arguments of ``render_scene`` for ``run --video`` and ``demo``."""
+    opts = {"quiet": getattr(args, "quiet", False)}
+    if getattr(args, "command", "") == "demo":
+        # short and modest, so the first command stays quick: the moves and the start of settling
+        opts.update(size=(854, 480), fps=24, window=(0.0, 24.0))
+    elif scene is not None:
+        opts.update(render_options(args, scene))
+    return opts
+
+
+def _require_renderer():
+    """No OpenGL: one line naming the packages to install, before any file is written."""
+    from swingsim.render.gl import require_opengl
+
+    require_opengl()
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``swingsim run``: simulate the scene, write the outputs, print the headline.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed options of :func:`add_run_arguments`.
+
+    Returns
+    -------
+    int
+        The exit code: 0 done, 1 the run stopped early (its outputs say why).
+    """
+    stem = Path(args.scene).stem
+    return _do_run(args, args.scene, f"{stem}-results")
+
+
+def demo(args: argparse.Namespace) -> int:
+    """Run ``swingsim demo``: the bundled demo scene, with a short video when OpenGL is there.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed options of :func:`add_demo_arguments`.
+
+    Returns
+    -------
+    int
+        The exit code, as :func:`run`.
+    """
+    args.video = False
+    if not args.no_video:
+        from swingsim.render.gl import RenderUnavailableError
+
+        try:
+            _require_renderer()
+            args.video = True
+        except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
+            sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
+    return _do_run(args, DEMO_SCENE, "swingsim-demo")

@@ -1,0 +1,256 @@
+"""The lift scene as frozen dataclasses: what a validated scene file holds.
+
+No I/O and no validation here: :mod:`swingsim.scene.read` reads the keys,
+:mod:`swingsim.scene.validate` checks them against each other and builds these
+objects.  SI units; angles in degrees as in the scene file; every key's meaning
+is in :mod:`swingsim.scene.schema` (and ``docs/scene-reference.md``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import NamedTuple
+
+__all__ = ["Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
+           "MoveTable", "Move", "Zone", "Scene", "models_rigid_load"]
+
+
+@dataclass(frozen=True)
+class Crane:
+    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit."""
+
+    suspension_m: tuple
+    kind: str
+    wind_limit_m_s: float
+
+
+@dataclass(frozen=True)
+class Rope:
+    """The hoist rope (``[rope]``); inextensible unless a stiffness or modulus is given."""
+
+    length_m: float
+    diameter_m: float | None
+    drag_coefficient: float
+    wll_kN: float | None
+    stiffness_kN_per_m: float | None = None
+    modulus_GPa: float | None = None
+    fill_factor: float = 0.58
+    falls: int = 1
+    lead_length_m: float = 0.0
+    bounce_damping_ratio: float = 0.0
+    stiffness_source: str = ""
+
+    @property
+    def elastic(self) -> bool:
+        """Whether the rope stretches (``stiffness_kN_per_m`` or ``modulus_GPa`` is given)."""
+        return self.stiffness_kN_per_m is not None or self.modulus_GPa is not None
+
+
+@dataclass(frozen=True)
+class Load:
+    """The suspended load (``[load]``); a point mass unless it has a size or inertia.
+
+    ``mesh_file`` is as written in the scene, relative to :attr:`Scene.base_dir`.
+    """
+
+    mass_kg: float
+    size_m: tuple | None
+    wind_area_m2: float | None
+    drag_coefficient: float
+    shape: str = "box"
+    mesh_file: str | None = None
+    inertia_kg_m2: tuple | None = None
+    cg_offset_m: tuple = (0.0, 0.0, 0.0)
+
+    @property
+    def rigid(self) -> bool:
+        """Whether the load has the data of a rigid body (size or inertia).
+
+        Whether it is *modelled* as one is :attr:`Scene.rigid_load`.
+        """
+        return self.size_m is not None or self.inertia_kg_m2 is not None
+
+
+@dataclass(frozen=True)
+class View:
+    """The scene's custom camera (``[view]``), for drawing only."""
+
+    position_m: tuple
+    focus_m: tuple
+    up: tuple
+    view_angle_deg: float
+
+
+@dataclass(frozen=True)
+class Start:
+    """The state at t = 0 (``[start]``): rope angles, their rates, the rope's preload."""
+
+    swing_deg: tuple
+    swing_rate_deg_s: tuple
+    rope_preload: str = "static"
+    rope_slack_m: float = 0.0
+
+
+@dataclass(frozen=True)
+class Hook:
+    """The hook block as a body of its own on the hoist rope."""
+
+    mass_kg: float
+    size_m: tuple | None
+    drag_coefficient: float
+
+
+@dataclass(frozen=True)
+class Rigging:
+    """Slings between the hook and the load (load axes, from the load's centre of gravity).
+
+    ``leg_length_m`` and ``wll_kN`` have one entry per leg (drop legs for a
+    spreader); ``attach_m`` one point per leg.
+    """
+
+    kind: str
+    leg_length_m: tuple
+    attach_m: tuple
+    wll_kN: tuple | None
+    top_leg_length_m: float | None = None
+    top_wll_kN: float | None = None
+
+    @property
+    def legs(self) -> int:
+        """Number of legs (one per attachment point)."""
+        return len(self.attach_m)
+
+
+@dataclass(frozen=True)
+class Wind:
+    """Steady wind (``[wind]``)."""
+
+    speed_m_s: float
+    direction_deg: float
+    air_density_kg_m3: float
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Thresholds of the cautions and of settling (``[limits]``)."""
+
+    swing_caution_deg: float
+    settle_deg: float
+    clearance_m: float | None
+
+
+class MoveTable(NamedTuple):
+    """A recorded move (profile ``table``): times from the move's start and displacements."""
+
+    #: Times from the move's start [s], strictly increasing from 0.
+    times_s: tuple
+    #: Displacement from the move's start at each time [m], or [deg] for slew.
+    positions: tuple
+
+
+@dataclass(frozen=True)
+class Move:
+    """One move of one axis, in the scene's own units ([m], or [deg] for slew).
+
+    ``distance``, ``speed``, ``accel``, ``decel`` and ``jerk`` come from the
+    axis's own keys (``distance_m`` or ``angle_deg`` and so on); ``table`` is set
+    for profile ``table`` only; ``profile_keys`` holds the keys only this move's
+    profile takes (``ProfileSpec.keys``, e.g. ``shaper_period_s``).
+    """
+
+    index: int
+    axis: str
+    profile: str
+    start_s: float
+    label: str
+    distance: float | None = None
+    speed: float | None = None
+    accel: float | None = None
+    decel: float | None = None
+    jerk: float | None = None
+    table: MoveTable | None = None
+    profile_keys: dict = field(default_factory=dict)
+
+    @property
+    def name(self) -> str:
+        """The move's label, or ``move <index> (<axis>)`` when it has none."""
+        return self.label or f"move {self.index} ({self.axis})"
+
+
+@dataclass(frozen=True)
+class Zone:
+    """An obstacle or exclusion zone (``[[zones]]``): a box and the margin around it."""
+
+    name: str
+    kind: str
+    min_m: tuple
+    max_m: tuple
+    margin_m: float
+
+
+@dataclass(frozen=True, eq=False)
+class Scene:
+    """A validated lift scene (SI units; angles in degrees as in the file).
+
+    ``raw`` is the scene document as read (a deep copy), ``file`` the file name as
+    the user gave it and ``base_dir`` the folder that relative paths in it
+    (tables, meshes) are relative to.
+    """
+
+    title: str
+    duration_s: float
+    gravity_m_s2: float
+    crane: Crane
+    rope: Rope
+    load: Load
+    start: Start
+    moves: tuple
+    damping_ratio: float
+    wind: Wind
+    sample_hz: float
+    limits: Limits
+    zones: tuple
+    notes: str = ""
+    view: View | None = None
+    file: str = "<scene>"
+    base_dir: Path = field(default_factory=Path)
+    raw: dict = field(default_factory=dict)
+    hook: Hook | None = None
+    rigging: Rigging | None = None
+
+    @property
+    def rigid_load(self) -> bool:
+        """The load is modelled as a rigid body: ``load.inertia_kg_m2`` is given, or
+        ``load.size_m`` together with a ``[hook]`` or ``[rigging]`` table.
+
+        A ``size_m`` alone (no hook block, no rigging) keeps the core's meaning:
+        the size of a point-mass load for drawing and clearance.
+        """
+        return models_rigid_load(self.load, self.hook is not None, self.rigging is not None)
+
+    @property
+    def name(self) -> str:
+        """The scene file's name without its suffix (``scene`` when built in code)."""
+        return Path(self.file).stem if self.file != "<scene>" else "scene"
+
+
+def models_rigid_load(load: Load, has_hook: bool, has_rigging: bool) -> bool:
+    """Whether a load is modelled as a rigid body rather than a point mass.
+
+    Parameters
+    ----------
+    load : Load
+        The scene's load.
+    has_hook : bool
+        Whether the scene has a ``[hook]`` table (a hook block of its own).
+    has_rigging : bool
+        Whether the scene has a ``[rigging]`` table.
+
+    Returns
+    -------
+    bool
+        True when ``load.inertia_kg_m2`` is given, or ``load.size_m`` together
+        with a hook block or rigging.
+    """
+    return load.inertia_kg_m2 is not None or (load.size_m is not None and (has_hook or has_rigging))

@@ -1,0 +1,360 @@
+"""Checks between the keys of a scene, and the assembly of the validated :class:`Scene`.
+
+:mod:`swingsim.scene.read` checks each key on its own (type, bounds, choices);
+here the keys are checked against each other: the camera of ``[view]``, the load
+mesh, the hook block and rigging against the rope and the load (per-leg lists,
+rigid-load data, an elastic rope that carries its load), each move against its
+motion profile (:data:`swingsim.motion.registry.PROFILES`), and finally the
+motion itself is built, as a run builds it, so that a move that cannot be made
+is bad input.
+"""
+
+from __future__ import annotations
+
+import copy
+from pathlib import Path
+
+import numpy as np
+
+from swingsim.dynamics.registry import select_model
+from swingsim.dynamics.rigging import RiggingError, rigging_geometry
+from swingsim.dynamics.rope import elastic_rope
+from swingsim.errors import SceneError
+from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
+from swingsim.scene import schema
+from swingsim.scene.model import (Crane, Hook, Limits, Load, Move, Rigging, Rope, Scene, Start, View, Wind,
+                                  Zone, models_rigid_load)
+from swingsim.scene.read import KeyReader, line_of_key, read_document, read_table, suggest
+
+__all__ = ["load_scene", "scene_from_dict", "MESH_SUFFIXES"]
+
+
+def load_scene(path, *, validate_motion: bool = True) -> Scene:
+    """Read and validate a scene file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The TOML scene file.
+    validate_motion : bool, optional
+        Also build every move's motion (see :func:`scene_from_dict`).
+
+    Returns
+    -------
+    Scene
+        The frozen, validated scene; relative paths in it are relative to the
+        file's folder.
+
+    Raises
+    ------
+    SceneError
+        With a one-line message naming file, key, value and what is allowed,
+        and the key's line in the file where it can be found.
+    """
+    document = read_document(path)
+    try:
+        return scene_from_dict(document.data, file=document.file, base_dir=Path(path).parent,
+                               validate_motion=validate_motion)
+    except SceneError as exc:
+        if exc.line is None and exc.file == document.file:
+            exc.line = line_of_key(document.text, exc.key)
+            exc.args = (exc.one_line(),)
+        raise
+
+
+#: Keys of a move's quantities on a linear axis (x, y, radius, hoist) and on slew.
+_LINEAR = {"distance": "distance_m", "speed": "speed_m_s", "accel": "accel_m_s2",
+           "decel": "decel_m_s2", "jerk": "jerk_m_s3"}
+_ANGULAR = {"distance": "angle_deg", "speed": "speed_deg_s", "accel": "accel_deg_s2",
+            "decel": "decel_deg_s2", "jerk": "jerk_deg_s3"}
+
+
+def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str = ".",
+                    validate_motion: bool = True) -> Scene:
+    """Validate a parsed scene document (a dict as ``tomllib`` returns it) into a :class:`Scene`.
+
+    Parameters
+    ----------
+    data : dict
+        The scene document, e.g. from ``tomllib.loads`` or built in code.
+    file : str, optional
+        The scene file's name as the user gave it, named in errors.
+    base_dir : Path or str, optional
+        Folder that relative paths in the scene (tables, meshes) are relative to.
+    validate_motion : bool, optional
+        Also build every move's motion, as a run will, so that a move that cannot
+        be built is refused here.  Off only where the caller builds the motion
+        itself right after.
+
+    Returns
+    -------
+    Scene
+        The frozen, validated scene (``raw`` holds a deep copy of ``data``).
+
+    Raises
+    ------
+    SceneError
+        One line naming the file, the key path, the value and what is allowed.
+    """
+    base_dir = Path(base_dir)
+    r = KeyReader(file, base_dir)
+    if not isinstance(data, dict):
+        raise r.err("", "a scene must be a TOML document of tables")
+    known = set(schema.TOP) | set(schema.TABLES) | set(schema.ARRAYS)
+    for name in data:
+        if name not in known:
+            raise r.err(name, suggest(name, sorted(known)))
+    top = {}
+    for name, key in schema.TOP.items():
+        top[name] = r.value(data, name, key, name)
+    for name in schema.TABLES:
+        if name in data and not isinstance(data[name], dict):
+            raise r.err(name, f"expected a table [{name}]", data[name])
+    crane = r.table(data, "crane", schema.TABLES["crane"], required=True)
+    rope = r.table(data, "rope", schema.TABLES["rope"], required=True)
+    load = r.table(data, "load", schema.TABLES["load"], required=True)
+    start = r.table(data, "start", schema.TABLES["start"])
+    damping = r.table(data, "damping", schema.TABLES["damping"])
+    wind = r.table(data, "wind", schema.TABLES["wind"])
+    output = r.table(data, "output", schema.TABLES["output"])
+    limits = r.table(data, "limits", schema.TABLES["limits"])
+    view = _read_view(r, data)
+    _check_mesh_file(r, load)
+
+    moves = []
+    raw_moves = data.get("moves", [])
+    if not isinstance(raw_moves, list) or any(not isinstance(m, dict) for m in raw_moves):
+        raise r.err("moves", "expected an array of tables [[moves]]", raw_moves)
+    for i, m in enumerate(raw_moves):
+        moves.append(_read_move(r, m, i, top["duration_s"]))
+
+    zones = []
+    raw_zones = data.get("zones", [])
+    if not isinstance(raw_zones, list) or any(not isinstance(z, dict) for z in raw_zones):
+        raise r.err("zones", "expected an array of tables [[zones]]", raw_zones)
+    for i, z in enumerate(raw_zones):
+        r.check_unknown(z, schema.ZONE, f"zones[{i}].")
+        v = {k: r.value(z, k, key, f"zones[{i}].{k}") for k, key in schema.ZONE.items()}
+        if any(a >= b for a, b in zip(v["min_m"], v["max_m"])):
+            raise r.err(f"zones[{i}].max_m", "must exceed min_m in every coordinate", list(v["max_m"]))
+        zones.append(Zone(**v))
+
+    hook_t = r.table(data, "hook", schema.TABLES["hook"]) if "hook" in data else None
+    rig_t = r.table(data, "rigging", schema.TABLES["rigging"]) if "rigging" in data else None
+    rope_o, load_o, start_o = Rope(**rope), Load(**load), Start(**start)
+    hook_o, rig_o = _read_hook_rigging(r, hook_t, rig_t, rope_o, load_o, start_o, top["gravity_m_s2"])
+
+    scene = Scene(
+        title=top["title"], duration_s=top["duration_s"], gravity_m_s2=top["gravity_m_s2"],
+        notes=top["notes"],
+        crane=Crane(**crane), rope=rope_o, load=load_o,
+        start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
+        wind=Wind(**wind), sample_hz=output["sample_hz"], limits=Limits(**limits),
+        zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
+        hook=hook_o, rigging=rig_o,
+    )
+    if validate_motion:
+        # a move that cannot be built is bad input; a profile tuned to the swing period is
+        # built with the period of the model the scene selects, as the run will
+        period = float(select_model(scene).mode_periods_s()[0]) if needs_swing_period(scene) else None
+        build_motion(scene, swing_period_s=period)
+    return scene
+
+
+#: File types a load mesh may have (read with pyvista).
+MESH_SUFFIXES = (".stl", ".obj", ".ply")
+
+
+def _read_view(r: KeyReader, data: dict):
+    """The optional ``[view]`` table; its position and focus are required when it is there."""
+    if "view" not in data:
+        return None
+    v = r.table(data, "view", schema.TABLES["view"])
+    pos, foc, up = (np.asarray(v[k]) for k in ("position_m", "focus_m", "up"))
+    if np.linalg.norm(pos - foc) < 1e-6:
+        raise r.err("view.focus_m", "must differ from view.position_m", list(v["focus_m"]))
+    if np.linalg.norm(up) < 1e-9:
+        raise r.err("view.up", "must not be the zero vector", list(v["up"]))
+    d = (foc - pos) / np.linalg.norm(foc - pos)
+    if np.linalg.norm(np.cross(d, up / np.linalg.norm(up))) < 1e-3:
+        raise r.err("view.up", "must not point along the line of sight (position_m to focus_m)", list(v["up"]))
+    return View(**v)
+
+
+def _check_mesh_file(r: KeyReader, load: dict) -> None:
+    name = load.get("mesh_file")
+    if name is None:
+        return
+    if Path(name).suffix.lower() not in MESH_SUFFIXES:
+        raise r.err("load.mesh_file", "expected an STL, OBJ or PLY file (.stl, .obj, .ply)", name)
+    p = Path(name)
+    full = p if p.is_absolute() else r.base_dir / p
+    if not full.is_file():
+        raise r.err("load.mesh_file", "file not found (relative to the scene file's folder)", name)
+
+
+
+# ----------------------------------------------------------------------------
+# hook block, rigging, rigid load, elastic rope (hook-and-load models)
+
+
+def _per_leg(r, values, n, key):
+    if values is None:
+        return None
+    if isinstance(values, float):
+        return (values,) * n
+    if len(values) == 1:
+        return tuple(values) * n
+    if len(values) != n:
+        raise r.err(key, f"expected one value or one per leg ({n} legs)", list(values))
+    return tuple(values)
+
+
+def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
+    """Cross-checks of the hook-and-load keys; returns (Hook or None, Rigging or None)."""
+    if rope.stiffness_kN_per_m is not None and rope.modulus_GPa is not None:
+        raise r.err("rope.modulus_GPa", "give either rope.stiffness_kN_per_m or rope.modulus_GPa, "
+                    "not both", rope.modulus_GPa)
+    if rope.modulus_GPa is not None and rope.diameter_m is None:
+        raise r.err("rope.modulus_GPa", "needs rope.diameter_m to derive the rope stiffness",
+                    rope.modulus_GPa)
+    if start.rope_preload != "static" and not rope.elastic:
+        raise r.err("start.rope_preload", "only for an elastic rope (set rope.stiffness_kN_per_m "
+                    "or rope.modulus_GPa)", start.rope_preload)
+    if start.rope_slack_m and start.rope_preload != "lift-off":
+        raise r.err("start.rope_slack_m", "only with start.rope_preload = 'lift-off'", start.rope_slack_m)
+    if start.rope_preload == "lift-off":
+        for k in ("swing_deg", "swing_rate_deg_s"):
+            if any(getattr(start, k)):
+                raise r.err(f"start.{k}", "must be zero with rope_preload = 'lift-off' (the load rests "
+                            "supported until it lifts off)", list(getattr(start, k)))
+    if load.shape == "cylinder" and load.size_m is None and load.inertia_kg_m2 is None \
+            and (hook_t is not None or rig_t is not None):
+        raise r.err("load.shape", "a cylinder needs load.size_m (or give load.inertia_kg_m2)", "cylinder")
+    if load.inertia_kg_m2 is not None:
+        i1, i2, i3 = load.inertia_kg_m2
+        if i1 + i2 < i3 * (1 - 1e-9) or i2 + i3 < i1 * (1 - 1e-9) or i1 + i3 < i2 * (1 - 1e-9):
+            raise r.err("load.inertia_kg_m2", "not a real body: each moment must not exceed the sum "
+                        "of the other two (triangle inequality of principal moments)",
+                        list(load.inertia_kg_m2))
+    if load.cg_offset_m != (0.0, 0.0, 0.0) and load.size_m is None:
+        raise r.err("load.cg_offset_m", "needs load.size_m (it is measured from the box centre)",
+                    list(load.cg_offset_m))
+    hook = Hook(**hook_t) if hook_t is not None else None
+    if rope.elastic:
+        m = load.mass_kg + (hook.mass_kg if hook else 0.0)
+        try:
+            elastic_rope(rope, m * g, m)
+        except ValueError:
+            key = "rope.stiffness_kN_per_m" if rope.stiffness_kN_per_m is not None else "rope.modulus_GPa"
+            raise r.err(key, f"the rope would stretch more than its length ({rope.length_m:g} m) "
+                        f"under the {m:g} kg it carries; check the value and its unit",
+                        rope.stiffness_kN_per_m or rope.modulus_GPa) from None
+    rigid = models_rigid_load(load, hook_t is not None, rig_t is not None)
+    if rig_t is None:
+        if hook is not None:
+            raise r.err("[rigging]", "missing; a hook block needs the rigging below it "
+                        "(at least rigging.leg_length_m)")
+        if not rigid:
+            return None, None
+        if load.size_m is None:
+            raise r.err("[rigging]", "missing; a load given by inertia_kg_m2 without size_m needs "
+                        "rigging.attach_m (where the rope is attached)")
+        rig_t = {"kind": "single", "leg_length_m": 0.0, "attach_m": None, "wll_kN": None,
+                 "top_leg_length_m": None, "top_wll_kN": None}
+    kind = rig_t["kind"]
+    attach = rig_t["attach_m"]
+    if attach is not None and len(attach) == 3 and all(isinstance(x, float) for x in attach):
+        attach = (attach,)  # pragma: no cover  (vec3s always gives points)
+    if kind == "single":
+        if attach is None:
+            if not rigid:
+                attach = ((0.0, 0.0, 0.0),)
+            elif load.size_m is None:
+                raise r.err("rigging.attach_m", "missing; with no load.size_m the top centre of the "
+                            "load is unknown")
+            else:
+                ox, oy, oz = load.cg_offset_m
+                attach = ((-ox, -oy, -oz + 0.5 * load.size_m[2]),)
+        elif len(attach) != 1:
+            raise r.err("rigging.attach_m", "kind 'single' has one attachment point", [list(a) for a in attach])
+        elif not rigid and any(attach[0]):
+            raise r.err("rigging.attach_m", "a point-mass load has no attachment offset; give "
+                        "load.size_m or load.inertia_kg_m2 for a rigid load", [list(a) for a in attach])
+    else:
+        if not rigid:
+            raise r.err("rigging.kind", f"a {kind} needs a rigid load (load.size_m or "
+                        "load.inertia_kg_m2)", kind)
+        if attach is None:
+            raise r.err("rigging.attach_m", f"missing; kind '{kind}' needs one attachment point per leg")
+        if len(attach) < 2:
+            raise r.err("rigging.attach_m", f"kind '{kind}' needs at least two attachment points",
+                        [list(a) for a in attach])
+    n = len(attach)
+    legs = _per_leg(r, rig_t["leg_length_m"], n, "rigging.leg_length_m")
+    wll = _per_leg(r, rig_t["wll_kN"], n, "rigging.wll_kN")
+    if hook is not None or kind != "single":
+        for L in legs:
+            if L <= 0.0:
+                raise r.err("rigging.leg_length_m", "must be > 0 (only a single leg without a hook "
+                            "block may have length 0: the rope attached to the load directly)",
+                            list(legs) if n > 1 else L)
+    if kind == "spreader":
+        if rig_t["top_leg_length_m"] is None:
+            raise r.err("rigging.top_leg_length_m", "missing; kind 'spreader' needs the length of "
+                        "its two top slings")
+    else:
+        for k in ("top_leg_length_m", "top_wll_kN"):
+            if rig_t[k] is not None:
+                raise r.err(f"rigging.{k}", f"only for kind 'spreader', not '{kind}'", rig_t[k])
+    rig = Rigging(kind=kind, leg_length_m=legs, attach_m=tuple(tuple(a) for a in attach), wll_kN=wll,
+                  top_leg_length_m=rig_t["top_leg_length_m"], top_wll_kN=rig_t["top_wll_kN"])
+    try:
+        rigging_geometry(rig, load, rigid)
+    except RiggingError as exc:
+        raise r.err(f"rigging.{exc.key}", str(exc)) from None
+    return hook, rig
+
+
+def _read_move(r: KeyReader, m: dict, i: int, duration_s: float) -> Move:
+    where = f"moves[{i}]"
+    r.check_unknown(m, schema.MOVE, f"{where}.")
+    v = {k: r.value(m, k, key, f"{where}.{k}") for k, key in schema.MOVE.items()}
+    axis, profile = v["axis"], v["profile"]
+    names = _ANGULAR if axis == "slew" else _LINEAR
+    other = _LINEAR if axis == "slew" else _ANGULAR
+    for q, key in other.items():
+        if key in m:
+            kind = "a slew move" if axis == "slew" else f"a linear ({axis}) move"
+            raise r.err(f"{where}.{key}", f"not a key of {kind}; use {names[q]}", m[key])
+    spec = PROFILES[profile]
+    needs, optional = spec.needs, spec.optional
+    for q in names:
+        key = names[q]
+        if q in needs and v[key] is None:
+            raise r.err(f"{where}.{key}", f"missing; profile '{profile}' needs "
+                        + ", ".join(names[n] for n in needs))
+        if q not in needs and q not in optional and key in m:
+            raise r.err(f"{where}.{key}", f"not used by profile '{profile}'", m[key])
+    own = spec.keys
+    for key in sorted({k for sp in PROFILES.values() for k in sp.keys}):
+        if key in m and key not in own:
+            users = ", ".join(p for p, sp in PROFILES.items() if key in sp.keys)
+            raise r.err(f"{where}.{key}", f"not used by profile '{profile}' (only by {users})", m[key])
+    if profile == "table":
+        if v["table_file"] is None:
+            raise r.err(f"{where}.table_file", "missing; profile 'table' needs a CSV file")
+        table = read_table(v["table_file"], r.base_dir, f"{where}.table_file", axis, r.file)
+    else:
+        if v["table_file"] is not None:
+            raise r.err(f"{where}.table_file", f"only for profile 'table', not '{profile}'", v["table_file"])
+        table = None
+        if v[names["distance"]] == 0.0:
+            raise r.err(f"{where}.{names['distance']}", "must not be zero", 0.0)
+    if v["start_s"] >= duration_s:
+        raise r.err(f"{where}.start_s", f"must be before the end of the simulation (duration_s = "
+                    f"{duration_s:g})", v["start_s"])
+    profile_keys = {k: m[k] for k in spec.keys if k in m}
+    return Move(index=i, axis=axis, profile=profile, start_s=v["start_s"], label=v["label"],
+                distance=v[names["distance"]], speed=v[names["speed"]], accel=v[names["accel"]],
+                decel=v[names["decel"]], jerk=v[names["jerk"]], table=table, profile_keys=profile_keys)
