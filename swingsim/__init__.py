@@ -19,14 +19,38 @@ from swingsim.scene import Scene, load_scene, scene_from_dict  # noqa: E402
 
 
 def simulate(scene, **kw):
-    """Integrate a scene; see :func:`swingsim.simulation.simulate`."""
+    """Integrate a scene's full nonlinear equations of motion (scipy DOP853).
+
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene (:func:`load_scene`).
+    **kw
+        Solver options of :func:`swingsim.simulation.simulate` (``rtol``, ``atol``, ``model``).
+
+    Returns
+    -------
+    Trajectory
+        The dense solution, its status and the scene.
+    """
     from swingsim.simulation import simulate as _simulate
 
     return _simulate(scene, **kw)
 
 
 def summarize(traj):
-    """Measure a trajectory; see :func:`swingsim.metrics.summarize`."""
+    """Measure a trajectory: peak and residual swing, excursion, tension, periods, settling, cautions.
+
+    Parameters
+    ----------
+    traj : Trajectory
+        The result of :func:`simulate`.
+
+    Returns
+    -------
+    Summary
+        The summary numbers (definitions in :mod:`swingsim.metrics.single`).
+    """
     from swingsim.metrics.single import summarize as _summarize
 
     return _summarize(traj)

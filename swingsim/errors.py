@@ -31,6 +31,13 @@ class InputError(ValueError):
         super().__init__(self.one_line())
 
     def one_line(self) -> str:
+        """The message: ``file[:line]: key = value: problem`` (parts left out when unknown).
+
+        Returns
+        -------
+        str
+            One line; a value's ``repr`` is cut to 60 characters.
+        """
         where = self.file
         if self.line:
             where += f":{self.line}"

@@ -16,7 +16,16 @@ HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
 
 
 def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> None:
-    """Options of ``swingsim render`` (also used by ``swingsim run --video``)."""
+    """Options of ``swingsim render`` (also used by ``swingsim run --video``).
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        The parser, filled in place.
+    scene : bool, optional
+        Also add the scene, ``--out``, ``--force``, ``--quiet`` and
+        ``--allow-implausible`` (False for ``run``, which has its own).
+    """
     if scene:
         parser.add_argument("scene", metavar="SCENE", help="scene file (TOML)")
         parser.add_argument("--out", "-o", metavar="DIR", default=None,
@@ -46,7 +55,18 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
 
 
 def parse_size(text: str):
-    """``"1280x720"`` -> (1280, 720); raises InputError on anything else."""
+    """``"1280x720"`` -> (1280, 720); raises InputError on anything else.
+
+    Parameters
+    ----------
+    text : str
+        The ``--size`` option, ``WIDTHxHEIGHT``.
+
+    Returns
+    -------
+    tuple of int
+        Width and height [pixels].
+    """
     from swingsim.errors import InputError
 
     try:
@@ -57,7 +77,21 @@ def parse_size(text: str):
 
 
 def options(args, scene) -> dict:
-    """Keyword arguments of :func:`render_scene` from parsed arguments."""
+    """Keyword arguments of :func:`render_scene` from parsed arguments.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed video options of :func:`add_arguments`.
+    scene : Scene
+        The scene (its duration ends an open ``--from`` window).
+
+    Returns
+    -------
+    dict
+        ``size``, ``fps`` [1/s], ``fmt``, ``view``, ``speed`` [-], ``window``
+        (start and end [s], or None), ``split`` and ``stills``.
+    """
     window = None
     if args.t_from is not None or args.t_to is not None:
         window = (args.t_from if args.t_from is not None else 0.0,
@@ -68,7 +102,18 @@ def options(args, scene) -> dict:
 
 
 def main(args) -> int:
-    """Run ``swingsim render``; returns the exit code (0 done, 1 run or renderer failed, 2 bad input)."""
+    """Run ``swingsim render``: simulate the scene, render the video and stills, list the files.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed options of :func:`add_arguments`.
+
+    Returns
+    -------
+    int
+        The exit code: 0 done, 1 the run or the renderer failed, 2 bad input.
+    """
     from swingsim.errors import InputError, SimulationError
     from swingsim.scene import load_scene
     from swingsim.simulation import simulate

@@ -32,7 +32,20 @@ def atomic_path(final: Path | str, suffix: str | None = None):
     """Yield a temporary path beside ``final``; rename it to ``final`` on success.
 
     On any exception (including KeyboardInterrupt) the temporary file is removed.
-    ``suffix`` keeps an extension that a writer may need (e.g. ``.mp4`` for ffmpeg).
+
+    Parameters
+    ----------
+    final : Path or str
+        The file's final name; its folder is created when missing.
+    suffix : str, optional
+        Suffix of the temporary file, for a writer that needs one (e.g. ``.mp4``
+        for ffmpeg); that of ``final`` when None.
+
+    Yields
+    ------
+    Path
+        The temporary file to write; it becomes ``final`` (and is listed in
+        :data:`WRITTEN`) when the ``with`` block ends without an exception.
     """
     final = Path(final)
     final.parent.mkdir(parents=True, exist_ok=True)
@@ -52,6 +65,20 @@ def atomic_path(final: Path | str, suffix: str | None = None):
 
 
 def atomic_write_bytes(final: Path | str, data: bytes) -> Path:
+    """Write bytes to a file atomically (complete under its final name, or not at all).
+
+    Parameters
+    ----------
+    final : Path or str
+        The file to write.
+    data : bytes
+        Its whole content.
+
+    Returns
+    -------
+    Path
+        ``final``.
+    """
     with atomic_path(final) as tmp:
         with open(tmp, "wb") as fh:
             fh.write(data)
@@ -61,6 +88,20 @@ def atomic_write_bytes(final: Path | str, data: bytes) -> Path:
 
 
 def atomic_write_text(final: Path | str, text: str) -> Path:
+    """Write text as UTF-8 to a file atomically (see :func:`atomic_write_bytes`).
+
+    Parameters
+    ----------
+    final : Path or str
+        The file to write.
+    text : str
+        Its whole content.
+
+    Returns
+    -------
+    Path
+        ``final``.
+    """
     return atomic_write_bytes(final, text.encode("utf-8"))
 
 
@@ -68,6 +109,26 @@ def check_out_dir(out: Path | str, force: bool, what: str = "--out") -> Path:
     """Refuse a non-empty output folder unless ``force``; refuse a path that is a file.
 
     Creates nothing: the folder is made when the first complete file is written.
+    Temporary files of a killed earlier run do not count.
+
+    Parameters
+    ----------
+    out : Path or str
+        The output folder.
+    force : bool
+        Accept a folder that already holds files (``--force``).
+    what : str, optional
+        The option that named the folder, for the message.
+
+    Returns
+    -------
+    Path
+        ``out`` as a Path.
+
+    Raises
+    ------
+    InputError
+        When ``out`` is a file, or a non-empty folder without ``force``.
     """
     out = Path(out)
     if out.exists() and not out.is_dir():
@@ -79,7 +140,13 @@ def check_out_dir(out: Path | str, force: bool, what: str = "--out") -> Path:
 
 
 def clean_partials(out: Path | str) -> None:
-    """Remove temporary files left by a killed earlier run in ``out``."""
+    """Remove temporary files left by a killed earlier run in ``out``.
+
+    Parameters
+    ----------
+    out : Path or str
+        The output folder (nothing happens when it does not exist).
+    """
     out = Path(out)
     if out.is_dir():
         for p in out.glob(TMP_PREFIX + "*"):
