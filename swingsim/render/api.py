@@ -16,12 +16,12 @@ from pathlib import Path
 import numpy as np
 
 from swingsim.errors import InputError
-from swingsim.render import facts as F
+from swingsim.render import facts as run_facts
+from swingsim.render import writers
+from swingsim.render.frames import build_stage, draw_frames, progress_bar, read_load_mesh, rows
 from swingsim.render.views import VIEWS
 
 FORMATS = ("mp4", "gif", "png")
-#: Frames drawn per sampling call: bounds memory for any clip length.
-CHUNK = 64
 #: Below this many frames one process draws everything: starting a worker costs about
 #: 1.5 s of CPU, and one process already renders 1280x720 at well over 30 frames/s
 #: on 2 cores; from about 15 s of video on, two workers are faster
@@ -82,72 +82,6 @@ def check_options(scene, *, size, fps, fmt, view, speed, window, split, source="
     return views
 
 
-def _read_mesh(scene):
-    if scene.load.mesh_file is None:
-        return None
-    import pyvista as pv
-
-    from swingsim.errors import SceneError
-
-    p = Path(scene.load.mesh_file)
-    full = p if p.is_absolute() else Path(scene.base_dir) / p
-    import warnings
-
-    import vtk
-
-    shown = vtk.vtkObject.GetGlobalWarningDisplay()
-    vtk.vtkObject.GlobalWarningDisplayOff()  # a bad file is reported once, below, not by VTK too
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            mesh = pv.read(full)
-    except Exception as exc:  # noqa: BLE001 - any reader failure is bad input
-        raise SceneError(scene.file, "load.mesh_file", f"cannot be read as a mesh ({type(exc).__name__})",
-                         scene.load.mesh_file) from None
-    finally:
-        vtk.vtkObject.SetGlobalWarningDisplay(shown)
-    if not isinstance(mesh, pv.PolyData):
-        mesh = mesh.extract_surface()
-    if mesh.n_points == 0:
-        raise SceneError(scene.file, "load.mesh_file", "the mesh has no points", scene.load.mesh_file)
-    return mesh.triangulate()
-
-
-def _progress(total, quiet, desc):
-    from tqdm import tqdm
-
-    return tqdm(total=total, unit="frame", desc=desc, disable=quiet or not sys.stderr.isatty(),
-                leave=False, dynamic_ncols=True)
-
-
-def _rows(samp: dict, n: int):
-    """Split a dict of sampled arrays (leading axis n) into one dict per sample."""
-    keys = [k for k, v in samp.items() if isinstance(v, np.ndarray) and v.ndim and len(v) == n]
-    const = {k: v for k, v in samp.items() if k not in keys}
-    for i in range(n):
-        row = dict(const)
-        for k in keys:
-            row[k] = samp[k][i]
-        yield row
-
-
-def draw_frames(stage, traj, times, video_t0_index=0, fps=30.0, on_frame=None):
-    """Pose and photograph ``stage`` at each of ``times``, yielding frames one by one."""
-    from swingsim.scene3d.geometry import crane_pose
-
-    for c0 in range(0, len(times), CHUNK):
-        ts = times[c0:c0 + CHUNK]
-        samp = traj.sample(ts)
-        X, Y, phi, rho = crane_pose(traj.motion, ts)
-        for i, row in enumerate(_rows(samp, len(ts))):
-            k = video_t0_index + c0 + i
-            stage.pose(float(ts[i]), row, (float(X[i]), float(Y[i]), float(phi[i]), float(rho[i])),
-                       video_t=k / fps)
-            yield stage.grab()
-            if on_frame:
-                on_frame()
-
-
 def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4", view="oblique",
                  speed=1.0, window=None, split=None, quiet=False, stills=True, workers=None,
                  overwrite=True):
@@ -201,8 +135,8 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
             if p.exists():
                 raise InputError(str(p), "", "exists already; use --force to replace it")
     require_opengl()
-    mesh = _read_mesh(scene)
-    facts = F.collect(traj, summary)
+    mesh = read_load_mesh(scene)
+    facts = run_facts.collect(traj, summary)
     t_end = float(traj.t_end_s)
     t0, t1 = (0.0, t_end) if window is None else (float(window[0]), min(float(window[1]), t_end))
     times = frame_times(t0, t1, fps, speed)
@@ -220,7 +154,7 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
                                        quiet=quiet))
         stage = None
     else:
-        stage = _stage(traj, facts, size, views, mesh, speed, video_len)
+        stage = build_stage(traj, facts, size, views, mesh, speed, video_len)
         try:
             written.append(_write_video(stage, traj, names["video"], times, size, fps, fmt, quiet))
         except BaseException:
@@ -228,7 +162,7 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
             raise
     if names["stills"]:
         if stage is None:
-            stage = _stage(traj, facts, size, views, mesh, speed, video_len)
+            stage = build_stage(traj, facts, size, views, mesh, speed, video_len)
         try:
             written += write_stills(stage, traj, facts, names["stills"])
         finally:
@@ -238,24 +172,16 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
     return written
 
 
-def _stage(traj, facts, size, views, mesh, speed, video_len):
-    from swingsim.render.stage import Stage
-
-    return Stage(traj, facts, size=size, views=views, load_mesh=mesh, speed=speed, video_len_s=video_len)
-
-
 def _write_video(stage, traj, target, times, size, fps, fmt, quiet, video_t0_index=0, video_len=None):
-    from swingsim.render import writers as W
-
     if fmt == "mp4":
-        sink = W.Mp4Writer(target, size, fps)
+        sink = writers.Mp4Writer(target, size, fps)
     elif fmt == "gif":
         k = np.linspace(0, len(times) - 1, min(8, len(times))).round().astype(int)
         sample = list(draw_frames(stage, traj, times[k], fps=fps))
-        sink = W.GifWriter(target, size, fps, sample)
+        sink = writers.GifWriter(target, size, fps, sample)
     else:
-        sink = W.PngSequenceWriter(target, size, fps)
-    bar = _progress(len(times), quiet, Path(target).name)
+        sink = writers.PngSequenceWriter(target, size, fps)
+    bar = progress_bar(len(times), quiet, Path(target).name)
     try:
         for frame in draw_frames(stage, traj, times, video_t0_index, fps, on_frame=lambda: bar.update()):
             sink.write(frame)
@@ -286,16 +212,13 @@ def still_times(facts) -> dict:
 
 def write_stills(stage, traj, facts, targets: dict) -> list:
     """PNG stills at the moments of :func:`still_times`, with the caution line (no banner)."""
-    from swingsim.render import writers as W
-    from swingsim.scene3d.geometry import crane_pose
-
     out = []
     for kind, t in still_times(facts).items():
         if kind not in targets:
             continue
         ts = np.array([t])
-        row = next(_rows(traj.sample(ts), 1))
-        X, Y, phi, rho = crane_pose(traj.motion, ts)
-        stage.pose(t, row, (float(X[0]), float(Y[0]), float(phi[0]), float(rho[0])), video_t=None)
-        out.append(W.write_png(targets[kind], stage.grab()))
+        samples = traj.sample(ts)
+        stage.show(t, stage.scene3d.frames_from_samples(samples, traj.motion.pose(ts)), 0,
+                   next(rows(samples, 1)), video_t=None)
+        out.append(writers.write_png(targets[kind], stage.grab()))
     return out
