@@ -14,7 +14,7 @@ import io
 import math
 
 from swingsim.metrics import cautions
-from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE
+from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE
 
 # one colour per category, our own palette
 _COLOURS = [ROPE, LOAD, "#4f7d3a", "#7a4fa0", "#b08a1e", "#2d8f8f", INK, "#a0507a"]

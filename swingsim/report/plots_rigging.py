@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE, _figure, _footer, _moves
+from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves, title_and_caution
 from swingsim.report.tables import timeseries_columns
 
 LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
@@ -21,7 +21,7 @@ def rigging_figure(traj, summary, cols=None):
         return None
     d = summary.data
     t = c["t_s"]
-    plt, fig = _figure(10.0, 7.0)
+    plt, fig = new_figure(10.0, 7.0)
     ax = fig.add_axes([0.08, 0.46, 0.88, 0.44])
     for j, k in enumerate(legs):
         ax.plot(t, c[k], color=LEG_COLOURS[j % len(LEG_COLOURS)], lw=1.4, label=f"leg {j + 1}")
@@ -44,7 +44,7 @@ def rigging_figure(traj, summary, cols=None):
     ax.set_ylabel("tension [kN]")
     lo, hi = ax.get_ylim()
     ax.set_ylim(min(lo, 0.0) if np.min([c[k].min() for k in legs]) < 0 else lo, hi)
-    _moves(ax, traj.scene, traj.motion)
+    shade_moves(ax, traj.scene, traj.motion)
     ax.legend(loc="lower right", fontsize=8, framealpha=0.9)
     ax.grid(alpha=0.3)
     ax.tick_params(labelbottom=False)
@@ -70,5 +70,5 @@ def rigging_figure(traj, summary, cols=None):
     ax2.grid(alpha=0.3)
     if ax2.lines:
         ax2.legend(loc="upper right", fontsize=8, framealpha=0.9)
-    _footer(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
+    title_and_caution(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
     return fig
