@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import math
 import os
-import sys
 from pathlib import Path
 
 import numpy as np
@@ -32,15 +31,46 @@ PARALLEL_MIN_FRAMES = 450
 def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:
     """Simulated times of the frames of the window [t0, t1] [s].
 
-    ``round((t1 - t0) * fps / speed)`` frames, ``speed / fps`` simulated seconds apart,
-    the first at ``t0``.
+    ``round((t1 - t0) * fps / speed)`` frames (at least one), ``speed / fps``
+    simulated seconds apart, the first at ``t0``.
+
+    Parameters
+    ----------
+    t0, t1 : float
+        The simulated time window [s].
+    fps : float
+        Frames per second of the video [1/s].
+    speed : float
+        Playback speed: simulated seconds per second of video [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        The frames' simulated times [s].
     """
     n = max(1, int(round((t1 - t0) * fps / speed)))
     return t0 + np.arange(n) * (speed / fps)
 
 
 def output_names(scene, out_dir, fmt, stills=True) -> dict:
-    """The files a render writes: {"video": path, "stills": {kind: path}}."""
+    """The files a render writes, named after the scene.
+
+    Parameters
+    ----------
+    scene : swingsim.scene.Scene
+        The scene (its ``name``).
+    out_dir : str or pathlib.Path
+        The output folder.
+    fmt : {"mp4", "gif", "png"}
+        The video format; "png" writes a folder ``<scene>_frames``.
+    stills : bool
+        Whether stills are written.
+
+    Returns
+    -------
+    dict
+        ``{"video": path, "stills": {kind: path}}`` (no stills when ``stills`` is false).
+    """
     out = Path(out_dir)
     stem = scene.name
     video = out / (f"{stem}.{fmt}" if fmt != "png" else f"{stem}_frames")
@@ -49,7 +79,39 @@ def output_names(scene, out_dir, fmt, stills=True) -> dict:
 
 
 def check_options(scene, *, size, fps, fmt, view, speed, window, split, source="render"):
-    """Validate render options; raise InputError (one line) naming the option and what is allowed."""
+    """Validate render options before anything is drawn or written.
+
+    Parameters
+    ----------
+    scene : swingsim.scene.Scene
+        The scene (its duration and its ``[view]`` table).
+    size : (int, int)
+        Frame width and height [px]: 64 to 7680 by 64 to 4320, even for MP4.
+    fps : float
+        Frames per second, 1 to 120 [1/s].
+    fmt : str
+        "mp4", "gif" or "png".
+    view : str
+        One of :data:`swingsim.render.views.VIEWS`.
+    speed : float
+        Playback speed, 0.01 to 100 [-].
+    window : (float, float) or None
+        Simulated time window [s]: 0 <= from < to, from before the run's end.
+    split : sequence of str or None
+        Two views side by side.
+    source : str
+        What to name as the source of an error.
+
+    Returns
+    -------
+    list of str
+        The views to draw (one, or two for a split picture).
+
+    Raises
+    ------
+    InputError
+        One line naming the option and what is allowed.
+    """
     def bad(key, value, what):
         return InputError(source, key, what, value)
 
@@ -164,7 +226,7 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
         if stage is None:
             stage = build_stage(traj, facts, size, views, mesh, speed, video_len)
         try:
-            written += write_stills(stage, traj, facts, names["stills"])
+            written += _write_stills(stage, traj, facts, names["stills"])
         finally:
             stage.close()
     elif stage is not None:
@@ -199,6 +261,16 @@ def still_times(facts) -> dict:
 
     A run that stopped early (slack rope, overswing) has a still of its last valid
     instant instead of the moments it never reached.
+
+    Parameters
+    ----------
+    facts : swingsim.render.facts.Facts
+        The run's events.
+
+    Returns
+    -------
+    dict
+        Still kind ("peak_swing", "end_of_moves", "settled", "stopped") -> simulated time [s].
     """
     t = {"peak_swing": facts.peak_time_s}
     if 0 < facts.last_move_end_s <= facts.t_end_s:
@@ -210,7 +282,7 @@ def still_times(facts) -> dict:
     return t
 
 
-def write_stills(stage, traj, facts, targets: dict) -> list:
+def _write_stills(stage, traj, facts, targets: dict) -> list:
     """PNG stills at the moments of :func:`still_times`, with the caution line (no banner)."""
     out = []
     for kind, t in still_times(facts).items():

@@ -54,7 +54,43 @@ def _draw_range(job: dict) -> None:
 
 
 def render_parallel(traj, summary, target, times, *, size, fps, views, speed, video_len, workers, quiet):
-    """Render ``times`` into the MP4 ``target`` with ``workers`` processes; returns the path."""
+    """Render ``times`` into the MP4 ``target`` with worker processes and join their segments.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run (pickled to each worker).
+    summary : swingsim.metrics.Summary or dict or None
+        Its measures.
+    target : str or pathlib.Path
+        The MP4 to write.
+    times : numpy.ndarray
+        Simulated times of all frames [s], split into contiguous ranges.
+    size : (int, int)
+        Frame width and height [px].
+    fps : float
+        Frames per second [1/s].
+    views : sequence of str
+        One view, or two side by side.
+    speed : float
+        Playback speed [-].
+    video_len : float
+        Length of the whole video [s].
+    workers : int
+        Worker processes (at most one a frame).
+    quiet : bool
+        No progress bar.
+
+    Returns
+    -------
+    pathlib.Path
+        ``target``.
+
+    Raises
+    ------
+    RuntimeError
+        A worker failed (its last error line is named).
+    """
     import selectors
 
 

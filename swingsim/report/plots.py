@@ -7,7 +7,6 @@ atomically.  Every figure carries the caution line.
 from __future__ import annotations
 
 import io
-import math
 
 import numpy as np
 
@@ -17,6 +16,23 @@ from swingsim.report.style import ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, new_fi
 from swingsim.report.tables import timeseries_columns
 
 def swing_figure(traj, summary, cols=None):
+    """swing.png: the rope angle from vertical (and projected on x-z and y-z) over time, the caution angle, the peak and when it settles.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures (peak, settling).
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure, with its title and the caution line.
+    """
     scene = traj.scene
     c = timeseries_columns(traj) if cols is None else cols
     plt, fig = new_figure()
@@ -46,6 +62,23 @@ def swing_figure(traj, summary, cols=None):
 
 
 def speed_figure(traj, summary, cols=None):
+    """speed.png: the suspension point's horizontal speed, the load's speed and the hoist speed over time.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures.
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure, with its title and the caution line.
+    """
     scene = traj.scene
     c = timeseries_columns(traj) if cols is None else cols
     plt, fig = new_figure()
@@ -65,6 +98,23 @@ def speed_figure(traj, summary, cols=None):
 
 
 def plan_figure(traj, summary, cols=None):
+    """plan.png: the load's path in plan with its swing envelope and the zones, and the load's offset from the plumb line.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures (peak excursion).
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure, with its title and the caution line.
+    """
     from matplotlib.patches import Circle, Rectangle
 
     scene = traj.scene
@@ -124,6 +174,24 @@ FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": pla
 
 
 def write_plots(traj, summary, out_dir, cols=None) -> list:
+    """Draw every figure of :data:`FIGURES` that the run's model has, and save each as a PNG atomically.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures.
+    out_dir : str or pathlib.Path
+        The folder.
+    cols : dict, optional
+        The run's time-series columns, sampled once for all plots.
+
+    Returns
+    -------
+    list of pathlib.Path
+        The PNGs written.
+    """
     from pathlib import Path
 
     import matplotlib

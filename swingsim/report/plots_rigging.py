@@ -14,7 +14,23 @@ LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
 
 
 def rigging_figure(traj, summary, cols=None):
-    """Leg tensions (top) and the load's tilt, or the leg's angle to the rope (bottom); None if no legs."""
+    """rigging.png: leg tensions (top) and the load's tilt, or the leg's angle to the rope (bottom).
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures (hanging leg tensions, declared limits).
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure or None
+        The figure, or None when the model has no sling legs.
+    """
     c = timeseries_columns(traj) if cols is None else cols
     legs = [k for k in c if k.startswith("leg_") and k.endswith("_tension_kN")]
     if not legs:
