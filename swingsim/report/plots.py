@@ -12,11 +12,15 @@ import numpy as np
 
 from swingsim.io.files import atomic_write_bytes
 from swingsim.report.plots_rigging import rigging_figure
-from swingsim.report.style import ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves, title_and_caution
+from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves,
+                                   title_and_caution)
 from swingsim.report.tables import timeseries_columns
 
 def swing_figure(traj, summary, cols=None):
-    """swing.png: the rope angle from vertical (and projected on x-z and y-z) over time, the caution angle, the peak and when it settles.
+    """swing.png: the rope angle over time.
+
+    The angle from vertical and its projections on x-z and y-z, the caution
+    angle, the peak, when it settles, and the moves shaded.
 
     Parameters
     ----------
@@ -98,7 +102,11 @@ def speed_figure(traj, summary, cols=None):
 
 
 def plan_figure(traj, summary, cols=None):
-    """plan.png: the load's path in plan with its swing envelope and the zones, and the load's offset from the plumb line.
+    """plan.png: the load's path in plan, and its offset from the plumb line.
+
+    Left: the suspension point's and the load's paths, the swing envelope and the
+    zones with their margins; right: the load relative to the point below the
+    suspension point, with the peak excursion and the clearance limit.
 
     Parameters
     ----------

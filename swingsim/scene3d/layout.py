@@ -98,7 +98,8 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
     kind = scene.crane.kind
     if kind == "tower":  # the jib's sweep around the base's two extreme positions
         ang = np.linspace(0, 2 * np.pi, 33)
-        for xb, yb in ((crane.travel_x_m.min(), crane.travel_y_m.min()), (crane.travel_x_m.max(), crane.travel_y_m.max())):
+        bx, by = crane.travel_x_m, crane.travel_y_m
+        for xb, yb in ((bx.min(), by.min()), (bx.max(), by.max())):
             pts.append(np.stack([xb + 0.35 * jib * np.cos(ang), yb + 0.35 * jib * np.sin(ang)], -1))
     allp = np.concatenate(pts)
     core = np.concatenate(pts[:3])
