@@ -13,7 +13,7 @@ import pytest
 
 from swingsim.metrics import cautions
 from swingsim.errors import InputError, SceneError
-from swingsim.render import overlay as O
+from swingsim.render import overlay
 from swingsim.render.api import check_options, frame_times, output_names, still_times
 from swingsim.render.facts import collect, rope_angle_deg
 from swingsim.simulation import simulate
@@ -54,7 +54,7 @@ def test_caution_in_every_frame_and_banner_only_at_the_ends():
     for i, t in enumerate(times):
         row = {k: (v[i] if isinstance(v, np.ndarray) and v.ndim and len(v) == len(times) else v)
                for k, v in samp.items()}
-        ft = O.frame_text(t, i / 10, video_len, 1.0, row, facts.events, [])
+        ft = overlay.frame_text(t, i / 10, video_len, 1.0, row, facts.events, [])
         text = " ".join(ft.strings())
         # The short caution (from swingsim.metrics.cautions, one place for the wording) is on every frame.
         assert " ".join(ft.caution.split()) == cautions.CAUTION_SHORT
@@ -63,7 +63,7 @@ def test_caution_in_every_frame_and_banner_only_at_the_ends():
         if ft.banner:
             assert " ".join(ft.banner.split()) == cautions.CAUTION
     banner = np.array(banner)
-    hold = int(O.BANNER_S * 10)
+    hold = int(overlay.BANNER_S * 10)
     assert banner[:hold].all() and banner[-hold:].all()
     assert not banner[hold:-hold].any()
 
@@ -72,7 +72,7 @@ def test_readout_matches_the_run():
     s = make_scene(moves=[MOVE])
     traj = simulate(s)
     row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([3.0]).items()}
-    ft = O.frame_text(3.0, 3.0, 20.0, 1.0, row, (), [])
+    ft = overlay.frame_text(3.0, 3.0, 20.0, 1.0, row, (), [])
     n = row["rope_dir"]
     # Rope angle from the vertical: arccos of the downward component of the unit rope vector.
     ang = np.degrees(np.arccos(-n[2]))
@@ -80,7 +80,7 @@ def test_readout_matches_the_run():
     assert f"{np.linalg.norm(row['load_vel']):6.2f}" in ft.readout
     assert f"{row['rope_tension_N'] / 1000:6.1f}" in ft.readout
     assert ft.clock.startswith("t =") and "3.00 s" in ft.clock
-    assert "slow motion x0.5" in O.clock_text(1.0, 0.5) and "time-lapse x2" in O.clock_text(1.0, 2.0)
+    assert "slow motion x0.5" in overlay.clock_text(1.0, 0.5) and "time-lapse x2" in overlay.clock_text(1.0, 2.0)
     assert rope_angle_deg(np.array([0.0, np.sin(0.1), -np.cos(0.1)])) == pytest.approx(np.degrees(0.1))
 
 
@@ -100,9 +100,9 @@ def test_events_from_the_summary():
     assert set(st) == {"peak_swing", "end_of_moves", "settled"}
     assert st["end_of_moves"] == pytest.approx(traj.motion.last_move_end_s)
     t_start = [e.t_s for e in facts.events if e.kind == "move_start"][0]
-    assert O.event_text(t_start + 0.5, facts.events) == "travel east: starts"
-    assert "travel east: starts" not in O.event_text(t_start + O.EVENT_HOLD_S + 0.1, facts.events)
-    assert O.event_text(facts.peak_time_s + 0.1, facts.events).endswith(f"Peak swing {facts.peak_angle_deg:.1f} deg")
+    assert overlay.event_text(t_start + 0.5, facts.events) == "travel east: starts"
+    assert "travel east: starts" not in overlay.event_text(t_start + overlay.EVENT_HOLD_S + 0.1, facts.events)
+    assert overlay.event_text(facts.peak_time_s + 0.1, facts.events).endswith(f"Peak swing {facts.peak_angle_deg:.1f} deg")
 
 
 def test_no_settled_still_when_it_never_settles():
@@ -197,8 +197,8 @@ def test_a_run_that_stops_early_says_so_at_its_end():
     facts = collect(traj)
     assert set(still_times(facts)) == {"peak_swing", "stopped"}
     row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([1.9]).items()}
-    late = O.frame_text(traj.t_end_s - 0.1, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
-    early = O.frame_text(0.2, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
+    late = overlay.frame_text(traj.t_end_s - 0.1, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
+    early = overlay.frame_text(0.2, 5.0, 10.0, 1.0, row, facts.events, [], facts=facts)
     assert late.stopped.startswith(f"RUN STOPPED at t = {traj.t_end_s:.2f} s: the hoist rope would go slack.")
     assert early.stopped == ""
 

@@ -149,14 +149,15 @@ def test_split_views_side_by_side(tmp_path):
 
 def test_zone_turns_warning_colour_near_the_load():
     from swingsim.render.facts import collect
-    from swingsim.render.stage import PALETTE, Stage, _rgb
+    from swingsim.render.palette import PALETTE, rgb
+    from swingsim.render.stage import Stage
 
     zone = {"name": "hut", "kind": "obstacle", "min_m": [15.5, -2.0, 0.0], "max_m": [18.0, 2.0, 5.5],
             "margin_m": 1.0}
     traj = simulate(_scene(zones=[zone]))
     stage = Stage(traj, collect(traj), size=(160, 120), views=("side",))
     try:
-        from swingsim.render.api import draw_frames
+        from swingsim.render.frames import draw_frames
 
         for t, near in ((0.0, False), (3.9, True)):
             next(draw_frames(stage, traj, np.array([t])))
@@ -173,7 +174,7 @@ def test_zone_turns_warning_colour_near_the_load():
             assert stage.near_zones == (["hut"] if near else [])
             colour = stage.zones[0][1].GetProperty().GetColor()
             want = PALETTE["warn"] if near else PALETTE["obstacle"]
-            np.testing.assert_allclose(colour, _rgb(want), atol=1e-6)
+            np.testing.assert_allclose(colour, rgb(want), atol=1e-6)
             assert ("Load near zone: hut" in stage.last_text.zone) == near
     finally:
         stage.close()
@@ -268,12 +269,14 @@ def test_egl_chosen_without_a_display(monkeypatch):
 
 
 def test_envelope_covers_the_load_path_and_nothing_far():
-    from swingsim.scene3d.geometry import envelope_image
+    from swingsim.render.palette import envelope_image
+    from swingsim.scene3d.ground import envelope
 
     # a quarter circle of radius 10 m, as a slew would sweep
     a = np.linspace(0, np.pi / 2, 200)
     path = np.column_stack([10 * np.cos(a), 10 * np.sin(a), np.zeros_like(a)])
-    plane, rgba = envelope_image(path, (1.0, 1.0), (0.2, 0.4, 0.6))  # a 2 m x 2 m footprint
+    plane, classes = envelope(path, (1.0, 1.0))  # a 2 m x 2 m footprint
+    rgba = envelope_image(classes, (0.2, 0.4, 0.6))
     b = plane.bounds
     ny, nx = rgba.shape[:2]
 
@@ -294,14 +297,13 @@ def test_envelope_covers_the_load_path_and_nothing_far():
 def test_hook_block_and_sling_legs_from_model_outputs():
     """A model with a hook block gives outputs["hook"]; one with rigging gives attach_points (N, k, 3)."""
     from swingsim.render.facts import collect
-    from swingsim.scene3d.geometry import crane_pose
     from swingsim.render.stage import Stage
 
     traj = simulate(_scene())
     stage = Stage(traj, collect(traj), size=(160, 120), views=("side",))
     try:
         row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([1.0]).items()}
-        X, Y, phi, rho = (float(v[0]) for v in crane_pose(traj.motion, np.array([1.0])))
+        X, Y, phi, rho = (float(v[0]) for v in traj.motion.pose(np.array([1.0])))
         stage.pose(1.0, row, (X, Y, phi, rho), 1.0)
         assert not stage.hook_actor.GetVisibility()  # the point-mass model has no hook block
         assert sum(s.GetVisibility() for s in stage.slings) == 4  # four legs to the box's top corners
@@ -343,15 +345,15 @@ def test_swingsim_render_command(tmp_path, capsys):
 def test_progress_bar_only_on_a_terminal(monkeypatch):
     import sys
 
-    from swingsim.render.api import _progress
+    from swingsim.render.frames import progress_bar
 
     monkeypatch.setattr(sys.stderr, "isatty", lambda: False, raising=False)
-    assert _progress(10, False, "x").disable
+    assert progress_bar(10, False, "x").disable
     monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
-    bar = _progress(10, False, "x")
+    bar = progress_bar(10, False, "x")
     assert not bar.disable
     bar.close()
-    assert _progress(10, True, "x").disable
+    assert progress_bar(10, True, "x").disable
 
 
 def test_run_video_without_opengl_writes_nothing(monkeypatch, tmp_path, capsys):
@@ -381,7 +383,7 @@ def test_custom_view_is_the_scenes_camera():
                                  "view_angle_deg": 42.0}))
     stage = Stage(traj, collect(traj), size=(160, 120), views=("custom",))
     try:
-        from swingsim.render.api import draw_frames
+        from swingsim.render.frames import draw_frames
 
         next(draw_frames(stage, traj, np.array([0.5])))
         cam = stage.renderers[0].GetActiveCamera()
@@ -407,7 +409,7 @@ def test_spreader_beam_is_where_the_model_says(tmp_path):
     """The beam of a spreader scene: drawn between the model's end lugs, moved (not rebuilt) each frame."""
     import tomllib
 
-    from swingsim.render.api import draw_frames
+    from swingsim.render.frames import draw_frames
     from swingsim.render.facts import collect
     from swingsim.render.stage import Stage
     from swingsim.scene import scene_from_dict
@@ -464,7 +466,7 @@ def test_bridle_legs_without_hook_meet_at_the_models_pin():
     """A bridle hung straight on the rope: the drawn legs run from the rope's end to the attachment points."""
     import tomllib
 
-    from swingsim.render.api import draw_frames
+    from swingsim.render.frames import draw_frames
     from swingsim.render.facts import collect
     from swingsim.render.stage import Stage
     from swingsim.scene import scene_from_dict

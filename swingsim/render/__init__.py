@@ -13,7 +13,24 @@ __all__ = ["render_scene", "RenderUnavailableError"]
 
 
 def render_scene(traj, summary, out_dir, **options):
-    """Render a run as a video and stills; see :func:`swingsim.render.api.render_scene`."""
+    """Render a run as a video and stills; see :func:`swingsim.render.api.render_scene`.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The solved run.
+    summary : swingsim.metrics.Summary or dict or None
+        Its measures; measured from ``traj`` when None.
+    out_dir : str or pathlib.Path
+        Folder to write into.
+    **options
+        The keyword options of :func:`swingsim.render.api.render_scene` (size, fps, fmt, view, ...).
+
+    Returns
+    -------
+    list of pathlib.Path
+        The video first, then the stills.
+    """
     from swingsim.render.api import render_scene as _render
 
     return _render(traj, summary, out_dir, **options)

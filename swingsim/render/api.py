@@ -10,18 +10,17 @@ from __future__ import annotations
 
 import math
 import os
-import sys
 from pathlib import Path
 
 import numpy as np
 
 from swingsim.errors import InputError
-from swingsim.render import facts as F
+from swingsim.render import facts as run_facts
+from swingsim.render import writers
+from swingsim.render.frames import build_stage, draw_frames, progress_bar, read_load_mesh, rows
 from swingsim.render.views import VIEWS
 
 FORMATS = ("mp4", "gif", "png")
-#: Frames drawn per sampling call: bounds memory for any clip length.
-CHUNK = 64
 #: Below this many frames one process draws everything: starting a worker costs about
 #: 1.5 s of CPU, and one process already renders 1280x720 at well over 30 frames/s
 #: on 2 cores; from about 15 s of video on, two workers are faster
@@ -32,15 +31,46 @@ PARALLEL_MIN_FRAMES = 450
 def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:
     """Simulated times of the frames of the window [t0, t1] [s].
 
-    ``round((t1 - t0) * fps / speed)`` frames, ``speed / fps`` simulated seconds apart,
-    the first at ``t0``.
+    ``round((t1 - t0) * fps / speed)`` frames (at least one), ``speed / fps``
+    simulated seconds apart, the first at ``t0``.
+
+    Parameters
+    ----------
+    t0, t1 : float
+        The simulated time window [s].
+    fps : float
+        Frames per second of the video [1/s].
+    speed : float
+        Playback speed: simulated seconds per second of video [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        The frames' simulated times [s].
     """
     n = max(1, int(round((t1 - t0) * fps / speed)))
     return t0 + np.arange(n) * (speed / fps)
 
 
 def output_names(scene, out_dir, fmt, stills=True) -> dict:
-    """The files a render writes: {"video": path, "stills": {kind: path}}."""
+    """The files a render writes, named after the scene.
+
+    Parameters
+    ----------
+    scene : swingsim.scene.Scene
+        The scene (its ``name``).
+    out_dir : str or pathlib.Path
+        The output folder.
+    fmt : {"mp4", "gif", "png"}
+        The video format; "png" writes a folder ``<scene>_frames``.
+    stills : bool
+        Whether stills are written.
+
+    Returns
+    -------
+    dict
+        ``{"video": path, "stills": {kind: path}}`` (no stills when ``stills`` is false).
+    """
     out = Path(out_dir)
     stem = scene.name
     video = out / (f"{stem}.{fmt}" if fmt != "png" else f"{stem}_frames")
@@ -49,7 +79,39 @@ def output_names(scene, out_dir, fmt, stills=True) -> dict:
 
 
 def check_options(scene, *, size, fps, fmt, view, speed, window, split, source="render"):
-    """Validate render options; raise InputError (one line) naming the option and what is allowed."""
+    """Validate render options before anything is drawn or written.
+
+    Parameters
+    ----------
+    scene : swingsim.scene.Scene
+        The scene (its duration and its ``[view]`` table).
+    size : (int, int)
+        Frame width and height [px]: 64 to 7680 by 64 to 4320, even for MP4.
+    fps : float
+        Frames per second, 1 to 120 [1/s].
+    fmt : str
+        "mp4", "gif" or "png".
+    view : str
+        One of :data:`swingsim.render.views.VIEWS`.
+    speed : float
+        Playback speed, 0.01 to 100 [-].
+    window : (float, float) or None
+        Simulated time window [s]: 0 <= from < to, from before the run's end.
+    split : sequence of str or None
+        Two views side by side.
+    source : str
+        What to name as the source of an error.
+
+    Returns
+    -------
+    list of str
+        The views to draw (one, or two for a split picture).
+
+    Raises
+    ------
+    InputError
+        One line naming the option and what is allowed.
+    """
     def bad(key, value, what):
         return InputError(source, key, what, value)
 
@@ -80,72 +142,6 @@ def check_options(scene, *, size, fps, fmt, view, speed, window, split, source="
         if t0 >= scene.duration_s:
             raise bad("--from", t0, f"must be before the end of the run (duration_s = {scene.duration_s:g})")
     return views
-
-
-def _read_mesh(scene):
-    if scene.load.mesh_file is None:
-        return None
-    import pyvista as pv
-
-    from swingsim.errors import SceneError
-
-    p = Path(scene.load.mesh_file)
-    full = p if p.is_absolute() else Path(scene.base_dir) / p
-    import warnings
-
-    import vtk
-
-    shown = vtk.vtkObject.GetGlobalWarningDisplay()
-    vtk.vtkObject.GlobalWarningDisplayOff()  # a bad file is reported once, below, not by VTK too
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            mesh = pv.read(full)
-    except Exception as exc:  # noqa: BLE001 - any reader failure is bad input
-        raise SceneError(scene.file, "load.mesh_file", f"cannot be read as a mesh ({type(exc).__name__})",
-                         scene.load.mesh_file) from None
-    finally:
-        vtk.vtkObject.SetGlobalWarningDisplay(shown)
-    if not isinstance(mesh, pv.PolyData):
-        mesh = mesh.extract_surface()
-    if mesh.n_points == 0:
-        raise SceneError(scene.file, "load.mesh_file", "the mesh has no points", scene.load.mesh_file)
-    return mesh.triangulate()
-
-
-def _progress(total, quiet, desc):
-    from tqdm import tqdm
-
-    return tqdm(total=total, unit="frame", desc=desc, disable=quiet or not sys.stderr.isatty(),
-                leave=False, dynamic_ncols=True)
-
-
-def _rows(samp: dict, n: int):
-    """Split a dict of sampled arrays (leading axis n) into one dict per sample."""
-    keys = [k for k, v in samp.items() if isinstance(v, np.ndarray) and v.ndim and len(v) == n]
-    const = {k: v for k, v in samp.items() if k not in keys}
-    for i in range(n):
-        row = dict(const)
-        for k in keys:
-            row[k] = samp[k][i]
-        yield row
-
-
-def draw_frames(stage, traj, times, video_t0_index=0, fps=30.0, on_frame=None):
-    """Pose and photograph ``stage`` at each of ``times``, yielding frames one by one."""
-    from swingsim.scene3d.geometry import crane_pose
-
-    for c0 in range(0, len(times), CHUNK):
-        ts = times[c0:c0 + CHUNK]
-        samp = traj.sample(ts)
-        X, Y, phi, rho = crane_pose(traj.motion, ts)
-        for i, row in enumerate(_rows(samp, len(ts))):
-            k = video_t0_index + c0 + i
-            stage.pose(float(ts[i]), row, (float(X[i]), float(Y[i]), float(phi[i]), float(rho[i])),
-                       video_t=k / fps)
-            yield stage.grab()
-            if on_frame:
-                on_frame()
 
 
 def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4", view="oblique",
@@ -201,8 +197,8 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
             if p.exists():
                 raise InputError(str(p), "", "exists already; use --force to replace it")
     require_opengl()
-    mesh = _read_mesh(scene)
-    facts = F.collect(traj, summary)
+    mesh = read_load_mesh(scene)
+    facts = run_facts.collect(traj, summary)
     t_end = float(traj.t_end_s)
     t0, t1 = (0.0, t_end) if window is None else (float(window[0]), min(float(window[1]), t_end))
     times = frame_times(t0, t1, fps, speed)
@@ -220,7 +216,7 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
                                        quiet=quiet))
         stage = None
     else:
-        stage = _stage(traj, facts, size, views, mesh, speed, video_len)
+        stage = build_stage(traj, facts, size, views, mesh, speed, video_len)
         try:
             written.append(_write_video(stage, traj, names["video"], times, size, fps, fmt, quiet))
         except BaseException:
@@ -228,9 +224,9 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
             raise
     if names["stills"]:
         if stage is None:
-            stage = _stage(traj, facts, size, views, mesh, speed, video_len)
+            stage = build_stage(traj, facts, size, views, mesh, speed, video_len)
         try:
-            written += write_stills(stage, traj, facts, names["stills"])
+            written += _write_stills(stage, traj, facts, names["stills"])
         finally:
             stage.close()
     elif stage is not None:
@@ -238,24 +234,16 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
     return written
 
 
-def _stage(traj, facts, size, views, mesh, speed, video_len):
-    from swingsim.render.stage import Stage
-
-    return Stage(traj, facts, size=size, views=views, load_mesh=mesh, speed=speed, video_len_s=video_len)
-
-
 def _write_video(stage, traj, target, times, size, fps, fmt, quiet, video_t0_index=0, video_len=None):
-    from swingsim.render import writers as W
-
     if fmt == "mp4":
-        sink = W.Mp4Writer(target, size, fps)
+        sink = writers.Mp4Writer(target, size, fps)
     elif fmt == "gif":
         k = np.linspace(0, len(times) - 1, min(8, len(times))).round().astype(int)
         sample = list(draw_frames(stage, traj, times[k], fps=fps))
-        sink = W.GifWriter(target, size, fps, sample)
+        sink = writers.GifWriter(target, size, fps, sample)
     else:
-        sink = W.PngSequenceWriter(target, size, fps)
-    bar = _progress(len(times), quiet, Path(target).name)
+        sink = writers.PngSequenceWriter(target, size, fps)
+    bar = progress_bar(len(times), quiet, Path(target).name)
     try:
         for frame in draw_frames(stage, traj, times, video_t0_index, fps, on_frame=lambda: bar.update()):
             sink.write(frame)
@@ -273,6 +261,16 @@ def still_times(facts) -> dict:
 
     A run that stopped early (slack rope, overswing) has a still of its last valid
     instant instead of the moments it never reached.
+
+    Parameters
+    ----------
+    facts : swingsim.render.facts.Facts
+        The run's events.
+
+    Returns
+    -------
+    dict
+        Still kind ("peak_swing", "end_of_moves", "settled", "stopped") -> simulated time [s].
     """
     t = {"peak_swing": facts.peak_time_s}
     if 0 < facts.last_move_end_s <= facts.t_end_s:
@@ -284,18 +282,15 @@ def still_times(facts) -> dict:
     return t
 
 
-def write_stills(stage, traj, facts, targets: dict) -> list:
+def _write_stills(stage, traj, facts, targets: dict) -> list:
     """PNG stills at the moments of :func:`still_times`, with the caution line (no banner)."""
-    from swingsim.render import writers as W
-    from swingsim.scene3d.geometry import crane_pose
-
     out = []
     for kind, t in still_times(facts).items():
         if kind not in targets:
             continue
         ts = np.array([t])
-        row = next(_rows(traj.sample(ts), 1))
-        X, Y, phi, rho = crane_pose(traj.motion, ts)
-        stage.pose(t, row, (float(X[0]), float(Y[0]), float(phi[0]), float(rho[0])), video_t=None)
-        out.append(W.write_png(targets[kind], stage.grab()))
+        samples = traj.sample(ts)
+        stage.show(t, stage.scene3d.frames_from_samples(samples, traj.motion.pose(ts)), 0,
+                   next(rows(samples, 1)), video_t=None)
+        out.append(writers.write_png(targets[kind], stage.grab()))
     return out

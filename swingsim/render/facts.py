@@ -37,7 +37,18 @@ class Facts:
 
 
 def rope_angle_deg(rope_dir) -> np.ndarray:
-    """Rope angle from the vertical [deg] of unit rope directions (N, 3) pointing down."""
+    """Rope angle from the vertical of unit rope directions, by the summary's own definition.
+
+    Parameters
+    ----------
+    rope_dir : array_like, shape (..., 3)
+        Unit vectors along the rope, pointing down from the suspension point.
+
+    Returns
+    -------
+    numpy.ndarray
+        Angles [deg].
+    """
     from swingsim.metrics.single import rope_angle_rad  # the summary's own definition, so the overlay agrees with it
 
     return np.degrees(rope_angle_rad(np.asarray(rope_dir, dtype=float)))
@@ -54,7 +65,20 @@ def _get(summary, name):
 
 
 def collect(traj, summary=None) -> Facts:
-    """Facts of a run, from ``summary`` (``swingsim.metrics.summarize``; made when None)."""
+    """The events and peak swing of a run, as its summary measured them.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary or dict, optional
+        Its measures (``swingsim.metrics.summarize``); measured here when None.
+
+    Returns
+    -------
+    Facts
+        Move starts and ends, the peak swing, settling and an early stop, in time order.
+    """
     if summary is None:
         from swingsim.metrics.single import summarize
 

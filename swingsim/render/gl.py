@@ -28,7 +28,13 @@ def _message(detail: str) -> str:
 
 
 def find_gl_libraries() -> dict:
-    """Which OpenGL client libraries the dynamic loader can find (name -> found)."""
+    """Which OpenGL client libraries the dynamic loader can find.
+
+    Returns
+    -------
+    dict
+        ``{"EGL": bool, "OSMesa": bool, "GL": bool}``.
+    """
     return {name: ctypes.util.find_library(name) is not None for name in ("EGL", "OSMesa", "GL")}
 
 
@@ -36,8 +42,17 @@ def prepare_environment(environ=None) -> str | None:
     """Choose VTK's offscreen window before VTK makes its first window.
 
     With no ``DISPLAY`` and no explicit choice, asks for EGL when ``libEGL``
-    is present, else for OSMesa when ``libOSMesa`` is.  Returns the choice
-    (or the user's own setting), or None when nothing can work.
+    is present, else for OSMesa when ``libOSMesa`` is.
+
+    Parameters
+    ----------
+    environ : dict, optional
+        The environment to read and set (``os.environ`` by default).
+
+    Returns
+    -------
+    str or None
+        The window class chosen (or the user's own setting), or None when nothing can work.
     """
     env = os.environ if environ is None else environ
     libs = find_gl_libraries()
@@ -56,6 +71,16 @@ def prepare_environment(environ=None) -> str | None:
 
 def require_opengl(environ=None) -> str:
     """Make sure an offscreen OpenGL context can be made, or raise one clear line.
+
+    Parameters
+    ----------
+    environ : dict, optional
+        The environment to read and set (``os.environ`` by default).
+
+    Returns
+    -------
+    str
+        The VTK window class in use.
 
     Raises
     ------

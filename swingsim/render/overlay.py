@@ -24,11 +24,22 @@ EVENT_HOLD_S = 2.5
 
 
 def caution_line(max_chars: int = 200) -> str:
-    """The small caution shown on every frame, wrapped to ``max_chars`` a line."""
+    """The small caution shown on every frame.
+
+    Parameters
+    ----------
+    max_chars : int
+        Longest line [characters].
+
+    Returns
+    -------
+    str
+        The short caution, wrapped.
+    """
     return _wrap(_CAUTION_SHORT, max_chars)
 
 
-def banner_text(max_chars: int = 70) -> str:
+def _banner_text(max_chars: int = 70) -> str:
     """The caution banner of the first and last seconds (wrapped for the screen)."""
     return _wrap(_CAUTION, max_chars)
 
@@ -39,7 +50,7 @@ def _wrap(text: str, width: int) -> str:
     return "\n".join(textwrap.wrap(text, width))
 
 
-def banner_on(video_t_s: float, video_len_s: float) -> bool:
+def _banner_on(video_t_s: float, video_len_s: float) -> bool:
     """Whether the banner shows at video time ``video_t_s`` of a clip ``video_len_s`` long."""
     if video_t_s is None:  # a still
         return False
@@ -60,10 +71,31 @@ class FrameText:
     stopped: str = ""
 
     def strings(self) -> list[str]:
+        """All the frame's words, in drawing order.
+
+        Returns
+        -------
+        list of str
+            Clock, readout, event, zone, caution, banner, stopped.
+        """
         return [self.clock, self.readout, self.event, self.zone, self.caution, self.banner, self.stopped]
 
 
 def clock_text(t_s: float, speed: float) -> str:
+    """The clock: simulated time, and slow motion or time-lapse when played so.
+
+    Parameters
+    ----------
+    t_s : float
+        Simulated time [s].
+    speed : float
+        Playback speed [-].
+
+    Returns
+    -------
+    str
+        E.g. ``"t =   3.00 s   slow motion x0.5"``.
+    """
     tag = ""
     if speed < 0.999:
         tag = f"   slow motion x{speed:g}"
@@ -72,25 +104,38 @@ def clock_text(t_s: float, speed: float) -> str:
     return f"t = {t_s:6.2f} s{tag}"
 
 
-def readout_text(angle_deg: float, speed_m_s: float, tension_kN: float, rope_m: float) -> str:
+def _readout_text(angle_deg: float, speed_m_s: float, tension_kN: float, rope_m: float) -> str:
     rows = [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
             ("tension", f"{tension_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
     return "\n".join(f"{a:<12}{b:>7} {c:<3}" for a, b, c in rows)
 
 
 def event_text(t_s: float, events) -> str:
-    """Labels of the events in the last EVENT_HOLD_S seconds, newest last."""
+    """Labels of the events of the last EVENT_HOLD_S seconds, newest last (three at most).
+
+    Parameters
+    ----------
+    t_s : float
+        Simulated time [s].
+    events : sequence of swingsim.render.facts.Event
+        The run's events.
+
+    Returns
+    -------
+    str
+        One label a line.
+    """
     on = [e.label for e in events if e.t_s <= t_s + 1e-9 and t_s - e.t_s < EVENT_HOLD_S]
     return "\n".join(on[-3:])
 
 
-def zone_text(names) -> str:
+def _zone_text(names) -> str:
     if not names:
         return ""
     return "Load near zone: " + ", ".join(names)
 
 
-def stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
+def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
     """Near the end of a run that stopped early: when and why (the results stop there)."""
     if facts is None or facts.status == "ok" or t_s < facts.t_end_s - hold_s:
         return ""
@@ -100,7 +145,36 @@ def stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
 
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
                events, near_zones, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
-    """The text of the frame at simulated time ``t_s`` (``row``: one sample of the run)."""
+    """All the words of the frame at simulated time ``t_s``.
+
+    Parameters
+    ----------
+    t_s : float
+        Simulated time [s].
+    video_t_s : float or None
+        Time in the video [s]; None for a still (no banner).
+    video_len_s : float
+        Length of the video [s].
+    speed : float
+        Playback speed [-].
+    row : dict
+        The run's outputs at ``t_s`` (one instant of ``Trajectory.sample``).
+    events : sequence of swingsim.render.facts.Event
+        The run's events.
+    near_zones : sequence of str
+        Names of the zones within their margin of the load.
+    line_chars : int
+        Longest caution line [characters].
+    banner_chars : int
+        Longest banner line [characters].
+    facts : swingsim.render.facts.Facts, optional
+        The run's facts, for the notice of an early stop.
+
+    Returns
+    -------
+    FrameText
+        Clock, readout (rope angle, load speed, tension, rope length), events, zones, caution, banner, stop notice.
+    """
     from swingsim.render.facts import rope_angle_deg
 
     ang = float(rope_angle_deg(row["rope_dir"]))
@@ -108,10 +182,10 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     ten = float(row["rope_tension_N"]) / 1000.0
     return FrameText(
         clock=clock_text(t_s, speed),
-        readout=readout_text(ang, spd, ten, float(row["rope_length"])),
+        readout=_readout_text(ang, spd, ten, float(row["rope_length"])),
         event=event_text(t_s, events),
-        zone=zone_text(near_zones),
+        zone=_zone_text(near_zones),
         caution=caution_line(line_chars),
-        banner=banner_text(banner_chars) if banner_on(video_t_s, video_len_s) else "",
-        stopped=stopped_text(t_s, facts),
+        banner=_banner_text(banner_chars) if _banner_on(video_t_s, video_len_s) else "",
+        stopped=_stopped_text(t_s, facts),
     )

@@ -22,21 +22,21 @@ from pathlib import Path
 import numpy as np
 
 from swingsim.io.files import TMP_PREFIX
+from swingsim.render import facts as run_facts
+from swingsim.render import writers
+from swingsim.render.frames import build_stage, draw_frames, progress_bar, read_load_mesh
 
 
 def _draw_range(job: dict) -> None:
     """Worker: draw the frames of ``job["times"]`` into ``job["segment"]``."""
-    from swingsim.render import facts as F
-    from swingsim.render import writers as W
-    from swingsim.render.api import _read_mesh, _stage, draw_frames
     from swingsim.render.gl import require_opengl
 
     require_opengl()
     traj = job["traj"]
-    facts = F.collect(traj, job["summary"])
-    stage = _stage(traj, facts, job["size"], job["views"], _read_mesh(traj.scene), job["speed"],
+    facts = run_facts.collect(traj, job["summary"])
+    stage = build_stage(traj, facts, job["size"], job["views"], read_load_mesh(traj.scene), job["speed"],
                    job["video_len"])
-    sink = W.Mp4Writer(job["segment"], job["size"], job["fps"], threads=1)
+    sink = writers.Mp4Writer(job["segment"], job["size"], job["fps"], threads=1)
     try:
         n = 0
         for frame in draw_frames(stage, traj, job["times"], video_t0_index=job["k0"], fps=job["fps"]):
@@ -54,11 +54,45 @@ def _draw_range(job: dict) -> None:
 
 
 def render_parallel(traj, summary, target, times, *, size, fps, views, speed, video_len, workers, quiet):
-    """Render ``times`` into the MP4 ``target`` with ``workers`` processes; returns the path."""
+    """Render ``times`` into the MP4 ``target`` with worker processes and join their segments.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run (pickled to each worker).
+    summary : swingsim.metrics.Summary or dict or None
+        Its measures.
+    target : str or pathlib.Path
+        The MP4 to write.
+    times : numpy.ndarray
+        Simulated times of all frames [s], split into contiguous ranges.
+    size : (int, int)
+        Frame width and height [px].
+    fps : float
+        Frames per second [1/s].
+    views : sequence of str
+        One view, or two side by side.
+    speed : float
+        Playback speed [-].
+    video_len : float
+        Length of the whole video [s].
+    workers : int
+        Worker processes (at most one a frame).
+    quiet : bool
+        No progress bar.
+
+    Returns
+    -------
+    pathlib.Path
+        ``target``.
+
+    Raises
+    ------
+    RuntimeError
+        A worker failed (its last error line is named).
+    """
     import selectors
 
-    from swingsim.render import writers as W
-    from swingsim.render.api import _progress
 
     target = Path(target)
     workers = max(1, min(workers, len(times)))
@@ -68,7 +102,7 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
     pkg_root = str(Path(__file__).resolve().parents[2])
     env["PYTHONPATH"] = pkg_root + (os.pathsep + env["PYTHONPATH"] if env.get("PYTHONPATH") else "")
     procs, parts = [], []
-    bar = _progress(len(times), quiet, target.name)
+    bar = progress_bar(len(times), quiet, target.name)
     sel = selectors.DefaultSelector()
     try:
         for i in range(workers):
@@ -96,7 +130,7 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
             if p.wait() != 0:
                 last = [ln for ln in err.strip().splitlines() if ln.strip()]
                 raise RuntimeError("a render worker failed: " + (last[-1] if last else f"exit {p.returncode}"))
-        return W.concat_mp4(parts, target)
+        return writers.concat_mp4(parts, target)
     finally:
         for p in procs:
             if p.poll() is None:

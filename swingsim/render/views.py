@@ -36,13 +36,29 @@ class Camera:
 
 
 def fit(name: str, points, aspect: float, margin: float = 0.92) -> Camera:
-    """Camera of a preset that shows all ``points`` (N, 3) [m], as large as they fit.
+    """Camera of a preset that shows all ``points``, as large as they fit.
 
     The camera looks along the preset's direction; its distance (or, for the
     orthographic plan view, its scale) is the smallest at which every point
     projects inside ``margin`` of the picture's half-width and half-height,
     found by bisection on the perspective projection itself, then the aim is
     re-centred on the points' picture and fitted again.
+
+    Parameters
+    ----------
+    name : str
+        A preset of :data:`DIRECTIONS`.
+    points : array_like, shape (n, 3)
+        Points that must be in view [m].
+    aspect : float
+        Picture width over height [-].
+    margin : float
+        Share of the half-width and half-height the points may fill [-].
+
+    Returns
+    -------
+    Camera
+        Position, focus and up; a parallel scale for the plan view.
     """
     pts = np.asarray(points, dtype=float).reshape(-1, 3)
     d, up = (np.asarray(v, dtype=float) for v in DIRECTIONS[name])
@@ -94,7 +110,22 @@ def fit(name: str, points, aspect: float, margin: float = 0.92) -> Camera:
 
 
 def follow(focus, span: float, aspect: float) -> Camera:
-    """Camera of the ``follow`` view: the same direction as ``oblique``, ``span`` metres high in view."""
+    """Camera of the ``follow`` view: the same direction as ``oblique``, ``span`` metres high in view.
+
+    Parameters
+    ----------
+    focus : sequence of 3 float
+        The point looked at [m].
+    span : float
+        Height of the scene shown at the focus [m].
+    aspect : float
+        Picture width over height [-] (unused: the height sets the distance).
+
+    Returns
+    -------
+    Camera
+        The camera.
+    """
     d, up = (np.asarray(v, dtype=float) for v in DIRECTIONS["follow"])
     d /= np.linalg.norm(d)
     t = math.tan(math.radians(VIEW_ANGLE_DEG) / 2)
@@ -104,5 +135,16 @@ def follow(focus, span: float, aspect: float) -> Camera:
 
 
 def custom(view) -> Camera:
-    """Camera of a scene's ``[view]`` table."""
+    """Camera of a scene's ``[view]`` table.
+
+    Parameters
+    ----------
+    view : swingsim.scene.View
+        Position, focus, up [m] and vertical field of view [deg].
+
+    Returns
+    -------
+    Camera
+        The camera.
+    """
     return Camera(tuple(view.position_m), tuple(view.focus_m), tuple(view.up), view.view_angle_deg)

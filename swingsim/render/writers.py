@@ -30,7 +30,7 @@ def _tmp_name(target: Path, suffix: str = "") -> Path:
     return Path(name)
 
 
-def replace(tmp: Path, target: Path) -> None:
+def _replace_folder(tmp: Path, target: Path) -> None:
     """Move the folder ``tmp`` onto ``target``, replacing an older folder of that name."""
     if target.is_dir() and not target.is_symlink():
         old = target.with_name(f"{TMP_PREFIX}{target.name}-old-{os.getpid()}")
@@ -57,7 +57,20 @@ class _Atomic:
 
 
 def write_png(path, image: np.ndarray) -> Path:
-    """One PNG, written atomically."""
+    """One PNG, written atomically.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The file to write.
+    image : numpy.ndarray
+        (height, width, 3) uint8 RGB.
+
+    Returns
+    -------
+    pathlib.Path
+        ``path``.
+    """
     import imageio.v3 as iio
 
     with atomic_path(path) as tmp:
@@ -117,9 +130,9 @@ class Mp4Writer(_Pipe):
     """H.264 in MP4 with yuv420p colour, which ordinary players and slide software open."""
 
     def __init__(self, target, size, fps, threads=None):
-        extra = [] if threads is None else ["-threads", str(threads)]
+        thread_args = [] if threads is None else ["-threads", str(threads)]
         super().__init__(target, size, fps, ["-an", "-c:v", "libx264", "-preset", X264_PRESET,
-                                             "-crf", X264_CRF, "-pix_fmt", "yuv420p", *extra,
+                                             "-crf", X264_CRF, "-pix_fmt", "yuv420p", *thread_args,
                                              "-movflags", "+faststart", "-f", "mp4"])
 
 
@@ -128,22 +141,30 @@ class GifWriter(_Pipe):
 
     def __init__(self, target, size, fps, palette_frames):
         self._pal = _tmp_name(Path(target), ".png")
-        write_palette(self._pal, palette_frames)
+        _write_palette(self._pal, palette_frames)
         super().__init__(target, size, fps, ["-lavfi", "[0:v][1:v]paletteuse=dither=bayer:bayer_scale=4",
                                              "-loop", "0", "-f", "gif"], extra_inputs=["-i", str(self._pal)])
 
     def close(self):
+        """Finish the GIF and put it in place.
+
+        Returns
+        -------
+        pathlib.Path
+            The GIF.
+        """
         try:
             return super().close()
         finally:
             self._pal.unlink(missing_ok=True)
 
     def abort(self):
+        """Stop the encoder and leave nothing behind."""
         super().abort()
         self._pal.unlink(missing_ok=True)
 
 
-def write_palette(path: Path, frames) -> None:
+def _write_palette(path: Path, frames) -> None:
     """A 16x16 PNG of the 256 colours that best cover ``frames`` (median cut, Pillow)."""
     from PIL import Image
 
@@ -168,22 +189,55 @@ class PngSequenceWriter:
         self.count = 0
 
     def write(self, frame):
+        """Write the next numbered frame.
+
+        Parameters
+        ----------
+        frame : numpy.ndarray
+            (height, width, 3) uint8 RGB.
+        """
         import imageio.v3 as iio
 
         iio.imwrite(self.tmp / f"frame_{self.count:05d}.png", frame, extension=".png", compress_level=1)
         self.count += 1
 
     def close(self) -> Path:
-        replace(self.tmp, self.target)
+        """Put the folder of frames in place (replacing an older one).
+
+        Returns
+        -------
+        pathlib.Path
+            The folder.
+        """
+        _replace_folder(self.tmp, self.target)
         WRITTEN.append(self.target)
         return self.target
 
     def abort(self):
+        """Remove the frames written so far."""
         shutil.rmtree(self.tmp, ignore_errors=True)
 
 
 def concat_mp4(parts, target: Path) -> Path:
-    """Join MP4 segments of identical encoding into one file without re-encoding (ffmpeg concat)."""
+    """Join MP4 segments of identical encoding into one file without re-encoding (ffmpeg's concat demuxer).
+
+    Parameters
+    ----------
+    parts : sequence of pathlib.Path
+        The segments, in order.
+    target : str or pathlib.Path
+        The MP4 to write (atomically).
+
+    Returns
+    -------
+    pathlib.Path
+        ``target``.
+
+    Raises
+    ------
+    RuntimeError
+        ffmpeg failed (its last line is named).
+    """
     import imageio_ffmpeg
 
     target = Path(target)

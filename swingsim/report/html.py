@@ -14,7 +14,7 @@ import io
 import math
 
 from swingsim.metrics import cautions
-from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE
+from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE
 
 # one colour per category, our own palette
 _COLOURS = [ROPE, LOAD, "#4f7d3a", "#7a4fa0", "#b08a1e", "#2d8f8f", INK, "#a0507a"]
@@ -64,7 +64,7 @@ def _fmt(x, nd=3) -> str:
     return html.escape(str(x))
 
 
-def quantity_figure(rows, key, others=()):
+def _quantity_figure(rows, key, others=()):
     """Residual swing and move time of every variant against one varied key (PNG, base64).
 
     One line per combination of the ``others`` keys' values (markers only when
@@ -112,7 +112,7 @@ def quantity_figure(rows, key, others=()):
     return _png(plt, fig)
 
 
-def sensitivity_figure(sens):
+def _sensitivity_figure(sens):
     """Residual swing against rope-length error for each profile (PNG, base64)."""
     plt, fig = _fig()
     ax = fig.add_subplot(1, 1, 1)
@@ -132,17 +132,25 @@ def sensitivity_figure(sens):
 
 
 def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str:
-    """The report page.
+    """The comparison's report page: one self-contained HTML file (plots embedded, no scripts).
 
     Parameters
     ----------
-    sweep : Sweep
+    sweep : swingsim.study.variants.Sweep
+        The sweep (title, varied keys, objective, limits, base scene).
     rows : list of dict
         Per variant: ``index``, ``name``, ``values`` (dotted key -> value), ``summary``.
     ranking : list of dict
         Rows in rank order with ``rank`` (None when outside the limits or without a value).
     sensitivity : dict, optional
-        ``curves`` {profile: [(error, residual_deg), ...]}, ``design_length_m``, ``design_period_s``.
+        ``curves`` {profile: [(error, residual_deg), ...]}, ``design_length_m``, ``design_period_s``, ``move``.
+    max_rows : int
+        Rows of the ranking table shown; every variant is in the CSV files.
+
+    Returns
+    -------
+    str
+        The page.
     """
     e = html.escape
     obj = sweep.minimize
@@ -188,14 +196,14 @@ def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str
     parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
     for k in cols:
         others = [c for c in cols if c != k]
-        img = quantity_figure(rows, k, others)
+        img = _quantity_figure(rows, k, others)
         parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
                      f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
                      f"move ends; right: when the last move ends; against <code>{e(k)}</code>"
                      + (", one colour per combination of the other compared values" if others else "")
                      + ".</figcaption></figure>")
     if sensitivity:
-        img = sensitivity_figure(sensitivity)
+        img = _sensitivity_figure(sensitivity)
         parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
         parts.append(f'<figure class="plot"><img alt="sensitivity of the residual swing to rope length" '
                      f'src="data:image/png;base64,{img}"><figcaption>{e(sensitivity["move"])}: every profile '

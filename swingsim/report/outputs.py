@@ -10,6 +10,26 @@ from swingsim.report.tables import summary_json, summary_text, timeseries_column
 
 
 def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Path]:
+    """Write every output file of one run into a folder, each file atomically.
+
+    Everything that can fail is computed before the first file appears.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures.
+    out_dir : str or pathlib.Path
+        The folder.
+    plots : bool
+        Also write the PNG plots.
+
+    Returns
+    -------
+    list of pathlib.Path
+        summary.json, timeseries.csv, summary.txt, then the plots.
+    """
     out = Path(out_dir)
     # compute everything that can fail before the first file appears
     cols = timeseries_columns(traj)  # sampled once, for the CSV and every plot

@@ -7,55 +7,39 @@ atomically.  Every figure carries the caution line.
 from __future__ import annotations
 
 import io
-import math
 
 import numpy as np
 
-from swingsim.metrics import cautions
 from swingsim.io.files import atomic_write_bytes
+from swingsim.report.plots_rigging import rigging_figure
+from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves,
+                                   title_and_caution)
 from swingsim.report.tables import timeseries_columns
 
-# our own plain palette, legible on a projector
-INK = "#1d2731"
-ROPE = "#0b6e99"
-LOAD = "#c8553d"
-MOVE_BAND = "#f2d0a4"
-LIMIT = "#8a1c1c"
-GREY = "#8c959f"
-ENVELOPE = "#d6e6ef"
-
-
-def _figure(w=10.0, h=5.6):
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot as plt
-
-    fig = plt.figure(figsize=(w, h), dpi=110)
-    return plt, fig
-
-
-def _footer(fig, title, summary=None):
-    fig.text(0.01, 0.985, title, ha="left", va="top", fontsize=11, weight="bold", color=INK)
-    if summary is not None and not summary.get("valid", True):
-        fig.text(0.99, 0.985, f"RESULT INVALID: the run stopped at t = {summary['simulated_until_s']:.2f} s",
-                 ha="right", va="top", fontsize=10, weight="bold", color="white",
-                 bbox={"facecolor": LIMIT, "edgecolor": LIMIT, "pad": 3})
-    fig.text(0.5, 0.008, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7.5, color=LIMIT)
-
-
-def _moves(ax, scene, motion):
-    ymax = ax.get_ylim()[1]
-    for (axis, prof), m in zip(motion.moves, scene.moves):
-        ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
-        ax.text(prof.start_s, ymax, " " + m.name, fontsize=7.5, va="top", ha="left", color=INK,
-                rotation=0, clip_on=True)
-
-
 def swing_figure(traj, summary, cols=None):
+    """swing.png: the rope angle over time.
+
+    The angle from vertical and its projections on x-z and y-z, the caution
+    angle, the peak, when it settles, and the moves shaded.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures (peak, settling).
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure, with its title and the caution line.
+    """
     scene = traj.scene
     c = timeseries_columns(traj) if cols is None else cols
-    plt, fig = _figure()
+    plt, fig = new_figure()
     ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
     t = c["t_s"]
     ax.plot(t, c["rope_angle_deg"], color=ROPE, lw=1.8, label="rope angle from vertical")
@@ -66,7 +50,7 @@ def swing_figure(traj, summary, cols=None):
     ax.axhline(lim.swing_caution_deg, color=LIMIT, lw=1, ls="-.", label=f"caution angle {lim.swing_caution_deg:g} deg")
     ax.axhline(-lim.swing_caution_deg, color=LIMIT, lw=1, ls="-.")
     ax.set_ylim(min(ax.get_ylim()[0], -1.0), max(ax.get_ylim()[1], 1.0) * 1.15)
-    _moves(ax, scene, traj.motion)
+    shade_moves(ax, scene, traj.motion)
     ax.plot([d["peak_rope_angle_time_s"]], [d["peak_rope_angle_deg"]], "v", color=LOAD, ms=8,
             label=f"peak {d['peak_rope_angle_deg']:.2f} deg")
     if d["settled_at_s"] is not None and d["moves"]:
@@ -77,35 +61,73 @@ def swing_figure(traj, summary, cols=None):
     ax.set_ylabel("angle [deg]")
     ax.grid(alpha=0.3)
     ax.legend(fontsize=8, loc="lower right", framealpha=0.9)
-    _footer(fig, f"{scene.title}: swing angle (shaded: moves)", summary)
+    title_and_caution(fig, f"{scene.title}: swing angle (shaded: moves)", summary)
     return fig
 
 
 def speed_figure(traj, summary, cols=None):
+    """speed.png: the suspension point's horizontal speed, the load's speed and the hoist speed over time.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures.
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure, with its title and the caution line.
+    """
     scene = traj.scene
     c = timeseries_columns(traj) if cols is None else cols
-    plt, fig = _figure()
+    plt, fig = new_figure()
     ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
     t = c["t_s"]
     ax.plot(t, c["suspension_speed_m_s"], color=INK, lw=1.8, label="suspension point, horizontal")
     ax.plot(t, c["load_speed_m_s"], color=LOAD, lw=1.2, label="load")
     if np.any(np.abs(c["hoist_speed_m_s"]) > 1e-9):
         ax.plot(t, c["hoist_speed_m_s"], color=ROPE, lw=1.2, ls="--", label="hoist (+ raising)")
-    _moves(ax, scene, traj.motion)
+    shade_moves(ax, scene, traj.motion)
     ax.set_xlabel("time [s]")
     ax.set_ylabel("speed [m/s]")
     ax.grid(alpha=0.3)
     ax.legend(fontsize=8, loc="upper right", framealpha=0.9)
-    _footer(fig, f"{scene.title}: speeds", summary)
+    title_and_caution(fig, f"{scene.title}: speeds", summary)
     return fig
 
 
 def plan_figure(traj, summary, cols=None):
+    """plan.png: the load's path in plan, and its offset from the plumb line.
+
+    Left: the suspension point's and the load's paths, the swing envelope and the
+    zones with their margins; right: the load relative to the point below the
+    suspension point, with the peak excursion and the clearance limit.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures (peak excursion).
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure, with its title and the caution line.
+    """
     from matplotlib.patches import Circle, Rectangle
 
     scene = traj.scene
     c = timeseries_columns(traj) if cols is None else cols
-    plt, fig = _figure(11.0, 5.8)
+    plt, fig = new_figure(11.0, 5.8)
     ax1 = fig.add_axes([0.06, 0.12, 0.42, 0.76])
     ax2 = fig.add_axes([0.56, 0.12, 0.40, 0.76])
     sx, sy = c["suspension_x_m"], c["suspension_y_m"]
@@ -150,21 +172,34 @@ def plan_figure(traj, summary, cols=None):
     ax2.grid(alpha=0.3)
     ax2.legend(fontsize=8, loc="upper right", framealpha=0.9)
     ax2.set_title("load relative to the point below the suspension point", fontsize=9)
-    _footer(fig, f"{scene.title}: load path", summary)
+    title_and_caution(fig, f"{scene.title}: load path", summary)
     return fig
 
 
-FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": plan_figure}
-
-
-def _register_model_figures():
-    # hook block, rigging, rigid load (plots_rigging.py): drawn only when the model has legs
-    from swingsim.report.plots_rigging import rigging_figure
-
-    FIGURES["rigging.png"] = rigging_figure
+#: File name -> figure function; rigging.png (plots_rigging.py) is drawn only when the model has legs.
+FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": plan_figure,
+           "rigging.png": rigging_figure}
 
 
 def write_plots(traj, summary, out_dir, cols=None) -> list:
+    """Draw every figure of :data:`FIGURES` that the run's model has, and save each as a PNG atomically.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures.
+    out_dir : str or pathlib.Path
+        The folder.
+    cols : dict, optional
+        The run's time-series columns, sampled once for all plots.
+
+    Returns
+    -------
+    list of pathlib.Path
+        The PNGs written.
+    """
     from pathlib import Path
 
     import matplotlib
@@ -172,7 +207,6 @@ def write_plots(traj, summary, out_dir, cols=None) -> list:
     matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
 
-    _register_model_figures()
     paths = []
     for name, fn in FIGURES.items():
         fig = fn(traj, summary, cols)

@@ -7,21 +7,37 @@ from __future__ import annotations
 
 import numpy as np
 
-from swingsim.report.plots import GREY, INK, LIMIT, LOAD, ROPE, _figure, _footer, _moves
+from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves, title_and_caution
 from swingsim.report.tables import timeseries_columns
 
 LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
 
 
 def rigging_figure(traj, summary, cols=None):
-    """Leg tensions (top) and the load's tilt, or the leg's angle to the rope (bottom); None if no legs."""
+    """rigging.png: leg tensions (top) and the load's tilt, or the leg's angle to the rope (bottom).
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    summary : swingsim.metrics.Summary
+        Its measures (hanging leg tensions, declared limits).
+    cols : dict, optional
+        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
+        sampled once for all plots; sampled here when None.
+
+    Returns
+    -------
+    matplotlib.figure.Figure or None
+        The figure, or None when the model has no sling legs.
+    """
     c = timeseries_columns(traj) if cols is None else cols
     legs = [k for k in c if k.startswith("leg_") and k.endswith("_tension_kN")]
     if not legs:
         return None
     d = summary.data
     t = c["t_s"]
-    plt, fig = _figure(10.0, 7.0)
+    plt, fig = new_figure(10.0, 7.0)
     ax = fig.add_axes([0.08, 0.46, 0.88, 0.44])
     for j, k in enumerate(legs):
         ax.plot(t, c[k], color=LEG_COLOURS[j % len(LEG_COLOURS)], lw=1.4, label=f"leg {j + 1}")
@@ -44,7 +60,7 @@ def rigging_figure(traj, summary, cols=None):
     ax.set_ylabel("tension [kN]")
     lo, hi = ax.get_ylim()
     ax.set_ylim(min(lo, 0.0) if np.min([c[k].min() for k in legs]) < 0 else lo, hi)
-    _moves(ax, traj.scene, traj.motion)
+    shade_moves(ax, traj.scene, traj.motion)
     ax.legend(loc="lower right", fontsize=8, framealpha=0.9)
     ax.grid(alpha=0.3)
     ax.tick_params(labelbottom=False)
@@ -70,5 +86,5 @@ def rigging_figure(traj, summary, cols=None):
     ax2.grid(alpha=0.3)
     if ax2.lines:
         ax2.legend(loc="upper right", fontsize=8, framealpha=0.9)
-    _footer(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
+    title_and_caution(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
     return fig

@@ -30,12 +30,36 @@ def _clean(x):
 
 
 def summary_json(summary) -> str:
-    """The summary as JSON text (NaN and infinity become null)."""
+    """The summary as JSON text (NaN and infinity become null).
+
+    Parameters
+    ----------
+    summary : swingsim.metrics.Summary
+        The run's measures.
+
+    Returns
+    -------
+    str
+        Indented JSON with a final newline.
+    """
     return json.dumps(_clean(summary.data), indent=2, allow_nan=False) + "\n"
 
 
 def timeseries_columns(traj, t=None) -> dict:
-    """The time-series columns (name -> 1-D array) at the scene's sample rate."""
+    """The time-series columns of a run, as timeseries.csv holds them.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    t : array_like, optional
+        Sample times [s]; the scene's sample rate by default.
+
+    Returns
+    -------
+    dict
+        Column name (with its unit, e.g. ``load_x_m``) -> 1-D array.
+    """
     t = traj.sample_times() if t is None else t
     s = traj.sample(t)
     n = s["rope_dir"]
@@ -73,6 +97,20 @@ def timeseries_columns(traj, t=None) -> dict:
 
 
 def timeseries_csv(traj, cols=None) -> str:
+    """timeseries.csv: one row per sample time, fixed float formatting.
+
+    Parameters
+    ----------
+    traj : swingsim.simulation.Trajectory
+        The run.
+    cols : dict, optional
+        Its columns (:func:`timeseries_columns`); sampled here when None.
+
+    Returns
+    -------
+    str
+        The CSV text, header first.
+    """
     cols = timeseries_columns(traj) if cols is None else cols
     names = list(cols)
     data = np.column_stack([np.asarray(cols[k], dtype=float) for k in names])
@@ -89,7 +127,20 @@ def _fmt(x, unit="", nd=2):
 
 
 def summary_text(summary, scene) -> str:
-    """A plain-text summary for a lift planner."""
+    """summary.txt: a plain-text summary for a lift planner, caution first.
+
+    Parameters
+    ----------
+    summary : swingsim.metrics.Summary
+        The run's measures.
+    scene : swingsim.scene.Scene
+        The scene (load, rope, wind).
+
+    Returns
+    -------
+    str
+        The text.
+    """
     d = summary.data
     w = []
     w.append(f"swingsim {d['swingsim_version']} - {d['title']}")

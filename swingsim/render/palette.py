@@ -1,0 +1,132 @@
+"""The video's look: the project's own plain palette and how each material is drawn.
+
+Light sky, sand ground, slate crane, signal-orange load; the hook block and a
+spreader beam share the hook's yellow.  Pure numpy: the texture images are
+coloured here from the class images of :mod:`swingsim.scene3d.ground`.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from swingsim.scene3d import ground
+
+PALETTE = {
+    "sky": "#dfe7ec",
+    "ground": "#d8d2c2", "grid_minor": "#c3bba6", "grid_major": "#8f8672",
+    "crane": "#3f5d7d", "crane_dark": "#2a3f56", "trolley": "#1f2d3d",
+    "rope": "#202020", "hook": "#f2c14e", "sling": "#2e7d32",
+    "load": "#f26b1d", "shadow": "#3b3528", "envelope": "#5fa8d3", "trail": "#7b2cbf",
+    "obstacle": "#6c757d", "exclusion": "#2a9d8f", "warn": "#d62828",
+    "axis_x": "#9d0208", "axis_y": "#1b4332", "text": "#111111", "panel": "#ffffff",
+    "banner": "#fff3b0",
+}
+
+#: How each material of :class:`swingsim.scene3d.Body` is drawn: its palette colour, opacity,
+#: lighting (ambient and diffuse shares, or unlit) and the width of its lines [px].
+_PLAIN = dict(opacity=1.0, ambient=0.25, diffuse=0.8, lighting=True, line_width=2)
+STYLE = {
+    "crane": dict(_PLAIN, colour="crane"),
+    "crane_dark": dict(_PLAIN, colour="crane_dark"),
+    "trolley": dict(_PLAIN, colour="trolley"),
+    "axis_x": dict(_PLAIN, colour="axis_x", lighting=False),
+    "axis_y": dict(_PLAIN, colour="axis_y", lighting=False),
+    "obstacle": dict(_PLAIN, colour="obstacle", opacity=0.33),
+    "exclusion": dict(_PLAIN, colour="exclusion", opacity=0.25),
+    "rope": dict(_PLAIN, colour="rope", ambient=0.4),
+    "sling": dict(_PLAIN, colour="sling", ambient=0.4),
+    "hook": dict(_PLAIN, colour="hook", ambient=0.4),
+    "spreader": dict(_PLAIN, colour="hook", ambient=0.4, line_width=3),
+    "load": dict(_PLAIN, colour="load", ambient=0.45, diffuse=0.7),
+    "shadow": dict(_PLAIN, colour="shadow", opacity=0.35, lighting=False),
+}
+#: Labels: palette colour, height as a share of the frame's height, bold.
+LABEL_STYLE = {
+    "grid": ("grid_major", 0.017, False),
+    "axis_x": ("axis_x", 0.022, True),
+    "axis_y": ("axis_y", 0.022, True),
+    "obstacle": ("obstacle", 0.02, True),
+    "exclusion": ("exclusion", 0.02, True),
+}
+#: Opacity of the swing envelope's inside and of its rim [0-255].
+ENVELOPE_ALPHA, ENVELOPE_EDGE_ALPHA = 120, 230
+
+
+def rgb(hex_colour: str) -> tuple:
+    """Red, green and blue of a ``#rrggbb`` colour, each from 0 to 1.
+
+    Parameters
+    ----------
+    hex_colour : str
+        The colour, e.g. ``"#f26b1d"``.
+
+    Returns
+    -------
+    tuple of float
+        (red, green, blue) in [0, 1].
+    """
+    return tuple(int(hex_colour[i:i + 2], 16) / 255.0 for i in (1, 3, 5))
+
+
+def darker(hex_colour: str, factor: float = 0.6) -> str:
+    """A darker shade of a colour.
+
+    Parameters
+    ----------
+    hex_colour : str
+        The colour, ``#rrggbb``.
+    factor : float
+        Share of its brightness kept [-].
+
+    Returns
+    -------
+    str
+        The shade, ``#rrggbb``.
+    """
+    r, g, b = rgb(hex_colour)
+    return "#%02x%02x%02x" % (int(r * factor * 255), int(g * factor * 255), int(b * factor * 255))
+
+
+def ground_image(classes: np.ndarray) -> np.ndarray:
+    """The ground texture in colour: sand, with lighter minor and darker major grid lines.
+
+    Parameters
+    ----------
+    classes : numpy.ndarray
+        (rows, columns) class image of :func:`swingsim.scene3d.ground.ground_texture`.
+
+    Returns
+    -------
+    numpy.ndarray
+        (rows, columns, 3) uint8 RGB, row 0 at the low-y edge.
+    """
+    table = np.zeros((3, 3), dtype=np.uint8)
+    for cls, key in ((ground.GROUND, "ground"), (ground.MINOR_LINE, "grid_minor"), (ground.MAJOR_LINE, "grid_major")):
+        table[cls] = np.asarray(rgb(PALETTE[key])) * 255
+    return table[classes]
+
+
+def envelope_image(classes: np.ndarray, colour=None) -> np.ndarray:
+    """The swing envelope texture: translucent inside, a darker, nearly opaque rim, clear outside.
+
+    Parameters
+    ----------
+    classes : numpy.ndarray
+        (rows, columns) class image of :func:`swingsim.scene3d.ground.envelope`.
+    colour : sequence of 3 float, optional
+        RGB in [0, 1]; the palette's envelope colour by default.
+
+    Returns
+    -------
+    numpy.ndarray
+        (rows, columns, 4) uint8 RGBA, row 0 at the low-y edge.
+    """
+    c = np.asarray(rgb(PALETTE["envelope"]) if colour is None else colour, dtype=float)
+    rgba = np.zeros(classes.shape + (4,), dtype=np.uint8)
+    rgba[..., :3] = c * 255
+    inside = classes != ground.OUTSIDE
+    edge = classes == ground.EDGE
+    rgba[inside, 3] = ENVELOPE_ALPHA
+    rgba[edge, :3] = (c * 0.6 * 255).astype(np.uint8)
+    rgba[edge, 3] = ENVELOPE_EDGE_ALPHA
+    return rgba

@@ -1,0 +1,77 @@
+"""The plots' shared look: the project's own plain palette (legible on a projector), figures and captions.
+
+Every figure carries the caution line; a run that stopped early says so in its corner.
+"""
+
+from __future__ import annotations
+
+from swingsim.metrics import cautions
+
+INK = "#1d2731"
+ROPE = "#0b6e99"
+LOAD = "#c8553d"
+MOVE_BAND = "#f2d0a4"
+LIMIT = "#8a1c1c"
+GREY = "#8c959f"
+ENVELOPE = "#d6e6ef"
+
+
+def new_figure(width_in: float = 10.0, height_in: float = 5.6):
+    """A matplotlib figure on the Agg backend (no display needed), 110 dpi.
+
+    Parameters
+    ----------
+    width_in, height_in : float
+        Figure size [in].
+
+    Returns
+    -------
+    tuple
+        ``(pyplot, figure)``.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot as plt
+
+    fig = plt.figure(figsize=(width_in, height_in), dpi=110)
+    return plt, fig
+
+
+def title_and_caution(fig, title: str, summary=None) -> None:
+    """Write the title at the top left, the caution at the bottom, and a flag when the result is invalid.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+        The figure.
+    title : str
+        Its title.
+    summary : swingsim.metrics.Summary or dict, optional
+        The run's measures: when ``valid`` is false, the top right says where the run stopped.
+    """
+    fig.text(0.01, 0.985, title, ha="left", va="top", fontsize=11, weight="bold", color=INK)
+    if summary is not None and not summary.get("valid", True):
+        fig.text(0.99, 0.985, f"RESULT INVALID: the run stopped at t = {summary['simulated_until_s']:.2f} s",
+                 ha="right", va="top", fontsize=10, weight="bold", color="white",
+                 bbox={"facecolor": LIMIT, "edgecolor": LIMIT, "pad": 3})
+    fig.text(0.5, 0.008, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7.5, color=LIMIT)
+
+
+def shade_moves(ax, scene, motion) -> None:
+    """Shade each move's time span on a time axis and name it at the top.
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        Axes with time [s] along x (draw the data first: the names go at its top).
+    scene : swingsim.scene.Scene
+        The scene (the moves' names).
+    motion : swingsim.motion.Motion
+        The motion (each move's start and end [s]).
+    """
+    ymax = ax.get_ylim()[1]
+    for (_axis, prof), m in zip(motion.moves, scene.moves):
+        ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
+        ax.text(prof.start_s, ymax, " " + m.name, fontsize=7.5, va="top", ha="left", color=INK,
+                rotation=0, clip_on=True)
