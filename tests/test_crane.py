@@ -11,16 +11,16 @@ import math
 import numpy as np
 import pytest
 
-from swingsim.motion import profiles as P
+from swingsim.motion import profiles
 from swingsim.motion.kinematics import Motion
 
 
 def _motion():
     return Motion((20.0, 5.0, 30.0), 15.0, (
-        ("slew", P.s_curve(1.0, math.radians(60), math.radians(5), math.radians(2), math.radians(3))),
-        ("radius", P.trapezoid(3.0, -6.0, 0.8, 0.4)),
-        ("x", P.trapezoid(2.0, 4.0, 0.5, 0.2)),
-        ("hoist", P.trapezoid(0.5, 3.0, 0.3, 0.2)),
+        ("slew", profiles.s_curve(1.0, math.radians(60), math.radians(5), math.radians(2), math.radians(3))),
+        ("radius", profiles.trapezoid(3.0, -6.0, 0.8, 0.4)),
+        ("x", profiles.trapezoid(2.0, 4.0, 0.5, 0.2)),
+        ("hoist", profiles.trapezoid(0.5, 3.0, 0.3, 0.2)),
     ))
 
 
@@ -52,7 +52,7 @@ def test_local_evaluator_equals_general():
 def test_steady_slew_centripetal():
     # constant slew rate Omega at radius R: |a| = R Omega^2 toward the mast (textbook)
     R, Om = 25.0, 0.1
-    prof = P.trapezoid(0.0, 10.0, Om, 0.05)
+    prof = profiles.trapezoid(0.0, 10.0, Om, 0.05)
     m = Motion((R, 0.0, 30.0), 10.0, (("slew", prof),))
     t = np.array([50.0])
     e = m.evaluate(t)
@@ -62,5 +62,5 @@ def test_steady_slew_centripetal():
 
 
 def test_hoist_raises_load():
-    m = Motion((0.0, 0.0, 30.0), 15.0, (("hoist", P.trapezoid(0.0, 5.0, 0.5, 0.5)),))
+    m = Motion((0.0, 0.0, 30.0), 15.0, (("hoist", profiles.trapezoid(0.0, 5.0, 0.5, 0.5)),))
     assert m.evaluate(np.array([100.0]))["L"][0] == pytest.approx(10.0)

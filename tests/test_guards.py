@@ -5,7 +5,7 @@ import math
 import numpy as np
 import pytest
 
-from swingsim import constants as C
+from swingsim import constants
 from swingsim.cli.main import main
 from swingsim.dynamics.pendulum import PointMassModel
 from swingsim.metrics.single import summarize
@@ -32,7 +32,7 @@ def test_overswing_event_at_model_limit():
     traj = simulate(sc)
     assert traj.status == "overswing"
     n = traj.sample(np.array([traj.t_end_s]))["rope_dir"][0]
-    assert math.degrees(math.acos(-n[2])) == pytest.approx(C.MODEL_ANGLE_LIMIT_DEG, abs=1e-6)
+    assert math.degrees(math.acos(-n[2])) == pytest.approx(constants.MODEL_ANGLE_LIMIT_DEG, abs=1e-6)
 
 
 class _NaNModel(PointMassModel):
@@ -64,13 +64,13 @@ def test_energy_drift_over_1000_periods():
     # (the bar of the robustness issue; DOP853 at rtol 1e-10 is well inside it, cf. the
     # common-practice figure of ~2e-10 per 100 periods in REFERENCES.md).
     L = 10.0
-    T = 2 * math.pi * math.sqrt(L / C.STANDARD_GRAVITY)
+    T = 2 * math.pi * math.sqrt(L / constants.STANDARD_GRAVITY)
     sc = make_scene({"start": {"swing_deg": [30.0, 12.0], "swing_rate_deg_s": [0.0, 8.0]}},
                     duration_s=1000 * T)
     traj = simulate(sc)
     assert traj.valid
     s = traj.sample(np.linspace(0, 1000 * T, 20001))
-    e = s["energy_J"] - 1000.0 * C.STANDARD_GRAVITY * (40.0 - L)  # above the lowest point
+    e = s["energy_J"] - 1000.0 * constants.STANDARD_GRAVITY * (40.0 - L)  # above the lowest point
     assert np.max(np.abs(e - e[0])) / e[0] < 1e-8
 
 

@@ -7,7 +7,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from swingsim import constants as C
+from swingsim import constants
 from swingsim import load_scene
 from swingsim.cli.main import main
 from swingsim.dynamics.hook_load import HookLoadModel
@@ -18,7 +18,7 @@ from swingsim.simulation import simulate
 
 from conftest import make_scene
 
-G = C.STANDARD_GRAVITY
+G = constants.STANDARD_GRAVITY
 ROOT = Path(__file__).resolve().parent.parent
 DEMOS = ["panel_bridle_hook_block", "compact_load_short_sling", "springy_multifall_rope"]
 

@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 from scipy.linalg import eigh
 
-from swingsim import constants as C
+from swingsim import constants
 from swingsim.dynamics.hook_load import HookLoadModel
 from swingsim.dynamics.rigging import box_inertia, cylinder_inertia
 from swingsim.metrics.single import summarize
@@ -18,7 +18,7 @@ from swingsim.simulation import simulate
 
 from conftest import make_scene
 
-G = C.STANDARD_GRAVITY
+G = constants.STANDARD_GRAVITY
 
 
 def _crossings(t, x):
@@ -174,7 +174,8 @@ def test_rope_stiffness_from_modulus_and_bounce_period():
     k = n * n * E * (f * math.pi * d * d / 4) / (n * L + lead)
     T = 2 * math.pi * math.sqrt(2000.0 / k)
     t = np.linspace(0, 3, 300001)
-    x = traj.state(t)[:, traj.model.il]  # the stretched length (no hoisting: lambda constant)
+    # the stretched length (no hoisting: lambda constant)
+    x = traj.state(t)[:, traj.model.rope_length_index]
     tc = _crossings(t, x - np.mean(x))
     # L_r uses the loaded length here; the model's unstretched length differs by n delta / L_r ~ 5e-4
     assert np.mean(np.diff(tc)) == pytest.approx(T, rel=1e-3)
@@ -205,7 +206,7 @@ def test_given_stiffness_bounce_period():
     traj = simulate(sc)
     assert traj.valid
     t = np.linspace(0, 3, 300001)
-    x = traj.state(t)[:, traj.model.il]
+    x = traj.state(t)[:, traj.model.rope_length_index]
     tc = _crossings(t, x - np.mean(x))
     assert np.mean(np.diff(tc)) == pytest.approx(2 * math.pi * math.sqrt(2000.0 / k), rel=1e-5)
 
@@ -241,7 +242,8 @@ def test_energy_conserved_without_damping_and_wind(case):
     assert traj.valid, traj.message
     E = traj.sample(np.linspace(0, 20, 401))["energy_J"]
     model = traj.model
-    scale = model.m_total * G * model.L0  # the swing's energy scale, independent of the datum
+    # the swing's energy scale, independent of the datum
+    scale = model.hanging_mass_kg * G * model.initial_rope_length_m
     assert np.max(np.abs(E - E[0])) < 1e-8 * scale
     assert np.ptp(E) < 1e-8 * scale
 
@@ -351,10 +353,10 @@ def test_off_centre_bridle_hanging_tensions_satisfy_statics():
     model = HookLoadModel(sc)
     T = model.hanging_leg_tension_N()
     from swingsim.dynamics.rigging import rotation
-    R = rotation(*model.geom.rest_tilt_rad)
-    H = model.geom.hook_b @ R.T
+    R = rotation(*model.geometry.rest_tilt_rad)
+    H = model.geometry.hook_b @ R.T
     assert abs(H[0]) < 1e-9 and abs(H[1]) < 1e-9  # hook straight above the CG
-    e = (model.geom.hook_b - model.attach_b) @ R.T
+    e = (model.geometry.hook_b - model.attach_points_b) @ R.T
     e /= np.linalg.norm(e, axis=1)[:, None]
     assert T @ e == pytest.approx([0.0, 0.0, m * G], abs=1e-6)
     assert T[0] < T[1]  # the leg nearer the CG carries more
@@ -372,7 +374,7 @@ def test_spreader_drop_legs_lever_rule():
     # the rigid assembly tilts by phi until the CG is under the hook and the drop legs tilt
     # with it: the legs share the weight's component along them, W cos(phi), by the lever rule
     from swingsim.dynamics.rigging import rotation
-    cphi = rotation(*model.geom.rest_tilt_rad)[2, 2]
+    cphi = rotation(*model.geometry.rest_tilt_rad)[2, 2]
     assert cphi < 0.999  # it does tilt
     assert T == pytest.approx([m * G * cphi * b / (a + b), m * G * cphi * a / (a + b)], rel=1e-9)
 
@@ -397,7 +399,7 @@ def test_lift_off_with_hoist_at_speed_dynamic_factor():
                     duration_s=8.0)
     traj = simulate(sc)
     assert traj.valid, traj.message
-    t_lift = traj.model.t_lift
+    t_lift = traj.model.lift_off_time_s
     assert t_lift == pytest.approx(0.02 + (0.1 + dst - 0.002) / v, rel=1e-9)
     w = math.sqrt(k / m)
     t = np.linspace(t_lift, t_lift + 2 * math.pi / w, 4001)
@@ -418,7 +420,7 @@ def test_lift_off_too_fast_goes_slack():
                                 "speed_m_s": 0.5, "accel_m_s2": 10.0}]}, duration_s=4.0)
     traj = simulate(sc)
     assert traj.status == "slack" and not traj.valid
-    assert traj.t_end_s > traj.model.t_lift
+    assert traj.t_end_s > traj.model.lift_off_time_s
 
 
 def test_four_leg_bridle_symmetric_shares_and_three_leg_statics():
@@ -440,10 +442,10 @@ def test_four_leg_bridle_symmetric_shares_and_three_leg_statics():
     model = HookLoadModel(three)
     T = model.hanging_leg_tension_N()
     from swingsim.dynamics.rigging import rotation
-    R = rotation(*model.geom.rest_tilt_rad)
-    e = (model.geom.hook_b - model.attach_b) @ R.T
+    R = rotation(*model.geometry.rest_tilt_rad)
+    e = (model.geometry.hook_b - model.attach_points_b) @ R.T
     e /= np.linalg.norm(e, axis=1)[:, None]
     assert T @ e == pytest.approx([0.0, 0.0, m * G], abs=1e-6)
     assert np.all(T > 0)
-    assert np.linalg.norm(model.geom.hook_b - model.attach_b, axis=1) == pytest.approx([4.0, 4.2, 3.9],
+    assert np.linalg.norm(model.geometry.hook_b - model.attach_points_b, axis=1) == pytest.approx([4.0, 4.2, 3.9],
                                                                                       abs=1e-9)

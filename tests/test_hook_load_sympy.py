@@ -35,8 +35,8 @@ def _derive(model):
     t = sp.symbols("t")
     X, Y, Lf = dynamicsymbols("X Y Lf")
     Z = sp.Symbol("Z")
-    g = sp.Float(model.g)
-    names = list(model.state_names[: model.nq])
+    g = sp.Float(model.gravity_m_s2)
+    names = list(model.state_names[: model.n_coordinates])
     qs = dynamicsymbols(" ".join(names)) if len(names) > 1 else [dynamicsymbols(names[0])]
     qs = list(qs)
     Q = dict(zip(names, qs))
@@ -46,38 +46,39 @@ def _derive(model):
 
     p = sp.Matrix([X, Y, Z])
     n1 = ndir(Q["u1"], Q["v1"])
-    if model.elastic:
+    if model.rope_is_elastic:
         ell = Q["rope_len"]
     else:
         ell = Lf
-    H = p + (ell + model.extra) * n1
+    H = p + (ell + model.rope_end_leg_m) * n1
     Tk = 0
     V = 0
-    mH = model.m_h + (0.0 if (model.body or model.link2) else model.m)
+    mH = model.hook_mass_kg + (0.0 if (model.rigid_load or model.leg_below_hook)
+                               else model.load_mass_kg)
     Hd = H.diff(t)
     Tk += sp.Rational(1, 2) * mH * Hd.dot(Hd)
     V += mH * g * H[2]
     P = H
-    if model.link2:
-        P = H + model.l2 * ndir(Q["u2"], Q["v2"])
-    if model.body:
+    if model.leg_below_hook:
+        P = H + model.leg_below_hook_m * ndir(Q["u2"], Q["v2"])
+    if model.rigid_load:
         a, b = Q["tilt_a"], Q["tilt_b"]
         Rx = sp.Matrix([[1, 0, 0], [0, sp.cos(a), -sp.sin(a)], [0, sp.sin(a), sp.cos(a)]])
         Ry = sp.Matrix([[sp.cos(b), 0, sp.sin(b)], [0, 1, 0], [-sp.sin(b), 0, sp.cos(b)]])
         R = Rx * Ry
-        G = P + R * sp.Matrix([sp.Float(c) for c in model.c_b])
+        G = P + R * sp.Matrix([sp.Float(c) for c in model.cg_from_pivot_b])
         W = sp.simplify(R.diff(t) * R.T)
         om = sp.Matrix([W[2, 1], W[0, 2], W[1, 0]])
-        Ib = sp.diag(*[sp.Float(x) for x in model.I_b])
+        Ib = sp.diag(*[sp.Float(x) for x in model.inertia_b])
         Tk += sp.Rational(1, 2) * (om.T * R * Ib * R.T * om)[0, 0]
     else:
         G = P
-    if model.body or model.link2:
+    if model.rigid_load or model.leg_below_hook:
         Gd = G.diff(t)
-        Tk += sp.Rational(1, 2) * model.m * Gd.dot(Gd)
-        V += model.m * g * G[2]
-    if model.elastic:
-        rp = model.rope
+        Tk += sp.Rational(1, 2) * model.load_mass_kg * Gd.dot(Gd)
+        V += model.load_mass_kg * g * G[2]
+    if model.rope_is_elastic:
+        rp = model.elastic_rope
         lam = rp.lambda0_m + Lf - rp.loaded_length_m
         k = rp.K / (rp.falls * lam + rp.lead_length_m)
         V += sp.Rational(1, 2) * k * (ell - lam) ** 2
@@ -132,21 +133,21 @@ def test_accelerations_match_lagrange(case):
     model = HookLoadModel(_scene(**CASES[case]))
     fM, fF = _derive(model)
     rng = np.random.default_rng(7)
-    nq = model.nq
+    nq = model.n_coordinates
     worst = 0.0
     for _ in range(12):
         q = np.empty(nq)
         qd = rng.uniform(-0.8, 0.8, nq)
         q[:2] = rng.uniform(-0.35, 0.35, 2)
-        if model.link2:
+        if model.leg_below_hook:
             q[2:4] = rng.uniform(-0.35, 0.35, 2)
-        if model.body:
-            q[model.ia:model.ia + 2] = rng.uniform(-0.5, 0.5, 2)
+        if model.rigid_load:
+            q[model.tilt_index:model.tilt_index + 2] = rng.uniform(-0.5, 0.5, 2)
         X, dX, ddX, Y_, dY, ddY = rng.uniform(-2, 2, 6)
         L, dL, ddL = 9.0 + rng.uniform(-1, 1), rng.uniform(-0.5, 0.5), rng.uniform(-0.3, 0.3)
-        if model.elastic:  # a stretched rope (slack, the model's rope pushes nothing)
-            q[model.il] = model.rope.unstretched(L) + rng.uniform(0.001, 0.02)
-            qd[model.il] = rng.uniform(-0.2, 0.2)
+        if model.rope_is_elastic:  # a stretched rope (slack, the model's rope pushes nothing)
+            q[model.rope_length_index] = model.elastic_rope.unstretched(L) + rng.uniform(0.001, 0.02)
+            qd[model.rope_length_index] = rng.uniform(-0.2, 0.2)
         Z = 30.0
         kt = (X, Y_, Z, dX, dY, 0.0, ddX, ddY, 0.0, L, dL, ddL)
         mine = model.accelerations(0.0, np.concatenate([q, qd]), kt, applied=False)
@@ -170,19 +171,19 @@ def test_fast_path_matches_reference_path_with_damping_wind_and_slewing(case):
         over["hook"] = dict(over["hook"], size_m=[0.5, 0.4, 0.9])
     model = HookLoadModel(_scene(**over))
     rng = np.random.default_rng(3)
-    nq = model.nq
+    nq = model.n_coordinates
     for _ in range(20):
         q = np.zeros(nq)
         q[:2] = rng.uniform(-0.3, 0.3, 2)
-        if model.link2:
+        if model.leg_below_hook:
             q[2:4] = rng.uniform(-0.3, 0.3, 2)
-        if model.body:
-            q[model.ia:model.ia + 2] = rng.uniform(-0.4, 0.4, 2)
+        if model.rigid_load:
+            q[model.tilt_index:model.tilt_index + 2] = rng.uniform(-0.4, 0.4, 2)
         qd = rng.uniform(-0.7, 0.7, nq)
         kt = tuple(rng.uniform(-2, 2, 9)) + (9.0, 0.3, -0.2, rng.uniform(-0.1, 0.1))
         kt = kt[:2] + (30.0,) + kt[3:5] + (0.0,) + kt[6:8] + (0.0,) + kt[9:]
-        if model.elastic:
-            q[model.il] = model.rope.unstretched(9.0) + rng.uniform(0.001, 0.02)
+        if model.rope_is_elastic:
+            q[model.rope_length_index] = model.elastic_rope.unstretched(9.0) + rng.uniform(0.001, 0.02)
         y = np.concatenate([q, qd])
         a, b = model._qdd(y, kt), model._eval(y, kt)
         assert np.max(np.abs(a - b)) <= 1e-11 * np.max(np.abs(b))

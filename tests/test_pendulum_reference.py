@@ -11,13 +11,13 @@ import pytest
 from scipy.optimize import brentq
 from scipy.special import ellipk, j1, y1
 
-from swingsim import constants as C
+from swingsim import constants
 from swingsim.metrics.single import rope_angle_rad, summarize
 from swingsim.simulation import simulate
 
 from conftest import make_scene
 
-G = C.STANDARD_GRAVITY
+G = constants.STANDARD_GRAVITY
 
 
 def _crossings(traj, comp=0, t_from=0.0, rate=100.0):
@@ -31,7 +31,7 @@ def _crossings(traj, comp=0, t_from=0.0, rate=100.0):
 
 def test_standard_gravity_is_the_cgpm_value():
     # 3rd CGPM (1901), ISO 80000-3: g_n = 9.80665 m/s^2 exactly
-    assert C.STANDARD_GRAVITY == 9.80665
+    assert constants.STANDARD_GRAVITY == 9.80665
     assert make_scene().gravity_m_s2 == 9.80665
 
 
@@ -266,10 +266,10 @@ def test_tolerance_convergence():
                                 "speed_deg_s": 3.0, "accel_deg_s2": 1.0, "start_s": 4.0}]},
                     crane={"suspension_m": [15.0, 0.0, 40.0]}, duration_s=40.0)
     a = summarize(simulate(sc))
-    b = summarize(simulate(sc, rtol=C.RTOL / 10, atol=C.ATOL / 10))
+    b = summarize(simulate(sc, rtol=constants.RTOL / 10, atol=constants.ATOL / 10))
     for k in ("peak_rope_angle_deg", "residual_rope_angle_deg"):
         assert abs(math.radians(a[k] - b[k])) < 1e-6
-    ta, tb = simulate(sc), simulate(sc, rtol=C.RTOL / 10, atol=C.ATOL / 10)
+    ta, tb = simulate(sc), simulate(sc, rtol=constants.RTOL / 10, atol=constants.ATOL / 10)
     t = np.linspace(0, 40, 801)
     assert np.max(np.abs(ta.state(t)[:, :2] - tb.state(t)[:, :2])) < 1e-6
 

@@ -13,12 +13,12 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from swingsim.motion import profiles as P
+from swingsim.motion import profiles
 
 
 def test_trapezoid_closed_form():
     # D = 20 m, v = 1 m/s, a = 0.5 m/s^2: ta = 2 s, 1 m each ramp, cruise 18 s
-    p = P.trapezoid(1.0, 20.0, 1.0, 0.5)
+    p = profiles.trapezoid(1.0, 20.0, 1.0, 0.5)
     assert p.breakpoints == pytest.approx((1.0, 3.0, 21.0, 23.0), abs=1e-12)
     pos, vel, acc = p.evaluate(np.array([1.0, 2.0, 3.0, 12.0, 23.0, 30.0]))
     assert pos == pytest.approx([0.0, 0.25, 1.0, 10.0, 20.0, 20.0], abs=1e-12)
@@ -30,7 +30,7 @@ def test_trapezoid_closed_form():
 def test_trapezoid_triangular_peak_speed():
     # peak speed sqrt(2 D a d / (a + d)) when the cruise speed cannot be reached
     D, a, d = 2.0, 0.5, 0.25
-    p = P.trapezoid(0.0, D, 10.0, a, d)
+    p = profiles.trapezoid(0.0, D, 10.0, a, d)
     vpk = math.sqrt(2 * D * a * d / (a + d))
     assert p.evaluate(np.array([vpk / a]))[1][0] == pytest.approx(vpk, rel=1e-14)
     assert p.end_s == pytest.approx(vpk / a + vpk / d, rel=1e-14)
@@ -38,8 +38,8 @@ def test_trapezoid_triangular_peak_speed():
 
 
 def test_negative_distance_mirrors():
-    a = P.trapezoid(0.0, 5.0, 1.0, 0.3)
-    b = P.trapezoid(0.0, -5.0, 1.0, 0.3)
+    a = profiles.trapezoid(0.0, 5.0, 1.0, 0.3)
+    b = profiles.trapezoid(0.0, -5.0, 1.0, 0.3)
     t = np.linspace(-1, 30, 777)
     for x, y in zip(a.evaluate(t), b.evaluate(t)):
         assert np.allclose(x, -y, atol=1e-15)
@@ -48,7 +48,7 @@ def test_negative_distance_mirrors():
 @pytest.mark.parametrize("D", [0.05, 0.4, 3.0, 40.0])
 def test_s_curve_limits_and_distance(D):
     v, a, j = 1.2, 0.5, 0.8
-    p = P.s_curve(0.0, D, v, a, j)
+    p = profiles.s_curve(0.0, D, v, a, j)
     t = np.linspace(0, p.end_s, 40001)
     pos, vel, acc = p.evaluate(t)
     assert p.distance == pytest.approx(D, rel=1e-12)
@@ -73,7 +73,7 @@ def _check_derivatives(p, t):
 @given(D=st.floats(0.01, 80.0), v=st.floats(0.05, 3.0), a=st.floats(0.02, 2.0),
        j=st.floats(0.05, 5.0), dec=st.floats(0.02, 2.0))
 def test_profiles_consistent_derivatives(D, v, a, j, dec):
-    for p in (P.trapezoid(0.5, D, v, a, dec), P.s_curve(0.5, D, v, a, j, dec)):
+    for p in (profiles.trapezoid(0.5, D, v, a, dec), profiles.s_curve(0.5, D, v, a, j, dec)):
         assert p.distance == pytest.approx(D, rel=1e-9)
         kn = np.array(p.breakpoints)
         # away from the breakpoints the central differences are exact to O(h^2)
@@ -82,7 +82,7 @@ def test_profiles_consistent_derivatives(D, v, a, j, dec):
 
 
 def test_local_poly_matches_evaluate():
-    p = P.s_curve(1.0, 7.0, 1.0, 0.4, 0.6)
+    p = profiles.s_curve(1.0, 7.0, 1.0, 0.4, 0.6)
     kn = p.breakpoints
     for t0, t1 in zip(kn[:-1], kn[1:]):
         c = p.local_poly(t0, t1)
@@ -96,7 +96,7 @@ def test_local_poly_matches_evaluate():
 def test_table_spline_is_clamped_and_exact():
     t = np.linspace(0, 10, 41)
     x = 5 * (1 - np.cos(np.pi * t / 10)) / 2 * 2  # smooth 0 -> 10 m
-    p = P.from_table(2.0, t, x + 3.0)  # offset: displacement relative to the first row
+    p = profiles.from_table(2.0, t, x + 3.0)  # offset: displacement relative to the first row
     pos, vel, acc = p.evaluate(np.array([2.0, 12.0, 20.0]))
     assert pos == pytest.approx([0.0, 10.0, 10.0], abs=1e-12)
     assert vel == pytest.approx([0.0, 0.0, 0.0], abs=1e-12)
@@ -106,15 +106,15 @@ def test_table_spline_is_clamped_and_exact():
 
 
 def test_table_rejects_bad_rows():
-    with pytest.raises(P.ProfileError):
-        P.from_table(0.0, [0.0, 1.0, 1.0], [0, 1, 2])
-    with pytest.raises(P.ProfileError):
-        P.from_table(0.0, [0.5, 1.0], [0, 1])
+    with pytest.raises(profiles.ProfileError):
+        profiles.from_table(0.0, [0.0, 1.0, 1.0], [0, 1, 2])
+    with pytest.raises(profiles.ProfileError):
+        profiles.from_table(0.0, [0.5, 1.0], [0, 1])
 
 
 def test_sum_profile_shifted_copies():
-    base = P.trapezoid(0.0, 4.0, 1.0, 0.5)
-    s = P.SumProfile(((0.5, 0.0, base), (0.5, 1.3, base)))
+    base = profiles.trapezoid(0.0, 4.0, 1.0, 0.5)
+    s = profiles.SumProfile(((0.5, 0.0, base), (0.5, 1.3, base)))
     t = np.linspace(-1, 15, 300)
     want = 0.5 * base.evaluate(t)[0] + 0.5 * base.evaluate(t - 1.3)[0]
     assert np.allclose(s.evaluate(t)[0], want, atol=1e-14)

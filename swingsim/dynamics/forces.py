@@ -11,9 +11,7 @@ Quadratic drag of a body moving at velocity :math:`v` in a wind :math:`w`:
 .. math:: F = -\\tfrac12 \\rho C_d A \\, |v - w| (v - w)
 
 (the drag equation; force coefficients from Hoerner, *Fluid-Dynamic Drag*,
-1965).  A steady wind alone gives the dynamic pressure
-:math:`q = \\rho w^2 / 2` and, on a hanging load, the offset angle
-:math:`\\arctan(q C_d A / (m g))`.
+1965).
 
 Equivalent viscous damping of the swing with ratio :math:`\\zeta`: a force
 :math:`-2 \\zeta \\omega_0 m \\, v_t` on the velocity :math:`v_t` of the load
@@ -27,19 +25,30 @@ from __future__ import annotations
 
 
 def drag_coefficient_per_mass(air_density, cd, area, mass):
-    """k = rho Cd A / (2 m) [1/m]: drag acceleration is -k |v_rel| v_rel."""
+    """Drag coefficient per unit mass :math:`k = \\rho C_d A / (2 m)` (module Notes).
+
+    The drag acceleration of a body moving at ``v_rel`` relative to the air is
+    :math:`-k |v_\\text{rel}| v_\\text{rel}`.  Works on floats and arrays alike.
+
+    Parameters
+    ----------
+    air_density : float or ndarray
+        Air density [kg/m^3].
+    cd : float or ndarray
+        Drag coefficient [-].
+    area : float or ndarray
+        Area facing the wind [m^2] (or, for a rope, its diameter [m]: drag per unit
+        length).
+    mass : float or ndarray
+        Mass the drag acts on [kg].
+
+    Returns
+    -------
+    float or ndarray
+        :math:`k` [1/m] (per unit length for a rope [1/m^2]).
+
+    References
+    ----------
+    .. [1] S. F. Hoerner, *Fluid-Dynamic Drag*, 1965 (the drag equation).
+    """
     return 0.5 * air_density * cd * area / mass
-
-
-def quadratic_drag(k, rx, ry, rz):
-    """Drag acceleration components for relative-air velocity (rx, ry, rz) [m/s^2]."""
-    sp = (rx * rx + ry * ry + rz * rz) ** 0.5
-    return -k * sp * rx, -k * sp * ry, -k * sp * rz
-
-
-def steady_wind_offset_rad(air_density, speed, cd, area, mass, g):
-    """Rope angle from vertical of a load held in a steady wind [rad] (quasi-static)."""
-    import math
-
-    q = 0.5 * air_density * speed**2
-    return math.atan2(q * cd * area, mass * g)

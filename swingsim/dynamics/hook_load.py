@@ -55,12 +55,19 @@ independently with ``sympy.physics.mechanics`` in the tests.
 
 Damping: a force :math:`-2\\zeta\\omega_d m_i (\\dot r_i - \\dot p - \\dot\\ell n_1
 - \\Omega \\hat z \\times (r_i - p))` on every mass (relative to the slewing jib,
-:math:`\\Omega` its slew rate, as in the point-mass model), :math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the
-hanging distance from the rope's end to the load's CG: the core model's
-damping in the point-mass limit (mass-proportional, so faster modes are damped
-less).  Drag acts at the CG (no aerodynamic moment), on the hook block when it
-has a size, and half the rope's drag acts at the rope's end as in the
-point-mass model.
+:math:`\\Omega` its slew rate, as in the point-mass model),
+:math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the hanging distance
+from the rope's end to the load's CG: the core model's damping in the
+point-mass limit (mass-proportional, so faster modes are damped less).  Drag
+acts at the CG (no aerodynamic moment), on the hook block when it has a size,
+and half the rope's drag acts at the rope's end as in the point-mass model.
+
+References
+----------
+.. [1] T. R. Kane and D. A. Levinson, *Dynamics: Theory and Applications*,
+   McGraw-Hill, 1985 (Kane's equations).
+.. [2] W. T. Thomson and M. D. Dahleh, *Theory of Vibration with Applications*,
+   5th ed., Prentice Hall, 1998 (equivalent viscous damping).
 """
 
 from __future__ import annotations
@@ -70,10 +77,12 @@ from dataclasses import replace
 
 import numpy as np
 
-from swingsim import constants as C
+from swingsim import constants
+from swingsim.dynamics.base import ModelDefaults
 from swingsim.dynamics.pendulum import direction_from_projected
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from swingsim.dynamics.rope import elastic_rope
+
 
 def _cx(a, b):
     """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""
@@ -87,9 +96,17 @@ MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load")
 def model_name(scene) -> str | None:
     """Which variant of this model a scene needs; None when the point-mass model fits.
 
-    ``hook-load``: a hook block; ``rigid-load``: a rigid load on the rope's end;
-    ``elastic-rope``: a point load on an elastic rope; ``sling-load``: a point
-    load on a sling leg below the rope's end (no hook block).
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+
+    Returns
+    -------
+    str or None
+        ``hook-load``: a hook block; ``rigid-load``: a rigid load on the rope's end;
+        ``elastic-rope``: a point load on an elastic rope; ``sling-load``: a point
+        load on a sling leg below the rope's end (no hook block); None otherwise.
     """
     if scene.hook is not None:
         return "hook-load"
@@ -102,81 +119,148 @@ def model_name(scene) -> str | None:
     return None
 
 
-class HookLoadModel:
+class HookLoadModel(ModelDefaults):
     """Hook block, rigid or point load on rigging, inextensible or elastic rope.
 
-    Same interface as :class:`~swingsim.dynamics.pendulum.PointMassModel`.
-    """
+    Follows :class:`swingsim.dynamics.base.SwingModel`; the equations are in the
+    module Notes.  The attributes below are what the metrics and the tests read;
+    everything else is internal.
 
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene that :func:`model_name` assigns to this model.
+
+    Attributes
+    ----------
+    name : str
+        The variant (:func:`model_name`).
+    state_names : tuple of str
+        The generalised coordinates (module docstring), then their rates.
+    n_coordinates : int
+        Number of generalised coordinates (half the state's length).
+    tilt_index : int or None
+        Index of the rigid load's tilt ``a`` in the coordinates (``b`` follows);
+        None for a point load.
+    rope_length_index : int or None
+        Index of the elastic rope's stretched length in the coordinates; None for
+        an inextensible rope.
+    gravity_m_s2 : float
+        Gravitational acceleration [m/s^2].
+    load_mass_kg, hook_mass_kg, hanging_mass_kg : float
+        Mass of the load, of the hook block (0 without one) and of both [kg].
+    has_hook_block : bool
+        Whether a hook block of its own mass hangs on the rope.
+    rigid_load : bool
+        Whether the load is a rigid body (else a point mass).
+    rigging_kind : str
+        ``"single"``, ``"bridle"`` or ``"spreader"`` (``"single"`` without rigging).
+    leg_below_hook : bool
+        A single sling leg swinging on its own below the hook block.
+    leg_below_hook_m : float
+        Its length [m] (0 otherwise).
+    rope_end_leg_m : float
+        Without a hook block, a single leg's length added to the hoist rope: the
+        leg hangs straight on from the rope's end [m] (0 otherwise).
+    geometry : Geometry or None
+        Rigging geometry of a rigid load (:func:`~swingsim.dynamics.rigging.rigging_geometry`).
+    inertia_b : ndarray or None
+        Principal moments of inertia of a rigid load about its CG, load axes [kg m^2].
+    cg_from_pivot_b : ndarray
+        The load's CG seen from its pivot, load axes [m] (zeros for a point load).
+    attach_points_b : ndarray
+        Leg attachment points (k, 3), load axes from the CG [m].
+    n_legs : int
+        Number of sling legs whose tensions are output.
+    leg_wll_N : ndarray or None
+        Declared working load limit of each leg [N].
+    elastic_rope : ElasticRope or None
+        The elastic reeving (:mod:`swingsim.dynamics.rope`); None when inextensible.
+    rope_is_elastic : bool
+        Whether the rope's stretched length is a state.
+    starts_resting : bool
+        ``start.rope_preload = "lift-off"``: the load rests, supported, until the
+        rope's pull reaches its weight.
+    lift_off_time_s : float or None
+        The instant of lift-off [s] (inf if never), set by :meth:`initial_state`.
+    initial_rope_length_m : float
+        The scene's rope length (loaded, at rest) [m].
+    extra_breakpoints : tuple of float
+        The lift-off instant, where the equations change [s].
+    """
 
     def __init__(self, scene):
         self.scene = scene
         load, rope, wind = scene.load, scene.rope, scene.wind
         rig, hook = scene.rigging, scene.hook
-        self.g = g = scene.gravity_m_s2
-        self.zeta = scene.damping_ratio
+        self.gravity_m_s2 = g = scene.gravity_m_s2
+        self._swing_damping_ratio = scene.damping_ratio
         d = math.radians(wind.direction_deg)
-        self.wx, self.wy = wind.speed_m_s * math.cos(d), wind.speed_m_s * math.sin(d)
+        self._wind_x_m_s, self._wind_y_m_s = wind.speed_m_s * math.cos(d), wind.speed_m_s * math.sin(d)
         rho = wind.air_density_kg_m3
-        self.m = load.mass_kg
-        self.kd_load = 0.5 * rho * load.drag_coefficient * load.wind_area_m2 if load.wind_area_m2 else 0.0
-        self.kr = 0.5 * rho * rope.drag_coefficient * rope.diameter_m if rope.diameter_m else 0.0
-        self.has_hook = hook is not None
-        self.m_h = hook.mass_kg if hook else 0.0
-        self.kd_hook = 0.0
+        self.load_mass_kg = load.mass_kg
+        self._load_drag_k = 0.5 * rho * load.drag_coefficient * load.wind_area_m2 if load.wind_area_m2 else 0.0
+        self._rope_drag_k = 0.5 * rho * rope.drag_coefficient * rope.diameter_m if rope.diameter_m else 0.0
+        self.has_hook_block = hook is not None
+        self.hook_mass_kg = hook.mass_kg if hook else 0.0
+        self._hook_drag_k = 0.0
         if hook and hook.size_m:
-            self.kd_hook = 0.5 * rho * hook.drag_coefficient * hook.size_m[0] * hook.size_m[2]
-        self.body = scene.rigid_load
-        self.kind = rig.kind if rig else "single"
+            self._hook_drag_k = 0.5 * rho * hook.drag_coefficient * hook.size_m[0] * hook.size_m[2]
+        self.rigid_load = scene.rigid_load
+        self.rigging_kind = rig.kind if rig else "single"
         legs = rig.leg_length_m if rig else (0.0,)
         # a leg with a direction of its own only below a hook block
-        self.link2 = self.has_hook and self.kind == "single"
-        self.l2 = legs[0] if self.link2 else 0.0
-        self.extra = legs[0] if (not self.has_hook and self.kind == "single") else 0.0
-        self.geom = rigging_geometry(rig, load) if (rig is not None and self.body) else None
-        if self.body:
-            self.I_b = load_inertia(load)
-            self.c_b = self.geom.cg_from_pivot_b.copy()
-            self.attach_b = self.geom.attach_b
+        self.leg_below_hook = self.has_hook_block and self.rigging_kind == "single"
+        self.leg_below_hook_m = legs[0] if self.leg_below_hook else 0.0
+        self.rope_end_leg_m = (legs[0] if (not self.has_hook_block and self.rigging_kind == "single")
+                               else 0.0)
+        self.geometry = rigging_geometry(rig, load) if (rig is not None and self.rigid_load) else None
+        if self.rigid_load:
+            self.inertia_b = load_inertia(load)
+            self.cg_from_pivot_b = self.geometry.cg_from_pivot_b.copy()
+            self.attach_points_b = self.geometry.attach_b
         else:
-            self.I_b = None
-            self.c_b = np.zeros(3)
-            self.attach_b = np.zeros((1, 3))
-        self.m_total = self.m + self.m_h
-        self.rope = elastic_rope(rope, self.m_total * g, self.m_total)
-        self.elastic = self.rope is not None
-        self.lift_off = self.elastic and scene.start.rope_preload == "lift-off"
+            self.inertia_b = None
+            self.cg_from_pivot_b = np.zeros(3)
+            self.attach_points_b = np.zeros((1, 3))
+        self.hanging_mass_kg = self.load_mass_kg + self.hook_mass_kg
+        self.elastic_rope = elastic_rope(rope, self.hanging_mass_kg * g, self.hanging_mass_kg)
+        self.rope_is_elastic = self.elastic_rope is not None
+        self.starts_resting = self.rope_is_elastic and scene.start.rope_preload == "lift-off"
         #: instant the load lifts off [s] (rope_preload = lift-off); set by initial_state
-        self.t_lift = None
+        self.lift_off_time_s = None
         #: instants where the solver must restart (read by swingsim.simulation.simulate)
         self.extra_breakpoints = ()
-        if self.lift_off:
+        if self.starts_resting:
             # at t = 0 the rope is unstretched and slack by rope_slack_m
-            self.rope = replace(self.rope, lambda0_m=rope.length_m + scene.start.rope_slack_m)
-        self.L0 = rope.length_m
+            self.elastic_rope = replace(self.elastic_rope,
+                                        lambda0_m=rope.length_m + scene.start.rope_slack_m)
+        self.initial_rope_length_m = rope.length_m
         # hanging distance from the rope's end to the CG (for the damping frequency)
-        self.d_rest = self.extra + self.l2 + float(np.linalg.norm(self.c_b))
+        self._cg_below_rope_end_m = (self.rope_end_leg_m + self.leg_below_hook_m
+                                     + float(np.linalg.norm(self.cg_from_pivot_b)))
         names = ["u1", "v1"]
-        if self.link2:
+        if self.leg_below_hook:
             names += ["u2", "v2"]
-        self.ia = None
-        if self.body:
-            self.ia = len(names)
+        self.tilt_index = None
+        if self.rigid_load:
+            self.tilt_index = len(names)
             names += ["tilt_a", "tilt_b"]
-        self.il = None
-        if self.elastic:
-            self.il = len(names)
+        self.rope_length_index = None
+        if self.rope_is_elastic:
+            self.rope_length_index = len(names)
             names += ["rope_len"]
-        self.nq = len(names)
+        self.n_coordinates = len(names)
         self.state_names = tuple(names) + tuple("d" + n for n in names)
-        self.angle_limit_rad = math.radians(C.MODEL_ANGLE_LIMIT_DEG)
+        self.angle_limit_rad = math.radians(constants.MODEL_ANGLE_LIMIT_DEG)
         self._wlim = math.cos(self.angle_limit_rad)
-        self.k_legs = 1 if self.kind == "single" else len(self.attach_b)
-        self.wll_N = None
+        self.n_legs = 1 if self.rigging_kind == "single" else len(self.attach_points_b)
+        self.leg_wll_N = None
         if rig is not None and rig.wll_kN is not None:
-            self.wll_N = np.array(rig.wll_kN) * 1e3
+            self.leg_wll_N = np.array(rig.wll_kN) * 1e3
         self.name = model_name(scene)
         self._out_cache = []
+        self._hanging_cache = None
 
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
@@ -184,7 +268,18 @@ class HookLoadModel:
 
         The suspension point, hook and load CG lie on one straight line; a rate
         ``start.swing_rate_deg_s`` turns everything rigidly about the suspension
-        point (yaw part dropped for a rigid load).
+        point (yaw part dropped for a rigid load).  With ``rope_preload =
+        "lift-off"`` this also finds :attr:`lift_off_time_s`.
+
+        Parameters
+        ----------
+        motion : Motion
+            The prescribed crane motion (for the lift-off instant).
+
+        Returns
+        -------
+        ndarray
+            Coordinates then rates, ordered as :attr:`state_names` [chart units].
         """
         sw = self.scene.start
         u, v, du, dv = direction_from_projected(
@@ -196,29 +291,29 @@ class HookLoadModel:
         Om = np.cross(n1, n1d)
         q = [u, v]
         qd = [du, dv]
-        if self.link2:
+        if self.leg_below_hook:
             q += [u, v]
             qd += [du, dv]
-        if self.body:
-            a0, b0 = self.geom.rest_tilt_rad
-            a, b = tilt_to_align(self.c_b, n1, guess=(a0, b0))
+        if self.rigid_load:
+            a0, b0 = self.geometry.rest_tilt_rad
+            a, b = tilt_to_align(self.cg_from_pivot_b, n1, guess=(a0, b0))
             q += [a, b]
             Jw = np.array([[1.0, 0.0], [0.0, math.cos(a)], [0.0, math.sin(a)]])
             rates = np.linalg.lstsq(Jw, Om, rcond=None)[0]
             qd += [float(rates[0]), float(rates[1])]
-        if self.elastic:
+        if self.rope_is_elastic:
             if sw.rope_preload == "none":
-                q.append(self.rope.lambda0_m)
+                q.append(self.elastic_rope.lambda0_m)
             else:  # static stretch, or resting at the hanging position (lift-off)
-                q.append(self.L0)
+                q.append(self.initial_rope_length_m)
             qd.append(0.0)
-        if self.lift_off:
-            self.t_lift = self.lift_off_time(motion)
+        if self.starts_resting:
+            self.lift_off_time_s = self._find_lift_off_time(motion)
             # the solver restarts there: the equations change at lift-off
-            self.extra_breakpoints = (self.t_lift,) if math.isfinite(self.t_lift) else ()
+            self.extra_breakpoints = (self.lift_off_time_s,) if math.isfinite(self.lift_off_time_s) else ()
         return np.array(q + qd, dtype=float)
 
-    def lift_off_time(self, motion) -> float:
+    def _find_lift_off_time(self, motion) -> float:
         """First instant the rope's pull reaches the weight of everything it lifts [s] (inf if never).
 
         While the load rests, the rope's stretched length stays the hanging length
@@ -227,14 +322,15 @@ class HookLoadModel:
         """
         from scipy.optimize import brentq
 
-        W = self.m_total * self.g
+        W = self.hanging_mass_kg * self.gravity_m_s2
         T_end = self.scene.duration_s
 
         def excess(t):
             e = motion.evaluate(np.array([t]))
-            T = self.rope.tension(self.L0, 0.0, float(e["L"][0]), float(e["dL"][0]))
-            lam = self.rope.unstretched(float(e["L"][0]))
-            return (T if self.L0 > lam else 0.0) - W
+            T = self.elastic_rope.tension(self.initial_rope_length_m, 0.0, float(e["L"][0]),
+                                          float(e["dL"][0]))
+            lam = self.elastic_rope.unstretched(float(e["L"][0]))
+            return (T if self.initial_rope_length_m > lam else 0.0) - W
 
         ts = np.union1d(np.linspace(0.0, T_end, 4001), [b for b in motion.breakpoints if b <= T_end])
         prev_t, prev = ts[0], excess(ts[0])
@@ -253,14 +349,25 @@ class HookLoadModel:
         The massless rope carries the sum of the forces on everything below it:
         gravity, the wind's drag on the load and hook, and half the rope's own
         drag (fixed-point iteration, as for the point-mass model).
+
+        Parameters
+        ----------
+        rope_length_m : float
+            Rope length [m] (the rope's own drag grows with it).
+
+        Returns
+        -------
+        ndarray
+            Unit vector (3,) down the rope [-].
         """
-        wv = np.array([self.wx, self.wy, 0.0])
+        wv = np.array([self._wind_x_m_s, self._wind_y_m_s, 0.0])
         sp = float(np.linalg.norm(wv))
-        F0 = np.array([0.0, 0.0, -self.m_total * self.g]) + (self.kd_load + self.kd_hook) * sp * wv
+        F0 = (np.array([0.0, 0.0, -self.hanging_mass_kg * self.gravity_m_s2])
+              + (self._load_drag_k + self._hook_drag_k) * sp * wv)
         n = F0 / np.linalg.norm(F0)
         for _ in range(60):
             wn = wv - (wv @ n) * n
-            F = F0 + 0.5 * self.kr * rope_length_m * float(np.linalg.norm(wn)) * wn
+            F = F0 + 0.5 * self._rope_drag_k * rope_length_m * float(np.linalg.norm(wn)) * wn
             n_new = F / np.linalg.norm(F)
             if np.abs(n_new - n).sum() < 1e-15:
                 return n_new
@@ -268,20 +375,32 @@ class HookLoadModel:
         return n
 
     def rest_state(self, rope_length_m=None) -> np.ndarray:
-        """State of the hanging system at rest (fixed support) [chart units]."""
+        """State of the hanging system at rest (fixed support, no wind).
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Rope length [m]; the scene's initial length by default.
+
+        Returns
+        -------
+        ndarray
+            Coordinates at hanging rest (the elastic rope statically stretched) and
+            zero rates [chart units].
+        """
         q = [0.0, 0.0]
-        if self.link2:
+        if self.leg_below_hook:
             q += [0.0, 0.0]
-        if self.body:
-            q += list(self.geom.rest_tilt_rad)
-        if self.elastic:
-            L = self.L0 if rope_length_m is None else rope_length_m
-            lam = self.rope.unstretched(L)
-            q.append(lam + self.m_total * self.g / self.rope.stiffness(lam))
-        return np.array(q + [0.0] * self.nq)
+        if self.rigid_load:
+            q += list(self.geometry.rest_tilt_rad)
+        if self.rope_is_elastic:
+            L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
+            lam = self.elastic_rope.unstretched(L)
+            q.append(lam + self.hanging_mass_kg * self.gravity_m_s2 / self.elastic_rope.stiffness(lam))
+        return np.array(q + [0.0] * self.n_coordinates)
 
     # -- the equations -------------------------------------------------------------
-    def _qdd(self, y, kt):
+    def _qdd(self, y, kin_state):
         """Generalised accelerations only: the solver's fast path (same equations as :meth:`_eval`).
 
         Plain float arithmetic and one stacked Jacobian; the load's rotation in its own
@@ -289,29 +408,29 @@ class HookLoadModel:
         \\dot a \\sin b)` and the inertia is diagonal.  Checked against :meth:`_eval` and
         the sympy derivation in the tests.
         """
-        nq = self.nq
+        nq = self.n_coordinates
         yl = y.tolist()
         q, qd = yl[:nq], yl[nq:]
-        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt[:12]
-        om_s = kt[12] if len(kt) > 12 else 0.0
-        g = self.g
+        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin_state[:12]
+        om_s = kin_state[12] if len(kin_state) > 12 else 0.0
+        g = self.gravity_m_s2
         sqrt = math.sqrt
         u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
         w1 = sqrt(1.0 - u1 * u1 - v1 * v1)
         s1 = u1 * du1 + v1 * dv1
         n1z_d = s1 / w1
         h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
-        il = self.il
-        if self.elastic:
+        il = self.rope_length_index
+        if self.rope_is_elastic:
             ell, dell = q[il], qd[il]
-            T = self.rope.tension(ell, dell, L, dL)
+            T = self.elastic_rope.tension(ell, dell, L, dL)
             T = T if T > 0.0 else 0.0
             ddL_b = 0.0
         else:
             ell, dell = L, dL
             T = 0.0
             ddL_b = ddL
-        le = ell + self.extra
+        le = ell + self.rope_end_leg_m
         Hx, Hy, Hz = px + le * u1, py + le * v1, pz - le * w1
         Hdx = vx + dell * u1 + le * du1
         Hdy = vy + dell * v1 + le * dv1
@@ -328,31 +447,31 @@ class HookLoadModel:
         by = ay + ddL_b * v1 + 2 * dell * dv1
         bz = az - ddL_b * w1 + 2 * dell * n1z_d + le * h1
         rfx, rfy, rfz = vx + dell * u1, vy + dell * v1, vz - dell * w1
-        Ld = ell + self.d_rest
-        cdamp = 2.0 * self.zeta * sqrt(g / Ld) if Ld > 0.0 else 0.0
-        wx, wy = self.wx, self.wy
+        Ld = ell + self._cg_below_rope_end_m
+        cdamp = 2.0 * self._swing_damping_ratio * sqrt(g / Ld) if Ld > 0.0 else 0.0
+        wx, wy = self._wind_x_m_s, self._wind_y_m_s
         # forces at the rope's end
         Fx = -T * u1
         Fy = -T * v1
         Fz = T * w1
-        if self.kr:
+        if self._rope_drag_k:
             mx = 0.5 * (vx + Hdx) - wx
             my = 0.5 * (vy + Hdy) - wy
             mz = 0.5 * (vz + Hdz)
             al = mx * u1 + my * v1 - mz * w1
             nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
-            f = 0.5 * self.kr * ell * sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
+            f = 0.5 * self._rope_drag_k * ell * sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
             Fx -= f * nx_
             Fy -= f * ny_
             Fz -= f * nz_
-        body, link2 = self.body, self.link2
-        mH = self.m_h + (0.0 if (body or link2) else self.m)
+        body, link2 = self.rigid_load, self.leg_below_hook
+        mH = self.hook_mass_kg + (0.0 if (body or link2) else self.load_mass_kg)
         if mH > 0.0:
             cm = cdamp * mH
             Fx -= cm * (Hdx - rfx + om_s * (Hy - py))
             Fy -= cm * (Hdy - rfy - om_s * (Hx - px))
             Fz -= cm * (Hdz - rfz) + mH * g
-            kd = self.kd_hook if self.has_hook else self.kd_load
+            kd = self._hook_drag_k if self.has_hook_block else self._load_drag_k
             if kd:
                 rx, ry, rz = Hdx - wx, Hdy - wy, Hdz
                 sp = kd * sqrt(rx * rx + ry * ry + rz * rz)
@@ -367,7 +486,7 @@ class HookLoadModel:
             Gx_, Gy_, Gz_ = Jx[:], Jy[:], Jz[:]
             gbx, gby, gbz = bx, by, bz
             if link2:
-                l2 = self.l2
+                l2 = self.leg_below_hook_m
                 u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
                 w2 = sqrt(1.0 - u2 * u2 - v2 * v2)
                 s2 = u2 * du2 + v2 * dv2
@@ -379,10 +498,10 @@ class HookLoadModel:
                 Gz_[3] += l2 * v2 / w2
                 gbz += l2 * ((du2 * du2 + dv2 * dv2) / w2 + s2 * s2 / (w2 * w2 * w2))
             if body:
-                ia = self.ia
+                ia = self.tilt_index
                 a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
                 ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
-                c0, c1, c2 = self.c_b
+                c0, c1, c2 = self.cg_from_pivot_b
                 r0 = cb * c0 + sb * c2
                 r1 = sa * sb * c0 + ca * c1 - sa * cb * c2
                 r2 = -ca * sb * c0 + sa * c1 + ca * cb * c2
@@ -404,14 +523,14 @@ class HookLoadModel:
                 gbz += -bw1 * r0 + (o0 * wr1 - o1 * wr0)
             else:
                 Gx, Gy, Gz, Gdx, Gdy, Gdz = Px, Py, Pz, Pdx, Pdy, Pdz
-            m = self.m
+            m = self.load_mass_kg
             cm = cdamp * m
             FGx = -cm * (Gdx - rfx + om_s * (Gy - py))
             FGy = -cm * (Gdy - rfy - om_s * (Gx - px))
             FGz = -cm * (Gdz - rfz) - m * g
-            if self.kd_load:
+            if self._load_drag_k:
                 rx, ry, rz = Gdx - wx, Gdy - wy, Gdz
-                sp = self.kd_load * sqrt(rx * rx + ry * ry + rz * rz)
+                sp = self._load_drag_k * sqrt(rx * rx + ry * ry + rz * rz)
                 FGx -= sp * rx
                 FGy -= sp * ry
                 FGz -= sp * rz
@@ -423,7 +542,7 @@ class HookLoadModel:
         M = B.T @ (mw[:, None] * B)
         Q = B.T @ np.array(fvec)
         if body:
-            I0, I1, I2 = self.I_b
+            I0, I1, I2 = self.inertia_b
             # body-frame angular velocity and its bias; Euler's equations about the CG
             wb0, wb1, wb2 = da * cb, db, da * sb
             ab0, ab2 = -da * db * sb, da * db * cb
@@ -436,31 +555,32 @@ class HookLoadModel:
             Q[ia + 1] -= h1_
         return np.linalg.solve(M, Q)
 
-    def _eval(self, y, kt, full=False, applied=True):
+    def _eval(self, y, kin_state, full=False, applied=True):
         """Accelerations (and, with ``full``, everything the outputs need) at one instant.
 
-        ``kt`` is the 12-tuple of Motion.local; ``applied=False`` leaves out
-        damping, drag and wind (for the linearisation).
+        ``kin_state`` is a :class:`~swingsim.motion.kinematics.SuspensionState` (or its
+        first 12 entries, slew rate then 0); ``applied=False`` leaves out damping,
+        drag and wind (for the linearisation).
         """
-        nq = self.nq
+        nq = self.n_coordinates
         q, qd = y[:nq], y[nq:]
-        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kt[:12]
-        om_s = kt[12] if len(kt) > 12 else 0.0  # the jib's slew rate (damping reference)
-        g = self.g
+        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin_state[:12]
+        om_s = kin_state[12] if len(kin_state) > 12 else 0.0  # the jib's slew rate (damping reference)
+        g = self.gravity_m_s2
         u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
         w1 = math.sqrt(1.0 - u1 * u1 - v1 * v1)
         s1 = u1 * du1 + v1 * dv1
         n1z_d = s1 / w1
         h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
-        if self.elastic:
-            ell, dell = q[self.il], qd[self.il]
-            rope_T = self.rope.tension(ell, dell, L, dL)
+        if self.rope_is_elastic:
+            ell, dell = q[self.rope_length_index], qd[self.rope_length_index]
+            rope_T = self.elastic_rope.tension(ell, dell, L, dL)
             rope_Tc = rope_T if rope_T > 0.0 else 0.0
             ddL_b = 0.0
         else:
             ell, dell = L, dL
             ddL_b = ddL
-        le = ell + self.extra
+        le = ell + self.rope_end_leg_m
         # hook (rope end)
         H = (px + le * u1, py + le * v1, pz - le * w1)
         Hd = (vx + dell * u1 + le * du1, vy + dell * v1 + le * dv1, vz - dell * w1 + le * n1z_d)
@@ -469,38 +589,38 @@ class HookLoadModel:
         JH[1, 1] = le
         JH[2, 0] = le * u1 / w1
         JH[2, 1] = le * v1 / w1
-        if self.elastic:
-            JH[:, self.il] = (u1, v1, -w1)
+        if self.rope_is_elastic:
+            JH[:, self.rope_length_index] = (u1, v1, -w1)
         bH = np.array([ax + ddL_b * u1 + 2 * dell * du1,
                        ay + ddL_b * v1 + 2 * dell * dv1,
                        az - ddL_b * w1 + 2 * dell * n1z_d + le * h1])
         # relative-velocity reference for damping: support + rope pay-out
         ref = (vx + dell * u1, vy + dell * v1, vz - dell * w1)
-        Ld = ell + self.d_rest
-        cdamp = 2.0 * self.zeta * math.sqrt(g / Ld) if (applied and Ld > 0.0) else 0.0
-        wx, wy = (self.wx, self.wy) if applied else (0.0, 0.0)
+        Ld = ell + self._cg_below_rope_end_m
+        cdamp = 2.0 * self._swing_damping_ratio * math.sqrt(g / Ld) if (applied and Ld > 0.0) else 0.0
+        wx, wy = (self._wind_x_m_s, self._wind_y_m_s) if applied else (0.0, 0.0)
 
         pts_m, pts_J, pts_b, pts_F = [], [], [], []
         # forces at the rope's end: rope drag (half the rope's), elastic tension
         FH = np.zeros(3)
-        if applied and self.kr:
+        if applied and self._rope_drag_k:
             mx = 0.5 * (vx + Hd[0]) - wx
             my = 0.5 * (vy + Hd[1]) - wy
             mz = 0.5 * (vz + Hd[2])
             al = mx * u1 + my * v1 - mz * w1
             nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
             spn = math.sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
-            f = 0.5 * self.kr * ell * spn
+            f = 0.5 * self._rope_drag_k * ell * spn
             FH -= (f * nx_, f * ny_, f * nz_)
-        if self.elastic:
+        if self.rope_is_elastic:
             FH -= (rope_Tc * u1, rope_Tc * v1, -rope_Tc * w1)
-        mH = self.m_h + (0.0 if (self.body or self.link2) else self.m)
+        mH = self.hook_mass_kg + (0.0 if (self.rigid_load or self.leg_below_hook) else self.load_mass_kg)
         if mH > 0.0:
             FH[2] -= mH * g
             cm = cdamp * mH
             FH -= (cm * (Hd[0] - ref[0] + om_s * (H[1] - py)), cm * (Hd[1] - ref[1] - om_s * (H[0] - px)),
                    cm * (Hd[2] - ref[2]))
-            kd = self.kd_hook if self.has_hook else self.kd_load
+            kd = self._hook_drag_k if self.has_hook_block else self._load_drag_k
             if applied and kd:
                 rx, ry, rz = Hd[0] - wx, Hd[1] - wy, Hd[2]
                 sp = math.sqrt(rx * rx + ry * ry + rz * rz)
@@ -511,8 +631,8 @@ class HookLoadModel:
         pts_F.append(FH)
         P, Pd, JP, bP = H, Hd, JH, bH
         n2 = None
-        if self.link2:
-            l2 = self.l2
+        if self.leg_below_hook:
+            l2 = self.leg_below_hook_m
             u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
             w2 = math.sqrt(1.0 - u2 * u2 - v2 * v2)
             s2 = u2 * du2 + v2 * dv2
@@ -526,13 +646,13 @@ class HookLoadModel:
             JP[2, 2] += l2 * u2 / w2
             JP[2, 3] += l2 * v2 / w2
             bP = bH + (0.0, 0.0, l2 * h2)
-        m = self.m
-        if self.body:
-            ia = self.ia
+        m = self.load_mass_kg
+        if self.rigid_load:
+            ia = self.tilt_index
             a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
             ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
             R = np.array([[cb, 0.0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]])
-            c0, c1, c2 = self.c_b
+            c0, c1, c2 = self.cg_from_pivot_b
             r = (cb * c0 + sb * c2, sa * sb * c0 + ca * c1 - sa * cb * c2,
                  -ca * sb * c0 + sa * c1 + ca * cb * c2)
             om = (da, db * ca, db * sa)
@@ -544,19 +664,19 @@ class HookLoadModel:
             JG[:, ia] += (0.0, -r[2], r[1])
             JG[:, ia + 1] += (ca * r[2] - sa * r[1], sa * r[0], -ca * r[0])
             bG = bP + _cx(bw, r) + _cx(om, wxr)
-            Iw = (R * self.I_b) @ R.T
+            Iw = (R * self.inertia_b) @ R.T
             Jw = np.zeros((3, nq))
             Jw[0, ia] = 1.0
             Jw[1, ia + 1] = ca
             Jw[2, ia + 1] = sa
         else:
             G, Gd, JG, bG = np.array(P), np.array(Pd), JP, bP
-        if self.body or self.link2:
+        if self.rigid_load or self.leg_below_hook:
             FG = np.array([0.0, 0.0, -m * g])
             FG -= cdamp * m * (Gd - ref + om_s * np.array([G[1] - py, px - G[0], 0.0]))
-            if applied and self.kd_load:
+            if applied and self._load_drag_k:
                 rel = Gd - (wx, wy, 0.0)
-                FG -= self.kd_load * math.sqrt(rel @ rel) * rel
+                FG -= self._load_drag_k * math.sqrt(rel @ rel) * rel
             pts_m.append(m)
             pts_J.append(JG)
             pts_b.append(bG)
@@ -570,7 +690,7 @@ class HookLoadModel:
             m0, m1 = pts_m
             M = (m0 * J0.T) @ J0 + (m1 * J1.T) @ J1
             Qv = J0.T @ (pts_F[0] - m0 * pts_b[0]) + J1.T @ (pts_F[1] - m1 * pts_b[1])
-        if self.body:
+        if self.rigid_load:
             Iom = Iw @ om
             M += Jw.T @ Iw @ Jw
             Qv -= Jw.T @ (Iw @ bw + _cx(om, Iom))
@@ -581,92 +701,123 @@ class HookLoadModel:
                "n1": np.array([u1, v1, -w1]), "ell": ell, "dell": dell}
         aH = JH @ qdd + bH
         aG = JG @ qdd + bG
-        if self.elastic:
+        if self.rope_is_elastic:
             out["rope_T"] = rope_Tc
             out["rope_T_raw"] = rope_T
         else:
             # massless rope: T n1 = sum(F) - sum(m a) over all bodies (FH holds no tension here)
             tot = FH - mH * aH
-            if self.body or self.link2:
+            if self.rigid_load or self.leg_below_hook:
                 tot = tot + FG - m * aG
             out["rope_T"] = float(out["n1"] @ tot)
-        R_out = R if self.body else np.eye(3)
+        R_out = R if self.rigid_load else np.eye(3)
         out["R"] = R_out
-        if self.body:
+        if self.rigid_load:
             out["tilt"] = (a, b)
             out["omega"] = om
             out["Iw"] = Iw
             out["Jw"] = Jw
             out["bw"] = bw
         # force the rigging exerts on the load
-        if self.body or self.link2:
+        if self.rigid_load or self.leg_below_hook:
             Pload = m * aG - FG
         else:
             Pload = None
         out["P_load"] = Pload
         out["A"] = np.array(P)
         out["legs_T"] = self._leg_tensions(out, n2, Pload)
-        out["top_T"] = self._top_tensions(out, Pload) if self.kind == "spreader" else None
+        out["top_T"] = self._top_tensions(out, Pload) if self.rigging_kind == "spreader" else None
         e = 0.5 * mH * (np.dot(Hd, Hd)) + mH * g * H[2]
-        if self.body or self.link2:
+        if self.rigid_load or self.leg_below_hook:
             e += 0.5 * m * float(Gd @ Gd) + m * g * float(G[2])
-        if self.body:
+        if self.rigid_load:
             e += 0.5 * float(om @ (Iw @ om))
-        if self.elastic:
-            e += self.rope.energy(ell, L)
+        if self.rope_is_elastic:
+            e += self.elastic_rope.energy(ell, L)
         out["energy"] = e
         return out
 
-    def _leg_tensions(self, o, n2, Pload):
+    def _leg_tensions(self, evaluation, n2, Pload):
         """Tension in each sling leg [N] (see module Notes)."""
-        if self.kind == "single":
-            if self.link2:
+        if self.rigging_kind == "single":
+            if self.leg_below_hook:
                 return np.array([-float(np.dot(n2, Pload))])
-            return np.array([o["rope_T"]])
-        R, G = o["R"], o["G"]
-        Aw = G + self.attach_b @ R.T
-        if self.kind == "bridle":
-            E = o["A"] - Aw
+            return np.array([evaluation["rope_T"]])
+        R, G = evaluation["R"], evaluation["G"]
+        Aw = G + self.attach_points_b @ R.T
+        if self.rigging_kind == "bridle":
+            E = evaluation["A"] - Aw
             E = E / np.linalg.norm(E, axis=1)[:, None]
             return np.linalg.lstsq(E.T, Pload, rcond=None)[0]
         # spreader drop legs, parallel to the load's z axis: the force along them and the
         # moment about G the load needs (I_w alpha + omega x I_w omega), least squares
         dz = R[:, 2]
         A_mat = np.vstack([np.ones(len(Aw)), np.cross(Aw - G, dz).T])  # (4, k)
-        alpha = o["Jw"] @ o["qdd"] + o["bw"]
-        Iw, om = o["Iw"], o["omega"]
+        alpha = evaluation["Jw"] @ evaluation["qdd"] + evaluation["bw"]
+        Iw, om = evaluation["Iw"], evaluation["omega"]
         need = Iw @ alpha + np.cross(om, Iw @ om)
         rhs = np.concatenate([[float(dz @ Pload)], need])
         return np.linalg.lstsq(A_mat, rhs, rcond=None)[0]
 
-    def _resting_tensions(self, o):
+    def _resting_tensions(self, evaluation):
         """While resting: the rope's pull, and the legs' share of what it lifts beyond the hook block."""
-        T = max(o["rope_T"], 0.0)
-        share = min(max((T - self.m_h * self.g) / (self.m * self.g), 0.0), 1.0)
-        o["legs_T"] = np.asarray(self._hanging()["legs_T"], float) * share
-        if o.get("top_T") is not None:
-            o["top_T"] = self._hanging()["top_T"] * share
+        T = max(evaluation["rope_T"], 0.0)
+        g = self.gravity_m_s2
+        share = min(max((T - self.hook_mass_kg * g) / (self.load_mass_kg * g), 0.0), 1.0)
+        evaluation["legs_T"] = np.asarray(self._hanging()["legs_T"], float) * share
+        if evaluation.get("top_T") is not None:
+            evaluation["top_T"] = self._hanging()["top_T"] * share
 
-    def _top_tensions(self, o, Pload):
-        R = o["R"]
-        ends = o["G"] + self.geom.ends_b @ R.T
-        E = o["A"] - ends
+    def _top_tensions(self, evaluation, Pload):
+        R = evaluation["R"]
+        ends = evaluation["G"] + self.geometry.ends_b @ R.T
+        E = evaluation["A"] - ends
         E = E / np.linalg.norm(E, axis=1)[:, None]
         return np.linalg.lstsq(E.T, Pload, rcond=None)[0]
 
     def accelerations(self, t, y, motion_or_kin, applied=True):
-        """Generalised accelerations at one state (tests, cross-checks)."""
-        kt = motion_or_kin(t) if callable(motion_or_kin) else motion_or_kin
+        """Generalised accelerations at one state (for tests and cross-checks).
+
+        Parameters
+        ----------
+        t : float
+            Time [s].
+        y : array_like
+            State, ordered as :attr:`state_names`.
+        motion_or_kin : callable or tuple
+            ``kin(t)`` from ``Motion.local``, or a SuspensionState itself.
+        applied : bool
+            With damping, drag and wind (the solver's fast path) or without them
+            (the reference path, for comparing with a conservative derivation).
+
+        Returns
+        -------
+        ndarray
+            Second derivatives of the coordinates [chart units / s^2].
+        """
+        kin_state = motion_or_kin(t) if callable(motion_or_kin) else motion_or_kin
         y = np.asarray(y, float)
         if applied:
-            return self._qdd(y, kt)
-        return self._eval(y, kt, applied=False)
+            return self._qdd(y, kin_state)
+        return self._eval(y, kin_state, applied=False)
 
     def make_rhs(self, kin):
-        nq = self.nq
-        ev = self._eval
+        """Right-hand side of the equations of motion for one piece between breakpoints.
 
-        t_lift = self.t_lift if self.lift_off else None
+        Before lift-off (``rope_preload = "lift-off"``) nothing moves.
+
+        Parameters
+        ----------
+        kin : callable
+            ``Motion.local(t0, t1)``: the SuspensionState at any t [s] of the piece.
+
+        Returns
+        -------
+        callable
+            ``f(t, y) -> dy/dt`` (the fast float path).
+        """
+        nq = self.n_coordinates
+        t_lift = self.lift_off_time_s if self.starts_resting else None
 
         fast = self._qdd
 
@@ -682,22 +833,34 @@ class HookLoadModel:
         return rhs
 
     def make_events(self, kin):
-        """Terminal events: hoist rope or single leg slack; rope, leg or tilt at the chart's limit."""
+        """Terminal events: hoist rope or single leg slack; rope, leg or tilt at the chart's limit.
+
+        Parameters
+        ----------
+        kin : callable
+            As for :meth:`make_rhs`.
+
+        Returns
+        -------
+        dict
+            ``slack``, ``leg_slack`` (a leg below a hook block only) and
+            ``overswing`` event functions for ``solve_ivp``.
+        """
         wlim = self._wlim
         ev = self._eval
 
         # an elastic rope may start just taut (rope_preload = "none"): zero tension then is
         # not slack; slack is a tension below a billionth of the weight
-        eps = 1e-9 * self.m_total * self.g if self.elastic else 0.0
+        eps = 1e-9 * self.hanging_mass_kg * self.gravity_m_s2 if self.rope_is_elastic else 0.0
 
-        t_lift = self.t_lift if self.lift_off else None
+        t_lift = self.lift_off_time_s if self.starts_resting else None
 
-        il, nq, rope = self.il, self.nq, self.rope
+        il, nq, rope = self.rope_length_index, self.n_coordinates, self.elastic_rope
 
         def slack(t, y):
             if t_lift is not None and t <= t_lift:
                 return 1.0  # a slack rope before lift-off is the set-up, not a failure
-            if self.elastic:  # the spring law alone, no dynamics needed
+            if self.rope_is_elastic:  # the spring law alone, no dynamics needed
                 k = kin(t)
                 return rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
             return ev(y, kin(t), full=True)["rope_T"]
@@ -705,11 +868,13 @@ class HookLoadModel:
         slack.terminal = True
         slack.direction = -1
         events = {"slack": slack}
-        if self.link2:
+        if self.leg_below_hook:
+            leg_eps = 1e-9 * self.load_mass_kg * self.gravity_m_s2
+
             def leg_slack(t, y):
                 if t_lift is not None and t <= t_lift:
                     return 1.0
-                return float(ev(y, kin(t), full=True)["legs_T"][0]) + 1e-9 * self.m * self.g
+                return float(ev(y, kin(t), full=True)["legs_T"][0]) + leg_eps
 
             leg_slack.terminal = True
             leg_slack.direction = -1
@@ -718,10 +883,10 @@ class HookLoadModel:
         def overswing(t, y):
             u, v = y[0], y[1]
             val = math.sqrt(max(1.0 - u * u - v * v, 0.0)) - wlim
-            if self.link2:
+            if self.leg_below_hook:
                 val = min(val, math.sqrt(max(1.0 - y[2] ** 2 - y[3] ** 2, 0.0)) - wlim)
-            if self.body:
-                ia = self.ia
+            if self.rigid_load:
+                ia = self.tilt_index
                 c = math.cos(y[ia]) * math.cos(y[ia + 1])  # R[2,2]: cosine of the tilt
                 val = min(val, c - wlim)
             return val
@@ -732,7 +897,22 @@ class HookLoadModel:
         return events
 
     def event_message(self, name: str, t: float) -> str | None:
-        if name == "slack" and self.elastic:
+        """What a slack elastic rope or a slack sling leg means for the lift.
+
+        Parameters
+        ----------
+        name : str
+            The event's key in :meth:`make_events`.
+        t : float
+            The instant of the event [s].
+
+        Returns
+        -------
+        str or None
+            A sentence for the run's status message; None for the solver's generic
+            message (inextensible rope slack, overswing).
+        """
+        if name == "slack" and self.rope_is_elastic:
             return (f"the elastic hoist rope would go slack at t = {t:.3f} s (its tension falls to "
                     "zero): the load would be thrown upward and snatch the rope on the way down; "
                     "the results stop there")
@@ -744,37 +924,46 @@ class HookLoadModel:
     # -- small oscillations ----------------------------------------------------------
     def _linear_MK(self, rope_length_m=None):
         """Mass and stiffness matrices of the swing about hanging rest (fixed support)."""
-        L = self.L0 if rope_length_m is None else rope_length_m
+        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
         y0 = self.rest_state(L)
-        kt = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, L, 0.0, 0.0)
-        nq = self.nq
-        M = self._eval(y0, kt, full=True, applied=False)["M"]
+        kin_state = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, L, 0.0, 0.0)
+        nq = self.n_coordinates
+        M = self._eval(y0, kin_state, full=True, applied=False)["M"]
         K = np.zeros((nq, nq))
         h = 1e-6
         for j in range(nq):
             yp, ym = y0.copy(), y0.copy()
             yp[j] += h
             ym[j] -= h
-            Qp = self._eval(yp, kt, full=True, applied=False)["Q"]
-            Qm = self._eval(ym, kt, full=True, applied=False)["Q"]
+            Qp = self._eval(yp, kin_state, full=True, applied=False)["Q"]
+            Qm = self._eval(ym, kin_state, full=True, applied=False)["Q"]
             K[:, j] = -(Qp - Qm) / (2 * h)
         return M, 0.5 * (K + K.T)
 
     def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
-        """Small-amplitude periods of the swing modes about hanging rest, longest first [s].
+        """Small-amplitude periods of the swing modes about hanging rest, longest first.
 
         Linearised about rest with the support fixed: :math:`K \\phi = \\omega^2 M \\phi`
         (generalised eigenproblem, scipy).  A degenerate pair of modes (the two
         swing planes of a symmetric system) is listed once, as for the point-mass
         model; a rigid load has distinct modes in its two planes, all listed.
-        The elastic rope's vertical bounce is
-        left out (see :meth:`bounce_period_s`); it does not couple with the swing
-        at rest.
+        The elastic rope's vertical bounce is left out (see :meth:`bounce_period_s`);
+        it does not couple with the swing at rest.
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Rope length [m]; the scene's initial length by default.
+
+        Returns
+        -------
+        list of float
+            Periods [s].
         """
         from scipy.linalg import eigh
 
         M, K = self._linear_MK(rope_length_m)
-        keep = [i for i in range(self.nq) if i != self.il]
+        keep = self.swing_coordinate_indices()
         w2 = eigh(K[np.ix_(keep, keep)], M[np.ix_(keep, keep)], eigvals_only=True)
         w2 = np.sort(w2[w2 > 0])
         out = []
@@ -785,22 +974,48 @@ class HookLoadModel:
         return [2 * math.pi / math.sqrt(x) for x in out]
 
     def bounce_period_s(self, rope_length_m: float | None = None) -> float | None:
-        """Period of the vertical bounce on the elastic rope, 2 pi sqrt(m / k) [s]; None if inextensible."""
-        if not self.elastic:
+        """Period of the vertical bounce on the elastic rope, :math:`2\\pi\\sqrt{m / k}`.
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Rope length [m]; the scene's initial length by default.
+
+        Returns
+        -------
+        float or None
+            The period [s]; None for an inextensible rope.
+        """
+        if not self.rope_is_elastic:
             return None
-        L = self.L0 if rope_length_m is None else rope_length_m
-        k = self.rope.stiffness(self.rope.unstretched(L))
-        return 2 * math.pi * math.sqrt(self.m_total / k)
+        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
+        k = self.elastic_rope.stiffness(self.elastic_rope.unstretched(L))
+        return 2 * math.pi * math.sqrt(self.hanging_mass_kg / k)
 
     # -- outputs -----------------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
-        """Derived quantities at times ``t`` for states ``Y`` (N, n); see PointMassModel.outputs.
+        """Derived quantities at sample times (see :meth:`SwingModel.outputs`).
 
-        Adds ``hook`` (N, 3) (None without a hook block), ``leg_tension_N`` (N, k),
-        ``attach_points`` (N, k, 3), ``load_rotation`` (N, 3, 3), ``load_tilt_deg``
-        (N, 2) (None for a point load), ``top_sling_tension_N`` (N, 2),
-        ``spreader_lugs`` (N, k, 3) and ``spreader_ends`` (N, 2, 3) for a spreader,
-        ``rope_stretch_m`` for an elastic rope, and the static leg loads.
+        Parameters
+        ----------
+        t : ndarray
+            Sample times (N,) [s].
+        Y : ndarray
+            States (N, n).
+        motion : Motion
+            The prescribed crane motion.
+
+        Returns
+        -------
+        dict
+            The required outputs of :class:`~swingsim.dynamics.base.SwingModel`
+            (``hook`` (N, 3) [m], None without a hook block), and
+            ``hook_vel`` (N, 3) [m/s], ``leg_tension_N`` (N, k) [N],
+            ``attach_points`` (N, k, 3) [m], ``load_rotation`` (N, 3, 3),
+            ``load_tilt_deg`` (N, 2) (None for a point load), ``top_sling_tension_N``
+            (N, 2) [N], ``spreader_lugs`` (N, k, 3) and ``spreader_ends`` (N, 2, 3)
+            [m] for a spreader, ``rope_stretch_m`` (N,) [m] for an elastic rope, the
+            static leg loads [N] and ``extra_columns`` for the CSV.
         """
         t = np.asarray(t, dtype=float)
         Y = np.asarray(Y, dtype=float)
@@ -815,96 +1030,144 @@ class HookLoadModel:
     def _outputs(self, t, Y, motion) -> dict:
         e = motion.evaluate(t)
         N = len(t)
-        k = self.k_legs
+        k = self.n_legs
         keys = ("p", "dp", "ddp")
         res = {n: np.empty((N, 3)) for n in ("H", "Hd", "G", "Gd", "n1")}
         rope_T = np.empty(N)
         legs = np.empty((N, k))
-        tops = np.empty((N, 2)) if self.kind == "spreader" else None
+        tops = np.empty((N, 2)) if self.rigging_kind == "spreader" else None
         rot = np.empty((N, 3, 3))
-        tilt = np.empty((N, 2)) if self.body else None
+        tilt = np.empty((N, 2)) if self.rigid_load else None
         ell = np.empty(N)
         energy = np.empty(N)
         for i in range(N):
-            kt = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
+            kin_state = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
                 float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]), float(e["slew_rate"][i]))
-            o = self._eval(Y[i], kt, full=True)
-            if self.lift_off and t[i] < self.t_lift:
-                self._resting_tensions(o)
+            evaluation = self._eval(Y[i], kin_state, full=True)
+            if self.starts_resting and t[i] < self.lift_off_time_s:
+                self._resting_tensions(evaluation)
             for n in res:
-                res[n][i] = o[n]
-            rope_T[i] = o["rope_T"]
-            legs[i] = o["legs_T"]
+                res[n][i] = evaluation[n]
+            rope_T[i] = evaluation["rope_T"]
+            legs[i] = evaluation["legs_T"]
             if tops is not None:
-                tops[i] = o["top_T"]
-            rot[i] = o["R"]
+                tops[i] = evaluation["top_T"]
+            rot[i] = evaluation["R"]
             if tilt is not None:
-                tilt[i] = np.degrees(o["tilt"])
-            ell[i] = o["ell"]
-            energy[i] = o["energy"]
-        attach = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.attach_b) if self.body \
+                tilt[i] = np.degrees(evaluation["tilt"])
+            ell[i] = evaluation["ell"]
+            energy[i] = evaluation["energy"]
+        attach = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.attach_points_b) if self.rigid_load \
             else res["G"][:, None, :].copy()
         out = {
             "suspension": e["p"], "suspension_vel": e["dp"], "rope_length": ell,
             "load": res["G"], "load_vel": res["Gd"],
-            "hook": res["H"] if self.has_hook else None,
-            "hook_vel": res["Hd"] if self.has_hook else None,
+            "hook": res["H"] if self.has_hook_block else None,
+            "hook_vel": res["Hd"] if self.has_hook_block else None,
             "rope_dir": res["n1"], "rope_tension_N": rope_T, "energy_J": energy,
-            "static_rope_load_N": self.m_total * self.g,
+            "static_rope_load_N": self.hanging_mass_kg * self.gravity_m_s2,
             "leg_tension_N": legs, "attach_points": attach, "load_rotation": rot,
             "load_tilt_deg": tilt,
             "static_leg_tension_N": self.static_leg_tension_N(),
             "hanging_leg_tension_N": self.hanging_leg_tension_N(),
         }
-        extra = {}
+        columns = {}
         if tilt is not None:
-            extra["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))
-            extra["load_tilt_x_deg"] = tilt[:, 0]
-            extra["load_tilt_y_deg"] = tilt[:, 1]
+            columns["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))
+            columns["load_tilt_x_deg"] = tilt[:, 0]
+            columns["load_tilt_y_deg"] = tilt[:, 1]
         for j in range(k):
-            extra[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
-        if self.kind == "spreader" and self.body:
+            columns[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
+        if self.rigging_kind == "spreader" and self.rigid_load:
             # world positions of the beam's drop-leg lugs and end lugs (for drawing the beam)
-            out["spreader_lugs"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geom.lugs_b)
-            out["spreader_ends"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geom.ends_b)
+            out["spreader_lugs"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geometry.lugs_b)
+            out["spreader_ends"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.geometry.ends_b)
         if tops is not None:
             out["top_sling_tension_N"] = tops
             for j in range(2):
-                extra[f"top_sling_{j + 1}_tension_kN"] = tops[:, j] / 1e3
-        if self.elastic:
-            lam = np.array([self.rope.unstretched(x) for x in e["L"]])
+                columns[f"top_sling_{j + 1}_tension_kN"] = tops[:, j] / 1e3
+        if self.rope_is_elastic:
+            lam = np.array([self.elastic_rope.unstretched(x) for x in e["L"]])
             out["rope_stretch_m"] = ell - lam
-            extra["rope_stretch_m"] = out["rope_stretch_m"]
-        out["extra_columns"] = extra
+            columns["rope_stretch_m"] = out["rope_stretch_m"]
+        out["extra_columns"] = columns
         return out
 
     # -- static leg loads ------------------------------------------------------------------
     def _hanging(self) -> dict:
-        if getattr(self, "_hanging_cache", None) is None:
+        if self._hanging_cache is None:
             y0 = self.rest_state()
-            kt = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.L0, 0.0, 0.0)
-            self._hanging_cache = self._eval(y0, kt, full=True, applied=False)
+            kin_state = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.initial_rope_length_m, 0.0, 0.0)
+            self._hanging_cache = self._eval(y0, kin_state, full=True, applied=False)
         return self._hanging_cache
 
     def hanging_leg_tension_N(self) -> np.ndarray:
-        """Leg tensions with the system hanging at rest (static equilibrium, this model) [N]."""
+        """Leg tensions with the system hanging at rest (static equilibrium of this model).
+
+        Returns
+        -------
+        ndarray
+            Tension of each leg [N].
+        """
         return np.asarray(self._hanging()["legs_T"], float).copy()
 
     def static_leg_tension_N(self) -> np.ndarray:
-        """Rigging rule: the load's weight shared equally over the legs, over cos(leg angle) [N].
+        """Rigging rule: the load's weight shared equally over the legs, over cos(leg angle).
 
         Common practice (sling angle factor); the leg angle from vertical at rest.
         Exact for a symmetric bridle; the hanging value of this model
         (:meth:`hanging_leg_tension_N`) also holds for an off-centre CG.
+
+        Returns
+        -------
+        ndarray
+            Tension of each leg [N].
         """
-        W = self.m * self.g
-        if self.kind == "single":
+        W = self.load_mass_kg * self.gravity_m_s2
+        if self.rigging_kind == "single":
             return np.array([W])
-        R = rotation(*self.geom.rest_tilt_rad)
-        k = self.k_legs
-        if self.kind == "bridle":
-            d = (self.geom.hook_b - self.attach_b) @ R.T
-            cos = d[:, 2] / np.linalg.norm(d, axis=1)
-        else:
-            cos = np.full(k, R[2, 2])
-        return W / k / cos
+        return W / self.n_legs / self._leg_cosines_at_rest()
+
+    def _leg_cosines_at_rest(self) -> np.ndarray:
+        """Cosine of each leg's angle from vertical with the load hanging at rest (rigid rigging)."""
+        R = self.rest_rotation()
+        if self.rigging_kind == "bridle":
+            d = (self.geometry.hook_b - self.attach_points_b) @ R.T
+            return d[:, 2] / np.linalg.norm(d, axis=1)
+        return np.full(self.n_legs, R[2, 2])  # spreader drop legs: along the load's z axis
+
+    def leg_angles_at_rest_deg(self) -> list:
+        """Each sling leg's angle from vertical with the system hanging at rest.
+
+        Returns
+        -------
+        list of float
+            Angles [deg]; ``[0.0]`` for a single leg or a point load (the leg hangs
+            plumb).
+        """
+        if self.rigging_kind == "single" or self.geometry is None:
+            return [0.0]
+        cos = np.clip(self._leg_cosines_at_rest(), -1, 1)
+        return [float(x) for x in np.degrees(np.arccos(cos))]
+
+    def rest_rotation(self) -> np.ndarray:
+        """Orientation of the load hanging at rest (its CG under the pivot).
+
+        Returns
+        -------
+        ndarray
+            Rotation matrix (3, 3) from load axes to world axes [-]; the identity for
+            a point load.
+        """
+        return rotation(*self.geometry.rest_tilt_rad) if self.geometry is not None else np.eye(3)
+
+    def swing_coordinate_indices(self) -> list:
+        """Indices of the swing coordinates: every coordinate but the elastic rope's length.
+
+        Returns
+        -------
+        list of int
+            Indices into the coordinates (the first :attr:`n_coordinates` state
+            entries).
+        """
+        return [i for i in range(self.n_coordinates) if i != self.rope_length_index]

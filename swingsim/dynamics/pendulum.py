@@ -27,6 +27,11 @@ inertial frame (e.g. Goldstein, *Classical Mechanics*, ch. 1-2), so slewing's
 centripetal and Coriolis effects come in through :math:`\\ddot p` by
 themselves.  The equations are checked in the tests against an independent
 sympy derivation and against the published results listed there.
+
+References
+----------
+.. [1] H. Goldstein, C. Poole and J. Safko, *Classical Mechanics*, 3rd ed.,
+   Addison-Wesley, 2002, ch. 1-2 (Lagrange's equations with constraints).
 """
 
 from __future__ import annotations
@@ -35,7 +40,8 @@ import math
 
 import numpy as np
 
-from swingsim import constants as C
+from swingsim import constants
+from swingsim.dynamics.base import ModelDefaults
 from swingsim.dynamics.forces import drag_coefficient_per_mass
 
 
@@ -45,14 +51,38 @@ def _zero(x) -> bool:
 
 
 def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
-    r"""Applied force per unit mass on the load, gravity included [m/s^2].
+    r"""Applied force per unit mass on the load, gravity included.
 
-    ``par`` is a dict of floats or arrays: g, zeta, kd (load drag), kr (rope
-    drag per unit length), wx, wy (wind).  ``slew_rate`` [rad/s] is the jib's
-    rotation rate: the equivalent viscous damping acts on the swing relative
-    to the crane (sheave and rope friction turn with the jib), i.e. on
-    :math:`L(\dot n - \Omega \hat z \times n)`, so that steady slewing has
-    the undamped steady angle.
+    Every argument may be a float or a numpy array (broadcastable): the single run
+    passes floats, the batch engine arrays over variants.
+
+    Parameters
+    ----------
+    u, v : float or ndarray
+        Horizontal components of the unit rope direction [-].
+    w : float or ndarray
+        Its downward component, :math:`\sqrt{1 - u^2 - v^2}` [-].
+    du, dv : float or ndarray
+        Rates of ``u`` and ``v`` [1/s].
+    L, dL : float or ndarray
+        Rope length and its rate [m, m/s].
+    vpx, vpy, vpz : float or ndarray
+        Velocity of the suspension point [m/s].
+    par : dict
+        The model's parameters (:func:`model_params`): ``g`` gravity [m/s^2],
+        ``zeta`` swing damping ratio [-], ``kd`` load drag and ``kr`` rope drag per
+        unit length per unit mass [1/m, 1/m^2], ``wx``, ``wy`` wind velocity [m/s].
+    slew_rate : float or ndarray
+        The jib's rotation rate [rad/s]: the equivalent viscous damping acts on the
+        swing relative to the crane (sheave and rope friction turn with the jib),
+        i.e. on :math:`L(\dot n - \Omega \hat z \times n)`, so that steady
+        slewing has the undamped steady angle.
+
+    Returns
+    -------
+    tuple
+        ``(fx, fy, fz)`` [m/s^2]: gravity, damping, load drag and half the rope's
+        drag (module Notes of :mod:`swingsim.dynamics.forces`).
     """
     s1 = u * du + v * dv
     ndz = s1 / w
@@ -102,7 +132,26 @@ def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
 
 
 def accelerations(u, v, du, dv, L, dL, apx, apy, apz, fx, fy, fz):
-    """Second derivatives (ddu, ddv) of the rope direction chart (see module Notes)."""
+    """Second derivatives of the rope direction chart (module Notes).
+
+    Parameters
+    ----------
+    u, v : float or ndarray
+        Horizontal components of the unit rope direction [-].
+    du, dv : float or ndarray
+        Their rates [1/s].
+    L, dL : float or ndarray
+        Rope length and its rate [m, m/s].
+    apx, apy, apz : float or ndarray
+        Acceleration of the suspension point [m/s^2].
+    fx, fy, fz : float or ndarray
+        Applied force per unit mass on the load (:func:`specific_force`) [m/s^2].
+
+    Returns
+    -------
+    tuple
+        ``(ddu, ddv)`` [1/s^2].
+    """
     w = (1.0 - u * u - v * v) ** 0.5
     s1 = u * du + v * dv
     hz = (du * du + dv * dv) / w + s1 * s1 / (w * w * w)
@@ -116,7 +165,26 @@ def accelerations(u, v, du, dv, L, dL, apx, apy, apz, fx, fy, fz):
 
 
 def tension_per_mass(u, v, du, dv, L, ddL, apx, apy, apz, fx, fy, fz):
-    """Rope tension divided by the load's mass [m/s^2]."""
+    """Rope tension divided by the load's mass (module Notes).
+
+    Parameters
+    ----------
+    u, v : float or ndarray
+        Horizontal components of the unit rope direction [-].
+    du, dv : float or ndarray
+        Their rates [1/s].
+    L, ddL : float or ndarray
+        Rope length and its second derivative [m, m/s^2].
+    apx, apy, apz : float or ndarray
+        Acceleration of the suspension point [m/s^2].
+    fx, fy, fz : float or ndarray
+        Applied force per unit mass on the load (:func:`specific_force`) [m/s^2].
+
+    Returns
+    -------
+    float or ndarray
+        Tension per unit mass [m/s^2]; zero or below means the rope goes slack.
+    """
     w = (1.0 - u * u - v * v) ** 0.5
     s1 = u * du + v * dv
     nd2 = du * du + dv * dv + (s1 / w) ** 2
@@ -124,7 +192,21 @@ def tension_per_mass(u, v, du, dv, L, ddL, apx, apy, apz, fx, fy, fz):
 
 
 def direction_from_projected(ax_rad, ay_rad, rx=0.0, ry=0.0):
-    """Chart state (u, v, du, dv) from projected angles on the x-z and y-z planes and their rates."""
+    """Chart state from the rope's projected angles and their rates.
+
+    Parameters
+    ----------
+    ax_rad, ay_rad : float
+        Rope angle from vertical projected on the x-z and on the y-z plane [rad].
+    rx, ry : float
+        Their rates [rad/s].
+
+    Returns
+    -------
+    tuple
+        ``(u, v, du, dv)``: horizontal components of the unit rope direction [-] and
+        their rates [1/s].
+    """
     tx, ty = math.tan(ax_rad), math.tan(ay_rad)
     N = math.sqrt(1.0 + tx * tx + ty * ty)
     dtx = rx / math.cos(ax_rad) ** 2
@@ -137,7 +219,21 @@ def direction_from_projected(ax_rad, ay_rad, rx=0.0, ry=0.0):
 
 
 def model_params(scene) -> dict:
-    """Physical parameters of the point-mass model as plain floats."""
+    r"""Physical parameters of the point-mass model as plain floats.
+
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+
+    Returns
+    -------
+    dict
+        ``g`` gravity [m/s^2], ``zeta`` swing damping ratio [-], ``kd`` load drag
+        :math:`\rho C_d A / (2 m)` [1/m], ``kr`` rope drag per unit length
+        :math:`\rho C_d d / (2 m)` [1/m^2], ``wx``, ``wy`` wind velocity [m/s],
+        ``m`` load mass [kg].
+    """
     load, wind = scene.load, scene.wind
     kd = 0.0
     if load.wind_area_m2:
@@ -153,8 +249,17 @@ def model_params(scene) -> dict:
             "m": load.mass_kg}
 
 
-class PointMassModel:
-    """The load as a point mass at the end of the hoist rope (no hook block)."""
+class PointMassModel(ModelDefaults):
+    """The load as a point mass at the end of the hoist rope (no hook block).
+
+    Follows :class:`swingsim.dynamics.base.SwingModel`; the equations are in the
+    module Notes.
+
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+    """
 
     name = "point-mass"
     state_names = ("u", "v", "du", "dv")
@@ -162,25 +267,59 @@ class PointMassModel:
     def __init__(self, scene):
         self.scene = scene
         self.par = model_params(scene)
-        self.angle_limit_rad = math.radians(C.MODEL_ANGLE_LIMIT_DEG)
+        self.angle_limit_rad = math.radians(constants.MODEL_ANGLE_LIMIT_DEG)
         self._wlim = math.cos(self.angle_limit_rad)
 
     # -- set-up --------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
+        """The state at t = 0 from ``start.swing_deg`` and ``start.swing_rate_deg_s``.
+
+        Parameters
+        ----------
+        motion : Motion
+            The prescribed crane motion (not needed by this model).
+
+        Returns
+        -------
+        ndarray
+            ``(u, v, du, dv)`` [-, -, 1/s, 1/s].
+        """
         sw = self.scene.start
         return np.array(direction_from_projected(
             math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
             math.radians(sw.swing_rate_deg_s[0]), math.radians(sw.swing_rate_deg_s[1])))
 
     def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
-        """Small-amplitude swing period 2 pi sqrt(L / g) (textbook)."""
+        """Small-amplitude swing period :math:`2\\pi\\sqrt{L / g}` (textbook).
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Rope length [m]; the scene's initial length by default.
+
+        Returns
+        -------
+        list of float
+            The one period [s].
+        """
         L = self.scene.rope.length_m if rope_length_m is None else rope_length_m
         return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
 
     # -- the equations -------------------------------------------------------
 
     def make_rhs(self, kin):
-        """Right-hand side f(t, y) for one segment; ``kin`` is ``Motion.local(t0, t1)`` (a SuspensionState at any t)."""
+        """Right-hand side of the equations of motion for one piece between breakpoints.
+
+        Parameters
+        ----------
+        kin : callable
+            ``Motion.local(t0, t1)``: the SuspensionState at any t [s] of the piece.
+
+        Returns
+        -------
+        callable
+            ``f(t, y) -> [du, dv, ddu, ddv]``.
+        """
         par = self.par
         sf, acc = specific_force, accelerations
 
@@ -195,7 +334,18 @@ class PointMassModel:
         return rhs
 
     def make_events(self, kin):
-        """Terminal events: rope goes slack (tension <= 0), swing reaches the model's limit."""
+        """Terminal events: the rope goes slack (tension <= 0), the swing reaches the model's limit.
+
+        Parameters
+        ----------
+        kin : callable
+            As for :meth:`make_rhs`.
+
+        Returns
+        -------
+        dict
+            ``slack`` and ``overswing`` event functions for ``solve_ivp``.
+        """
         par = self.par
         wlim = self._wlim
 
@@ -218,12 +368,39 @@ class PointMassModel:
         return {"slack": slack, "overswing": overswing}
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
-        """Rope direction at rest in the steady wind (suspension point still)."""
+        """Rope direction at rest in the steady wind (suspension point still).
+
+        Parameters
+        ----------
+        rope_length_m : float
+            Rope length [m] (the rope's own drag grows with it).
+
+        Returns
+        -------
+        ndarray
+            Unit vector (3,) down the rope [-].
+        """
         return rest_direction(self.par, rope_length_m)
 
     # -- outputs ---------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
-        """Derived quantities at sample times ``t`` for states ``Y`` (N, 4)."""
+        """Derived quantities at sample times (see :meth:`SwingModel.outputs`).
+
+        Parameters
+        ----------
+        t : ndarray
+            Sample times (N,) [s].
+        Y : ndarray
+            States (N, 4).
+        motion : Motion
+            The prescribed crane motion.
+
+        Returns
+        -------
+        dict
+            The required outputs of :class:`~swingsim.dynamics.base.SwingModel`;
+            ``hook`` is None.
+        """
         e = motion.evaluate(t)
         u, v, du, dv = Y[:, 0], Y[:, 1], Y[:, 2], Y[:, 3]
         w = np.sqrt(np.clip(1.0 - u * u - v * v, 0.0, None))
@@ -253,6 +430,20 @@ def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
     applied force per unit mass (tension balances it); the rope's own drag
     depends on its direction, so a fixed-point iteration is used (it contracts
     quickly because the wind force is small against gravity).
+
+    Parameters
+    ----------
+    par : dict
+        The model's parameters (:func:`model_params`).
+    L : float
+        Rope length [m].
+    iterations : int
+        Most fixed-point iterations.
+
+    Returns
+    -------
+    ndarray
+        Unit vector (3,) down the rope [-].
     """
     u = v = 0.0
     for _ in range(iterations):

@@ -60,7 +60,20 @@ class RiggingError(ValueError):
 
 
 def box_inertia(mass_kg: float, size_m) -> np.ndarray:
-    """Principal moments [Ixx, Iyy, Izz] of a uniform box about its centre [kg m^2]."""
+    """Principal moments of inertia of a uniform box about its centre (module Notes).
+
+    Parameters
+    ----------
+    mass_kg : float
+        Mass [kg].
+    size_m : sequence of float
+        Side lengths along x, y, z [m].
+
+    Returns
+    -------
+    ndarray
+        ``[Ixx, Iyy, Izz]`` [kg m^2].
+    """
     a, b, c = (float(s) for s in size_m)
     return mass_kg / 12.0 * np.array([b * b + c * c, a * a + c * c, a * a + b * b])
 
@@ -72,6 +85,16 @@ def cylinder_axis(size_m) -> tuple[int, float, float]:
     standing on end as well as a pipe lying down), otherwise the longest side;
     the diameter is the larger of the other two.  One rule for the inertia and
     for the drawing.
+
+    Parameters
+    ----------
+    size_m : sequence of float
+        The bounding box's sides along x, y, z [m].
+
+    Returns
+    -------
+    tuple
+        ``(axis, diameter_m, length_m)``: axis index 0-2, diameter [m], length [m].
     """
     s = [float(v) for v in size_m]
     if s[1] == s[2] and s[0] != s[1]:
@@ -87,7 +110,20 @@ def cylinder_axis(size_m) -> tuple[int, float, float]:
 
 
 def cylinder_inertia(mass_kg: float, size_m) -> np.ndarray:
-    """Principal moments of a uniform solid cylinder about its centre [kg m^2] (see cylinder_axis)."""
+    """Principal moments of inertia of a uniform solid cylinder about its centre (module Notes).
+
+    Parameters
+    ----------
+    mass_kg : float
+        Mass [kg].
+    size_m : sequence of float
+        The bounding box's sides [m]; the axis as :func:`cylinder_axis` reads it.
+
+    Returns
+    -------
+    ndarray
+        ``[Ixx, Iyy, Izz]`` [kg m^2].
+    """
     ax, D, ell = cylinder_axis(size_m)
     I = np.full(3, mass_kg / 12.0 * (0.75 * D * D + ell * ell))
     I[ax] = mass_kg * D * D / 8.0
@@ -95,7 +131,18 @@ def cylinder_inertia(mass_kg: float, size_m) -> np.ndarray:
 
 
 def load_inertia(load) -> np.ndarray | None:
-    """The load's principal moments about its CG (load axes) [kg m^2]; None for a point mass."""
+    """The load's principal moments of inertia about its CG, load axes.
+
+    Parameters
+    ----------
+    load : Load
+        The scene's ``load`` table (``inertia_kg_m2`` wins over ``size_m``).
+
+    Returns
+    -------
+    ndarray or None
+        ``[Ixx, Iyy, Izz]`` [kg m^2]; None for a point mass.
+    """
     if load.inertia_kg_m2 is not None:
         return np.array(load.inertia_kg_m2, dtype=float)
     if load.size_m is None:
@@ -106,7 +153,20 @@ def load_inertia(load) -> np.ndarray | None:
 
 
 def rotation(a: float, b: float) -> np.ndarray:
-    """R = Rx(a) Ry(b): the load's orientation for tilts a, b [rad] (yaw held fixed)."""
+    """The load's orientation :math:`R = R_x(a) R_y(b)` (yaw held fixed; module Notes).
+
+    Parameters
+    ----------
+    a : float
+        Tilt about the world x axis [rad].
+    b : float
+        Tilt about the load's y axis [rad].
+
+    Returns
+    -------
+    ndarray
+        Rotation matrix (3, 3), load axes to world axes [-].
+    """
     ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
     return np.array([[cb, 0.0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]])
 
@@ -114,8 +174,21 @@ def rotation(a: float, b: float) -> np.ndarray:
 def tilt_to_align(c, d, guess=(0.0, 0.0)) -> tuple[float, float]:
     """Tilts (a, b) [rad] with R(a, b) c parallel to the unit vector d (closed form).
 
-    ``c`` is a body-frame vector (e.g. from the hook point to the CG); of the
-    two solutions the one with the smaller tilt is returned.
+    Of the two solutions the one with the smaller tilt is returned.
+
+    Parameters
+    ----------
+    c : array_like
+        A load-axes vector (e.g. from the hook point to the CG) [m].
+    d : array_like
+        The world direction it must point along [-].
+    guess : tuple of float
+        Tilts returned when ``c`` is zero [rad].
+
+    Returns
+    -------
+    tuple of float
+        ``(a, b)`` [rad].
     """
     c = np.asarray(c, float)
     d = np.asarray(d, float) / np.linalg.norm(d)
@@ -153,6 +226,7 @@ class Geometry:
     Attributes
     ----------
     kind : str
+        ``"single"``, ``"bridle"`` or ``"spreader"``.
     pivot_b : ndarray (3,)
         The load's point pinned to the hook (bridle, spreader) or to the end of
         a single leg.
@@ -178,6 +252,7 @@ class Geometry:
 
     @property
     def cg_from_pivot_b(self) -> np.ndarray:
+        """The CG seen from the pivot, load axes [m]."""
         return -self.pivot_b
 
 
@@ -228,9 +303,26 @@ def _apex(A, L, key="leg_length_m"):
 
 
 def rigging_geometry(rig, load, rigid: bool = True) -> Geometry:
-    """Geometry of the rigging of a scene (``Rigging``, ``Load``); raises RiggingError.
+    """Geometry of the rigging of a scene (module Notes).
 
-    ``rigid``: whether the load is modelled as a rigid body (``Scene.rigid_load``).
+    Parameters
+    ----------
+    rig : Rigging
+        The scene's ``rigging`` table (attachment points and leg lengths [m]).
+    load : Load
+        The scene's ``load`` table.
+    rigid : bool
+        Whether the load is modelled as a rigid body (``Scene.rigid_load``).
+
+    Returns
+    -------
+    Geometry
+        Pivot, attachment points, hook point, spreader lugs and rest tilts.
+
+    Raises
+    ------
+    RiggingError
+        When the rigging cannot hang as described.
     """
     A = np.array(rig.attach_m, dtype=float)
     L = np.array(rig.leg_length_m, dtype=float)
@@ -286,6 +378,16 @@ def hanging_shares(geom: Geometry) -> np.ndarray:
 
     Bridle: the weight resolved along the legs (least squares; minimum norm for four or
     more); spreader drop legs: parallel forces with no moment about the CG (lever rule).
+
+    Parameters
+    ----------
+    geom : Geometry
+        The rigging geometry of a rigid load (bridle or spreader).
+
+    Returns
+    -------
+    ndarray
+        Each leg's tension over the load's weight [-].
     """
     R = rotation(*geom.rest_tilt_rad)
     W = np.array([0.0, 0.0, 1.0])

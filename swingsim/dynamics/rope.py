@@ -40,13 +40,47 @@ from dataclasses import dataclass
 
 
 def metallic_area_m2(diameter_m: float, fill_factor: float) -> float:
-    """Metallic cross-section f pi d^2 / 4 of a wire rope [m^2]."""
+    """Metallic cross-section :math:`f \\pi d^2 / 4` of a wire rope (module Notes).
+
+    Parameters
+    ----------
+    diameter_m : float
+        Nominal rope diameter [m].
+    fill_factor : float
+        Metallic area over the area of the circle [-] (about 0.58).
+
+    Returns
+    -------
+    float
+        Metallic area [m^2].
+    """
     return fill_factor * math.pi * diameter_m**2 / 4.0
 
 
 def reeving_stiffness(modulus_Pa: float, area_m2: float, falls: int, fall_length_m: float,
                       lead_length_m: float = 0.0) -> float:
-    """k = n^2 E A / (n L + L_lead) at the hook [N/m] (common practice)."""
+    """Stiffness at the hook of a reeving, :math:`k = n^2 E A / (n L + L_\\text{lead})`.
+
+    Common practice (module Notes).
+
+    Parameters
+    ----------
+    modulus_Pa : float
+        Effective modulus of the rope on its metallic area [Pa].
+    area_m2 : float
+        Metallic area [m^2].
+    falls : int
+        Number of falls between the suspension point and the hook block [-].
+    fall_length_m : float
+        Unstretched length of one fall [m].
+    lead_length_m : float
+        Lead from the top sheave to the drum, carrying the same line pull [m].
+
+    Returns
+    -------
+    float
+        Stiffness [N/m].
+    """
     return falls**2 * modulus_Pa * area_m2 / (falls * fall_length_m + lead_length_m)
 
 
@@ -59,12 +93,15 @@ class ElasticRope:
     K : float
         n^2 E A [N] (or its equivalent from a given stiffness).
     falls : int
+        Number of falls [-].
     lead_length_m : float
+        Lead from the top sheave to the drum [m].
     lambda0_m : float
         Unstretched length of one fall at t = 0 [m].
     loaded_length_m : float
         The scene's rope length (loaded, at rest) [m].
     damping_ratio : float
+        Bounce damping ratio of the dashpot [-].
     mass_kg : float
         Mass hanging on the rope (for the dashpot) [kg].
     source : str
@@ -81,22 +118,74 @@ class ElasticRope:
     source: str
 
     def stiffness(self, lam: float) -> float:
-        """Stiffness at the hook [N/m] for unstretched fall length ``lam`` [m]."""
+        """Stiffness at the hook for a given unstretched fall length.
+
+        Parameters
+        ----------
+        lam : float
+            Unstretched length of one fall [m].
+
+        Returns
+        -------
+        float
+            Stiffness [N/m].
+        """
         return self.K / (self.falls * lam + self.lead_length_m)
 
     def unstretched(self, L: float) -> float:
-        """Unstretched fall length [m] when the hoist motion sets the rope length to ``L``."""
+        """Unstretched fall length when the hoist motion sets the rope length.
+
+        Parameters
+        ----------
+        L : float
+            Rope length the hoist motion prescribes (loaded length) [m].
+
+        Returns
+        -------
+        float
+            :math:`\\lambda = \\lambda_0 + L - L_0` [m].
+        """
         return self.lambda0_m + (L - self.loaded_length_m)
 
     def tension(self, ell, dell, L, dL):
-        """Rope tension [N] before the tension-only clamp (negative: slack)."""
+        """Rope tension of the spring and dashpot, before the tension-only clamp.
+
+        Parameters
+        ----------
+        ell : float
+            Stretched rope length (the model's state) [m].
+        dell : float
+            Its rate [m/s].
+        L : float
+            Rope length the hoist motion prescribes [m].
+        dL : float
+            Its rate [m/s].
+
+        Returns
+        -------
+        float
+            Tension [N]; negative means slack.
+        """
         lam = self.lambda0_m + (L - self.loaded_length_m)
         k = self.K / (self.falls * lam + self.lead_length_m)
         c = 2.0 * self.damping_ratio * math.sqrt(k * self.mass_kg)
         return k * (ell - lam) + c * (dell - dL)
 
     def energy(self, ell, L):
-        """Strain energy of the stretched rope [J] (zero when slack)."""
+        """Strain energy of the stretched rope.
+
+        Parameters
+        ----------
+        ell : float
+            Stretched rope length [m].
+        L : float
+            Rope length the hoist motion prescribes [m].
+
+        Returns
+        -------
+        float
+            Energy [J]; zero when slack.
+        """
         lam = self.lambda0_m + (L - self.loaded_length_m)
         k = self.K / (self.falls * lam + self.lead_length_m)
         x = ell - lam
@@ -104,7 +193,27 @@ class ElasticRope:
 
 
 def elastic_rope(rope, weight_N: float, mass_kg: float) -> ElasticRope | None:
-    """The elastic reeving of a scene's ``Rope`` carrying ``weight_N``; None if inextensible."""
+    """The elastic reeving of a scene's rope.
+
+    Parameters
+    ----------
+    rope : Rope
+        The scene's ``rope`` table.
+    weight_N : float
+        Weight the rope carries at rest [N] (sets the unstretched length).
+    mass_kg : float
+        Mass hanging on the rope [kg] (for the dashpot).
+
+    Returns
+    -------
+    ElasticRope or None
+        None for an inextensible rope.
+
+    Raises
+    ------
+    ValueError
+        When the load would stretch the rope by more than its length.
+    """
     if not rope.elastic:
         return None
     n, lead, L0 = rope.falls, rope.lead_length_m, rope.length_m

@@ -23,7 +23,20 @@ def _f(x, nd=1):
 
 
 def scenario_warnings(s: dict, scene) -> list[str]:
-    """Warnings a lift planner expects, from a summary dict ``s`` and its scene."""
+    """Warnings a lift planner expects, from a run's summary.
+
+    Parameters
+    ----------
+    s : dict
+        The summary's data (peak rope angle [deg], settling [s], tensions [kN] ...).
+    scene : Scene
+        Its scene (limits, wind, rope).
+
+    Returns
+    -------
+    list of str
+        One sentence per warning, in the order of the checks.
+    """
     out = []
     lim = scene.limits
     if not s.get("valid", True):

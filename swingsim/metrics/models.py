@@ -38,7 +38,30 @@ def _peak(t, x):
 
 
 def measured_mode_periods(t, q, periods, t_from):
-    """Periods [s] measured from the spectrum of ``q`` (N, n) after ``t_from``; None where unseen."""
+    """Periods of the swing modes measured from the spectrum of the motion (module docstring).
+
+    Parameters
+    ----------
+    t : ndarray
+        Sample times (N,) [s].
+    q : ndarray
+        Swing coordinates at those times (N, n) [chart units].
+    periods : list of float
+        The model's small-amplitude mode periods [s], each the centre of a search band.
+    t_from : float
+        Start of the record to analyse (the end of the last move) [s].
+
+    Returns
+    -------
+    list
+        One measured period [s] per entry of ``periods``; None where the record is
+        too short, the band too narrow or the motion has no energy there.
+
+    References
+    ----------
+    .. [1] F. J. Harris, "On the use of windows for harmonic analysis with the
+       discrete Fourier transform", *Proc. IEEE* 66(1), 51-83, 1978 (Hann window).
+    """
     sel = t >= t_from
     out = [None] * len(periods)
     if sel.sum() < 64 or not periods:
@@ -84,21 +107,39 @@ def measured_mode_periods(t, q, periods, t_from):
 
 
 def model_metrics(traj, t, s) -> dict:
-    """Extra summary keys for a hook-and-load trajectory (empty for the point-mass model)."""
+    """Extra summary keys for a hook-and-load trajectory (empty for the point-mass model).
+
+    Parameters
+    ----------
+    traj : Trajectory
+        The solved run; its model is a :class:`~swingsim.dynamics.hook_load.HookLoadModel`
+        when the samples hold ``leg_tension_N``.
+    t : ndarray
+        Metric sample times (N,) [s].
+    s : dict
+        The model's outputs at ``t`` (``Trajectory.sample``).
+
+    Returns
+    -------
+    dict
+        Summary keys: leg tensions and dynamic factors [kN, -], tilt [deg], hook
+        excursion [m], elastic rope stiffness [kN/m], bounce period [s], stretch [m],
+        lift-off instant [s] and measured mode periods [s] (see module Definitions).
+    """
     if "leg_tension_N" not in s:
         return {}
     model, scene = traj.model, traj.scene
     d: dict = {}
-    d["hook_mass_kg"] = model.m_h if model.has_hook else None
-    d["load_modelled_as"] = "rigid body" if model.body else "point mass"
-    d["rigging_kind"] = model.kind if scene.rigging is not None else None
-    d["yaw_held_fixed"] = bool(model.body)
+    d["hook_mass_kg"] = model.hook_mass_kg if model.has_hook_block else None
+    d["load_modelled_as"] = "rigid body" if model.rigid_load else "point mass"
+    d["rigging_kind"] = model.rigging_kind if scene.rigging is not None else None
+    d["yaw_held_fixed"] = bool(model.rigid_load)
     legs = s["leg_tension_N"]
     static = model.static_leg_tension_N()
     hanging = model.hanging_leg_tension_N()
-    wll = model.wll_N
+    wll = model.leg_wll_N
     rows = []
-    leg_dirs = _leg_angles_deg(traj, model, s)
+    leg_dirs = model.leg_angles_at_rest_deg()
     for j in range(legs.shape[1]):
         pk, pk_t = _peak(t, legs[:, j])
         mn_i = int(np.argmin(legs[:, j]))
@@ -123,9 +164,9 @@ def model_metrics(traj, t, s) -> dict:
         top = s["top_sling_tension_N"]
         d["top_sling_peak_tension_kN"] = [float(np.max(top[:, j])) / 1e3 for j in range(2)]
         d["top_sling_wll_kN"] = scene.rigging.top_wll_kN
-    if model.body:
+    if model.rigid_load:
         tilt = s["extra_columns"]["load_tilt_deg"]
-        R0 = _rest_rotation(model)
+        R0 = model.rest_rotation()
         d["rest_tilt_deg"] = float(np.degrees(np.arccos(np.clip(R0[2, 2], -1, 1))))
         pk, pk_t = _peak(t, tilt)
         d["peak_tilt_deg"], d["peak_tilt_time_s"] = pk, pk_t
@@ -135,50 +176,45 @@ def model_metrics(traj, t, s) -> dict:
         d["peak_tilt_from_rest_deg"] = float(np.max(dev))
         post = t >= traj.motion.last_move_end_s - 1e-12
         d["residual_tilt_from_rest_deg"] = float(np.max(dev[post])) if post.any() else None
-    if model.has_hook:
+    if model.has_hook_block:
         hor = s["hook"][:, :2] - s["suspension"][:, :2]
         d["peak_hook_excursion_m"] = float(np.max(np.hypot(hor[:, 0], hor[:, 1])))
-    if model.elastic:
-        rp = model.rope
+    if model.rope_is_elastic:
+        rp = model.elastic_rope
         d["rope_elastic"] = True
         d["rope_stiffness_kN_per_m"] = rp.stiffness(rp.lambda0_m) / 1e3
         d["rope_stiffness_from"] = rp.source
         d["bounce_period_s"] = model.bounce_period_s()
         d["peak_rope_stretch_m"] = float(np.max(s["rope_stretch_m"]))
-        d["static_rope_stretch_m"] = model.m_total * model.g / rp.stiffness(rp.lambda0_m)
-        if model.lift_off:
-            d["lift_off_s"] = model.t_lift if math.isfinite(model.t_lift) else None
+        d["static_rope_stretch_m"] = model.hanging_mass_kg * model.gravity_m_s2 / rp.stiffness(rp.lambda0_m)
+        if model.starts_resting:
+            d["lift_off_s"] = model.lift_off_time_s if math.isfinite(model.lift_off_time_s) else None
     else:
         d["rope_elastic"] = False
     # measured periods of the swing modes after the last move
     Y = traj.state(t)
-    cols = [i for i in range(model.nq) if i != model.il]
+    cols = model.swing_coordinate_indices()
     d["measured_mode_periods_s"] = measured_mode_periods(
         t, Y[:, cols], list(model.mode_periods_s(float(traj.motion.evaluate(np.array([t[-1]]))["L"][0]))),
         traj.motion.last_move_end_s)
     return d
 
 
-def _rest_rotation(model):
-    from swingsim.dynamics.rigging import rotation
-
-    return rotation(*model.geom.rest_tilt_rad) if model.geom is not None else np.eye(3)
-
-
-def _leg_angles_deg(traj, model, s):
-    """Each leg's angle from vertical with the system hanging at rest [deg]."""
-    if model.kind == "single" or model.geom is None:
-        return [0.0]
-    R0 = _rest_rotation(model)
-    if model.kind == "bridle":
-        v = (model.geom.hook_b - model.attach_b) @ R0.T
-    else:
-        v = np.tile(R0[:, 2], (len(model.attach_b), 1))
-    return [float(np.degrees(np.arccos(np.clip(x[2] / np.linalg.norm(x), -1, 1)))) for x in v]
-
-
 def model_warnings(s: dict, scene) -> list[str]:
-    """Cautions about the rigging and the hook-and-load results."""
+    """Cautions about the rigging and the hook-and-load results.
+
+    Parameters
+    ----------
+    s : dict
+        The summary (with the keys of :func:`model_metrics`).
+    scene : Scene
+        Its scene.
+
+    Returns
+    -------
+    list of str
+        One sentence per caution; thresholds in the module constants [deg].
+    """
     out = []
     rows = s.get("leg_tensions") or []
     many = len(rows) > 1
@@ -235,7 +271,18 @@ def model_warnings(s: dict, scene) -> list[str]:
 
 
 def model_summary_lines(d: dict) -> list[str]:
-    """Extra lines of summary.txt (empty for the point-mass model)."""
+    """Extra lines of summary.txt (empty for the point-mass model).
+
+    Parameters
+    ----------
+    d : dict
+        The summary (with the keys of :func:`model_metrics`).
+
+    Returns
+    -------
+    list of str
+        Lines of text, units written out.
+    """
     if "leg_tensions" not in d:
         return []
     w = ["", "Hook block and rigging"]

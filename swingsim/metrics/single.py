@@ -144,8 +144,7 @@ def summarize(traj) -> Summary:
     t_move_end = motion.last_move_end_s
     L_end = float(motion.evaluate(np.array([scene.duration_s]))["L"][0])
     L0 = scene.rope.length_m
-    rest = np.asarray(model.rest_direction(L_end)) if hasattr(model, "rest_direction") \
-        else np.array([0.0, 0.0, -1.0])
+    rest = np.asarray(model.rest_direction(L_end))
     swing = angle_between(n, rest[None, :])
 
     def ang_at(x):

@@ -128,6 +128,7 @@ class Motion:
 
     @property
     def breakpoints(self) -> tuple[float, ...]:
+        """Instants where some axis's acceleration or jerk jumps [s] (rounding twins merged)."""
         pts = sorted({b for _, p in self.moves for b in p.breakpoints})
         merged: list[float] = []
         for b in pts:  # knots that differ by rounding only are one breakpoint
@@ -139,14 +140,29 @@ class Motion:
 
     @property
     def last_move_end_s(self) -> float:
+        """End of the last move [s] (0 without moves)."""
         return max((p.end_s for _, p in self.moves), default=0.0)
 
     @property
     def first_move_start_s(self) -> float:
+        """Start of the first move [s] (0 without moves)."""
         return min((p.start_s for _, p in self.moves), default=0.0)
 
     def axis(self, name: str, t):
-        """Summed displacement, velocity, acceleration of one axis at ``t``."""
+        """Summed displacement, velocity and acceleration of one axis (its moves add up).
+
+        Parameters
+        ----------
+        name : str
+            One of :data:`AXES`.
+        t : float or array_like
+            Time(s) [s].
+
+        Returns
+        -------
+        list of ndarray
+            ``[pos, vel, acc]`` shaped like ``t`` [m or rad, per s, per s^2].
+        """
         t = np.asarray(t, dtype=float)
         out = [np.zeros_like(t), np.zeros_like(t), np.zeros_like(t)]
         for ax, prof in self.moves:
@@ -158,11 +174,17 @@ class Motion:
     def evaluate(self, t):
         """Suspension point and rope length with derivatives at time(s) ``t``.
 
+        Parameters
+        ----------
+        t : float or array_like
+            Time(s) [s].
+
         Returns
         -------
         dict
             ``p``, ``dp``, ``ddp``: arrays ``t.shape + (3,)`` [m, m/s, m/s^2];
-            ``L``, ``dL``, ``ddL``: rope length and derivatives [m, m/s, m/s^2].
+            ``L``, ``dL``, ``ddL``: rope length and derivatives [m, m/s, m/s^2];
+            ``slew_rate``: the jib's rotation rate [rad/s].
         """
         t = np.asarray(t, dtype=float)
         X, dX, ddX = self.axis("x", t)
@@ -181,7 +203,18 @@ class Motion:
                 "L": self.rope_length_m - H, "dL": -dH, "ddL": -ddH, "slew_rate": dS}
 
     def pose(self, t) -> CranePose:
-        """Axis positions at times ``t`` [s]: base travel x, y [m], jib angle [rad], radius [m]."""
+        """Axis positions of the crane.
+
+        Parameters
+        ----------
+        t : float or array_like
+            Time(s) [s].
+
+        Returns
+        -------
+        CranePose
+            Base travel x, y [m], jib angle [rad] and radius [m], shaped like ``t``.
+        """
         t = np.asarray(t, dtype=float)
         x0, y0, _ = self.origin_m
         return CranePose(self.axis("x", t)[0], self.axis("y", t)[0],

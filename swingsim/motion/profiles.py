@@ -56,7 +56,12 @@ class Profile:
     breakpoints: tuple[float, ...]
 
     def evaluate(self, t):
-        """Displacement, velocity and acceleration at time(s) ``t`` [s].
+        """Displacement, velocity and acceleration at time(s) ``t``.
+
+        Parameters
+        ----------
+        t : float or array_like
+            Time(s) [s].
 
         Returns
         -------
@@ -70,6 +75,16 @@ class Profile:
 
         Valid on [t0, t1] when the profile is one cubic there; ``None`` otherwise.
         Used by the single-run solver for fast scalar evaluation.
+
+        Parameters
+        ----------
+        t0, t1 : float
+            The interval [s].
+
+        Returns
+        -------
+        tuple of float or None
+            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None.
         """
         return None
 
@@ -120,6 +135,18 @@ class PiecewiseCubic(Profile):
         return p, 0.0, 0.0
 
     def evaluate(self, t):
+        """Displacement, velocity and acceleration at time(s) ``t``.
+
+        Parameters
+        ----------
+        t : float or array_like
+            Time(s) [s].
+
+        Returns
+        -------
+        pos, vel, acc : ndarray
+            Same shape as ``t`` [axis unit, unit/s, unit/s^2].
+        """
         t = np.asarray(t, dtype=float)
         k = np.clip(np.searchsorted(self.knots, t, side="right") - 1, 0, len(self.j) - 1)
         tau = t - self.knots[k]
@@ -135,6 +162,19 @@ class PiecewiseCubic(Profile):
         return p, v, a
 
     def local_poly(self, t0, t1):
+        """The profile as one cubic on an interval, about its start (see :meth:`Profile.local_poly`).
+
+        Parameters
+        ----------
+        t0, t1 : float
+            The interval [s].
+
+        Returns
+        -------
+        tuple of float or None
+            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
+            profile is not one cubic on [t0, t1].
+        """
         if t1 <= self.knots[0]:
             return (0.0, 0.0, 0.0, 0.0)
         if t0 >= self.knots[-1]:
@@ -195,7 +235,13 @@ def trapezoid(start_s: float, distance: float, speed: float, accel: float,
     distance : float
         Signed displacement [m or rad].
     speed, accel, decel : float
-        Speed limit [unit/s], acceleration and deceleration [unit/s^2], all > 0.
+        Speed limit [unit/s], acceleration and deceleration [unit/s^2], all > 0
+        (``decel`` defaults to ``accel``).
+
+    Returns
+    -------
+    PiecewiseCubic
+        The move, in the axis's unit.
     """
     decel = accel if decel is None else decel
     _check_positive(speed=speed, accel=accel, decel=decel)
@@ -235,6 +281,26 @@ def s_curve(start_s: float, distance: float, speed: float, accel: float,
 
     Peak speed is ``speed`` when the distance allows it, else the largest
     speed whose jerk-limited ramps up and down fit in ``distance`` [1]_.
+
+    Parameters
+    ----------
+    start_s : float
+        Start of the move [s].
+    distance : float
+        Signed displacement [m or rad].
+    speed : float
+        Speed limit [unit/s].
+    accel : float
+        Acceleration limit [unit/s^2].
+    jerk : float
+        Jerk limit [unit/s^3].
+    decel : float, optional
+        Deceleration limit [unit/s^2]; ``accel`` by default.
+
+    Returns
+    -------
+    PiecewiseCubic
+        The move, in the axis's unit.
     """
     decel = accel if decel is None else decel
     _check_positive(speed=speed, accel=accel, decel=decel, jerk=jerk)
@@ -277,6 +343,18 @@ class SplineProfile(Profile):
         return float(self.spline(self.end_s - self.start_s))
 
     def evaluate(self, t):
+        """Displacement, velocity and acceleration at time(s) ``t``.
+
+        Parameters
+        ----------
+        t : float or array_like
+            Time(s) [s].
+
+        Returns
+        -------
+        pos, vel, acc : ndarray
+            Same shape as ``t`` [axis unit, unit/s, unit/s^2].
+        """
         t = np.asarray(t, dtype=float)
         tau = np.clip(t - self.start_s, 0.0, self.end_s - self.start_s)
         inside = (t >= self.start_s) & (t < self.end_s)
@@ -286,6 +364,19 @@ class SplineProfile(Profile):
         return p, v, a
 
     def local_poly(self, t0, t1):
+        """The profile as one cubic on an interval, about its start (see :meth:`Profile.local_poly`).
+
+        Parameters
+        ----------
+        t0, t1 : float
+            The interval [s].
+
+        Returns
+        -------
+        tuple of float or None
+            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
+            profile is not one cubic on [t0, t1].
+        """
         if t1 <= self.start_s:
             return (0.0, 0.0, 0.0, 0.0)
         if t0 >= self.end_s:
@@ -311,6 +402,20 @@ def from_table(start_s: float, times_s, positions) -> SplineProfile:
 
     Displacement is taken relative to the first row.  Times must start at 0
     and increase strictly; at least two rows.
+
+    Parameters
+    ----------
+    start_s : float
+        Start of the move [s].
+    times_s : array_like
+        Times from the move's start [s].
+    positions : array_like
+        Axis positions at those times [m or rad].
+
+    Returns
+    -------
+    SplineProfile
+        The clamped C2 spline through the table.
     """
     t = np.asarray(times_s, dtype=float)
     x = np.asarray(positions, dtype=float)
@@ -355,6 +460,18 @@ class SumProfile(Profile):
         return tuple(sorted(pts))
 
     def evaluate(self, t):
+        """Displacement, velocity and acceleration at time(s) ``t``.
+
+        Parameters
+        ----------
+        t : float or array_like
+            Time(s) [s].
+
+        Returns
+        -------
+        pos, vel, acc : ndarray
+            Same shape as ``t`` [axis unit, unit/s, unit/s^2].
+        """
         t = np.asarray(t, dtype=float)
         out = [np.zeros_like(t), np.zeros_like(t), np.zeros_like(t)]
         for w, s, p in self.parts:
@@ -363,6 +480,19 @@ class SumProfile(Profile):
         return tuple(out)
 
     def local_poly(self, t0, t1):
+        """The profile as one cubic on an interval, about its start (see :meth:`Profile.local_poly`).
+
+        Parameters
+        ----------
+        t0, t1 : float
+            The interval [s].
+
+        Returns
+        -------
+        tuple of float or None
+            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
+            profile is not one cubic on [t0, t1].
+        """
         total = [0.0, 0.0, 0.0, 0.0]
         for w, s, p in self.parts:
             c = p.local_poly(t0 - s, t1 - s)

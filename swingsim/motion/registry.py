@@ -1,8 +1,8 @@
 """Scene moves -> :class:`~swingsim.motion.kinematics.Motion`.
 
-Profiles are looked up by name in :data:`PROFILE_BUILDERS`; a new profile is
-added by registering a builder ``f(move, scene, scale) -> Profile`` there
-(see DEVELOPERS.md).  ``scale`` converts the scene's unit to the internal one
+Profiles are looked up by name in :data:`PROFILES`; a new profile is added
+as one :class:`ProfileSpec` there, whose builder is
+``f(move, scene, scale, swing_period_s) -> Profile`` (see DEVELOPERS.md).  ``scale`` converts the scene's unit to the internal one
 (pi/180 for slew moves in degrees, 1 otherwise).
 """
 
@@ -14,10 +14,9 @@ from typing import Callable
 
 import numpy as np
 
-from swingsim import constants as C
+from swingsim import constants
 from swingsim.errors import SceneError
-from swingsim.motion import profiles as P
-from swingsim.motion import shaping as _shaping
+from swingsim.motion import profiles, shaping
 from swingsim.motion.kinematics import Motion
 
 
@@ -50,18 +49,18 @@ class ProfileSpec:
 
 
 def _trapezoid(move, scene, scale, swing_period_s=None):
-    return P.trapezoid(move.start_s, move.distance * scale, move.speed * scale,
+    return profiles.trapezoid(move.start_s, move.distance * scale, move.speed * scale,
                        move.accel * scale, None if move.decel is None else move.decel * scale)
 
 
 def _s_curve(move, scene, scale, swing_period_s=None):
-    return P.s_curve(move.start_s, move.distance * scale, move.speed * scale, move.accel * scale,
+    return profiles.s_curve(move.start_s, move.distance * scale, move.speed * scale, move.accel * scale,
                      move.jerk * scale, None if move.decel is None else move.decel * scale)
 
 
 def _table(move, scene, scale, swing_period_s=None):
     t, x = move.table
-    return P.from_table(move.start_s, t, np.asarray(x) * scale)
+    return profiles.from_table(move.start_s, t, np.asarray(x) * scale)
 
 
 _SHAPER_KEYS = ("shaper_base", "shaper_period_s", "shaper_second_period_s", "shaper_damping_ratio")
@@ -72,26 +71,50 @@ PROFILES: dict[str, ProfileSpec] = {
     "trapezoid": ProfileSpec(_trapezoid, _MOTION, ("decel",)),
     "s-curve": ProfileSpec(_s_curve, _MOTION + ("jerk",), ("decel",)),
     "table": ProfileSpec(_table),
-    "zv": ProfileSpec(_shaping.build_shaped, _MOTION, ("decel", "jerk"), _SHAPER_KEYS, True),
-    "zvd": ProfileSpec(_shaping.build_shaped, _MOTION, ("decel", "jerk"), _SHAPER_KEYS, True),
-    "ei": ProfileSpec(_shaping.build_shaped, _MOTION, ("decel", "jerk"),
+    "zv": ProfileSpec(shaping.build_shaped, _MOTION, ("decel", "jerk"), _SHAPER_KEYS, True),
+    "zvd": ProfileSpec(shaping.build_shaped, _MOTION, ("decel", "jerk"), _SHAPER_KEYS, True),
+    "ei": ProfileSpec(shaping.build_shaped, _MOTION, ("decel", "jerk"),
                       _SHAPER_KEYS + ("shaper_tolerance",), True),
-    "whole-period": ProfileSpec(_shaping.build_whole_period, _MOTION, ("jerk",),
+    "whole-period": ProfileSpec(shaping.build_whole_period, _MOTION, ("jerk",),
                                 ("shaper_period_s",), True),
 }
 
 
 def needs_swing_period(scene) -> bool:
-    """True when some move is tuned to the swing period and does not give it."""
+    """Whether the scene's motion must be built with the lift's swing period.
+
+    Parameters
+    ----------
+    scene : Scene
+        A scene whose keys are valid.
+
+    Returns
+    -------
+    bool
+        True when some move is tuned to the swing period (input shaping) and does
+        not give ``shaper_period_s``.
+    """
     return any(PROFILES[m.profile].needs_swing_period and m.profile_keys.get("shaper_period_s") is None
                for m in scene.moves)
 
 
 def move_key(move) -> str:
+    """The scene key of a move, for error messages.
+
+    Parameters
+    ----------
+    move : Move
+        One of the scene's moves.
+
+    Returns
+    -------
+    str
+        ``moves[i]``.
+    """
     return f"moves[{move.index}]"
 
 
-def build_profile(move, scene, swing_period_s: float | None = None) -> P.Profile:
+def build_profile(move, scene, swing_period_s: float | None = None) -> profiles.Profile:
     """Build one move's profile in internal units (rad for slew).
 
     Parameters
@@ -115,7 +138,7 @@ def build_profile(move, scene, swing_period_s: float | None = None) -> P.Profile
     scale = math.pi / 180.0 if move.axis == "slew" else 1.0
     try:
         return PROFILES[move.profile].build(move, scene, scale, swing_period_s)
-    except P.ProfileError as exc:
+    except profiles.ProfileError as exc:
         raise SceneError(scene.file, move_key(move), str(exc)) from None
     except ArithmeticError:  # overflow or division by zero from extreme (valid-typed) numbers
         raise SceneError(scene.file, move_key(move), "its distance, speed, acceleration, jerk or "
@@ -157,8 +180,8 @@ def build_motion(scene, swing_period_s: float | None = None) -> Motion:
         pts = set(motion.breakpoints) | {0.0, scene.duration_s}
         ts = np.union1d(np.array(sorted(pts)), np.linspace(0.0, scene.duration_s, 2001))
         L = motion.evaluate(ts)["L"]
-        if np.min(L) < C.MIN_ROPE_LENGTH_M:
+        if np.min(L) < constants.MIN_ROPE_LENGTH_M:
             i = int(np.argmin(L))
             raise SceneError(scene.file, "moves", f"the hoist moves shorten the rope to {L[i]:.3f} m at "
-                             f"t = {ts[i]:.2f} s; it must stay at least {C.MIN_ROPE_LENGTH_M:g} m")
+                             f"t = {ts[i]:.2f} s; it must stay at least {constants.MIN_ROPE_LENGTH_M:g} m")
     return motion

@@ -83,7 +83,8 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import fsolve
 
-from swingsim.motion import profiles as P
+from swingsim.motion.profiles import (PiecewiseCubic, Profile, ProfileError, SumProfile, s_curve,
+                                      trapezoid)
 
 __all__ = ["Shaper", "zv", "zvd", "ei", "convolve", "residual_vibration", "shaped",
            "whole_period_trapezoid", "whole_period_s_curve", "SHAPERS"]
@@ -105,9 +106,9 @@ class Shaper:
 
 def _check(period_s: float, zeta: float):
     if not (period_s > 0 and math.isfinite(period_s)):
-        raise P.ProfileError(f"the shaper period must be a positive number of seconds, got {period_s!r}")
+        raise ProfileError(f"the shaper period must be a positive number of seconds, got {period_s!r}")
     if not (0.0 <= zeta < 1.0):
-        raise P.ProfileError(f"the shaper damping ratio must be in [0, 1), got {zeta!r}")
+        raise ProfileError(f"the shaper damping ratio must be in [0, 1), got {zeta!r}")
 
 
 def _k_factor(zeta: float) -> float:
@@ -127,6 +128,15 @@ def zv(period_s: float, zeta: float = 0.0) -> Shaper:
         Undamped natural period of the mode to cancel [s].
     zeta : float
         Damping ratio of that mode [-].
+
+    Returns
+    -------
+    Shaper
+        Amplitudes :math:`[1, K] / (1 + K)` half a damped period apart.
+
+    References
+    ----------
+    .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
     """
     _check(period_s, zeta)
     K = _k_factor(zeta)
@@ -143,6 +153,15 @@ def zvd(period_s: float, zeta: float = 0.0) -> Shaper:
         Undamped natural period [s].
     zeta : float
         Damping ratio [-].
+
+    Returns
+    -------
+    Shaper
+        Amplitudes :math:`[1, 2K, K^2] / (1 + K)^2` half a damped period apart.
+
+    References
+    ----------
+    .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
     """
     _check(period_s, zeta)
     K = _k_factor(zeta)
@@ -159,10 +178,20 @@ def residual_vibration(shaper: Shaper, omega, zeta: float = 0.0):
     Parameters
     ----------
     shaper : Shaper
+        The impulse train.
     omega : float or ndarray
         Actual natural frequency of the oscillator [rad/s].
     zeta : float
         Actual damping ratio [-].
+
+    Returns
+    -------
+    float or ndarray
+        V [-], shaped like ``omega``; 1 for an unshaped step.
+
+    References
+    ----------
+    .. [1] N. C. Singer and W. P. Seering, 1990, Eq. 3 (module References).
     """
     omega = np.asarray(omega, dtype=float)
     A = np.asarray(shaper.amplitudes)
@@ -187,14 +216,28 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
     tolerance : float
         Residual vibration V allowed at the design frequency [-], 0 < V < 1.
 
+    Returns
+    -------
+    Shaper
+        Three impulses at :math:`0, T_d/2, T_d`.
+
+    Raises
+    ------
+    ProfileError
+        When no EI shaper exists for the damping ratio and tolerance.
+
     Notes
     -----
     Undamped: :math:`A = [(1+V)/4, (1-V)/2, (1+V)/4]` at :math:`0, T/2, T`.
+
+    References
+    ----------
+    .. [2] W. Singhose, W. Seering and N. Singer, 1994 (module References).
     """
     _check(period_s, zeta)
     V = float(tolerance)
     if not (0.0 < V < 1.0):
-        raise P.ProfileError(f"the EI tolerance must be between 0 and 1, got {tolerance!r}")
+        raise ProfileError(f"the EI tolerance must be between 0 and 1, got {tolerance!r}")
     h = _half_damped_period(period_s, zeta)
     times = (0.0, h, 2.0 * h)
     A0 = np.array([(1 + V) / 4, (1 - V) / 2, (1 + V) / 4])
@@ -217,12 +260,28 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
     x, info, ok, _ = fsolve(eqs, guess, full_output=True, xtol=1e-14)
     A = (float(x[0]), float(x[1]), float(1.0 - x[0] - x[1]))
     if min(A) <= 0 or max(abs(r) for r in eqs(x)) > 1e-12:
-        raise P.ProfileError(f"no EI shaper for damping ratio {zeta:g} and tolerance {V:g}")
+        raise ProfileError(f"no EI shaper for damping ratio {zeta:g} and tolerance {V:g}")
     return Shaper("ei", A, times)
 
 
 def convolve(a: Shaper, b: Shaper) -> Shaper:
-    """Shaper of two shapers in series (cancels both their modes) [1]."""
+    """Shaper of two shapers in series (cancels both their modes).
+
+    Parameters
+    ----------
+    a, b : Shaper
+        The two impulse trains.
+
+    Returns
+    -------
+    Shaper
+        Their convolution: impulses at every sum of times [s], amplitudes multiplied
+        (coinciding times merged).
+
+    References
+    ----------
+    .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
+    """
     pairs = {}
     for x, s in zip(a.amplitudes, a.times_s):
         for y, t in zip(b.amplitudes, b.times_s):
@@ -232,9 +291,22 @@ def convolve(a: Shaper, b: Shaper) -> Shaper:
     return Shaper(f"{a.name}*{b.name}", tuple(pairs[t] for t in ts), tuple(float(t) for t in ts))
 
 
-def shaped(profile: P.Profile, shaper: Shaper) -> P.SumProfile:
-    """The profile convolved with the shaper: sum of A_i * profile(t - t_i)."""
-    return P.SumProfile(tuple((float(A), float(t), profile)
+def shaped(profile: Profile, shaper: Shaper) -> SumProfile:
+    """The profile convolved with the shaper: sum of A_i * profile(t - t_i).
+
+    Parameters
+    ----------
+    profile : Profile
+        The unshaped move.
+    shaper : Shaper
+        The impulse train.
+
+    Returns
+    -------
+    SumProfile
+        The shaped move (same distance; longer by ``shaper.duration_s`` [s]).
+    """
+    return SumProfile(tuple((float(A), float(t), profile)
                               for A, t in zip(shaper.amplitudes, shaper.times_s)))
 
 
@@ -249,7 +321,7 @@ _MAX_PERIODS = 1000
 
 
 def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel: float,
-                           period_s: float) -> P.PiecewiseCubic:
+                           period_s: float) -> PiecewiseCubic:
     """Trapezoid whose acceleration and deceleration each last n whole periods.
 
     The smallest n >= 1 is taken for which the needed acceleration
@@ -263,6 +335,16 @@ def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel:
         Signed travel [m or rad], speed limit [unit/s], acceleration limit [unit/s^2].
     period_s : float
         Swing period [s].
+
+    Returns
+    -------
+    PiecewiseCubic
+        The move.
+
+    Raises
+    ------
+    ProfileError
+        When no whole number of periods up to 1000 fits the limits.
     """
     _check(period_s, 0.0)
     D = abs(distance)
@@ -273,18 +355,43 @@ def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel:
         if a <= accel * (1 + 1e-12):
             break
     else:
-        raise P.ProfileError("no whole number of swing periods fits the move's limits")
-    return P.trapezoid(start_s, distance, vp, a)
+        raise ProfileError("no whole number of swing periods fits the move's limits")
+    return trapezoid(start_s, distance, vp, a)
 
 
 def whole_period_s_curve(start_s: float, distance: float, speed: float, accel: float,
-                         jerk: float, period_s: float) -> P.PiecewiseCubic:
+                         jerk: float, period_s: float) -> PiecewiseCubic:
     """S-curve whose acceleration phases have v/a equal to n whole periods.
 
     Each jerk-limited phase is a constant-acceleration pulse of length v/a
     smoothed by a jerk ramp of length a/j; it leaves no linear swing when
     v/a = n T.  The smallest n >= 1 is taken that keeps the acceleration within
     ``accel`` and the phase reaching it (v >= a^2 / j).
+
+    Parameters
+    ----------
+    start_s : float
+        Start of the move [s].
+    distance : float
+        Signed travel [m or rad].
+    speed : float
+        Speed limit [unit/s].
+    accel : float
+        Acceleration limit [unit/s^2].
+    jerk : float
+        Jerk [unit/s^3].
+    period_s : float
+        Swing period [s].
+
+    Returns
+    -------
+    PiecewiseCubic
+        The move.
+
+    Raises
+    ------
+    ProfileError
+        When no whole number of periods up to 1000 fits the limits.
     """
     _check(period_s, 0.0)
     D = abs(distance)
@@ -299,8 +406,8 @@ def whole_period_s_curve(start_s: float, distance: float, speed: float, accel: f
         if a <= accel * (1 + 1e-12) and v >= a * a / jerk:
             break
     else:
-        raise P.ProfileError("no whole number of swing periods fits the move's limits")
-    return P.s_curve(start_s, distance, v, a, jerk)
+        raise ProfileError("no whole number of swing periods fits the move's limits")
+    return s_curve(start_s, distance, v, a, jerk)
 
 
 def tuning(move, scene, swing_period_s: float | None = None) -> tuple[float, float]:
@@ -324,7 +431,7 @@ def tuning(move, scene, swing_period_s: float | None = None) -> tuple[float, flo
     T = move.profile_keys.get("shaper_period_s")
     if T is None:
         if swing_period_s is None:
-            raise P.ProfileError("needs the lift's swing period (build the motion with the model's "
+            raise ProfileError("needs the lift's swing period (build the motion with the model's "
                                  "period, or give shaper_period_s)")
         T = float(swing_period_s)
     z = move.profile_keys.get("shaper_damping_ratio")
@@ -338,21 +445,39 @@ def _base_name(move) -> str:
     if base is None:
         base = "s-curve" if move.jerk is not None else "trapezoid"
     if base == "trapezoid" and move.jerk is not None:
-        raise P.ProfileError("jerk_m_s3 is only used with shaper_base = 's-curve'")
+        raise ProfileError("jerk_m_s3 is only used with shaper_base = 's-curve'")
     if base == "s-curve" and move.jerk is None:
-        raise P.ProfileError("shaper_base = 's-curve' needs jerk_m_s3 (or jerk_deg_s3 for slew)")
+        raise ProfileError("shaper_base = 's-curve' needs jerk_m_s3 (or jerk_deg_s3 for slew)")
     return base
 
 
-def build_shaped(move, scene, scale, swing_period_s=None) -> P.Profile:
-    """Profile builder for ``zv``, ``zvd``, ``ei`` (see :data:`swingsim.motion.registry.PROFILES`)."""
+def build_shaped(move, scene, scale, swing_period_s=None) -> Profile:
+    """Profile builder for ``zv``, ``zvd``, ``ei`` (see :data:`swingsim.motion.registry.PROFILES`).
+
+    Parameters
+    ----------
+    move : Move
+        The scene's move (its distance, speed, acceleration and shaper keys).
+    scene : Scene
+        Its scene (the damping ratio when the move gives none).
+    scale : float
+        Scene unit to internal unit (pi/180 for slew moves in degrees, else 1) [-].
+    swing_period_s : float, optional
+        The lift's first swing period [s], used when the move gives no
+        ``shaper_period_s``.
+
+    Returns
+    -------
+    Profile
+        The move in internal units.
+    """
     T, z = tuning(move, scene, swing_period_s)
     decel = None if move.decel is None else move.decel * scale
     if _base_name(move) == "s-curve":
-        base = P.s_curve(move.start_s, move.distance * scale, move.speed * scale,
+        base = s_curve(move.start_s, move.distance * scale, move.speed * scale,
                          move.accel * scale, move.jerk * scale, decel)
     else:
-        base = P.trapezoid(move.start_s, move.distance * scale, move.speed * scale,
+        base = trapezoid(move.start_s, move.distance * scale, move.speed * scale,
                            move.accel * scale, decel)
     tol = float(move.profile_keys.get("shaper_tolerance", 0.05))
     sh = SHAPERS[move.profile](T, z, tol)
@@ -362,8 +487,26 @@ def build_shaped(move, scene, scale, swing_period_s=None) -> P.Profile:
     return shaped(base, sh)
 
 
-def build_whole_period(move, scene, scale, swing_period_s=None) -> P.Profile:
-    """Profile builder for ``whole-period``."""
+def build_whole_period(move, scene, scale, swing_period_s=None) -> Profile:
+    """Profile builder for ``whole-period``: a trapezoid, or an s-curve when the move has a jerk.
+
+    Parameters
+    ----------
+    move : Move
+        The scene's move (its distance, speed, acceleration and shaper keys).
+    scene : Scene
+        Its scene (the damping ratio when the move gives none).
+    scale : float
+        Scene unit to internal unit (pi/180 for slew moves in degrees, else 1) [-].
+    swing_period_s : float, optional
+        The lift's first swing period [s], used when the move gives no
+        ``shaper_period_s``.
+
+    Returns
+    -------
+    Profile
+        The move in internal units.
+    """
     T, _ = tuning(move, scene, swing_period_s)
     if move.jerk is not None:
         return whole_period_s_curve(move.start_s, move.distance * scale, move.speed * scale,

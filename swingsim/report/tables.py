@@ -63,8 +63,7 @@ def timeseries_columns(traj, t=None) -> dict:
     t = traj.sample_times() if t is None else t
     s = traj.sample(t)
     n = s["rope_dir"]
-    rest = np.asarray(traj.model.rest_direction(float(s["rope_length"][-1]))) \
-        if hasattr(traj.model, "rest_direction") else np.array([0.0, 0.0, -1.0])
+    rest = np.asarray(traj.model.rest_direction(float(s["rope_length"][-1])))
     hor = s["load"][:, :2] - s["suspension"][:, :2]
     cols = {
         "t_s": t,

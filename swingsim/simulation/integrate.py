@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.integrate import solve_ivp
 
-from swingsim import constants as C
+from swingsim import constants
 from swingsim.dynamics.registry import select_model
 from swingsim.motion.registry import build_motion, needs_swing_period
 from swingsim.simulation.trajectory import Trajectory
@@ -32,14 +32,15 @@ def prepare(scene, model=None):
     Returns
     -------
     tuple
-        ``(model, motion)``.
+        ``(model, motion)``: the :class:`~swingsim.dynamics.base.SwingModel` and the
+        :class:`~swingsim.motion.kinematics.Motion`.
     """
     model = select_model(scene) if model is None else model
     period = float(model.mode_periods_s()[0]) if needs_swing_period(scene) else None
     return model, build_motion(scene, swing_period_s=period)
 
 
-def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -> Trajectory:
+def simulate(scene, *, rtol: float = constants.RTOL, atol: float = constants.ATOL, model=None) -> Trajectory:
     """Integrate the full nonlinear equations of motion of a scene.
 
     Parameters
@@ -47,7 +48,11 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
     scene : Scene
         A validated scene.
     rtol, atol : float
-        Tolerances of scipy's DOP853 (8th-order Dormand-Prince) integrator.
+        Relative [-] and absolute [state units] tolerances of scipy's DOP853
+        (8th-order Dormand-Prince) integrator.
+    model : SwingModel, optional
+        A model (:class:`~swingsim.dynamics.base.SwingModel`) to use instead of the
+        one the scene selects.
 
     Returns
     -------
@@ -59,7 +64,7 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
     y = np.asarray(model.initial_state(motion), dtype=float)
     T = scene.duration_s
     cuts = sorted({0.0, T} | {b for b in motion.breakpoints if 0.0 < b < T}
-                  | {b for b in getattr(model, "extra_breakpoints", ()) if 0.0 < b < T})
+                  | {b for b in model.extra_breakpoints if 0.0 < b < T})
     traj = Trajectory(scene, model, motion)
     for t0, t1 in zip(cuts[:-1], cuts[1:]):
         if t1 - t0 < 1e-12:
@@ -73,8 +78,7 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
         for n in names:
             if events[n](t0, y) <= 0.0:
                 traj.status = n
-                custom = getattr(model, "event_message", None)
-                traj.message = (custom(n, t0) if custom else None) or _event_message(n, t0)
+                traj.message = model.event_message(n, t0) or _event_message(n, t0)
                 if not traj.pieces:  # nothing integrated yet: keep the initial state
                     traj.pieces.append((t0, t0, _Constant(y)))
                     traj.t_end_s = t0
@@ -99,9 +103,7 @@ def simulate(scene, *, rtol: float = C.RTOL, atol: float = C.ATOL, model=None) -
             for n, te in zip(names, res.t_events):
                 if len(te):
                     traj.status = n
-                    custom = getattr(model, "event_message", None)
-                    msg = custom(n, float(te[0])) if custom else None
-                    traj.message = msg or _event_message(n, float(te[0]))
+                    traj.message = model.event_message(n, float(te[0])) or _event_message(n, float(te[0]))
                     break
             return traj
         y = res.y[:, -1]
@@ -125,7 +127,7 @@ def _event_message(name: str, t: float) -> str:
                 "the load would be thrown or fall, the pendulum model no longer holds, and "
                 "the results stop there")
     if name == "overswing":
-        return (f"the swing reached {C.MODEL_ANGLE_LIMIT_DEG:g} deg at t = {t:.3f} s, beyond any "
+        return (f"the swing reached {constants.MODEL_ANGLE_LIMIT_DEG:g} deg at t = {t:.3f} s, beyond any "
                 "crane's working range and the model's limit; the results stop there")
     return f"the run stopped at t = {t:.3f} s ({name})"
 
