@@ -13,7 +13,7 @@ import pyvista as pv
 import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
-from swingsim.metrics.single import load_half_size_m, zone_distance
+from swingsim.metrics.zones import load_half_size_m, zone_distance
 from swingsim.scene3d import geometry as G
 from swingsim.render import overlay as O
 from swingsim.scene3d import transforms as T
