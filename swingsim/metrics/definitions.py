@@ -229,7 +229,7 @@ def value_at_instant(t: np.ndarray, value_at, instant_s: np.ndarray, after: np.n
     Parameters
     ----------
     t : ndarray (B, n)
-        Sample times [s] (at least two per row).
+        Sample times [s].
     value_at : callable
         ``value_at(rows, idx) -> ndarray (B,)``: the quantity at sample ``idx[b]``
         of row ``rows[b]``, so that it is evaluated at two samples per row only.
@@ -246,6 +246,8 @@ def value_at_instant(t: np.ndarray, value_at, instant_s: np.ndarray, after: np.n
     """
     B, M = t.shape
     r = np.arange(B)
+    if M < 2:  # a single sample: its value
+        return value_at(r, np.zeros(B, dtype=int))
     j = np.clip(np.argmax(after, axis=1), 1, M - 1)
     ta, tb = t[r, j - 1], t[r, j]
     xa, xb = value_at(r, j - 1), value_at(r, j)
@@ -342,6 +344,8 @@ def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: n
     """
     B, M = t.shape
     r = np.arange(B)
+    if M < 2:  # a run stopped at its first sample: nothing to measure
+        return MeasuredPeriod(np.full(B, np.nan), np.zeros(B, dtype=int), np.zeros(B, dtype=bool))
     count = mask.sum(axis=1)
     ox, oy = _centred(off_x, mask), _centred(off_y, mask)
     # the principal axis of the swing (largest variance), with a definite sign
