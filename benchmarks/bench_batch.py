@@ -7,7 +7,7 @@ length, acceleration, speed and travel (a seeded random draw).
 * Loop: for each variant, :func:`swingsim.simulation.simulate` -- scipy ``solve_ivp``
   with DOP853 at rtol 1e-8 (atol 1e-10), restarted at the move's breakpoints --
   then the peak and residual rope angles from its dense output sampled at the
-  metric sample times (``swingsim.metrics.metric_times``) with a parabola
+  metric sample times (``swingsim.metrics.single.metric_times``) with a parabola
   through the samples around each maximum.
 * Batch: :func:`swingsim.batch.run_batch` (the whole summary of each variant).
 
@@ -37,6 +37,7 @@ from scipy.optimize import minimize_scalar
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
 
 from swingsim.batch import engine as batch  # noqa: E402
+from swingsim.metrics.definitions import rope_angle_from_horizontal_sq  # noqa: E402
 from swingsim.metrics.single import metric_times  # noqa: E402
 from swingsim.scene import scene_from_dict  # noqa: E402
 from swingsim.simulation import simulate  # noqa: E402
@@ -70,18 +71,18 @@ def variants(n: int, seed: int = 7):
 def loop_angles(traj):
     """Peak and residual rope angle [deg] of one solved run.
 
-    Sampled at the metric sample times (``swingsim.metrics.metric_times``), then
+    Sampled at the metric sample times (``swingsim.metrics.single.metric_times``), then
     refined on the run's dense interpolant by a bounded scalar search between the
     neighbours of the largest sample, as ``swingsim.metrics.single`` does.
     """
     t = metric_times(traj)
     Y = traj.state(t)
     r2 = Y[:, 0] ** 2 + Y[:, 1] ** 2
-    ang = np.arctan2(np.sqrt(r2), np.sqrt(1.0 - r2))
+    ang = rope_angle_from_horizontal_sq(r2)
 
     def at(x):
         y = traj.state(np.array([x]))[0]
-        return math.atan2(math.hypot(y[0], y[1]), math.sqrt(max(1.0 - y[0] ** 2 - y[1] ** 2, 0.0)))
+        return float(rope_angle_from_horizontal_sq(y[0] ** 2 + y[1] ** 2))
 
     post = t >= traj.motion.last_move_end_s - 1e-12
     out = []

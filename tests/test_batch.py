@@ -10,6 +10,7 @@ slewing, radius, hoisting, s-curves, shaped moves and table profiles.
 import numpy as np
 import pytest
 
+from swingsim.batch import dense, rk8
 from swingsim.batch import engine as batch
 from swingsim.metrics.single import summarize
 from swingsim.simulation import simulate
@@ -80,7 +81,8 @@ def test_states_match_solve_ivp(variants):
     scenes, refs = variants
     vs = [batch._prepare(sc, batch.DEFAULT_STEPS_PER_PERIOD) for sc in scenes]
     run = batch._integrate(vs)
-    t, (u, v, du, dv), _, _, _ = batch._dense(run, np.arange(len(vs)), batch.DEFAULT_SAMPLES_PER_STEP)
+    samples = dense.sample(run, np.arange(len(vs)), batch.DEFAULT_SAMPLES_PER_STEP)
+    t, u, v, du = samples.time_s, samples.u, samples.v, samples.du
     worst = 0.0
     for i, tr in enumerate(refs):
         assert tr.valid
@@ -155,3 +157,28 @@ def test_chunking_bounds():
     n = batch.chunk_size_for([sc])
     assert 16 <= n <= 2048
     assert [list(r) for r in batch.chunks(5, 2)] == [[0, 1], [2, 3], [4]]
+
+
+def test_vendored_tableau_is_scipys_dop853():
+    # the coefficients copied into swingsim/batch/rk8.py equal scipy's own DOP853 table
+    # (scipy/integrate/_ivp/dop853_coefficients.py, a private module) to the last bit
+    scipy_table = pytest.importorskip("scipy.integrate._ivp.dop853_coefficients")
+    n = scipy_table.N_STAGES
+    assert n == rk8.N_STAGES
+    assert np.array_equal(rk8.A, scipy_table.A[:n, :n])
+    assert np.array_equal(rk8.B, scipy_table.B)
+    assert np.array_equal(rk8.C, scipy_table.C[:n])
+
+
+def test_vendored_tableau_order_conditions():
+    # Hairer, Norsett & Wanner, Solving ODEs I, 2nd ed. 1993, sec. II.2: an explicit method
+    # has c_i = sum_j a_ij (row-sum condition), and order p needs sum_i b_i c_i^k = 1/(k+1)
+    # for k < p (the bushy-tree conditions) and sum_i b_i (A c^k)_i = 1/((k+1)(k+2)) for k < p - 1
+    A, b, c = rk8.A, rk8.B, rk8.C
+    assert np.allclose(np.tril(A, -1), A, rtol=0, atol=0)  # explicit: strictly lower triangular
+    assert np.sum(b) == pytest.approx(1.0, abs=1e-14)
+    assert np.allclose(A.sum(axis=1), c, rtol=0, atol=1e-14)
+    for k in range(rk8.ORDER):
+        assert float(b @ c**k) == pytest.approx(1.0 / (k + 1), abs=1e-14), k
+    for k in range(rk8.ORDER - 1):
+        assert float(b @ (A @ c**k)) == pytest.approx(1.0 / ((k + 1) * (k + 2)), abs=1e-14), k

@@ -16,7 +16,7 @@ import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
 from swingsim import scene3d
-from swingsim.metrics.single import load_half_size_m, zone_distance
+from swingsim.metrics.zones import load_half_size_m, zone_distance
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
 from swingsim.render.palette import LABEL_STYLE, PALETTE, STYLE, darker, envelope_image, ground_image, rgb
