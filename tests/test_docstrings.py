@@ -2,7 +2,10 @@
 
 A public callable is a function or a method of a class, defined in a module of the
 package, whose name and whose module's and class's names do not start with an
-underscore (dunder methods and properties excepted).  Each must have a docstring;
+underscore (dunder methods and properties excepted).  A method that overrides a
+documented method of a base class (a protocol's member, a profile's ``evaluate``) may
+leave its docstring out: it inherits the base's, as ``inspect.getdoc`` and help() show
+it, so the contract is written once.  Each must have a docstring;
 each parameter (``self``/``cls`` excepted) must be named in its ``Parameters``
 section; a function that returns a value must have a ``Returns`` (or ``Yields``)
 section.  The idea is python-control's ``tests/docstrings_test.py``; the section
@@ -91,8 +94,25 @@ def _public_callables():
 CALLABLES = dict(_public_callables())
 
 
-def _problems(fn) -> list[str]:
+def _inherited_doc(where: str) -> str | None:
+    """The docstring a method without its own inherits from a base class (``inspect.getdoc``)."""
+    import importlib
+    import inspect
+
+    rel, name = where.split(":")[0], where.split(" ")[1]
+    if "." not in name:
+        return None
+    module = ".".join(Path(rel).with_suffix("").parts)
+    module = module.removesuffix(".__init__")
+    cls_name, meth = name.split(".")
+    cls = getattr(importlib.import_module(module), cls_name)
+    return inspect.getdoc(getattr(cls, meth))
+
+
+def _problems(fn, where="") -> list[str]:
     doc = ast.get_docstring(fn)
+    if not doc and where:
+        doc = _inherited_doc(where)
     if not doc:
         return ["no docstring"]
     args = [a.arg for a in fn.args.posonlyargs + fn.args.args + fn.args.kwonlyargs]
@@ -118,5 +138,5 @@ def test_there_are_public_callables():
 
 
 def test_every_public_callable_documents_its_parameters():
-    bad = [f"{where}: {'; '.join(p)}" for where, fn in CALLABLES.items() if (p := _problems(fn))]
+    bad = [f"{where}: {'; '.join(p)}" for where, fn in CALLABLES.items() if (p := _problems(fn, where))]
     assert not bad, f"{len(bad)} of {len(CALLABLES)} public callables lack numpydoc:\n" + "\n".join(bad)

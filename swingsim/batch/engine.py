@@ -200,8 +200,7 @@ def _prepare(scene, steps_per_period) -> _Variant:
     first = np.repeat(np.cumsum(n) - n, n)
     k = np.arange(len(seg)) - first
     grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
-    rest = np.asarray(model.rest_direction(L_end)) if hasattr(model, "rest_direction") \
-        else np.array([0.0, 0.0, -1.0])
+    rest = np.asarray(model.rest_direction(L_end))
     return _Variant(scene, motion, model, cuts, coef, grid, seg,
                     np.asarray(model.initial_state(motion), dtype=float), rest,
                     float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
