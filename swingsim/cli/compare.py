@@ -10,13 +10,14 @@ import argparse
 import sys
 from pathlib import Path
 
+from swingsim.cli.options import add_output_arguments
 from swingsim.errors import InputError
 from swingsim.metrics import cautions
 from swingsim.study.compare import cell, compare
 from swingsim.study.variants import PLAUSIBLE_VARIANTS, load_sweep
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
-    """Options of ``swingsim compare``.
+    """Options of ``swingsim compare``: the sweep file, the output folder, where and how to run the variants.
 
     Parameters
     ----------
@@ -24,11 +25,9 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
         The subcommand's parser, filled in place.
     """
     p.add_argument("sweep", help="sweep file (TOML): a base scene and the quantities to vary")
-    p.add_argument("--out", metavar="DIR", help="output folder (default: <sweep name>-comparison)")
+    add_output_arguments(p, "output folder (default: <sweep name>-comparison)", "this command's files")
     p.add_argument("--resume", action="store_true",
                    help="keep the finished rows of an interrupted run in DIR and run only the rest")
-    p.add_argument("--force", action="store_true",
-                   help="write into a non-empty output folder, replacing only this command's files")
     g = p.add_mutually_exclusive_group()
     g.add_argument("--workers", type=int, metavar="N",
                    help="start a local Dask cluster with N worker processes (needs dask.distributed)")
@@ -38,7 +37,6 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
                    help="batch: vectorised engine (default); single: one solve_ivp run per variant")
     p.add_argument("--chunk", type=int, metavar="N", help="variants per chunk (default: sized for memory)")
     p.add_argument("--no-sensitivity", action="store_true", help="skip the shaper sensitivity study")
-    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
     p.add_argument("--allow-implausible", action="store_true",
                    help=f"accept more than {PLAUSIBLE_VARIANTS:,} variants")
 
@@ -49,7 +47,9 @@ def main(args: argparse.Namespace) -> int:
     Parameters
     ----------
     args : argparse.Namespace
-        The parsed options of :func:`add_arguments`.
+        The parsed options of :func:`add_arguments`: the sweep file, the output folder
+        (``out``, ``resume``, ``force``), where and how to run (``workers`` or ``cluster``,
+        ``engine``, ``chunk``), ``no_sensitivity`` and ``quiet``.
 
     Returns
     -------

@@ -19,6 +19,7 @@ import sys
 
 from swingsim._version import __version__
 from swingsim.cli import run
+from swingsim.cli.options import add_scene_argument
 from swingsim.errors import InputError, SimulationError
 from swingsim.io.files import WRITTEN
 
@@ -56,7 +57,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     run.add_run_arguments(sub.add_parser("run", help="simulate a scene and write summary, time series and plots"))
     run.add_demo_arguments(sub.add_parser("demo", help="run the bundled demo scene"))
-    run.add_check_arguments(sub.add_parser("check", help="validate a scene file without running it"))
+    add_scene_argument(sub.add_parser("check", help="validate a scene file without running it"))
     for name, (module_name, help_) in COMMANDS.items():
         try:
             module = importlib.import_module(module_name)

@@ -23,6 +23,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from swingsim.cli.options import add_output_arguments, add_scene_argument
 from swingsim.errors import InputError
 from swingsim.io.files import check_out_dir
 from swingsim.scene import load_scene
@@ -39,23 +40,20 @@ def _parse_range(text: str):
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
-    """Options of ``swingsim plan-move``.
+    """Options of ``swingsim plan-move``: the scene, which move, the swing bound, the rope lengths, the output.
 
     Parameters
     ----------
     p : argparse.ArgumentParser
         The subcommand's parser, filled in place.
     """
-    p.add_argument("scene", help="scene file (TOML)")
+    add_scene_argument(p)
     p.add_argument("--move", type=int, required=True, metavar="N", help="index of the move to plan (from 0)")
     p.add_argument("--max-residual-deg", type=float, required=True, metavar="X",
                    help="largest residual swing allowed after the move [deg]")
     p.add_argument("--rope-range", required=True, metavar="LOW:HIGH",
                    help="rope lengths the plan must cover [m], e.g. 8:20")
-    p.add_argument("--out", metavar="DIR", help="output folder (default: <scene name>-plan)")
-    p.add_argument("--force", action="store_true",
-                   help="write into a non-empty output folder, replacing only this command's files")
-    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files")
 
 
 def main(args: argparse.Namespace) -> int:
@@ -64,7 +62,9 @@ def main(args: argparse.Namespace) -> int:
     Parameters
     ----------
     args : argparse.Namespace
-        The parsed options of :func:`add_arguments`.
+        The parsed request of :func:`add_arguments`: ``scene`` (file), ``move`` (index),
+        ``max_residual_deg`` [deg], ``rope_range`` (``LOW:HIGH`` [m]), and ``out``,
+        ``force``, ``quiet``.
 
     Returns
     -------

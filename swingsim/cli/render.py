@@ -10,6 +10,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from swingsim.cli.options import add_output_arguments, add_scene_argument
 from swingsim.render.views import VIEWS
 
 HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
@@ -27,12 +28,9 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
         ``--allow-implausible`` (False for ``run``, which has its own).
     """
     if scene:
-        parser.add_argument("scene", metavar="SCENE", help="scene file (TOML)")
-        parser.add_argument("--out", "-o", metavar="DIR", default=None,
-                            help="folder for the video and stills (default: <scene name>-video)")
-        parser.add_argument("--force", action="store_true",
-                            help="write into a non-empty output folder, replacing only this render's files")
-        parser.add_argument("--quiet", "-q", action="store_true", help="no progress bar, no list of files")
+        add_scene_argument(parser, metavar="SCENE")
+        add_output_arguments(parser, "folder for the video and stills (default: <scene name>-video)",
+                             "this render's files", quiet_help="no progress bar, no list of files", short_flags=True)
         parser.add_argument("--allow-implausible", action="store_true",
                             help="accept values beyond the plausibility limits (very long runs or videos)")
     g = parser.add_argument_group("video")
@@ -107,7 +105,8 @@ def main(args) -> int:
     Parameters
     ----------
     args : argparse.Namespace
-        The parsed options of :func:`add_arguments`.
+        The scene file, the output options and the video options (see :func:`options`)
+        parsed by :func:`add_arguments`.
 
     Returns
     -------

@@ -2,7 +2,9 @@
 
 ``run`` and ``demo`` simulate a scene and write the run's outputs
 (:func:`swingsim.report.outputs.write_run_outputs`, and the video with
-``--video``); ``check`` validates a scene and lists its plausibility notes.
+``--video``); ``check`` (its one argument is the scene,
+:func:`swingsim.cli.options.add_scene_argument`) validates a scene and lists its
+plausibility notes.
 """
 
 from __future__ import annotations
@@ -11,6 +13,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from swingsim.cli.options import add_output_arguments, add_scene_argument
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.io.files import check_out_dir, clean_partials
@@ -26,12 +29,9 @@ DEMO_SCENE = Path(__file__).parent.parent / "data" / "demo.toml"
 def _add_output_arguments(p, scene=True):
     """Options shared by ``run`` and ``demo``."""
     if scene:
-        p.add_argument("scene", help="scene file (TOML)")
-    p.add_argument("--out", metavar="DIR", help="output folder (default: <scene name>-results)")
-    p.add_argument("--force", action="store_true",
-                   help="write into a non-empty output folder, replacing only this run's files")
+        add_scene_argument(p)
+    add_output_arguments(p, "output folder (default: <scene name>-results)", "this run's files")
     p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
-    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
     p.add_argument("--allow-implausible", action="store_true",
                    help="accept values beyond the plausibility limits (e.g. very long runs)")
 
@@ -42,7 +42,7 @@ def add_run_arguments(p: argparse.ArgumentParser) -> None:
     Parameters
     ----------
     p : argparse.ArgumentParser
-        The subcommand's parser, filled in place.
+        The ``run`` parser, filled in place; the video options go in its ``video`` group.
     """
     _add_output_arguments(p)
     p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
@@ -59,17 +59,6 @@ def add_demo_arguments(p: argparse.ArgumentParser) -> None:
     """
     _add_output_arguments(p, scene=False)
     p.add_argument("--no-video", action="store_true", help="skip the demo video and stills")
-
-
-def add_check_arguments(p: argparse.ArgumentParser) -> None:
-    """Options of ``swingsim check``.
-
-    Parameters
-    ----------
-    p : argparse.ArgumentParser
-        The subcommand's parser, filled in place.
-    """
-    p.add_argument("scene", help="scene file (TOML)")
 
 
 def _print(args, text):
@@ -171,7 +160,8 @@ def run(args: argparse.Namespace) -> int:
     Parameters
     ----------
     args : argparse.Namespace
-        The parsed options of :func:`add_run_arguments`.
+        The scene file, the output options, and ``video`` with the video options,
+        parsed by :func:`add_run_arguments`.
 
     Returns
     -------
@@ -188,7 +178,7 @@ def demo(args: argparse.Namespace) -> int:
     Parameters
     ----------
     args : argparse.Namespace
-        The parsed options of :func:`add_demo_arguments`.
+        The output options and ``no_video`` (:func:`add_demo_arguments`).
 
     Returns
     -------

@@ -12,35 +12,27 @@ import numpy as np
 
 from swingsim.io.files import atomic_write_bytes
 from swingsim.report.plots_rigging import rigging_figure
-from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves,
-                                   title_and_caution)
+from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, new_figure,
+                                   shade_moves, title_and_caution)
 from swingsim.report.tables import timeseries_columns
 
-def swing_figure(traj, summary, cols=None):
-    """swing.png: the rope angle over time.
+
+def _time_plot(traj, cols):
+    """A figure with one time axis, and the run's columns (sampled here when ``cols`` is None)."""
+    columns = timeseries_columns(traj) if cols is None else cols
+    _plt, fig = new_figure()
+    ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
+    return fig, ax, columns
+
+
+def _swing_figure(traj, summary, cols=None):
+    """swing.png: the rope angle over time (a figure function of :data:`FIGURES`).
 
     The angle from vertical and its projections on x-z and y-z, the caution
     angle, the peak, when it settles, and the moves shaded.
-
-    Parameters
-    ----------
-    traj : swingsim.simulation.Trajectory
-        The run.
-    summary : swingsim.metrics.Summary
-        Its measures (peak, settling).
-    cols : dict, optional
-        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
-        sampled once for all plots; sampled here when None.
-
-    Returns
-    -------
-    matplotlib.figure.Figure
-        The figure, with its title and the caution line.
     """
     scene = traj.scene
-    c = timeseries_columns(traj) if cols is None else cols
-    plt, fig = new_figure()
-    ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
+    fig, ax, c = _time_plot(traj, cols)
     t = c["t_s"]
     ax.plot(t, c["rope_angle_deg"], color=ROPE, lw=1.8, label="rope angle from vertical")
     ax.plot(t, c["rope_angle_xz_deg"], color=GREY, lw=0.9, ls="--", label="projected on x-z")
@@ -57,77 +49,41 @@ def swing_figure(traj, summary, cols=None):
         ax.axvline(d["settled_at_s"], color=INK, lw=1, ls=":")
         ax.text(d["settled_at_s"], ax.get_ylim()[0], f" settled < {lim.settle_deg:g} deg", fontsize=8,
                 va="bottom", color=INK)
-    ax.set_xlabel("time [s]")
-    ax.set_ylabel("angle [deg]")
-    ax.grid(alpha=0.3)
-    ax.legend(fontsize=8, loc="lower right", framealpha=0.9)
+    label_axes(ax, "time [s]", "angle [deg]", "lower right")
     title_and_caution(fig, f"{scene.title}: swing angle (shaded: moves)", summary)
     return fig
 
 
-def speed_figure(traj, summary, cols=None):
+def _speed_figure(traj, summary, cols=None):
     """speed.png: the suspension point's horizontal speed, the load's speed and the hoist speed over time.
 
-    Parameters
-    ----------
-    traj : swingsim.simulation.Trajectory
-        The run.
-    summary : swingsim.metrics.Summary
-        Its measures.
-    cols : dict, optional
-        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
-        sampled once for all plots; sampled here when None.
-
-    Returns
-    -------
-    matplotlib.figure.Figure
-        The figure, with its title and the caution line.
+    A figure function of :data:`FIGURES`.
     """
     scene = traj.scene
-    c = timeseries_columns(traj) if cols is None else cols
-    plt, fig = new_figure()
-    ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
+    fig, ax, c = _time_plot(traj, cols)
     t = c["t_s"]
     ax.plot(t, c["suspension_speed_m_s"], color=INK, lw=1.8, label="suspension point, horizontal")
     ax.plot(t, c["load_speed_m_s"], color=LOAD, lw=1.2, label="load")
     if np.any(np.abs(c["hoist_speed_m_s"]) > 1e-9):
         ax.plot(t, c["hoist_speed_m_s"], color=ROPE, lw=1.2, ls="--", label="hoist (+ raising)")
     shade_moves(ax, scene, traj.motion)
-    ax.set_xlabel("time [s]")
-    ax.set_ylabel("speed [m/s]")
-    ax.grid(alpha=0.3)
-    ax.legend(fontsize=8, loc="upper right", framealpha=0.9)
+    label_axes(ax, "time [s]", "speed [m/s]", "upper right")
     title_and_caution(fig, f"{scene.title}: speeds", summary)
     return fig
 
 
-def plan_figure(traj, summary, cols=None):
-    """plan.png: the load's path in plan, and its offset from the plumb line.
+def _plan_figure(traj, summary, cols=None):
+    """plan.png: the load's path in plan, and its offset from the plumb line (a figure function of :data:`FIGURES`).
 
     Left: the suspension point's and the load's paths, the swing envelope and the
     zones with their margins; right: the load relative to the point below the
     suspension point, with the peak excursion and the clearance limit.
-
-    Parameters
-    ----------
-    traj : swingsim.simulation.Trajectory
-        The run.
-    summary : swingsim.metrics.Summary
-        Its measures (peak excursion).
-    cols : dict, optional
-        The run's time-series columns (:func:`swingsim.report.tables.timeseries_columns`),
-        sampled once for all plots; sampled here when None.
-
-    Returns
-    -------
-    matplotlib.figure.Figure
-        The figure, with its title and the caution line.
     """
     from matplotlib.patches import Circle, Rectangle
 
     scene = traj.scene
     c = timeseries_columns(traj) if cols is None else cols
-    plt, fig = new_figure(11.0, 5.8)
+    _plt, fig = new_figure(11.0, 5.8)
     ax1 = fig.add_axes([0.06, 0.12, 0.42, 0.76])
     ax2 = fig.add_axes([0.56, 0.12, 0.40, 0.76])
     sx, sy = c["suspension_x_m"], c["suspension_y_m"]
@@ -151,10 +107,7 @@ def plan_figure(traj, summary, cols=None):
                                 fill=False, edgecolor=col, ls="--", lw=0.8))
         ax1.text(z.min_m[0], z.max_m[1], z.name, fontsize=7.5, va="bottom", color=col)
     ax1.set_aspect("equal", adjustable="datalim")
-    ax1.set_xlabel("x [m]")
-    ax1.set_ylabel("y [m]")
-    ax1.grid(alpha=0.3)
-    ax1.legend(fontsize=8, loc="best", framealpha=0.9)
+    label_axes(ax1, "x [m]", "y [m]", "best")
     ax1.set_title("plan view (blue band: swing envelope)", fontsize=9)
     dx, dy = lx - sx, ly - sy
     ax2.plot(dx, dy, color=LOAD, lw=0.9)
@@ -167,17 +120,19 @@ def plan_figure(traj, summary, cols=None):
     ax2.set_xlim(-r, r)
     ax2.set_ylim(-r, r)
     ax2.set_aspect("equal")
-    ax2.set_xlabel("x offset from plumb line [m]")
-    ax2.set_ylabel("y offset [m]")
-    ax2.grid(alpha=0.3)
-    ax2.legend(fontsize=8, loc="upper right", framealpha=0.9)
+    label_axes(ax2, "x offset from plumb line [m]", "y offset [m]", "upper right")
     ax2.set_title("load relative to the point below the suspension point", fontsize=9)
     title_and_caution(fig, f"{scene.title}: load path", summary)
     return fig
 
 
-#: File name -> figure function; rigging.png (plots_rigging.py) is drawn only when the model has legs.
-FIGURES = {"swing.png": swing_figure, "speed.png": speed_figure, "plan.png": plan_figure,
+#: File name -> figure function ``fn(traj, summary, cols=None)``: given the run
+#: (:class:`swingsim.simulation.Trajectory`), its measures (:class:`swingsim.metrics.Summary`)
+#: and its time-series columns (:func:`swingsim.report.tables.timeseries_columns`, sampled
+#: once for all plots; by the function itself when None), it returns the matplotlib figure
+#: with its title and the caution line, or None when the run's model has nothing to show
+#: (rigging.png, :func:`swingsim.report.plots_rigging.rigging_figure`, needs sling legs).
+FIGURES = {"swing.png": _swing_figure, "speed.png": _speed_figure, "plan.png": _plan_figure,
            "rigging.png": rigging_figure}
 
 
@@ -186,12 +141,9 @@ def write_plots(traj, summary, out_dir, cols=None) -> list:
 
     Parameters
     ----------
-    traj : swingsim.simulation.Trajectory
-        The run.
-    summary : swingsim.metrics.Summary
-        Its measures.
-    out_dir : str or pathlib.Path
-        The folder.
+    traj, summary, out_dir
+        The run, its measures and the folder, as for
+        :func:`swingsim.report.outputs.write_run_outputs`, which calls this.
     cols : dict, optional
         The run's time-series columns, sampled once for all plots.
 

@@ -58,6 +58,24 @@ def title_and_caution(fig, title: str, summary=None) -> None:
     fig.text(0.5, 0.008, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7.5, color=LIMIT)
 
 
+def label_axes(ax, xlabel: str, ylabel: str, legend_loc: str) -> None:
+    """Name both axes, draw the light grid and the legend, as every plot does.
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        Axes with their data drawn (the legend lists their labelled artists).
+    xlabel, ylabel : str
+        Axis names, units in brackets, e.g. ``"time [s]"``.
+    legend_loc : str
+        Where matplotlib puts the legend, e.g. ``"upper right"`` or ``"best"``.
+    """
+    ax.set_xlabel(xlabel)
+    ax.set_ylabel(ylabel)
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8, loc=legend_loc, framealpha=0.9)
+
+
 def shade_moves(ax, scene, motion) -> None:
     """Shade each move's time span on a time axis and name it at the top.
 

@@ -1,0 +1,41 @@
+"""Options several commands share: where they write (``--out``, ``--force``) and ``--quiet``."""
+
+from __future__ import annotations
+
+import argparse
+
+
+def add_scene_argument(parser: argparse.ArgumentParser, metavar: str | None = None) -> None:
+    """Add the positional ``scene`` (the scene file a command reads) to a command's parser.
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        The command's parser, filled in place.
+    metavar : str, optional
+        How usage and help name it (``scene`` when None).
+    """
+    parser.add_argument("scene", metavar=metavar, help="scene file (TOML)")
+
+
+def add_output_arguments(parser: argparse.ArgumentParser, out_help: str, replaced: str, *,
+                         quiet_help: str = "print nothing but errors", short_flags: bool = False) -> None:
+    """Add ``--out DIR``, ``--force`` and ``--quiet`` to a command's parser.
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser
+        The command's parser, filled in place.
+    out_help : str
+        Help of ``--out``: what the folder holds and its default name.
+    replaced : str
+        What ``--force`` replaces in a non-empty folder, e.g. ``"this command's files"``.
+    quiet_help : str, optional
+        Help of ``--quiet``.
+    short_flags : bool, optional
+        Also accept ``-o`` for ``--out`` and ``-q`` for ``--quiet``.
+    """
+    parser.add_argument("--out", *(["-o"] if short_flags else []), metavar="DIR", default=None, help=out_help)
+    parser.add_argument("--force", action="store_true",
+                        help=f"write into a non-empty output folder, replacing only {replaced}")
+    parser.add_argument("--quiet", *(["-q"] if short_flags else []), action="store_true", help=quiet_help)
