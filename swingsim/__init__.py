@@ -18,53 +18,21 @@ from swingsim.errors import InputError, SceneError, SimulationError  # noqa: E40
 from swingsim.scene import Scene, load_scene, scene_from_dict  # noqa: E402
 
 
-def simulate(scene, **kw):
-    """Integrate a scene's full nonlinear equations of motion (scipy DOP853).
-
-    Parameters
-    ----------
-    scene : Scene
-        A validated scene (:func:`load_scene`).
-    **kw
-        Solver options of :func:`swingsim.simulation.simulate` (``rtol``, ``atol``, ``model``).
-
-    Returns
-    -------
-    Trajectory
-        The dense solution, its status and the scene.
-    """
-    from swingsim.simulation import simulate as _simulate
-
-    return _simulate(scene, **kw)
-
-
-def summarize(traj):
-    """Measure a trajectory: peak and residual swing, excursion, tension, periods, settling, cautions.
-
-    Parameters
-    ----------
-    traj : Trajectory
-        The result of :func:`simulate`.
-
-    Returns
-    -------
-    Summary
-        The summary numbers (definitions in :mod:`swingsim.metrics.single`).
-    """
-    from swingsim.metrics.single import summarize as _summarize
-
-    return _summarize(traj)
-
-
 def __getattr__(name):
-    if name == "Trajectory":
-        from swingsim.simulation import Trajectory
+    """simulate, summarize and their results, imported on first use (``import swingsim`` stays light).
 
-        return Trajectory
-    if name == "Summary":
-        from swingsim.metrics.single import Summary
+    ``swingsim.simulate`` is :func:`swingsim.simulation.simulate` and
+    ``swingsim.summarize`` is :func:`swingsim.metrics.single.summarize`, with
+    their own docstrings.
+    """
+    if name in ("simulate", "Trajectory"):
+        from swingsim import simulation
 
-        return Summary
+        return getattr(simulation, name)
+    if name in ("summarize", "Summary"):
+        from swingsim.metrics import single
+
+        return getattr(single, name)
     raise AttributeError(name)
 
 

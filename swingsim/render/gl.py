@@ -75,7 +75,7 @@ def require_opengl(environ=None) -> str:
     Parameters
     ----------
     environ : dict, optional
-        The environment to read and set (``os.environ`` by default).
+        As for :func:`prepare_environment`, which chooses the window class first.
 
     Returns
     -------

@@ -84,12 +84,12 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
     Returns
     -------
     pathlib.Path
-        ``target``.
+        ``target``, joined from the workers' segments by :func:`swingsim.render.writers.concat_mp4`.
 
     Raises
     ------
     RuntimeError
-        A worker failed (its last error line is named).
+        A worker failed (its last error line is named), or joining the segments failed.
     """
     import selectors
 

@@ -317,16 +317,14 @@ class Stage:
     def pose(self, t: float, row: dict, crane: tuple, video_t: float | None = 0.0):
         """Put every body where it is at simulated time ``t`` and set the frame's words.
 
+        One instant posed from its own outputs; :meth:`show` does the drawing.
+
         Parameters
         ----------
-        t : float
-            Simulated time [s].
-        row : dict
-            The run's outputs at ``t`` (one instant of ``Trajectory.sample``).
+        t, row, video_t
+            Simulated time [s], the run's outputs then and the video time [s], as for :meth:`show`.
         crane : tuple of float
             Base travel x, y [m], jib angle [rad] and radius [m] at ``t`` (``Motion.pose``).
-        video_t : float or None
-            Time in the video [s]; None for a still (no banner).
 
         Returns
         -------

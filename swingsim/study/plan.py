@@ -301,16 +301,9 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
 
     Parameters
     ----------
-    scene : Scene
-        The scene.
-    index : int
-        Index of the move to plan (from 0).
-    max_residual_deg : float
-        Largest residual swing allowed at every rope length [deg].
-    low : float
-        Shortest rope length [m].
-    high : float
-        Longest rope length [m].
+    scene, index, max_residual_deg, low, high
+        The request: the scene, the move (index from 0), the residual swing allowed
+        at every rope length [deg] and the rope range [m], as for :func:`check_request`.
     n_lengths : int, optional
         Number of rope lengths simulated over the range.
     **kw
@@ -375,10 +368,8 @@ def sample_profile(scene, index, move, dt_max=0.02):
 
     Parameters
     ----------
-    scene : Scene
-        The scene.
-    index : int
-        Index of the move the candidate replaces.
+    scene, index : Scene, int
+        The scene, and the move the candidate replaces (index from 0).
     move : dict
         The candidate's move table (scene keys).
     dt_max : float, optional
@@ -415,10 +406,8 @@ def verify_table(scene, index, table_name, out_dir, lengths, table_move):
 
     Parameters
     ----------
-    scene : Scene
-        The scene.
-    index : int
-        Index of the move the table replaces.
+    scene, index : Scene, int
+        As for :func:`sample_profile`, with the table in place of the candidate.
     table_name : str
         The table's CSV file, relative to ``out_dir``.
     out_dir : Path
@@ -505,17 +494,9 @@ def write_plan(scene, index, max_residual_deg, low, high, out) -> PlanReport:
 
     Parameters
     ----------
-    scene : Scene
-        The scene, as read from its file (``table_file`` in the snippet is
-        relative to ``scene.base_dir``).
-    index : int
-        Index of the move to plan (from 0).
-    max_residual_deg : float
-        Largest residual swing allowed at every rope length [deg].
-    low : float
-        Shortest rope length [m].
-    high : float
-        Longest rope length [m].
+    scene, index, max_residual_deg, low, high
+        The request, as for :func:`plan_move`; the scene as read from its file
+        (``table_file`` in the snippet is relative to ``scene.base_dir``).
     out : Path
         Output folder (checked by the caller).
 
