@@ -93,9 +93,9 @@ def atomic_write_text(final: Path | str, text: str) -> Path:
     Parameters
     ----------
     final : Path or str
-        The file to write.
+        The file to write, as for :func:`atomic_write_bytes`.
     text : str
-        Its whole content.
+        Its whole content, written as UTF-8.
 
     Returns
     -------

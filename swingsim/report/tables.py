@@ -101,9 +101,9 @@ def timeseries_csv(traj, cols=None) -> str:
     Parameters
     ----------
     traj : swingsim.simulation.Trajectory
-        The run.
+        The run, sampled only when ``cols`` is None.
     cols : dict, optional
-        Its columns (:func:`timeseries_columns`); sampled here when None.
+        Its columns (:func:`timeseries_columns`), when already sampled.
 
     Returns
     -------

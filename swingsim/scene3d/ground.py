@@ -44,26 +44,26 @@ class GroundGrid(NamedTuple):
     minor_m: float
     major_m: float
 
+    @classmethod
+    def covering(cls, extent_m) -> GroundGrid:
+        """The grid for a ground extent: 1 m lines (5 m past 150 m), major every 10 m (50 m past 300 m).
 
-def ground_grid(extent_m) -> GroundGrid:
-    """The grid for a ground extent: 1 m lines (5 m past 150 m), major every 10 m (50 m past 300 m).
+        Parameters
+        ----------
+        extent_m : sequence of 4 float
+            (xmin, xmax, ymin, ymax) the ground must cover [m].
 
-    Parameters
-    ----------
-    extent_m : sequence of 4 float
-        (xmin, xmax, ymin, ymax) the ground must cover [m].
-
-    Returns
-    -------
-    GroundGrid
-        The extent grown out to whole major squares, and the spacings.
-    """
-    x0, x1, y0, y1 = extent_m
-    span = max(x1 - x0, y1 - y0)
-    minor = 1.0 if span <= 150 else 5.0
-    major = 10.0 if span <= 300 else 50.0
-    return GroundGrid(math.floor(x0 / major) * major, math.ceil(x1 / major) * major,
-                      math.floor(y0 / major) * major, math.ceil(y1 / major) * major, minor, major)
+        Returns
+        -------
+        GroundGrid
+            The extent grown out to whole major squares, and the spacings.
+        """
+        x0, x1, y0, y1 = extent_m
+        span = max(x1 - x0, y1 - y0)
+        minor = 1.0 if span <= 150 else 5.0
+        major = 10.0 if span <= 300 else 50.0
+        return cls(math.floor(x0 / major) * major, math.ceil(x1 / major) * major,
+                   math.floor(y0 / major) * major, math.ceil(y1 / major) * major, minor, major)
 
 
 def ground_mesh(grid: GroundGrid) -> Mesh:
@@ -118,7 +118,7 @@ def grid_labels(grid: GroundGrid) -> list:
     Parameters
     ----------
     grid : GroundGrid
-        The ground's extent and spacing.
+        The ground's extent and its major spacing (the lines labelled).
 
     Returns
     -------

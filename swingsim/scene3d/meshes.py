@@ -441,7 +441,7 @@ def spreader_mesh(span_m: float) -> Mesh:
     Parameters
     ----------
     span_m : float
-        Distance between the end lugs [m].
+        Distance between the end lugs [m]; drawn at least 0.1 m.
 
     Returns
     -------

@@ -145,7 +145,7 @@ class Scene3D:
         Parameters
         ----------
         t : array_like
-            Simulated times [s].
+            Simulated times [s], one or many, as for :meth:`frames`.
 
         Returns
         -------
@@ -209,7 +209,7 @@ def build(traj, *, load_mesh: meshes.Mesh | None = None) -> Scene3D:
     size = scene.load.size_m or default_load_size(scene.load.mass_kg)
     layout = make_layout(traj, size, scene.load.shape if load_mesh is None else "mesh")
     bodies = {}
-    grid = ground.ground_grid(layout.ground_m)
+    grid = ground.GroundGrid.covering(layout.ground_m)
     bodies["ground"] = Body(ground.ground_mesh(grid), "ground", texture=ground.ground_texture(grid))
     labels = ground.grid_labels(grid)
     arrow_x, arrow_y, arrow_labels = ground.axis_arrows(

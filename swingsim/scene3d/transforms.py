@@ -150,7 +150,7 @@ def frame_from_axis(direction, axis: int = 2) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        ``(..., 3, 3)`` rotations.
+        ``(..., 3, 3)`` rotations; column ``axis`` of each is the unit ``direction``.
 
     References
     ----------
@@ -193,7 +193,7 @@ def frame_x_up(x, up) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        ``(..., 3, 3)`` rotations.
+        ``(..., 3, 3)`` rotations; columns are the body's local x, y, z in the world.
 
     References
     ----------
