@@ -173,7 +173,7 @@ class SwingModel(Protocol):
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            As for :meth:`mode_periods_s` [m].
 
         Returns
         -------

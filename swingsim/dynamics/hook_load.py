@@ -99,7 +99,7 @@ def model_name(scene) -> str | None:
     Parameters
     ----------
     scene : Scene
-        A validated scene.
+        A validated scene; its hook, rigid load, elastic rope and rigging decide.
 
     Returns
     -------
@@ -376,7 +376,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            Rope length the system hangs on [m] (it sets the elastic rope's static
+            stretch); the scene's initial length by default.
 
         Returns
         -------

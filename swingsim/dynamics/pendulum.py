@@ -169,16 +169,14 @@ def tension_per_mass(u, v, du, dv, L, ddL, apx, apy, apz, fx, fy, fz):
 
     Parameters
     ----------
-    u, v : float or ndarray
-        Horizontal components of the unit rope direction [-].
-    du, dv : float or ndarray
-        Their rates [1/s].
-    L, ddL : float or ndarray
-        Rope length and its second derivative [m, m/s^2].
-    apx, apy, apz : float or ndarray
-        Acceleration of the suspension point [m/s^2].
-    fx, fy, fz : float or ndarray
-        Applied force per unit mass on the load (:func:`specific_force`) [m/s^2].
+    u, v, du, dv, L : float or ndarray
+        Rope direction chart, its rates and the rope length, as for
+        :func:`accelerations` [-, 1/s, m].
+    ddL : float or ndarray
+        Second derivative of the rope length [m/s^2].
+    apx, apy, apz, fx, fy, fz : float or ndarray
+        Acceleration of the suspension point and applied force per unit mass on
+        the load, as for :func:`accelerations` [m/s^2].
 
     Returns
     -------
@@ -224,7 +222,7 @@ def model_params(scene) -> dict:
     Parameters
     ----------
     scene : Scene
-        A validated scene.
+        A validated scene (its gravity, damping ratio, load, rope and wind).
 
     Returns
     -------

@@ -166,8 +166,8 @@ class ElasticRope:
         float
             Tension [N]; negative means slack.
         """
-        lam = self.lambda0_m + (L - self.loaded_length_m)
-        k = self.K / (self.falls * lam + self.lead_length_m)
+        lam = self.unstretched(L)
+        k = self.stiffness(lam)
         c = 2.0 * self.damping_ratio * math.sqrt(k * self.mass_kg)
         return k * (ell - lam) + c * (dell - dL)
 
@@ -176,18 +176,17 @@ class ElasticRope:
 
         Parameters
         ----------
-        ell : float
-            Stretched rope length [m].
-        L : float
-            Rope length the hoist motion prescribes [m].
+        ell, L : float
+            Stretched rope length and the length the hoist motion prescribes, as
+            for :meth:`tension` [m].
 
         Returns
         -------
         float
             Energy [J]; zero when slack.
         """
-        lam = self.lambda0_m + (L - self.loaded_length_m)
-        k = self.K / (self.falls * lam + self.lead_length_m)
+        lam = self.unstretched(L)
+        k = self.stiffness(lam)
         x = ell - lam
         return 0.5 * k * x * x if x > 0 else 0.0
 
