@@ -262,18 +262,12 @@ def s_curve(start_s: float, distance: float, speed: float, accel: float,
 
     Parameters
     ----------
-    start_s : float
-        Start of the move [s].
-    distance : float
-        Signed displacement [m or rad].
-    speed : float
-        Speed limit [unit/s].
-    accel : float
-        Acceleration limit [unit/s^2].
+    start_s, distance, speed, accel : float
+        As for :func:`trapezoid` [s, m or rad, unit/s, unit/s^2].
     jerk : float
         Jerk limit [unit/s^3].
     decel : float, optional
-        Deceleration limit [unit/s^2]; ``accel`` by default.
+        As for :func:`trapezoid` [unit/s^2].
 
     Returns
     -------

@@ -370,18 +370,10 @@ def whole_period_s_curve(start_s: float, distance: float, speed: float, accel: f
 
     Parameters
     ----------
-    start_s : float
-        Start of the move [s].
-    distance : float
-        Signed travel [m or rad].
-    speed : float
-        Speed limit [unit/s].
-    accel : float
-        Acceleration limit [unit/s^2].
+    start_s, distance, speed, accel, period_s : float
+        As for :func:`whole_period_trapezoid` [s, m or rad, unit/s, unit/s^2, s].
     jerk : float
-        Jerk [unit/s^3].
-    period_s : float
-        Swing period [s].
+        Jerk of the ramps [unit/s^3], used as given (not a limit).
 
     Returns
     -------
@@ -492,19 +484,13 @@ def build_whole_period(move, scene, scale, swing_period_s=None) -> Profile:
 
     Parameters
     ----------
-    move : Move
-        The scene's move (its distance, speed, acceleration and shaper keys).
-    scene : Scene
-        Its scene (the damping ratio when the move gives none).
-    scale : float
-        Scene unit to internal unit (pi/180 for slew moves in degrees, else 1) [-].
-    swing_period_s : float, optional
-        The lift's first swing period [s], used when the move gives no
-        ``shaper_period_s``.
+    move, scene, scale, swing_period_s
+        As for :func:`build_shaped` (scale [-], period [s]); the damping ratio is
+        not used: whole periods of acceleration leave no swing at any damping.
 
     Returns
     -------
-    Profile
+    PiecewiseCubic
         The move in internal units.
     """
     T, _ = tuning(move, scene, swing_period_s)
