@@ -320,6 +320,20 @@ SHAPERS = {
 _MAX_PERIODS = 1000
 
 
+def _first_fitting(period_s: float, fit):
+    """Speed and acceleration of the smallest whole number n >= 1 of periods that fits.
+
+    ``fit(n T)`` gives ``(speed, accel)`` when n periods fit the move's limits, else
+    None; :class:`ProfileError` when no n up to :data:`_MAX_PERIODS` fits.
+    """
+    _check(period_s, 0.0)
+    for n in range(1, _MAX_PERIODS + 1):
+        found = fit(n * period_s)
+        if found is not None:
+            return found
+    raise ProfileError("no whole number of swing periods fits the move's limits")
+
+
 def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel: float,
                            period_s: float) -> PiecewiseCubic:
     """Trapezoid whose acceleration and deceleration each last n whole periods.
@@ -339,23 +353,21 @@ def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel:
     Returns
     -------
     PiecewiseCubic
-        The move.
+        The move: a trapezoid at the fitted speed and acceleration.
 
     Raises
     ------
     ProfileError
         When no whole number of periods up to 1000 fits the limits.
     """
-    _check(period_s, 0.0)
     D = abs(distance)
-    for n in range(1, _MAX_PERIODS + 1):
-        Ta = n * period_s
+
+    def fit(Ta):
         vp = min(speed, D / Ta)
         a = vp / Ta
-        if a <= accel * (1 + 1e-12):
-            break
-    else:
-        raise ProfileError("no whole number of swing periods fits the move's limits")
+        return (vp, a) if a <= accel * (1 + 1e-12) else None
+
+    vp, a = _first_fitting(period_s, fit)
     return trapezoid(start_s, distance, vp, a)
 
 
@@ -378,27 +390,25 @@ def whole_period_s_curve(start_s: float, distance: float, speed: float, accel: f
     Returns
     -------
     PiecewiseCubic
-        The move.
+        The move: an s-curve at the fitted speed and acceleration, with ``jerk``.
 
     Raises
     ------
     ProfileError
-        When no whole number of periods up to 1000 fits the limits.
+        As for :func:`whole_period_trapezoid`.
     """
-    _check(period_s, 0.0)
     D = abs(distance)
-    for n in range(1, _MAX_PERIODS + 1):
-        nT = n * period_s
+
+    def fit(nT):
         v = speed
         if v * (nT + v / (nT * jerk)) > D:  # ramps up and down need more than D
             # v^2 / (nT j) + v nT - D = 0
             qa, qb = 1.0 / (nT * jerk), nT
             v = (-qb + math.sqrt(qb * qb + 4 * qa * D)) / (2 * qa)
         a = v / nT
-        if a <= accel * (1 + 1e-12) and v >= a * a / jerk:
-            break
-    else:
-        raise ProfileError("no whole number of swing periods fits the move's limits")
+        return (v, a) if a <= accel * (1 + 1e-12) and v >= a * a / jerk else None
+
+    v, a = _first_fitting(period_s, fit)
     return s_curve(start_s, distance, v, a, jerk)
 
 
