@@ -111,12 +111,15 @@ def _check(period_s: float, zeta: float):
         raise ProfileError(f"the shaper damping ratio must be in [0, 1), got {zeta!r}")
 
 
-def _k_factor(zeta: float) -> float:
-    return math.exp(-zeta * math.pi / math.sqrt(1.0 - zeta * zeta))
+def _checked_terms(period_s: float, zeta: float) -> tuple[float, float]:
+    """Check the tuning; the impulse ratio K [-] and half the damped period [s].
 
-
-def _half_damped_period(period_s: float, zeta: float) -> float:
-    return 0.5 * period_s / math.sqrt(1.0 - zeta * zeta)
+    :math:`K = e^{-\\zeta\\pi/\\sqrt{1-\\zeta^2}}` (Singer & Seering 1990, module
+    References).
+    """
+    _check(period_s, zeta)
+    return (math.exp(-zeta * math.pi / math.sqrt(1.0 - zeta * zeta)),
+            0.5 * period_s / math.sqrt(1.0 - zeta * zeta))
 
 
 def zv(period_s: float, zeta: float = 0.0) -> Shaper:
@@ -138,9 +141,7 @@ def zv(period_s: float, zeta: float = 0.0) -> Shaper:
     ----------
     .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
     """
-    _check(period_s, zeta)
-    K = _k_factor(zeta)
-    h = _half_damped_period(period_s, zeta)
+    K, h = _checked_terms(period_s, zeta)
     return Shaper("zv", (1.0 / (1.0 + K), K / (1.0 + K)), (0.0, h))
 
 
@@ -149,10 +150,8 @@ def zvd(period_s: float, zeta: float = 0.0) -> Shaper:
 
     Parameters
     ----------
-    period_s : float
-        Undamped natural period [s].
-    zeta : float
-        Damping ratio [-].
+    period_s, zeta : float
+        Period [s] and damping ratio [-] of the mode to cancel, as for :func:`zv`.
 
     Returns
     -------
@@ -163,9 +162,7 @@ def zvd(period_s: float, zeta: float = 0.0) -> Shaper:
     ----------
     .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
     """
-    _check(period_s, zeta)
-    K = _k_factor(zeta)
-    h = _half_damped_period(period_s, zeta)
+    K, h = _checked_terms(period_s, zeta)
     d = (1.0 + K) ** 2
     return Shaper("zvd", (1.0 / d, 2.0 * K / d, K * K / d), (0.0, h, 2.0 * h))
 
@@ -208,10 +205,8 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
 
     Parameters
     ----------
-    period_s : float
-        Undamped natural period [s].
-    zeta : float
-        Damping ratio [-]; for zeta > 0 the EI conditions are solved
+    period_s, zeta : float
+        As for :func:`zv` [s, -]; for zeta > 0 the EI conditions are solved
         numerically (see the module Notes).
     tolerance : float
         Residual vibration V allowed at the design frequency [-], 0 < V < 1.
@@ -234,11 +229,10 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
     ----------
     .. [2] W. Singhose, W. Seering and N. Singer, 1994 (module References).
     """
-    _check(period_s, zeta)
+    K, h = _checked_terms(period_s, zeta)
     V = float(tolerance)
     if not (0.0 < V < 1.0):
         raise ProfileError(f"the EI tolerance must be between 0 and 1, got {tolerance!r}")
-    h = _half_damped_period(period_s, zeta)
     times = (0.0, h, 2.0 * h)
     A0 = np.array([(1 + V) / 4, (1 - V) / 2, (1 + V) / 4])
     if zeta == 0.0:
@@ -255,7 +249,6 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
         # |S| = V and d|S|^2/dw = 2 Re(conj(S) dS/dw) = 0 at the design frequency
         return [abs(S) ** 2 - V * V, float(np.real(np.conj(S) * dS)) * w]
 
-    K = _k_factor(zeta)
     guess = np.array([A0[0], A0[1] * K]) / (A0[0] + A0[1] * K + A0[2] * K * K)
     x, info, ok, _ = fsolve(eqs, guess, full_output=True, xtol=1e-14)
     A = (float(x[0]), float(x[1]), float(1.0 - x[0] - x[1]))
