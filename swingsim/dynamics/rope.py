@@ -147,6 +147,11 @@ class ElasticRope:
         """
         return self.lambda0_m + (L - self.loaded_length_m)
 
+    def _spring(self, L: float) -> tuple[float, float]:
+        """Unstretched fall length [m] and stiffness [N/m] at prescribed rope length ``L`` [m]."""
+        lam = self.unstretched(L)
+        return lam, self.stiffness(lam)
+
     def tension(self, ell, dell, L, dL):
         """Rope tension of the spring and dashpot, before the tension-only clamp.
 
@@ -166,8 +171,7 @@ class ElasticRope:
         float
             Tension [N]; negative means slack.
         """
-        lam = self.unstretched(L)
-        k = self.stiffness(lam)
+        lam, k = self._spring(L)
         c = 2.0 * self.damping_ratio * math.sqrt(k * self.mass_kg)
         return k * (ell - lam) + c * (dell - dL)
 
@@ -185,8 +189,7 @@ class ElasticRope:
         float
             Energy [J]; zero when slack.
         """
-        lam = self.unstretched(L)
-        k = self.stiffness(lam)
+        lam, k = self._spring(L)
         x = ell - lam
         return 0.5 * k * x * x if x > 0 else 0.0
 
