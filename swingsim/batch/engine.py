@@ -115,7 +115,7 @@ def supported(scene) -> bool:
     Parameters
     ----------
     scene : Scene
-        A validated scene.
+        A validated scene; only the model it selects decides.
 
     Returns
     -------

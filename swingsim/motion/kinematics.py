@@ -36,7 +36,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from swingsim.motion.profiles import Profile
+from swingsim.motion.profiles import Profile, SumProfile
 
 AXES = ("x", "y", "slew", "radius", "hoist")
 
@@ -156,20 +156,14 @@ class Motion:
         name : str
             One of :data:`AXES`.
         t : float or array_like
-            Time(s) [s].
+            Time(s) from the start of the scene [s].
 
         Returns
         -------
-        list of ndarray
-            ``[pos, vel, acc]`` shaped like ``t`` [m or rad, per s, per s^2].
+        tuple of ndarray
+            ``(pos, vel, acc)`` shaped like ``t`` [m or rad, per s, per s^2].
         """
-        t = np.asarray(t, dtype=float)
-        out = [np.zeros_like(t), np.zeros_like(t), np.zeros_like(t)]
-        for ax, prof in self.moves:
-            if ax == name:
-                for o, val in zip(out, prof.evaluate(t)):
-                    o += val
-        return out
+        return SumProfile(tuple((1.0, 0.0, prof) for ax, prof in self.moves if ax == name)).evaluate(t)
 
     def evaluate(self, t):
         """Suspension point and rope length with derivatives at time(s) ``t``.
@@ -177,7 +171,7 @@ class Motion:
         Parameters
         ----------
         t : float or array_like
-            Time(s) [s].
+            Time(s) from the start of the scene [s]; any shape.
 
         Returns
         -------
@@ -208,7 +202,7 @@ class Motion:
         Parameters
         ----------
         t : float or array_like
-            Time(s) [s].
+            As for :meth:`evaluate` [s].
 
         Returns
         -------

@@ -86,7 +86,7 @@ def needs_swing_period(scene) -> bool:
     Parameters
     ----------
     scene : Scene
-        A scene whose keys are valid.
+        A scene whose keys are valid; its moves' profiles and shaper keys decide.
 
     Returns
     -------
