@@ -165,3 +165,31 @@ def test_video_state_equals_summary_verdict():
                for k, v in traj.sample([x]).items()}
         state, _ = zone_verdicts_at(row, traj.scene)[0]
         assert (state == ENTERED) == (float(x) in entered_at), x
+
+
+def test_rendered_zone_state_equals_summary_verdict():
+    # the video's own stage, not only the shared function: the frame's words and colour follow
+    # the summary's verdict at the same instants
+    pytest.importorskip("pyvista")
+    from swingsim.render.gl import RenderUnavailableError
+
+    from swingsim.metrics.single import summarize
+    from swingsim.render.facts import collect
+    from swingsim.render.frames import draw_frames
+    from swingsim.render.stage import Stage
+
+    traj = _over_footpath()
+    z = summarize(traj).data["zones"][0]
+    e = z["entries"][0]
+    try:
+        stage = Stage(traj, collect(traj), size=(160, 120), views=("side",))
+    except RenderUnavailableError:
+        pytest.skip("no OpenGL")
+    try:
+        for t, entered in ((0.5, False), (e["start_s"] + 0.5 * e["duration_s"], True)):
+            next(draw_frames(stage, traj, np.array([t])))
+            states = {name: state for name, state, _ in stage.zone_states}
+            assert (states.get("footpath") == ENTERED) == entered
+            assert ("IN zone: footpath" in stage.last_text.zone) == entered
+    finally:
+        stage.close()
