@@ -78,7 +78,7 @@ def scenario_warnings(s: dict, scene) -> list[str]:
         if z["inside"]:
             who = ", ".join(z.get("entered_by") or ["load"])
             out.append(f"Parts of the suspended system ({who}) {'pass over' if z['kind'] == 'exclusion' else 'touch'} "
-                       f"{z['kind']} '{z['name']}' (from t = {z['first_within_margin_s']:.1f} s).")
+                       f"{z['kind']} '{z['name']}' (from t = {z.get('first_entry_s') or z['first_within_margin_s']:.1f} s).")
         elif z["within_margin"]:
             out.append(f"The load comes within {z['min_distance_m']:.2f} m of {z['kind']} '{z['name']}', "
                        f"inside its {z['margin_m']:g} m margin (from t = {z['first_within_margin_s']:.1f} s).")
