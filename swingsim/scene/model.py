@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import NamedTuple
 
 __all__ = ["Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
-           "MoveTable", "Move", "Zone", "Scene", "models_rigid_load"]
+           "MoveTable", "Move", "Zone", "Site", "Scene", "models_rigid_load"]
 
 
 @dataclass(frozen=True)
@@ -124,11 +124,24 @@ class Rigging:
 
 @dataclass(frozen=True)
 class Wind:
-    """Steady wind (``[wind]``)."""
+    """Steady wind (``[wind]``).
+
+    ``direction_deg`` is always the direction it blows toward, from +x toward +y:
+    a wind given by ``from_bearing_deg`` is converted on reading
+    (:func:`swingsim.scene.site.wind_toward_deg`).
+    """
 
     speed_m_s: float
     direction_deg: float
     air_density_kg_m3: float
+
+
+@dataclass(frozen=True)
+class Site:
+    """The site's bearings (``[site]``): where north is in the scene's axes."""
+
+    #: Direction of site north, from +x toward +y [deg].
+    north_deg: float = 90.0
 
 
 @dataclass(frozen=True)
@@ -218,6 +231,7 @@ class Scene:
     raw: dict = field(default_factory=dict)
     hook: Hook | None = None
     rigging: Rigging | None = None
+    site: Site = field(default_factory=Site)
 
     @property
     def rigid_load(self) -> bool:

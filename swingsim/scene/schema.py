@@ -212,9 +212,16 @@ TABLES: dict[str, dict[str, Key]] = {
     },
     "wind": {
         "speed_m_s": Key("float", "Steady wind speed at load height [m/s].", default=0.0, ge=0.0),
-        "direction_deg": Key("float", "Direction the wind blows toward, from +x toward +y [deg].", default=0.0),
+        "direction_deg": Key("float", "Mathematical alternative to from_bearing_deg: the direction the wind "
+                             "blows toward, counter-clockwise from +x toward +y [deg]. Give this or "
+                             "from_bearing_deg, not both.", default=0.0),
         "air_density_kg_m3": Key("float", "Air density [kg/m^3]; ISO 2533 sea level by default.",
                                  default=constants.AIR_DENSITY_SEA_LEVEL, gt=0.0, le=2.0),
+        # -- site bearings (swingsim/scene/site.py) --
+        "from_bearing_deg": Key("float", "Compass bearing the wind comes from, clockwise from site north "
+                                "([site] north_deg) [deg], as weather reports and anemometers give it "
+                                "(meteorological convention: 270 is a west wind, blowing toward the east). "
+                                "Give this or direction_deg, not both.", ge=0.0, le=360.0),
     },
     "output": {
         "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=constants.SAMPLE_HZ, ge=1.0, le=1000.0),
@@ -236,6 +243,13 @@ TABLES: dict[str, dict[str, Key]] = {
         "up": Key("vec3", "Direction that is up in the picture [-].", default=(0.0, 0.0, 1.0)),
         "view_angle_deg": Key("float", "Vertical field of view of the custom view [deg].",
                               default=30.0, gt=1.0, lt=120.0),
+    },
+    # -- site bearings (swingsim/scene/site.py) --
+    "site": {
+        "north_deg": Key("float", "Direction of site north in the scene's axes, measured from +x toward +y "
+                         "[deg]; default 90: +y is north and +x is east. Wind bearings "
+                         "(wind.from_bearing_deg) and the north arrow on plots and video use it.",
+                         default=90.0, ge=-360.0, le=360.0),
     },
 }
 
