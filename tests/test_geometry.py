@@ -163,7 +163,7 @@ def test_radius_limits_and_the_slew_axis():
             "moves": [{"axis": "radius", "profile": "trapezoid", "distance_m": -40.0,
                        "speed_m_s": 1.0, "accel_m_s2": 0.5, "label": "trolley in"}]}
     msg = _error(data)
-    assert "moves[0]" in msg and "through the slew axis" in msg and "-10.00 m" in msg
+    assert "moves[0]" in msg and "through the slew axis" in msg and "radius to -10.00 m" in msg
     data["moves"][0]["distance_m"] = -25.0
     data["crane"]["min_radius_m"] = 6.0
     msg = _error(data)

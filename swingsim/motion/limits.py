@@ -48,11 +48,11 @@ def _running_move(scene, axes, t_s: float):
     return max(started, key=lambda m: m.start_s) if started else None
 
 
-def _refuse(scene, axes, t_s: float, what: str):
+def _refuse(scene, axes, t_s: float, reach: str, why: str):
     move = _running_move(scene, axes, t_s)
     key = "moves" if move is None else f"moves[{move.index}]"
     name = "" if move is None else f"'{move.name}' "
-    raise SceneError(scene.file, key, f"{name}would take {what} at t = {t_s:.2f} s")
+    raise SceneError(scene.file, key, f"{name}would take {reach} at t = {t_s:.2f} s, {why}")
 
 
 def check_reach(scene, motion, times_s=None) -> None:
@@ -79,21 +79,21 @@ def check_reach(scene, motion, times_s=None) -> None:
         axes = ("radius",)
         i = int(np.argmin(radius))
         if radius[i] < -1e-9:
-            first = int(np.argmax(radius < -1e-9))
-            _refuse(scene, axes, float(ts[first]), f"the radius through the slew axis to {radius[i]:.2f} m "
-                    "(the hook cannot pass the mast or the slewing ring); slew instead, or shorten the move")
+            _refuse(scene, axes, float(ts[i]), f"the radius to {radius[i]:.2f} m",
+                    "through the slew axis (the hook cannot pass the mast or the slewing ring); "
+                    "slew instead, or shorten the move")
         if crane.min_radius_m is not None and radius[i] < crane.min_radius_m - 1e-9:
-            _refuse(scene, axes, float(ts[i]), f"the radius to {radius[i]:.2f} m, inside "
+            _refuse(scene, axes, float(ts[i]), f"the radius to {radius[i]:.2f} m", "inside "
                     f"crane.min_radius_m = {crane.min_radius_m:g} m")
         j = int(np.argmax(radius))
         if crane.max_radius_m is not None and radius[j] > crane.max_radius_m + 1e-9:
-            _refuse(scene, axes, float(ts[j]), f"the radius to {radius[j]:.2f} m, beyond "
+            _refuse(scene, axes, float(ts[j]), f"the radius to {radius[j]:.2f} m", "beyond "
                     f"crane.max_radius_m = {crane.max_radius_m:g} m")
         if motion.boom is not None:
             reach = np.abs(radius - motion.boom.foot_offset_m)
             k = int(np.argmax(reach))
             if reach[k] >= motion.boom.length_m:
-                _refuse(scene, axes, float(ts[k]), f"the radius to {radius[k]:.2f} m, beyond the boom's "
+                _refuse(scene, axes, float(ts[k]), f"the radius to {radius[k]:.2f} m", "beyond the boom's "
                         f"reach (boom_length_m = {motion.boom.length_m:g} m from the foot pin at "
                         f"{motion.boom.foot_offset_m:g} m)")
     if crane.kind in RAIL_KINDS and (crane.travel_limits_m is not None or crane.cross_limits_m is not None):
@@ -107,4 +107,4 @@ def check_reach(scene, motion, times_s=None) -> None:
             for k, bad in ((i, p[i, column] < lo - 1e-9), (j, p[j, column] > hi + 1e-9)):
                 if bad:
                     _refuse(scene, (axis,), float(ts[k]), f"the suspension point to {axis} = "
-                            f"{p[k, column]:.2f} m, outside crane.{name} = [{lo:g}, {hi:g}]")
+                            f"{p[k, column]:.2f} m", f"outside crane.{name} = [{lo:g}, {hi:g}]")
