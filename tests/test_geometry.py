@@ -245,3 +245,28 @@ def test_batch_engine_slews_about_the_same_centre():
     data["crane"]["slew_center_m"] = [0.0, 0.0]
     other = summarize(simulate(scene_from_dict(data))).data
     assert abs(other["peak_rope_angle_deg"] - want["peak_rope_angle_deg"]) > 0.05
+
+
+def test_drawn_boom_runs_from_the_foot_pin_to_the_tip():
+    # the drawing and the simulation share the numbers: the boom body's ends are the foot pin
+    # (turned about the slew centre with the slew angle, geometry) and the tip sheave
+    from pathlib import Path
+
+    from swingsim.scene import load_scene
+    from swingsim.scene3d import build
+
+    scene = load_scene(Path(__file__).parent / "data" / "render_luffing.toml")
+    traj = simulate(scene)
+    view = build(traj)
+    t = np.array([0.0, 10.0, 25.0, 39.0])
+    boom = view.poses(t)["boom"]
+    pose = traj.motion.pose(t)
+    tip = traj.motion.evaluate(t)["p"]
+    offset, height = scene.crane.boom_foot_m
+    foot = np.stack([pose.travel_x_m + offset * np.cos(pose.jib_angle_rad),
+                     pose.travel_y_m + offset * np.sin(pose.jib_angle_rad), np.full(len(t), height)], -1)
+    assert np.allclose(pose.travel_x_m, 4.0) and np.allclose(pose.travel_y_m, 4.0)  # the mast
+    assert np.allclose(np.einsum("nij,j->ni", boom, [0.0, 0.0, 0.0, 1.0])[:, :3], foot, atol=1e-9)
+    assert np.allclose(np.einsum("nij,j->ni", boom, [1.0, 0.0, 0.0, 1.0])[:, :3], tip + [0.0, 0.0, 0.3],
+                       atol=1e-9)
+    assert tip[-1, 2] < tip[0, 2] - 5.0  # luffed out: the tip came down
