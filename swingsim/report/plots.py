@@ -75,8 +75,9 @@ def _speed_figure(traj, summary, cols=None):
 def _plan_figure(traj, summary, cols=None):
     """plan.png: the load's path in plan, and its offset from the plumb line (a figure function of :data:`FIGURES`).
 
-    Left: the suspension point's and the load's paths, the swing envelope and the
-    zones with their margins; right: the load relative to the point below the
+    Left: the suspension point's and the load's paths, the swing envelope, the
+    zones with their margins, and a slewing crane's slew axis and radius limits;
+    right: the load relative to the point below the
     suspension point, with the peak excursion and the clearance limit.
     """
     from matplotlib.patches import Circle, Rectangle
@@ -106,6 +107,7 @@ def _plan_figure(traj, summary, cols=None):
                                 z.max_m[1] - z.min_m[1] + 2 * z.margin_m,
                                 fill=False, edgecolor=col, ls="--", lw=0.8))
         ax1.text(z.min_m[0], z.max_m[1], z.name, fontsize=7.5, va="bottom", color=col)
+    _crane_reach(ax1, scene.crane)
     ax1.set_aspect("equal", adjustable="datalim")
     label_axes(ax1, "x [m]", "y [m]", "best")
     ax1.set_title("plan view (blue band: swing envelope)", fontsize=9)
@@ -124,6 +126,24 @@ def _plan_figure(traj, summary, cols=None):
     ax2.set_title("load relative to the point below the suspension point", fontsize=9)
     title_and_caution(fig, f"{scene.title}: load path", summary)
     return fig
+
+
+def _crane_reach(ax, crane):
+    """A slewing crane's slew axis and its radius limits (circles about the slew centre), kept to the view."""
+    from matplotlib.patches import Circle
+
+    if crane.kind not in ("tower", "luffing", "mobile"):
+        return
+    cx, cy = crane.slew_center_m
+    ax.plot([cx], [cy], "+", color=GREY, ms=12, mew=1.5, label="slew axis")
+    ax.autoscale_view()
+    view = ax.get_xlim(), ax.get_ylim()
+    for radius, name in ((crane.min_radius_m, "min"), (crane.max_radius_m, "max")):
+        if radius:
+            ax.add_patch(Circle((cx, cy), radius, fill=False, edgecolor=GREY, ls=":", lw=1.0,
+                                label=f"{name} radius {radius:g} m"))
+    ax.set_xlim(*view[0])
+    ax.set_ylim(*view[1])
 
 
 #: File name -> figure function ``fn(traj, summary, cols=None)``: given the run
