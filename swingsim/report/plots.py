@@ -132,7 +132,7 @@ def _crane_reach(ax, crane):
     """A slewing crane's slew axis and its radius limits (circles about the slew centre), kept to the view."""
     from matplotlib.patches import Circle
 
-    if crane.kind not in ("tower", "luffing", "mobile"):
+    if not crane.slewing:
         return
     cx, cy = crane.slew_center_m
     ax.plot([cx], [cy], "+", color=GREY, ms=12, mew=1.5, label="slew axis")

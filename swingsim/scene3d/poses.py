@@ -14,6 +14,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.scene3d import transforms
 
 #: The model outputs the rigging's poses are made from (``Trajectory.sample`` keys).
@@ -96,7 +97,7 @@ def crane_transforms(roles: dict, layout, crane, suspension_m) -> dict:
         elif role == "slew":
             out[name] = slew
         elif role == "trolley":
-            heading = phi if layout.kind in ("tower", "luffing", "mobile") else np.zeros(n)
+            heading = phi if layout.kind in SLEWING_KINDS else np.zeros(n)
             out[name] = transforms.translation(p) @ transforms.rotation_z(heading)
         elif role == "bridge":
             out[name] = transforms.translation(np.stack([p[:, 0], np.zeros(n), np.zeros(n)], -1))
