@@ -76,8 +76,9 @@ def _speed_figure(traj, summary, cols=None):
 def _plan_figure(traj, summary, cols=None):
     """plan.png: the load's path in plan, and its offset from the plumb line (a figure function of :data:`FIGURES`).
 
-    Left: the suspension point's and the load's paths, the swing envelope and the
-    zones with their margins; right: the load relative to the point below the
+    Left: the suspension point's and the load's paths, the swing envelope, the
+    zones with their margins, and a slewing crane's slew axis and radius limits;
+    right: the load relative to the point below the
     suspension point, with the peak excursion and the clearance limit.
     """
     from matplotlib.patches import Circle, Rectangle
@@ -113,6 +114,7 @@ def _plan_figure(traj, summary, cols=None):
                  else "within margin" if verdict["within_margin"] else "clear")
         ax1.text(z.min_m[0], z.max_m[1], f"{z.name} [{state}]", fontsize=7.5, va="bottom", color=col,
                  fontweight="bold" if entered else "normal")
+    _crane_reach(ax1, scene.crane)
     ax1.set_aspect("equal", adjustable="datalim")
     label_axes(ax1, "x [m]", "y [m]", "best")
     ax1.set_title("plan view (blue band: swing envelope)", fontsize=9)
@@ -158,6 +160,24 @@ def _site_arrows(fig, scene) -> None:
         arrow(2.5, scene.wind.direction_deg, ROPE, 2.2)
     arrow(7.2, scene.site.north_deg, INK, 1.6)
     strip.text(6.6, 0.0, "site north", ha="right", va="center", fontsize=8, color=INK)
+
+
+def _crane_reach(ax, crane):
+    """A slewing crane's slew axis and its radius limits (circles about the slew centre), kept to the view."""
+    from matplotlib.patches import Circle
+
+    if not crane.slewing:
+        return
+    cx, cy = crane.slew_center_m
+    ax.plot([cx], [cy], "+", color=GREY, ms=12, mew=1.5, label="slew axis")
+    ax.autoscale_view()
+    view = ax.get_xlim(), ax.get_ylim()
+    for radius, name in ((crane.min_radius_m, "min"), (crane.max_radius_m, "max")):
+        if radius:
+            ax.add_patch(Circle((cx, cy), radius, fill=False, edgecolor=GREY, ls=":", lw=1.0,
+                                label=f"{name} radius {radius:g} m"))
+    ax.set_xlim(*view[0])
+    ax.set_ylim(*view[1])
 
 
 #: File name -> figure function ``fn(traj, summary, cols=None)``: given the run

@@ -12,17 +12,44 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import NamedTuple
 
+from swingsim.motion.limits import RAIL_KINDS, SLEWING_KINDS
+
 __all__ = ["Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
            "MoveTable", "Move", "Zone", "Site", "Scene", "models_rigid_load"]
 
 
 @dataclass(frozen=True)
 class Crane:
-    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit."""
+    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit, its geometry."""
 
     suspension_m: tuple
     kind: str
     wind_limit_m_s: float
+    # -- crane geometry per kind (slew axis, radius limits, boom, rails) --
+    slew_center_m: tuple = (0.0, 0.0)
+    min_radius_m: float | None = None
+    max_radius_m: float | None = None
+    boom_length_m: float | None = None
+    boom_foot_m: tuple | None = None
+    level_luffing: bool = False
+    rail_span_m: float | None = None
+    travel_limits_m: tuple | None = None
+    cross_limits_m: tuple | None = None
+
+    @property
+    def slewing(self) -> bool:
+        """Whether the crane slews about a slew axis (tower, luffing or mobile)."""
+        return self.kind in SLEWING_KINDS
+
+    @property
+    def on_rails(self) -> bool:
+        """Whether the crane travels on rails (gantry or bridge)."""
+        return self.kind in RAIL_KINDS
+
+    @property
+    def has_boom(self) -> bool:
+        """Whether a radius move luffs a boom (``boom_length_m`` is given)."""
+        return self.boom_length_m is not None
 
 
 @dataclass(frozen=True)

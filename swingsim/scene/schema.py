@@ -106,13 +106,49 @@ TABLES: dict[str, dict[str, Key]] = {
     "crane": {
         "suspension_m": Key("vec3", "Suspension point (trolley sheave or boom tip) at t = 0, [x, y, z], z up [m].",
                             required=True),
-        "kind": Key("str", "Crane type, for drawing and wording: tower (mast, jib, counter-jib), "
-                    "gantry or bridge (beam on rails), mobile (boom).", default="tower",
-                    choices=("tower", "gantry", "bridge", "mobile")),
+        "kind": Key("str", "Crane type, for drawing, wording and geometry: tower (mast, jib with a "
+                    "trolley, counter-jib), luffing (tower crane with a luffing jib: boom_length_m "
+                    "and boom_foot_m needed), gantry or bridge (beam on rails), mobile (boom).",
+                    default="tower", choices=("tower", "gantry", "bridge", "mobile", "luffing")),
         "wind_limit_m_s": Key("float", "In-service wind speed limit of this crane [m/s]; "
                               f"default {constants.IN_SERVICE_WIND_LIMIT_M_S:g} m/s is a rule of thumb only: "
                               "take the real value from the crane manufacturer.",
                               default=constants.IN_SERVICE_WIND_LIMIT_M_S, gt=0.0),
+        # -- crane geometry per kind (slew axis, radius limits, boom, rails) --
+        "slew_center_m": Key("vec2", "Slewing cranes (tower, luffing, mobile): where the slew axis "
+                             "(the mast or the slewing ring's centre) stands at t = 0, [x, y] [m]; "
+                             "slewing turns the jib or boom about it and radius moves are measured "
+                             "from it. Default the origin (common practice for a site grid set out "
+                             "from the crane).", default=(0.0, 0.0)),
+        "min_radius_m": Key("float", "Slewing cranes: smallest working radius, slew axis to hook [m] "
+                            "(the crane's chart or data sheet); a move that would go inside it is "
+                            "refused. Without it only a move through the slew axis is refused.",
+                            ge=0.0),
+        "max_radius_m": Key("float", "Slewing cranes: largest working radius, slew axis to hook [m] "
+                            "(the crane's chart or data sheet for this configuration); a move that "
+                            "would go beyond it is refused.", gt=0.0),
+        "boom_length_m": Key("float", "Boom (luffing) cranes, kind mobile or luffing: boom or luffing "
+                             "jib length, foot pin to tip sheave [m]. With it a radius move luffs: "
+                             "the tip moves on the arc about the foot pin. A mobile crane without "
+                             "it keeps the suspension height on radius moves (a schematic boom).",
+                             gt=0.0),
+        "boom_foot_m": Key("vec2", "Boom cranes: the boom foot pin's horizontal offset from the slew "
+                           "axis (toward the boom) and its height above the ground datum z = 0, "
+                           "[offset, height] [m]; needed with boom_length_m."),
+        "level_luffing": Key("bool", "Boom cranes: the crane keeps the hook's height while luffing "
+                             "(the rope is paid out or taken in as the tip rises or falls), as "
+                             "level-luffing cranes do; false: the load rises and falls with the tip.",
+                             default=False),
+        "rail_span_m": Key("float", "Gantry and bridge cranes: distance between the two rails, "
+                           "centre to centre [m]. The rails run along x; the span is across them, "
+                           "centred on cross_limits_m (or on the suspension point without them).",
+                           gt=0.0),
+        "travel_limits_m": Key("vec2", "Gantry and bridge cranes: the suspension point's range along "
+                               "the rails (x), [min, max] [m] (end stops less the buffer); a move "
+                               "beyond it is refused."),
+        "cross_limits_m": Key("vec2", "Gantry and bridge cranes: the trolley's range across the span "
+                              "(y), [min, max] [m] (the hook's approach to each rail); a move beyond "
+                              "it is refused."),
     },
     "rope": {
         "length_m": Key("float", "Hoist rope length from the suspension point to the hook, "

@@ -22,6 +22,7 @@ from swingsim.dynamics.rope import elastic_rope
 from swingsim.errors import SceneError
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
+from swingsim.scene.geometry import check_crane
 from swingsim.scene.model import (Crane, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start, View,
                                   Wind, Zone, models_rigid_load)
 from swingsim.scene.read import KeyReader, line_of_key, read_document, read_table, suggest
@@ -112,6 +113,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         if name in data and not isinstance(data[name], dict):
             raise r.err(name, f"expected a table [{name}]", data[name])
     crane = r.table(data, "crane", schema.TABLES["crane"], required=True)
+    check_crane(r, data["crane"], crane)
     rope = r.table(data, "rope", schema.TABLES["rope"], required=True)
     load = r.table(data, "load", schema.TABLES["load"], required=True)
     start = r.table(data, "start", schema.TABLES["start"])
