@@ -34,8 +34,8 @@ settle time
     ends less than one swing period (at the final rope length) after it last
     exceeded the threshold (it cannot be confirmed).
 measured period
-    Mean interval between successive upward zero crossings of the swing
-    component along its principal axis (after the last move), measured when the
+    Mean interval between successive upward crossings of the rest position by
+    the swing component along its principal axis (after the last move), measured when the
     run goes on for more than 1.5 natural periods after the move, with more than
     10 samples there and a swing above 0.02 deg.  Compared with the small-angle
     period :math:`2\\pi\\sqrt{L/g}` and with the exact plane-pendulum period
@@ -66,7 +66,7 @@ AFTER_MOVE_TOLERANCE_S = 1e-12
 PERIOD_MIN_SAMPLES = 10
 #: ... and a run that goes on for more than this many natural periods after the move.
 PERIOD_MIN_RUN_PERIODS = 1.5
-#: ... and a swing (about its mean) larger than this [rad].
+#: ... and a swing (about the rest position) larger than this [rad].
 PERIOD_MIN_AMPLITUDE_RAD = math.radians(0.02)
 
 
@@ -309,13 +309,6 @@ def dynamic_factor(peak_tension_N, static_tension_N):
     return peak_tension_N / static_tension_N
 
 
-def _centred(off: np.ndarray, mask: np.ndarray) -> np.ndarray:
-    """``off`` less its mean over ``mask`` (sequential row sums), 0 outside the mask."""
-    o = np.where(mask, off, 0.0)
-    mean = row_sum(o) / np.maximum(mask.sum(axis=1), 1)
-    return np.where(mask, o - mean[:, None], 0.0)
-
-
 def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: np.ndarray,
                     run_after_move_s: np.ndarray, natural_period_s: np.ndarray) -> MeasuredPeriod:
     """Swing period measured from upward zero crossings after the move.
@@ -337,8 +330,8 @@ def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: n
     Returns
     -------
     MeasuredPeriod
-        The swing about its mean over the mask is projected on its axis of largest
-        variance, :math:`\\theta = \\tfrac12 \\operatorname{atan2}(2 s_{xy}, s_{xx} - s_{yy})`;
+        The swing about the rest direction is projected on its axis of largest
+        second moment, :math:`\\theta = \\tfrac12 \\operatorname{atan2}(2 s_{xy}, s_{xx} - s_{yy})`;
         the mean interval between its upward crossings (linear interpolation of each
         crossing) [s], the number of crossings and whether the run was measurable.
     """
@@ -347,7 +340,9 @@ def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: n
     if M < 2:  # a run stopped at its first sample: nothing to measure
         return MeasuredPeriod(np.full(B, np.nan), np.zeros(B, dtype=int), np.zeros(B, dtype=bool))
     count = mask.sum(axis=1)
-    ox, oy = _centred(off_x, mask), _centred(off_y, mask)
+    # about the rest position, not the record's mean: a damped record's mean lies off the
+    # rest and would shift every crossing (the period came out long)
+    ox, oy = np.where(mask, off_x, 0.0), np.where(mask, off_y, 0.0)
     # the principal axis of the swing (largest variance), with a definite sign
     theta = 0.5 * np.arctan2(2.0 * row_sum(ox * oy), row_sum(ox * ox) - row_sum(oy * oy))
     x = ox * np.cos(theta)[:, None] + oy * np.sin(theta)[:, None]
