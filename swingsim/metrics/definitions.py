@@ -26,6 +26,14 @@ swing at move end
     around it; the move's end is itself a sample on both sides).
 excursion
     Horizontal distance of the load from the plumb line through the suspension point.
+hook load
+    The pull of the hoist rope on the hook block (or on the load without one): the
+    sum over its falls, so everything below the sheaves, the block included
+    (``peak_rope_tension_kN`` is its older synonym).
+line pull
+    The pull in one part of line: hook load / (falls * reeving efficiency) (common
+    practice; the efficiency is the reeving's, from the sheave friction,
+    :func:`swingsim.dynamics.rope.reeving_efficiency`).
 dynamic factor
     Peak rope tension over the static rope load.
 settle time
@@ -307,6 +315,26 @@ def dynamic_factor(peak_tension_N, static_tension_N):
         The dynamic factor [-] (1 for a load that never swings or bounces).
     """
     return peak_tension_N / static_tension_N
+
+
+def line_pull(hook_load, falls, reeving_efficiency=1.0):
+    """The pull in one part of line of a reeving (module Definitions).
+
+    Parameters
+    ----------
+    hook_load : float or ndarray
+        Load on the hook block from the rope, all falls together [any force unit].
+    falls : int or ndarray
+        Number of falls (parts of line) carrying the hook block [-].
+    reeving_efficiency : float or ndarray
+        Overall efficiency of the reeving, 1 without sheave friction [-].
+
+    Returns
+    -------
+    float or ndarray
+        :math:`F_\\text{hook} / (n \\eta)` [the unit of ``hook_load``].
+    """
+    return hook_load / (falls * reeving_efficiency)
 
 
 def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: np.ndarray,
