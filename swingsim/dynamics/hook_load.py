@@ -992,12 +992,33 @@ class HookLoadModel(ModelDefaults, SwingModel):
             K[:, j] = -(Qp - Qm) / (2 * h)
         return M, 0.5 * (K + K.T)
 
-    def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
+    def swing_modes(self, rope_length_m: float | None = None):
+        """Normal modes of the swing about hanging rest (support fixed, small amplitude).
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Rope length [m]; the scene's initial length by default.
+
+        Returns
+        -------
+        tuple
+            ``(omega_sq, shapes, mass)``: squared circular frequencies (k,) [1/s^2],
+            ascending; mode shapes (n, k) over the swing coordinates
+            (:meth:`swing_coordinate_indices`), mass-normalised
+            (``shapes.T @ mass @ shapes = I``); the mass matrix (n, n) of those
+            coordinates [chart units].  From scipy's generalised symmetric eigensolver.
+        """
         from scipy.linalg import eigh
 
         M, K = self._linear_MK(rope_length_m)
         keep = self.swing_coordinate_indices()
-        w2 = eigh(K[np.ix_(keep, keep)], M[np.ix_(keep, keep)], eigvals_only=True)
+        mass = M[np.ix_(keep, keep)]
+        omega_sq, shapes = eigh(K[np.ix_(keep, keep)], mass)
+        return omega_sq, shapes, mass
+
+    def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
+        w2 = self.swing_modes(rope_length_m)[0]
         w2 = np.sort(w2[w2 > 0])
         out = []
         for x in w2:  # a degenerate pair (both swing planes alike) counts once
