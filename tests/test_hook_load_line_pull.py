@@ -105,3 +105,20 @@ def test_summary_text_says_how_the_wind_starts():
         text = summary_text(summarize(simulate(scene)), scene)
         assert words in text
         assert "rope tension" not in text.lower().replace("rope_tension", "")
+
+
+def test_lift_off_summary_uses_the_hanging_length():
+    # Hooke's law on the lifted load: the given stiffness holds at the scene's (loaded) rope
+    # length, static stretch W / k, bounce period 2 pi sqrt(m / k) (textbook mass on a spring);
+    # not the slack starting length of the lift-off
+    m, k = 2000.0, 400.0e3
+    scene = make_scene({"rope": {"stiffness_kN_per_m": k / 1e3}, "load": {"mass_kg": m},
+                        "start": {"rope_preload": "lift-off", "rope_slack_m": 0.05},
+                        "moves": [{"axis": "hoist", "profile": "trapezoid", "distance_m": 0.5,
+                                   "speed_m_s": 0.05, "accel_m_s2": 0.2}]}, duration_s=12.0)
+    s = summarize(simulate(scene))
+    assert s["rope_stiffness_kN_per_m"] == pytest.approx(k / 1e3, rel=1e-12)
+    assert s["static_rope_stretch_m"] == pytest.approx(m * G / k, rel=1e-12)
+    assert s["bounce_period_s"] == pytest.approx(2 * math.pi * math.sqrt(m / k), rel=1e-12)
+    # the swing period at the hanging length: 2 pi sqrt(L / g) of the 10 m rope (textbook)
+    assert s["natural_period_s"] == pytest.approx(2 * math.pi * math.sqrt(10.0 / G), rel=1e-9)

@@ -177,6 +177,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
         Declared working load limit of each leg [N].
     elastic_rope : ElasticRope or None
         The elastic reeving (:mod:`swingsim.dynamics.rope`); None when inextensible.
+    hanging_rope : ElasticRope or None
+        The reeving with the system hanging, lifted: ``elastic_rope`` itself, except for a
+        lift-off, whose ``elastic_rope`` starts unstretched and slack.
     rope_is_elastic : bool
         Whether the rope's stretched length is a state.
     starts_resting : bool
@@ -265,6 +268,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
         self.lift_off_time_s = None
         #: instants where the solver must restart (read by swingsim.simulation.simulate)
         self.extra_breakpoints = ()
+        #: the reeving as it hangs with the load lifted (its unstretched length at the scene's
+        #: rope length is the loaded one's); the same as elastic_rope unless resting for lift-off
+        self.hanging_rope = self.elastic_rope
         if self.starts_resting:
             # at t = 0 the rope is unstretched and slack by rope_slack_m
             self.elastic_rope = replace(self.elastic_rope,
@@ -489,9 +495,28 @@ class HookLoadModel(ModelDefaults, SwingModel):
             q += list(self.geometry.rest_tilt_rad)
         if self.rope_is_elastic:
             L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
-            lam = self.elastic_rope.unstretched(L)
-            q.append(lam + self.hanging_mass_kg * self.gravity_m_s2 / self.elastic_rope.stiffness(lam))
+            lam = self.hanging_rope.unstretched(L)
+            q.append(lam + self.hanging_mass_kg * self.gravity_m_s2 / self.hanging_rope.stiffness(lam))
         return np.array(q + [0.0] * self.n_coordinates)
+
+    def hanging_stiffness_N_per_m(self, rope_length_m: float | None = None) -> float | None:
+        """Stiffness of the elastic reeving with the system hanging (lifted) at a rope length.
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Loaded rope length [m]; the scene's by default.
+
+        Returns
+        -------
+        float or None
+            :math:`k` at the hanging unstretched length [N/m] (for a lift-off, the length
+            at lift-off, not the slack starting one); None for an inextensible rope.
+        """
+        if not self.rope_is_elastic:
+            return None
+        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
+        return self.hanging_rope.stiffness(self.hanging_rope.unstretched(L))
 
     # -- the equations -------------------------------------------------------------
     def _qdd(self, y, kin_state):
@@ -1030,9 +1055,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
     def bounce_period_s(self, rope_length_m: float | None = None) -> float | None:
         if not self.rope_is_elastic:
             return None
-        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
-        k = self.elastic_rope.stiffness(self.elastic_rope.unstretched(L))
-        return 2 * math.pi * math.sqrt(self.hanging_mass_kg / k)
+        return 2 * math.pi * math.sqrt(self.hanging_mass_kg / self.hanging_stiffness_N_per_m(rope_length_m))
 
     # -- outputs -----------------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:

@@ -230,11 +230,13 @@ def model_metrics(traj, t, s) -> dict:
     if model.rope_is_elastic:
         rp = model.elastic_rope
         d["rope_elastic"] = True
-        d["rope_stiffness_kN_per_m"] = rp.stiffness(rp.lambda0_m) / 1e3
+        # at the hanging length (for a lift-off, as it hangs once lifted, not slack at t = 0)
+        k_hanging = model.hanging_stiffness_N_per_m()
+        d["rope_stiffness_kN_per_m"] = k_hanging / 1e3
         d["rope_stiffness_from"] = rp.source
         d["bounce_period_s"] = model.bounce_period_s()
         d["peak_rope_stretch_m"] = float(np.max(s["rope_stretch_m"]))
-        d["static_rope_stretch_m"] = model.hanging_mass_kg * model.gravity_m_s2 / rp.stiffness(rp.lambda0_m)
+        d["static_rope_stretch_m"] = model.hanging_mass_kg * model.gravity_m_s2 / k_hanging
         if model.starts_resting:
             d["lift_off_s"] = model.lift_off_time_s if math.isfinite(model.lift_off_time_s) else None
     else:
