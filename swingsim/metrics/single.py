@@ -215,6 +215,8 @@ def summarize(traj) -> Summary:
         "residual_swing_deg": None if rsw is None else math.degrees(rsw),
         "swing_at_move_end_deg": None if swing_end is None else math.degrees(swing_end),
         "rest_rope_angle_deg": float(np.degrees(rope_angle_rad(rest))),
+        "wind_onset": scene.wind.onset if scene.wind.speed_m_s > 0.0 else None,
+        "start_rope_angle_deg": float(np.degrees(ang[0])),
         "peak_excursion_m": float(np.sqrt(exc.value[0])),
         "peak_excursion_time_s": float(exc.time_s[0]),
         "peak_hook_load_kN": pkT / 1e3,
