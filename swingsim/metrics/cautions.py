@@ -68,8 +68,8 @@ def model_limits(scene) -> list[str]:
     if scene.rigging is not None:
         out.append("Slings do not stretch (rigid rigging); a leg going slack is reported, and the "
                    "results do not hold beyond it.")
-    out.append("Wind is steady" + (" (its onset as the scene sets it)" if scene.wind.speed_m_s else "")
-               + ": no gusts or turbulence; wind speed varies with height and time on a real site.")
+    out.append("The wind is steady: no gusts or turbulence, and one speed at every height; on a "
+               "real site it varies with height and time.")
     out.append("The crane structure is rigid: no boom, jib or mast deflection, no slew or travel "
                "drive flexibility; the crane moves exactly as the moves prescribe.")
     if scene.start.rope_preload == "lift-off":

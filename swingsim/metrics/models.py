@@ -374,4 +374,7 @@ def model_summary_lines(d: dict) -> list[str]:
         for period, x, why in zip(d["mode_periods_s"], mm, d.get("mode_measurement_notes") or []):
             if x is None and why:
                 w.append(f"    mode {period:.3f} s not measured: {why}")
+    elif mm:
+        why = next((x for x in d.get("mode_measurement_notes") or [] if x), None)
+        w.append("  Measured mode periods after the moves: n/a" + (f" ({why})" if why else ""))
     return w
