@@ -462,7 +462,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             guess += list(tilt_to_align(self.cg_from_pivot_b, n_load, guess=self.geometry.rest_tilt_rad))
         if self.rope_is_elastic:
             guess.append(float(y_still[self.rope_length_index]))
-        kin_state = (0.0,) * 9 + (rope_length_m, 0.0, 0.0)
+        kin_state = self._hanging_support(rope_length_m)
         zeros = np.zeros(nq)
 
         def residual(q):
@@ -498,6 +498,17 @@ class HookLoadModel(ModelDefaults, SwingModel):
             lam = self.hanging_rope.unstretched(L)
             q.append(lam + self.hanging_mass_kg * self.gravity_m_s2 / self.hanging_rope.stiffness(lam))
         return np.array(q + [0.0] * self.n_coordinates)
+
+    def _hanging_support(self, rope_length_m: float) -> tuple:
+        """A still support holding the system hanging, lifted, at a (loaded) rope length.
+
+        The rope length the equations read sets the elastic rope's unstretched length; for a
+        lift-off it is shifted so that this is the hanging rope's, not the slack start's.
+        """
+        L = rope_length_m
+        if self.rope_is_elastic:
+            L += self.hanging_rope.lambda0_m - self.elastic_rope.lambda0_m
+        return (0.0,) * 9 + (L, 0.0, 0.0)
 
     def hanging_stiffness_N_per_m(self, rope_length_m: float | None = None) -> float | None:
         """Stiffness of the elastic reeving with the system hanging (lifted) at a rope length.
@@ -1003,7 +1014,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         """Mass and stiffness matrices of the swing about hanging rest (fixed support)."""
         L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
         y0 = self.rest_state(L)
-        kin_state = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, L, 0.0, 0.0)
+        kin_state = self._hanging_support(L)
         nq = self.n_coordinates
         M = self._eval(y0, kin_state, full=True, applied=False)["M"]
         K = np.zeros((nq, nq))
@@ -1139,7 +1150,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
     def _hanging(self) -> dict:
         if self._hanging_cache is None:
             y0 = self.rest_state()
-            kin_state = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.initial_rope_length_m, 0.0, 0.0)
+            kin_state = self._hanging_support(self.initial_rope_length_m)
             self._hanging_cache = self._eval(y0, kin_state, full=True, applied=False)
         return self._hanging_cache
 
