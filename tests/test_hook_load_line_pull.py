@@ -19,17 +19,14 @@ HOOK = {"hook": {"mass_kg": 200.0}, "rigging": {"kind": "single", "leg_length_m"
 HOIST = {"axis": "hoist", "profile": "trapezoid", "distance_m": 3.0, "speed_m_s": 0.5, "accel_m_s2": 0.3}
 
 
-def _merge(*parts):
-    out = {}
-    for p in parts:
-        for k, v in p.items():
-            out.setdefault(k, {}).update(v)
-    return out
+def _hook_with(rope, hook=None):
+    """The hook block scene's update with these rope keys (and hook keys)."""
+    return {"hook": {**HOOK["hook"], **(hook or {})}, "rigging": HOOK["rigging"], "rope": rope}
 
 
 def test_line_pull_is_hook_load_over_falls():
     # common practice: n parts of line share the hook load, line pull = hook load / n
-    scene = make_scene(_merge(HOOK, {"rope": {"falls": 4}}), duration_s=4.0)
+    scene = make_scene(_hook_with({"falls": 4}), duration_s=4.0)
     s = summarize(simulate(scene))
     assert s["peak_hook_load_kN"] == s["peak_rope_tension_kN"]
     # hanging at rest: the hook load is the weight of hook block and load (statics)
@@ -48,7 +45,7 @@ def test_reeving_efficiency_formula():
 
 
 def test_sheave_efficiency_gives_the_line_pull():
-    scene = make_scene(_merge(HOOK, {"rope": {"falls": 4, "sheave_efficiency": 0.98}}), duration_s=2.0)
+    scene = make_scene(_hook_with({"falls": 4, "sheave_efficiency": 0.98}), duration_s=2.0)
     assert scene.rope.reeving_efficiency == pytest.approx(0.970398, abs=1e-6)
     s = summarize(simulate(scene))
     # line pull = hook load / (n eta) (common practice, eta from memory as above)
@@ -57,13 +54,13 @@ def test_sheave_efficiency_gives_the_line_pull():
 
 def test_line_wll_is_compared_with_line_pull_and_hook_rating_with_hook_load():
     # 1200 kg on 4 falls: hook load 11.77 kN, line pull 2.94 kN
-    scene = make_scene(_merge(HOOK, {"rope": {"falls": 4, "wll_kN": 3.5}, "hook": {"wll_kN": 10.0}}),
+    scene = make_scene(_hook_with({"falls": 4, "wll_kN": 3.5}, {"wll_kN": 10.0}),
                        duration_s=2.0)
     s = summarize(simulate(scene))
     text = " ".join(s.cautions)
     assert "exceeds the line's declared" not in text  # 2.94 kN line pull < 3.5 kN
     assert "Peak hook load 11.77 kN exceeds the hook block's declared rating of 10 kN" in text
-    scene = make_scene(_merge(HOOK, {"rope": {"falls": 4, "wll_kN": 2.5}}), duration_s=2.0)
+    scene = make_scene(_hook_with({"falls": 4, "wll_kN": 2.5}), duration_s=2.0)
     text = " ".join(summarize(simulate(scene)).cautions)
     assert "Peak line pull 2.94 kN" in text and "exceeds the line's declared working load limit" in text
     assert "competent person" in text
@@ -71,7 +68,7 @@ def test_line_wll_is_compared_with_line_pull_and_hook_rating_with_hook_load():
 
 def test_csv_columns_and_hoist_speed():
     # the hoist's own speed on an elastic rope: the prescribed length's rate, not the stretch
-    scene = make_scene(_merge(HOOK, {"rope": {"falls": 2, "stiffness_kN_per_m": 300.0}}),
+    scene = make_scene(_hook_with({"falls": 2, "stiffness_kN_per_m": 300.0}),
                        moves=[HOIST], duration_s=12.0)
     traj = simulate(scene)
     t = traj.sample_times()
@@ -101,7 +98,7 @@ def test_rigid_rope_hoisting_says_snatch_is_not_modelled():
 def test_summary_text_says_how_the_wind_starts():
     wind = {"wind": {"speed_m_s": 10.0}, "load": {"wind_area_m2": 4.0}}
     for onset, words in (("steady", "starts hanging at that lean"), ("step", "sudden step")):
-        scene = make_scene(_merge(wind, {"wind": {"onset": onset}}), duration_s=2.0)
+        scene = make_scene({**wind, "wind": {**wind["wind"], "onset": onset}}, duration_s=2.0)
         text = summary_text(summarize(simulate(scene)), scene)
         assert words in text
         assert "rope tension" not in text.lower().replace("rope_tension", "")

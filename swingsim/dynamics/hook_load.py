@@ -1034,7 +1034,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            Loaded rope length [m] the system hangs on; when omitted, the
+            scene's initial length (the length :meth:`mode_periods_s` takes).
 
         Returns
         -------
