@@ -201,3 +201,34 @@ def test_spreader_geometry_outputs_hang_from_the_hook():
     assert np.allclose(d_top, sc.rigging.top_leg_length_m, atol=1e-9)
     d_drop = np.linalg.norm(s["spreader_lugs"] - s["attach_points"], axis=2)
     assert np.allclose(d_drop, sc.rigging.leg_length_m[0], atol=1e-9)
+
+
+def test_planar_bridle_swing_measures_exactly_the_in_plane_modes():
+    # A bridle along x swung in the x-z plane moves only the two x-z modes: the hook on the
+    # rope and the load turning about y. Their periods from the textbook two-body pendulum
+    # (rope L1 + hook m1 + rigid body of radius of gyration k_G, CG d below the hook):
+    # M = [[(m1+m) L1^2, m L1 d], [m L1 d, m (d^2 + k_G^2)]], K = g diag((m1+m) L1, m d);
+    # the y-z modes hold no energy and are not reported (modal analysis, Meirovitch).
+    from scipy.linalg import eigh
+
+    m1, m, L1, size, half, leg = 600.0, 8000.0, 12.0, (6.0, 0.3, 2.0), 2.5, 4.0
+    sc = make_scene({"hook": {"mass_kg": m1}, "rope": {"length_m": L1},
+                     "load": {"mass_kg": m, "size_m": list(size)},
+                     "start": {"swing_deg": [2.0, 0.0]},
+                     "rigging": {"kind": "bridle", "leg_length_m": leg,
+                                 "attach_m": [[-half, 0.0, 1.0], [half, 0.0, 1.0]]}}, duration_s=150.0)
+    d = 1.0 + math.sqrt(leg**2 - half**2)
+    kG2 = (size[0] ** 2 + size[2] ** 2) / 12.0  # uniform box about y (textbook)
+    M = np.array([[(m1 + m) * L1**2, m * L1 * d], [m * L1 * d, m * (d**2 + kG2)]])
+    K = G * np.diag([(m1 + m) * L1, m * d])
+    in_plane = sorted(2 * math.pi / np.sqrt(eigh(K, M, eigvals_only=True)), reverse=True)
+    s = summarize(simulate(sc))
+    mp, mm, why = s["mode_periods_s"], s["measured_mode_periods_s"], s["mode_measurement_notes"]
+    assert len(mp) == 4
+    measured = [(p, x) for p, x in zip(mp, mm) if x is not None]
+    assert [p for p, _ in measured] == pytest.approx(in_plane, rel=1e-7)
+    for p, x in measured:
+        assert x == pytest.approx(p, rel=5e-3)
+    for p, x, reason in zip(mp, mm, why):
+        if x is None:
+            assert "no real energy" in reason

@@ -285,3 +285,17 @@ def test_summary_measured_period_at_large_amplitude():
     assert s["period_difference_pct"] == pytest.approx(100 * (exact / T0 - 1), abs=1e-3)
     assert exact / T0 == pytest.approx(1.017409, abs=1e-6)
     assert s["period_exact_at_amplitude_s"] == pytest.approx(exact, rel=1e-5)
+
+
+@pytest.mark.parametrize("zeta", [0.02, 0.05, 0.1])
+def test_measured_period_of_a_damped_swing(zeta):
+    # Damped free vibration: zero crossings of the rest position follow each other at the
+    # damped period 2 pi / (omega_n sqrt(1 - zeta^2)) (Thomson & Dahleh, Theory of Vibration
+    # with Applications, 5th ed., sec. 2.6); small amplitude, so the pendulum is linear.
+    L = 10.0
+    sc = make_scene({"rope": {"length_m": L}, "start": {"swing_deg": [0.5, 0.0]},
+                     "damping": {"ratio": zeta}}, duration_s=40.0)
+    s = summarize(simulate(sc))
+    omega_n = math.sqrt(sc.gravity_m_s2 / L)
+    damped = 2.0 * math.pi / (omega_n * math.sqrt(1.0 - zeta**2))
+    assert s["measured_period_s"] == pytest.approx(damped, rel=2e-5)

@@ -134,7 +134,8 @@ def test_every_key_documented():
         for name, key in t.items():
             assert len(key.doc) > 10, name
             # dimensionless quantities say so in their name (ratio, coefficient, factor) and [-] in the doc
-            dimensionless = name.endswith(("ratio", "coefficient", "factor", "tolerance"))  # tolerance: EI shaper
+            # tolerance: EI shaper; efficiency: the reeving's and a sheave's
+            dimensionless = name.endswith(("ratio", "coefficient", "factor", "tolerance", "efficiency"))
             if dimensionless and key.kind == "float":
                 assert "[-]" in key.doc, name
             if key.kind in ("float", "vec2", "vec3", "floats", "floats_or_float") and not dimensionless \

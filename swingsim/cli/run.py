@@ -76,7 +76,7 @@ def _headline(summary) -> str:
         f"peak excursion {d['peak_excursion_m']:.2f} m",
         f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.2f} deg; "
         + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
-        f"  peak rope tension {d['peak_rope_tension_kN']:.1f} kN (dynamic factor {d['dynamic_factor']:.3f})",
+        f"  peak hook load {d['peak_hook_load_kN']:.1f} kN, line pull {d['peak_line_pull_kN']:.1f} kN (dynamic factor {d['dynamic_factor']:.3f})",
     ]
     for c in d["cautions"]:
         lines.append("  ! " + c)

@@ -79,7 +79,7 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.dynamics.base import ModelDefaults, SwingModel
-from swingsim.dynamics.pendulum import direction_from_projected
+from swingsim.dynamics.pendulum import direction_from_projected, projected_angles, starts_in_steady_wind
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from swingsim.dynamics.rope import elastic_rope
 
@@ -177,6 +177,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
         Declared working load limit of each leg [N].
     elastic_rope : ElasticRope or None
         The elastic reeving (:mod:`swingsim.dynamics.rope`); None when inextensible.
+    hanging_rope : ElasticRope or None
+        The reeving with the system hanging, lifted: ``elastic_rope`` itself, except for a
+        lift-off, whose ``elastic_rope`` starts unstretched and slack.
     rope_is_elastic : bool
         Whether the rope's stretched length is a state.
     starts_resting : bool
@@ -197,6 +200,11 @@ class HookLoadModel(ModelDefaults, SwingModel):
       ``start.swing_deg``, at rest relative to the support (suspension point, hook
       and load CG on one straight line); ``start.swing_rate_deg_s`` turns it
       rigidly about the suspension point (yaw part dropped for a rigid load).
+      With ``wind.onset = "steady"`` (the default) the system starts from its rest in
+      the steady wind instead (:meth:`wind_rest_state`), ``start.swing_deg`` added to
+      the projected angles of the rope, the leg and the CG's direction from its pivot;
+      a load resting for lift-off starts plumb (it rests on its support; the wind
+      takes it as it lifts off).
       With ``rope_preload = "lift-off"`` it also finds :attr:`lift_off_time_s`,
       and nothing moves before that instant;
     - events ``slack`` (hoist rope), ``leg_slack`` (a leg below a hook block only)
@@ -260,6 +268,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
         self.lift_off_time_s = None
         #: instants where the solver must restart (read by swingsim.simulation.simulate)
         self.extra_breakpoints = ()
+        #: the reeving as it hangs with the load lifted (its unstretched length at the scene's
+        #: rope length is the loaded one's); the same as elastic_rope unless resting for lift-off
+        self.hanging_rope = self.elastic_rope
         if self.starts_resting:
             # at t = 0 the rope is unstretched and slack by rope_slack_m
             self.elastic_rope = replace(self.elastic_rope,
@@ -294,28 +305,63 @@ class HookLoadModel(ModelDefaults, SwingModel):
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
         sw = self.scene.start
+        L0 = float(motion.evaluate(np.array([0.0]))["L"][0])
+        # lift-off: the load rests on its support, plumb below the suspension point, until the
+        # rope lifts it; the wind then takes it as it leaves the ground
+        in_wind = starts_in_steady_wind(self.scene) and not self.starts_resting
+        rest = self.wind_rest_state(L0)[:self.n_coordinates] if in_wind else None
+        # the swing of [start] is added to the projected angles of the rest (plumb in still air)
+        lean1 = projected_angles(self._direction(rest, 0)) if in_wind else (0.0, 0.0)
         u, v, du, dv = direction_from_projected(
-            math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
+            lean1[0] + math.radians(sw.swing_deg[0]), lean1[1] + math.radians(sw.swing_deg[1]),
             math.radians(sw.swing_rate_deg_s[0]), math.radians(sw.swing_rate_deg_s[1]))
         w = math.sqrt(1.0 - u * u - v * v)
         n1 = np.array([u, v, -w])
         n1d = np.array([du, dv, (u * du + v * dv) / w])
         Om = np.cross(n1, n1d)
+
+        def turned(direction):  # a rest direction with the start's swing added
+            if not in_wind:
+                return n1
+            lean = projected_angles(direction)
+            return np.array(direction_from_projected(lean[0] - lean1[0] + math.atan2(u, w),
+                                                     lean[1] - lean1[1] + math.atan2(v, w))[:2])
+
         q = [u, v]
         qd = [du, dv]
         if self.leg_below_hook:
-            q += [u, v]
-            qd += [du, dv]
+            n2 = turned(self._direction(rest, 2)) if in_wind else n1
+            n2 = np.array([n2[0], n2[1], -math.sqrt(max(1.0 - n2[0] ** 2 - n2[1] ** 2, 0.0))])
+            n2d = np.cross(Om, n2)
+            q += [float(n2[0]), float(n2[1])]
+            qd += [float(n2d[0]), float(n2d[1])]
         if self.rigid_load:
             a0, b0 = self.geometry.rest_tilt_rad
-            a, b = tilt_to_align(self.cg_from_pivot_b, n1, guess=(a0, b0))
+            target = n1
+            if in_wind:  # the CG's direction from its pivot at rest, turned by the start's swing
+                ia = self.tilt_index
+                a0, b0 = rest[ia], rest[ia + 1]
+                cg = rotation(a0, b0) @ self.cg_from_pivot_b
+                norm = float(np.linalg.norm(cg))
+                if norm > 0.0:
+                    t2 = turned(cg / norm)
+                    target = np.array([t2[0], t2[1], -math.sqrt(max(1.0 - t2[0] ** 2 - t2[1] ** 2, 0.0))])
+            a, b = tilt_to_align(self.cg_from_pivot_b, target, guess=(a0, b0))
+            if in_wind and not any(sw.swing_deg):
+                a, b = rest[self.tilt_index], rest[self.tilt_index + 1]  # exactly the rest
             q += [a, b]
             Jw = np.array([[1.0, 0.0], [0.0, math.cos(a)], [0.0, math.sin(a)]])
             rates = np.linalg.lstsq(Jw, Om, rcond=None)[0]
             qd += [float(rates[0]), float(rates[1])]
+        if in_wind and not any(sw.swing_deg):  # exactly the rest (no round trip through angles)
+            q[:2] = [float(rest[0]), float(rest[1])]
+            if self.leg_below_hook:
+                q[2:4] = [float(rest[2]), float(rest[3])]
         if self.rope_is_elastic:
             if sw.rope_preload == "none":
                 q.append(self.elastic_rope.lambda0_m)
+            elif in_wind:  # statically stretched by the pull at rest in the wind
+                q.append(float(rest[self.rope_length_index]))
             else:  # static stretch, or resting at the hanging position (lift-off)
                 q.append(self.initial_rope_length_m)
             qd.append(0.0)
@@ -370,6 +416,63 @@ class HookLoadModel(ModelDefaults, SwingModel):
             n = n_new
         return n
 
+    @staticmethod
+    def _direction(coordinates, index) -> np.ndarray:
+        """The unit direction whose chart ``(u, v)`` starts at ``coordinates[index]``."""
+        u, v = float(coordinates[index]), float(coordinates[index + 1])
+        return np.array([u, v, -math.sqrt(max(1.0 - u * u - v * v, 0.0))])
+
+    def wind_rest_state(self, rope_length_m: float) -> np.ndarray:
+        """State of the whole system hanging at rest in the steady wind (support fixed).
+
+        The static equilibrium of the model's own equations (every generalised
+        acceleration zero at zero rates), solved by scipy's ``root`` (MINPACK hybrd) from
+        the force balance: the hoist rope along the sum of the forces below it
+        (:meth:`rest_direction`), a leg below the hook and a rigid load's CG from its pivot
+        along the load's weight and drag, the elastic rope stretched by that pull.
+
+        Parameters
+        ----------
+        rope_length_m : float
+            Rope length the hoist gives at the start [m] (the loaded length of an
+            elastic rope in still air).
+
+        Returns
+        -------
+        ndarray
+            Coordinates at rest in the wind and zero rates [chart units]; the still-air
+            rest (:meth:`rest_state`) without wind.
+        """
+        from scipy.optimize import root
+
+        y_still = self.rest_state(rope_length_m)
+        nq = self.n_coordinates
+        wind = np.array([self._wind_x_m_s, self._wind_y_m_s, 0.0])
+        speed = float(np.linalg.norm(wind))
+        if speed == 0.0:
+            return y_still
+        n1 = self.rest_direction(rope_length_m)
+        load_force = (np.array([0.0, 0.0, -self.load_mass_kg * self.gravity_m_s2])
+                      + self._load_drag_k * speed * wind)
+        n_load = load_force / np.linalg.norm(load_force)
+        guess = list(n1[:2])
+        if self.leg_below_hook:
+            guess += list(n_load[:2])
+        if self.rigid_load:
+            guess += list(tilt_to_align(self.cg_from_pivot_b, n_load, guess=self.geometry.rest_tilt_rad))
+        if self.rope_is_elastic:
+            guess.append(float(y_still[self.rope_length_index]))
+        kin_state = self._hanging_support(rope_length_m)
+        zeros = np.zeros(nq)
+
+        def residual(q):
+            return self._qdd(np.concatenate([q, zeros]), kin_state)
+
+        solution = root(residual, np.array(guess), method="hybr", options={"xtol": 1e-15})
+        q = solution.x if np.max(np.abs(residual(solution.x))) <= np.max(np.abs(residual(np.array(guess)))) \
+            else np.array(guess)
+        return np.concatenate([q, zeros])
+
     def rest_state(self, rope_length_m=None) -> np.ndarray:
         """State of the hanging system at rest (fixed support, no wind).
 
@@ -392,9 +495,39 @@ class HookLoadModel(ModelDefaults, SwingModel):
             q += list(self.geometry.rest_tilt_rad)
         if self.rope_is_elastic:
             L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
-            lam = self.elastic_rope.unstretched(L)
-            q.append(lam + self.hanging_mass_kg * self.gravity_m_s2 / self.elastic_rope.stiffness(lam))
+            lam = self.hanging_rope.unstretched(L)
+            q.append(lam + self.hanging_mass_kg * self.gravity_m_s2 / self.hanging_rope.stiffness(lam))
         return np.array(q + [0.0] * self.n_coordinates)
+
+    def _hanging_support(self, rope_length_m: float) -> tuple:
+        """A still support holding the system hanging, lifted, at a (loaded) rope length.
+
+        The rope length the equations read sets the elastic rope's unstretched length; for a
+        lift-off it is shifted so that this is the hanging rope's, not the slack start's.
+        """
+        L = rope_length_m
+        if self.rope_is_elastic:
+            L += self.hanging_rope.lambda0_m - self.elastic_rope.lambda0_m
+        return (0.0,) * 9 + (L, 0.0, 0.0)
+
+    def hanging_stiffness_N_per_m(self, rope_length_m: float | None = None) -> float | None:
+        """Stiffness of the elastic reeving with the system hanging (lifted) at a rope length.
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Loaded rope length [m]; the scene's by default.
+
+        Returns
+        -------
+        float or None
+            :math:`k` at the hanging unstretched length [N/m] (for a lift-off, the length
+            at lift-off, not the slack starting one); None for an inextensible rope.
+        """
+        if not self.rope_is_elastic:
+            return None
+        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
+        return self.hanging_rope.stiffness(self.hanging_rope.unstretched(L))
 
     # -- the equations -------------------------------------------------------------
     def _qdd(self, y, kin_state):
@@ -881,7 +1014,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         """Mass and stiffness matrices of the swing about hanging rest (fixed support)."""
         L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
         y0 = self.rest_state(L)
-        kin_state = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, L, 0.0, 0.0)
+        kin_state = self._hanging_support(L)
         nq = self.n_coordinates
         M = self._eval(y0, kin_state, full=True, applied=False)["M"]
         K = np.zeros((nq, nq))
@@ -895,12 +1028,34 @@ class HookLoadModel(ModelDefaults, SwingModel):
             K[:, j] = -(Qp - Qm) / (2 * h)
         return M, 0.5 * (K + K.T)
 
-    def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
+    def swing_modes(self, rope_length_m: float | None = None):
+        """Normal modes of the swing about hanging rest (support fixed, small amplitude).
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Loaded rope length [m] the system hangs on; when omitted, the
+            scene's initial length (the length :meth:`mode_periods_s` takes).
+
+        Returns
+        -------
+        tuple
+            ``(omega_sq, shapes, mass)``: squared circular frequencies (k,) [1/s^2],
+            ascending; mode shapes (n, k) over the swing coordinates
+            (:meth:`swing_coordinate_indices`), mass-normalised
+            (``shapes.T @ mass @ shapes = I``); the mass matrix (n, n) of those
+            coordinates [chart units].  From scipy's generalised symmetric eigensolver.
+        """
         from scipy.linalg import eigh
 
         M, K = self._linear_MK(rope_length_m)
         keep = self.swing_coordinate_indices()
-        w2 = eigh(K[np.ix_(keep, keep)], M[np.ix_(keep, keep)], eigvals_only=True)
+        mass = M[np.ix_(keep, keep)]
+        omega_sq, shapes = eigh(K[np.ix_(keep, keep)], mass)
+        return omega_sq, shapes, mass
+
+    def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
+        w2 = self.swing_modes(rope_length_m)[0]
         w2 = np.sort(w2[w2 > 0])
         out = []
         for x in w2:  # a degenerate pair (both swing planes alike) counts once
@@ -912,9 +1067,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
     def bounce_period_s(self, rope_length_m: float | None = None) -> float | None:
         if not self.rope_is_elastic:
             return None
-        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
-        k = self.elastic_rope.stiffness(self.elastic_rope.unstretched(L))
-        return 2 * math.pi * math.sqrt(self.hanging_mass_kg / k)
+        return 2 * math.pi * math.sqrt(self.hanging_mass_kg / self.hanging_stiffness_N_per_m(rope_length_m))
 
     # -- outputs -----------------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
@@ -998,7 +1151,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
     def _hanging(self) -> dict:
         if self._hanging_cache is None:
             y0 = self.rest_state()
-            kin_state = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, self.initial_rope_length_m, 0.0, 0.0)
+            kin_state = self._hanging_support(self.initial_rope_length_m)
             self._hanging_cache = self._eval(y0, kin_state, full=True, applied=False)
         return self._hanging_cache
 

@@ -216,6 +216,40 @@ def direction_from_projected(ax_rad, ay_rad, rx=0.0, ry=0.0):
     return u, v, du, dv
 
 
+def projected_angles(direction) -> tuple[float, float]:
+    """Projected angles of a rope direction: the inverse of :func:`direction_from_projected`.
+
+    Parameters
+    ----------
+    direction : array_like
+        Unit vector (3,) down the rope [-].
+
+    Returns
+    -------
+    tuple of float
+        Angle from vertical projected on the x-z plane and on the y-z plane [rad].
+    """
+    ux, uy, uz = (float(c) for c in direction)
+    return math.atan2(ux, -uz), math.atan2(uy, -uz)
+
+
+def starts_in_steady_wind(scene) -> bool:
+    """Whether a run starts hanging at rest in the steady wind (``wind.onset = "steady"``).
+
+    Parameters
+    ----------
+    scene : Scene
+        A validated scene.
+
+    Returns
+    -------
+    bool
+        True when there is wind and its onset is ``"steady"``; False in still air or with
+        ``onset = "step"`` (the run starts plumb and the wind arrives at t = 0).
+    """
+    return scene.wind.speed_m_s > 0.0 and scene.wind.onset == "steady"
+
+
 def model_params(scene) -> dict:
     r"""Physical parameters of the point-mass model as plain floats.
 
@@ -264,6 +298,10 @@ class PointMassModel(ModelDefaults, SwingModel):
 
     - the state is ``(u, v, du, dv)`` [-, -, 1/s, 1/s], at t = 0 from
       ``start.swing_deg`` and ``start.swing_rate_deg_s``;
+    - with ``wind.onset = "steady"`` (the default) the rope starts along its rest
+      direction in the steady wind (:func:`rest_direction` at the rope length of
+      t = 0), ``start.swing_deg`` added to its projected angles; with ``"step"`` it
+      starts from the vertical and the wind arrives at t = 0;
     - one swing period, the textbook pendulum's :math:`2\\pi\\sqrt{L / g}`;
     - events ``slack`` (rope tension reaches zero) and ``overswing`` (the rope
       reaches the model's angle limit);
@@ -283,8 +321,12 @@ class PointMassModel(ModelDefaults, SwingModel):
     # -- set-up --------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
         sw = self.scene.start
+        lean = (0.0, 0.0)
+        if starts_in_steady_wind(self.scene):
+            L0 = float(motion.evaluate(np.array([0.0]))["L"][0])
+            lean = projected_angles(self.rest_direction(L0))
         return np.array(direction_from_projected(
-            math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
+            lean[0] + math.radians(sw.swing_deg[0]), lean[1] + math.radians(sw.swing_deg[1]),
             math.radians(sw.swing_rate_deg_s[0]), math.radians(sw.swing_rate_deg_s[1])))
 
     def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:

@@ -39,6 +39,37 @@ import math
 from dataclasses import dataclass
 
 
+def reeving_efficiency(sheave_efficiency: float, falls: int) -> float:
+    """Overall efficiency of a reeving of ``falls`` parts of line over sheaves of one efficiency.
+
+    The line pull at the drum is the hook load / (falls * eta).  With each sheave passing on
+    ``e`` of the pull it receives, the parts of line carry ``1, e, e^2, ... e^(n-1)`` times the
+    line pull, so
+
+    .. math:: \\eta = \\frac{1 - e^n}{n (1 - e)}
+
+    (from memory; the usual textbook treatment of hoisting tackle, friction in the sheaves
+    only).  ``e`` is about 0.98 for roller-bearing sheaves and about 0.96 for plain bearings
+    (from memory); take the crane manufacturer's value.
+
+    Parameters
+    ----------
+    sheave_efficiency : float
+        Efficiency ``e`` of one sheave, 0 < e <= 1 [-].
+    falls : int
+        Number of parts of line ``n`` carrying the hook block [-].
+
+    Returns
+    -------
+    float
+        The reeving's overall efficiency eta [-] (1 for frictionless sheaves or one fall).
+    """
+    e, n = float(sheave_efficiency), int(falls)
+    if e == 1.0:
+        return 1.0
+    return (1.0 - e**n) / (n * (1.0 - e))
+
+
 def metallic_area_m2(diameter_m: float, fill_factor: float) -> float:
     """Metallic cross-section :math:`f \\pi d^2 / 4` of a wire rope (module Notes).
 

@@ -18,6 +18,70 @@ CAUTION_SHORT = ("Preview only - does not replace the lift plan, the manufacture
                  "or the competent person; local regulations govern.")
 
 
+#: Said when a rigid (inextensible) rope hoists: what it leaves out, and how to put it in.
+RIGID_ROPE_CAUTION = (
+    "The hoist rope is modelled as rigid (the default): hoist snatch and the load's bounce on the "
+    "stretching rope are not modelled, and they can raise the hook load and the sling loads well "
+    "above the figures here when the load lifts off or the hoist starts or stops. To include them, "
+    "make the rope elastic: set [rope] stiffness_kN_per_m, or modulus_GPa with diameter_m, from the "
+    "rope maker's data (and [start] rope_preload = \"lift-off\" for a lift from the ground)."
+)
+
+
+def rigid_rope_hides_snatch(scene) -> bool:
+    """Whether the run hoists on a rigid rope, which leaves hoist snatch and bounce out.
+
+    Parameters
+    ----------
+    scene : Scene
+        The scene (its rope and moves).
+
+    Returns
+    -------
+    bool
+        True when the rope is inextensible and a move hoists.
+    """
+    return not scene.rope.elastic and any(m.axis == "hoist" for m in scene.moves)
+
+
+def model_limits(scene) -> list[str]:
+    """What the model leaves out that a lift planner could trip over, each said once.
+
+    Parameters
+    ----------
+    scene : Scene
+        The scene (rope, load, rigging, wind, start).
+
+    Returns
+    -------
+    list of str
+        One sentence per limit, for the "What the model leaves out" heading of summary.txt.
+    """
+    out = []
+    if not scene.rope.elastic:
+        out.append("The hoist rope does not stretch: no hoist snatch or bounce"
+                   + (" (see the cautions)." if rigid_rope_hides_snatch(scene) else "."))
+    if scene.rigid_load:
+        out.append("The load's yaw (turning about the vertical) is held fixed: spin is not simulated.")
+    else:
+        out.append("The load is a point mass: it neither turns nor tilts.")
+    if scene.rigging is not None:
+        out.append("Slings do not stretch (rigid rigging); a leg going slack is reported, and the "
+                   "results do not hold beyond it.")
+    out.append("The wind is steady: no gusts or turbulence, and one speed at every height; on a "
+               "real site it varies with height and time.")
+    out.append("The crane structure is rigid: no boom, jib or mast deflection, no slew or travel "
+               "drive flexibility; the crane moves exactly as the moves prescribe.")
+    if scene.start.rope_preload == "lift-off":
+        out.append("Before lift-off the load rests plumb on its support; after lift-off there is no "
+                   "ground contact: a load that comes down again passes through the ground.")
+    else:
+        out.append("There is no ground or obstacle contact: zones are checked for clearance, not "
+                   "collided with.")
+    out.append("The rope's own mass is neglected (its drag is not, when rope.diameter_m is set).")
+    return out
+
+
 def _f(x, nd=1):
     return f"{x:.{nd}f}"
 
@@ -82,15 +146,47 @@ def scenario_warnings(s: dict, scene) -> list[str]:
         elif z["within_margin"]:
             out.append(f"The load comes within {z['min_distance_m']:.2f} m of {z['kind']} '{z['name']}', "
                        f"inside its {z['margin_m']:g} m margin (from t = {z['first_within_margin_s']:.1f} s).")
-    wll = scene.rope.wll_kN
-    pt = s.get("peak_rope_tension_kN")
-    if wll is not None and pt is not None and pt > wll:
-        out.append(f"Peak hoist rope tension {_f(pt, 2)} kN exceeds the declared working load limit of "
-                   f"{wll:g} kN: check the lift plan and the reeving.")
+    out.extend(hook_load_warnings(s, scene))
     df = s.get("dynamic_factor")
     if df is not None and df > 1.15:
-        out.append(f"Swing and motion raise the rope tension to {df:.2f} times the static load.")
+        out.append(f"Swing and motion raise the hook load to {df:.2f} times the static load.")
+    if rigid_rope_hides_snatch(scene):
+        out.append(RIGID_ROPE_CAUTION)
     if scene.damping_ratio == 0.0 and s.get("moves", 0):
         out.append("No damping is modelled (damping.ratio = 0): the simulated swing does not die "
                    "away; a real one decays slowly.")
+    return out
+
+
+def hook_load_warnings(s: dict, scene) -> list[str]:
+    """The line pull against the line's WLL, the hook load against the hook block's rating.
+
+    Parameters
+    ----------
+    s : dict
+        The summary's data (``peak_line_pull_kN``, ``peak_hook_load_kN`` [kN]).
+    scene : Scene
+        Its scene (``rope.wll_kN``, ``hook.wll_kN``, falls, reeving efficiency).
+
+    Returns
+    -------
+    list of str
+        One sentence per limit exceeded.
+    """
+    out = []
+    line_wll = scene.rope.wll_kN
+    pull = s.get("peak_line_pull_kN")
+    if line_wll is not None and pull is not None and pull > line_wll:
+        out.append(f"Peak line pull {_f(pull, 2)} kN (hook load over {scene.rope.falls} fall(s)"
+                   + (f" at reeving efficiency {scene.rope.reeving_efficiency:.3f}"
+                      if scene.rope.reeving_efficiency != 1.0 else "")
+                   + f") exceeds the line's declared working load limit of {line_wll:g} kN: the lift "
+                   "plan, the crane manufacturer's reeving data and the competent person decide; do "
+                   "not lift on these numbers.")
+    hook_wll = scene.hook.wll_kN if scene.hook is not None else None
+    load = s.get("peak_hook_load_kN")
+    if hook_wll is not None and load is not None and load > hook_wll:
+        out.append(f"Peak hook load {_f(load, 2)} kN exceeds the hook block's declared rating of "
+                   f"{hook_wll:g} kN: the lift plan, the manufacturer's rating and the competent "
+                   "person decide; do not lift on these numbers.")
     return out

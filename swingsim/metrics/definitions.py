@@ -26,6 +26,14 @@ swing at move end
     around it; the move's end is itself a sample on both sides).
 excursion
     Horizontal distance of the load from the plumb line through the suspension point.
+hook load
+    The pull of the hoist rope on the hook block (or on the load without one): the
+    sum over its falls, so everything below the sheaves, the block included
+    (``peak_rope_tension_kN`` is its older synonym).
+line pull
+    The pull in one part of line: hook load / (falls * reeving efficiency) (common
+    practice; the efficiency is the reeving's, from the sheave friction,
+    :func:`swingsim.dynamics.rope.reeving_efficiency`).
 dynamic factor
     Peak rope tension over the static rope load.
 settle time
@@ -34,8 +42,8 @@ settle time
     ends less than one swing period (at the final rope length) after it last
     exceeded the threshold (it cannot be confirmed).
 measured period
-    Mean interval between successive upward zero crossings of the swing
-    component along its principal axis (after the last move), measured when the
+    Mean interval between successive upward crossings of the rest position by
+    the swing component along its principal axis (after the last move), measured when the
     run goes on for more than 1.5 natural periods after the move, with more than
     10 samples there and a swing above 0.02 deg.  Compared with the small-angle
     period :math:`2\\pi\\sqrt{L/g}` and with the exact plane-pendulum period
@@ -66,7 +74,7 @@ AFTER_MOVE_TOLERANCE_S = 1e-12
 PERIOD_MIN_SAMPLES = 10
 #: ... and a run that goes on for more than this many natural periods after the move.
 PERIOD_MIN_RUN_PERIODS = 1.5
-#: ... and a swing (about its mean) larger than this [rad].
+#: ... and a swing (about the rest position) larger than this [rad].
 PERIOD_MIN_AMPLITUDE_RAD = math.radians(0.02)
 
 
@@ -309,11 +317,24 @@ def dynamic_factor(peak_tension_N, static_tension_N):
     return peak_tension_N / static_tension_N
 
 
-def _centred(off: np.ndarray, mask: np.ndarray) -> np.ndarray:
-    """``off`` less its mean over ``mask`` (sequential row sums), 0 outside the mask."""
-    o = np.where(mask, off, 0.0)
-    mean = row_sum(o) / np.maximum(mask.sum(axis=1), 1)
-    return np.where(mask, o - mean[:, None], 0.0)
+def line_pull(hook_load, falls, reeving_efficiency=1.0):
+    """The pull in one part of line of a reeving (module Definitions).
+
+    Parameters
+    ----------
+    hook_load : float or ndarray
+        Load on the hook block from the rope, all falls together [any force unit].
+    falls : int or ndarray
+        Number of falls (parts of line) carrying the hook block [-].
+    reeving_efficiency : float or ndarray
+        Overall efficiency of the reeving, 1 without sheave friction [-].
+
+    Returns
+    -------
+    float or ndarray
+        :math:`F_\\text{hook} / (n \\eta)` [the unit of ``hook_load``].
+    """
+    return hook_load / (falls * reeving_efficiency)
 
 
 def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: np.ndarray,
@@ -337,8 +358,8 @@ def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: n
     Returns
     -------
     MeasuredPeriod
-        The swing about its mean over the mask is projected on its axis of largest
-        variance, :math:`\\theta = \\tfrac12 \\operatorname{atan2}(2 s_{xy}, s_{xx} - s_{yy})`;
+        The swing about the rest direction is projected on its axis of largest
+        second moment, :math:`\\theta = \\tfrac12 \\operatorname{atan2}(2 s_{xy}, s_{xx} - s_{yy})`;
         the mean interval between its upward crossings (linear interpolation of each
         crossing) [s], the number of crossings and whether the run was measurable.
     """
@@ -347,7 +368,9 @@ def measured_period(t: np.ndarray, off_x: np.ndarray, off_y: np.ndarray, mask: n
     if M < 2:  # a run stopped at its first sample: nothing to measure
         return MeasuredPeriod(np.full(B, np.nan), np.zeros(B, dtype=int), np.zeros(B, dtype=bool))
     count = mask.sum(axis=1)
-    ox, oy = _centred(off_x, mask), _centred(off_y, mask)
+    # about the rest position, not the record's mean: a damped record's mean lies off the
+    # rest and would shift every crossing (the period came out long)
+    ox, oy = np.where(mask, off_x, 0.0), np.where(mask, off_y, 0.0)
     # the principal axis of the swing (largest variance), with a definite sign
     theta = 0.5 * np.arctan2(2.0 * row_sum(ox * oy), row_sum(ox * ox) - row_sum(oy * oy))
     x = ox * np.cos(theta)[:, None] + oy * np.sin(theta)[:, None]

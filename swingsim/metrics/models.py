@@ -12,14 +12,23 @@ leg dynamic factor
     (static equilibrium of the same model, which for a symmetric rig is the
     rigging rule :math:`W / (n \\cos\\theta)`, common practice).
 measured mode periods
-    After the last move: the spectral peak of the swing coordinates (Hann
-    window, zero-padded FFT, parabolic peak interpolation) nearest each
-    small-amplitude mode period, where the motion has energy there.
+    After the last move, the motion about rest is split into the modal
+    coordinates of the linear swing modes (mass-normalised, so each mode's
+    energy is :math:`(\\dot\\eta^2 + \\omega^2 \\eta^2)/2`).  A mode is measured
+    only when it holds at least :data:`MODE_ENERGY_SHARE` of the swing's
+    energy over the record (a relative threshold: rounding noise and modes the
+    motion does not excite are not reported); its period is the spectral peak
+    of its own modal coordinate (Hann window, zero-padded FFT, parabolic peak
+    interpolation) within :data:`MODE_BAND` of its linear frequency (its own
+    coordinate, so close modes do not blur each other).  The record must last
+    :data:`MODE_RECORD_PERIODS` periods of the longest mode.  Where a mode is not
+    measured, ``mode_measurement_notes`` says why.
 """
 
 from __future__ import annotations
 
 import math
+from typing import NamedTuple
 
 import numpy as np
 
@@ -30,6 +39,12 @@ LEG_ANGLE_CAUTION_DEG = 45.0
 LEG_ANGLE_LIMIT_DEG = 60.0
 #: Tilt of the hanging load from level above which a caution is raised [deg] (rule of thumb).
 REST_TILT_CAUTION_DEG = 5.0
+#: Share of the swing's energy a mode must hold to be measured [-] (module Definitions).
+MODE_ENERGY_SHARE = 1e-4
+#: Record after the last move needed to measure the modes [periods of the longest mode].
+MODE_RECORD_PERIODS = 3.0
+#: Half-width of the band searched around each linear mode frequency [fraction of it].
+MODE_BAND = 0.15
 
 
 def _peak(t, x):
@@ -37,73 +52,106 @@ def _peak(t, x):
     return float(x[i]), float(t[i])
 
 
-def measured_mode_periods(t, q, periods, t_from):
-    """Periods of the swing modes measured from the spectrum of the motion (module docstring).
+class MeasuredModes(NamedTuple):
+    """Measured mode periods: one entry per small-amplitude mode period."""
+
+    #: Measured period [s], or None where it cannot be measured.
+    periods_s: list
+    #: Why a mode was not measured (None where it was).
+    reasons: list
+
+
+def measured_mode_periods(t, q, qd, rest, modes, periods, t_from) -> MeasuredModes:
+    """Periods of the swing modes measured after the last move (module Definitions).
 
     Parameters
     ----------
     t : ndarray
         Sample times (N,) [s].
-    q : ndarray
-        Swing coordinates at those times (N, n) [chart units].
+    q, qd : ndarray
+        Swing coordinates and their rates at those times (N, n) [chart units, per s].
+    rest : ndarray
+        The swing coordinates at rest (n,) [chart units].
+    modes : tuple
+        ``(omega_sq, shapes, mass)`` of the model's linear swing modes
+        (:meth:`~swingsim.dynamics.hook_load.HookLoadModel.swing_modes`).
     periods : list of float
-        The model's small-amplitude mode periods [s], each the centre of a search band.
+        The model's small-amplitude mode periods [s] (a degenerate pair once).
     t_from : float
         Start of the record to analyse (the end of the last move) [s].
 
     Returns
     -------
-    list
-        One measured period [s] per entry of ``periods``; None where the record is
-        too short, the band too narrow or the motion has no energy there.
+    MeasuredModes
+        One measured period [s] per entry of ``periods``, or None and the reason.
 
     References
     ----------
     .. [1] F. J. Harris, "On the use of windows for harmonic analysis with the
        discrete Fourier transform", *Proc. IEEE* 66(1), 51-83, 1978 (Hann window).
+    .. [2] L. Meirovitch, *Fundamentals of Vibrations*, McGraw-Hill, 2001 (modal
+       coordinates of mass-normalised modes, the energy of each mode).
     """
+    n_modes = len(periods)
     sel = t >= t_from
-    out = [None] * len(periods)
-    if sel.sum() < 64 or not periods:
-        return out
-    ts, qs = t[sel], q[sel]
-    span = ts[-1] - ts[0]
-    if span < 3.0 * max(periods):
-        return out
+    if not periods:
+        return MeasuredModes([], [])
+    ts = t[sel]
+    span = float(ts[-1] - ts[0]) if ts.size > 1 else 0.0
+    if ts.size < 64 or span < MODE_RECORD_PERIODS * max(periods):
+        why = (f"the record after the last move ({span:.1f} s) is shorter than {MODE_RECORD_PERIODS:g} "
+               f"periods of the longest mode")
+        return MeasuredModes([None] * n_modes, [why] * n_modes)
+    omega_sq, shapes, mass = modes
+    # modal coordinates about rest (mass-normalised modes: eta = Phi^T M (q - q_rest))
+    projector = shapes.T @ mass
+    eta = (q[sel] - rest[None, :]) @ projector.T
+    eta_rate = qd[sel] @ projector.T
+    # each mode's mean energy per unit modal mass over the record, (eta'^2 + w^2 eta^2) / 2
+    energy = 0.5 * np.mean(eta_rate**2 + np.clip(omega_sq, 0.0, None)[None, :] * eta**2, axis=0)
+    total = float(np.sum(energy))
     dt = float(np.median(np.diff(ts)))
     tu = np.arange(ts[0], ts[-1], dt)
-    qu = np.column_stack([np.interp(tu, ts, qs[:, j]) for j in range(qs.shape[1])])
-    qu = qu - qu.mean(axis=0)
-    win = np.hanning(len(tu))
+    window = np.hanning(len(tu))
     nfft = 1 << int(math.ceil(math.log2(len(tu) * 8)))
-    spec = np.zeros(nfft // 2 + 1)
-    for j in range(qu.shape[1]):
-        a = np.abs(np.fft.rfft(qu[:, j] * win, nfft))
-        if a.max() > 0:
-            spec += a / a.max()
     f = np.fft.rfftfreq(nfft, dt)
-    if spec.max() <= 0:
-        return out
+    resolution = 1.0 / span  # modes closer than that cannot be told apart
     fs = [1.0 / T for T in periods]
-    res = 1.0 / span  # resolution of the record: modes closer than that cannot be told apart
+    out, reasons = [None] * n_modes, [None] * n_modes
     for k, f0 in enumerate(fs):
-        others = [x for j, x in enumerate(fs) if j != k]
-        lo = max([0.85 * f0] + [0.5 * (f0 + x) for x in others if x < f0])
-        hi = min([1.15 * f0] + [0.5 * (f0 + x) for x in others if x > f0])
-        if hi - lo < 2 * res:
+        # the modes behind this period (both of a degenerate pair)
+        members = [j for j in range(len(omega_sq))
+                   if omega_sq[j] > 0 and abs(2 * math.pi / math.sqrt(omega_sq[j]) - periods[k])
+                   <= 1e-6 * periods[k]]
+        share = float(np.sum(energy[members])) / total if total > 0 else 0.0
+        if share < MODE_ENERGY_SHARE:
+            reasons[k] = (f"no real energy in this mode after the last move ({100 * share:.2g}% of the "
+                          f"swing's energy; the threshold is {100 * MODE_ENERGY_SHARE:g}%)")
             continue
-        band = np.nonzero((f > lo) & (f < hi))[0]
-        if band.size < 3:
+        # each mode has a coordinate of its own, so a neighbouring mode does not narrow the band
+        band = np.nonzero((f > (1.0 - MODE_BAND) * f0) & (f < (1.0 + MODE_BAND) * f0))[0]
+        if 2.0 * MODE_BAND * f0 < 2.0 * resolution or band.size < 3:
+            reasons[k] = "the record after the last move is too short to resolve this mode"
             continue
+        # the power spectra of the mode's own coordinates (one unit: no normalisation needed)
+        power = np.zeros(f.size)
+        for j in members:
+            series = np.interp(tu, ts, eta[:, j])
+            power += np.abs(np.fft.rfft(series * window, nfft)) ** 2
+        spec = np.sqrt(power)
         i = band[int(np.argmax(spec[band]))]
-        if i in (band[0], band[-1]) or spec[i] < 2e-3 * spec.max():
+        if i in (band[0], band[-1]):
+            reasons[k] = "its spectral peak lies outside the band around the linear period"
             continue
         y0, y1, y2 = spec[i - 1], spec[i], spec[i + 1]
         den = y0 - 2 * y1 + y2
         shift = 0.5 * (y0 - y2) / den if den != 0 else 0.0
         fp = f[i] + shift * (f[1] - f[0])
-        out[k] = 1.0 / fp if fp > 0 else None
-    return out
+        if fp > 0:
+            out[k] = float(1.0 / fp)
+        else:
+            reasons[k] = "no spectral peak"
+    return MeasuredModes(out, reasons)
 
 
 def model_metrics(traj, t, s) -> dict:
@@ -182,21 +230,28 @@ def model_metrics(traj, t, s) -> dict:
     if model.rope_is_elastic:
         rp = model.elastic_rope
         d["rope_elastic"] = True
-        d["rope_stiffness_kN_per_m"] = rp.stiffness(rp.lambda0_m) / 1e3
+        # at the hanging length (for a lift-off, as it hangs once lifted, not slack at t = 0)
+        k_hanging = model.hanging_stiffness_N_per_m()
+        d["rope_stiffness_kN_per_m"] = k_hanging / 1e3
         d["rope_stiffness_from"] = rp.source
         d["bounce_period_s"] = model.bounce_period_s()
         d["peak_rope_stretch_m"] = float(np.max(s["rope_stretch_m"]))
-        d["static_rope_stretch_m"] = model.hanging_mass_kg * model.gravity_m_s2 / rp.stiffness(rp.lambda0_m)
+        d["static_rope_stretch_m"] = model.hanging_mass_kg * model.gravity_m_s2 / k_hanging
         if model.starts_resting:
             d["lift_off_s"] = model.lift_off_time_s if math.isfinite(model.lift_off_time_s) else None
     else:
         d["rope_elastic"] = False
-    # measured periods of the swing modes after the last move
+    # measured periods of the swing modes after the last move, about the rest at the final length
     Y = traj.state(t)
     cols = model.swing_coordinate_indices()
-    d["measured_mode_periods_s"] = measured_mode_periods(
-        t, Y[:, cols], list(model.mode_periods_s(float(traj.motion.evaluate(np.array([t[-1]]))["L"][0]))),
-        traj.motion.last_move_end_s)
+    nq = model.n_coordinates
+    L_end = float(traj.motion.evaluate(np.array([t[-1]]))["L"][0])
+    rest = model.wind_rest_state(L_end)[:nq]
+    measured = measured_mode_periods(t, Y[:, cols], Y[:, [nq + c for c in cols]], rest[cols],
+                                     model.swing_modes(L_end), list(model.mode_periods_s(L_end)),
+                                     traj.motion.last_move_end_s)
+    d["measured_mode_periods_s"] = measured.periods_s
+    d["mode_measurement_notes"] = measured.reasons
     return d
 
 
@@ -316,4 +371,10 @@ def model_summary_lines(d: dict) -> list[str]:
     if mm and any(x is not None for x in mm):
         w.append("  Measured mode periods after the moves: "
                  + ", ".join("n/a" if x is None else f"{x:.3f} s" for x in mm))
+        for period, x, why in zip(d["mode_periods_s"], mm, d.get("mode_measurement_notes") or []):
+            if x is None and why:
+                w.append(f"    mode {period:.3f} s not measured: {why}")
+    elif mm:
+        why = next((x for x in d.get("mode_measurement_notes") or [] if x), None)
+        w.append("  Measured mode periods after the moves: n/a" + (f" ({why})" if why else ""))
     return w

@@ -13,6 +13,7 @@ import math
 import numpy as np
 
 from swingsim.metrics import cautions
+from swingsim.metrics.definitions import line_pull
 from swingsim.metrics.single import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_summary_lines
 from swingsim.scene.site import wind_words
@@ -63,6 +64,7 @@ def timeseries_columns(traj, t=None) -> dict:
     """
     t = traj.sample_times() if t is None else t
     s = traj.sample(t)
+    rope = traj.scene.rope
     n = s["rope_dir"]
     rest = np.asarray(traj.model.rest_direction(float(s["rope_length"][-1])))
     hor = s["load"][:, :2] - s["suspension"][:, :2]
@@ -88,8 +90,11 @@ def timeseries_columns(traj, t=None) -> dict:
         "excursion_m": np.hypot(hor[:, 0], hor[:, 1]),
         "load_speed_m_s": np.linalg.norm(s["load_vel"], axis=1),
         "suspension_speed_m_s": np.linalg.norm(s["suspension_vel"][:, :2], axis=1),
-        "hoist_speed_m_s": -np.gradient(s["rope_length"], t) if len(t) > 1 else np.zeros_like(t),
+        # the hoist's own speed: the prescribed length's rate (not the stretching rope's)
+        "hoist_speed_m_s": -traj.motion.evaluate(np.asarray(t, dtype=float))["dL"],
         "rope_tension_kN": s["rope_tension_N"] / 1e3,
+        "hook_load_kN": s["rope_tension_N"] / 1e3,
+        "line_pull_kN": line_pull(s["rope_tension_N"], rope.falls, rope.reeving_efficiency) / 1e3,
     })
     for key, arr in s.get("extra_columns", {}).items():
         cols[key] = arr
@@ -156,7 +161,8 @@ def summary_text(summary, scene) -> str:
              + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.2f} s; simulated {d['simulated_until_s']:.1f} s.")
     if scene.wind.speed_m_s:
         w.append(f"Wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}, site north at "
-                 f"{scene.site.north_deg:g} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.2f} deg downwind.")
+                 f"{scene.site.north_deg:g} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.2f} deg "
+                 "downwind; " + _wind_start(d, scene))
     if d.get("move_list"):
         w.append("")
         w.append("Moves")
@@ -175,10 +181,7 @@ def summary_text(summary, scene) -> str:
     else:
         w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}{_fmt(d['settle_time_s'], 's', 1)} after the last move (t = {_fmt(d['settled_at_s'], 's', 1)})")
     w.append("")
-    w.append("Rope tension")
-    w.append(f"  Static                           {_fmt(d['static_rope_tension_kN'], 'kN')}")
-    w.append(f"  Peak                             {_fmt(d['peak_rope_tension_kN'], 'kN')}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}")
-    w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 3)}")
+    w.extend(_hook_load_lines(d, scene))
     # -- hook block, rigging, rigid load, elastic rope (swingsim/metrics/models.py) --
     w.extend(model_summary_lines(d))
     w.append("")
@@ -200,6 +203,10 @@ def summary_text(summary, scene) -> str:
         w.append("")
         w.append("Obstacles and exclusion zones")
         w.extend(zone_lines(d["zones"]))
+    w.append("")
+    w.append("What the model leaves out (check these against the lift plan)")
+    for limit in cautions.model_limits(scene):
+        w.append("  - " + limit)
     w.append("")
     w.append("Cautions")
     for c in d["cautions"][1:] or ["(no scenario warnings)"]:
@@ -238,4 +245,30 @@ def zone_lines(zones) -> list:
         w.append("  An exclusion zone counts as entered when any part of the suspended load, rigging or rope")
         w.append("  is over it at any height: clear it of people as the lift plan, local rules and the")
         w.append("  competent person require; the height above it is no protection from a falling load.")
+    return w
+
+
+def _wind_start(d, scene) -> str:
+    """How the run starts in the wind, as summary.txt says it."""
+    if scene.start.rope_preload == "lift-off":
+        return "the load starts plumb, resting for lift-off, and the wind takes it as it lifts off."
+    if scene.wind.onset == "step":
+        return ("the run starts plumb and the wind arrives as a sudden step at t = 0 (onset = step): "
+                "the swing includes that gust's.")
+    return "the run starts hanging at that lean (onset = steady)."
+
+
+def _hook_load_lines(d, scene) -> list:
+    """The hook load and line pull block of summary.txt."""
+    rope = scene.rope
+    w = ["Hook load and line pull"]
+    w.append(f"  Static hook load                 {_fmt(d['static_rope_tension_kN'], 'kN')}")
+    w.append(f"  Peak hook load                   {_fmt(d['peak_hook_load_kN'], 'kN')}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}"
+             + (f"; hook block rated {scene.hook.wll_kN:g} kN"
+                if scene.hook is not None and scene.hook.wll_kN is not None else ""))
+    reeving = f"{rope.falls} fall(s)" + (f", reeving efficiency {rope.reeving_efficiency:.3f}"
+                                         if rope.reeving_efficiency != 1.0 else ", no sheave friction")
+    w.append(f"  Peak line pull                   {_fmt(d['peak_line_pull_kN'], 'kN')}  ({reeving})"
+             + (f"; line WLL {rope.wll_kN:g} kN" if rope.wll_kN is not None else ""))
+    w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 3)}")
     return w

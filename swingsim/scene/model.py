@@ -67,6 +67,9 @@ class Rope:
     lead_length_m: float = 0.0
     bounce_damping_ratio: float = 0.0
     stiffness_source: str = ""
+    # -- hook load and line pull --
+    reeving_efficiency: float = 1.0
+    sheave_efficiency: float | None = None
 
     @property
     def elastic(self) -> bool:
@@ -126,6 +129,8 @@ class Hook:
     mass_kg: float
     size_m: tuple | None
     drag_coefficient: float
+    # -- hook load and line pull --
+    wll_kN: float | None = None
 
 
 @dataclass(frozen=True)
@@ -161,6 +166,8 @@ class Wind:
     speed_m_s: float
     direction_deg: float
     air_density_kg_m3: float
+    # -- wind onset --
+    onset: str = "steady"
 
 
 @dataclass(frozen=True)

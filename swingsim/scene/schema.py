@@ -157,8 +157,9 @@ TABLES: dict[str, dict[str, Key]] = {
         "drag_coefficient": Key("float", "Drag coefficient of the rope across the wind [-] "
                                 "(default: circular cylinder, from memory).",
                                 default=constants.ROPE_DRAG_COEFFICIENT, gt=0.0, le=5.0),
-        "wll_kN": Key("float", "Working load limit of the hoist rope reeving [kN]; a caution is raised "
-                      "when the peak dynamic tension exceeds it.", gt=0.0),
+        "wll_kN": Key("float", "Working load limit of the line: one part of the hoist rope [kN]; a caution "
+                      "is raised when the peak line pull (hook load / (falls * reeving_efficiency)) "
+                      "exceeds it. The hook block's own rating is hook.wll_kN.", gt=0.0),
         # -- elastic hoist rope (hook-and-load models) --
         "stiffness_kN_per_m": Key("float", "Axial stiffness of the hoist rope reeving at the hook, at the "
                                   "initial rope length [kN/m]; makes the rope elastic. Scales inversely "
@@ -179,6 +180,15 @@ TABLES: dict[str, dict[str, Key]] = {
                                     "on the elastic rope [-].", default=0.0, ge=0.0, lt=1.0),
         "stiffness_source": Key("str", "Where the stiffness or modulus value comes from (rope maker's "
                                 "data sheet, test, estimate); repeated in the summary.", default=""),
+        # -- hook load and line pull --
+        "reeving_efficiency": Key("float", "Overall efficiency eta of the reeving [-]: the line pull is the "
+                                  "hook load / (falls * eta). Default 1: no sheave friction. For n parts of "
+                                  "line on sheaves of efficiency e, eta = (1 - e^n) / (n (1 - e)) (from "
+                                  "memory); or give sheave_efficiency instead. Take the value from the "
+                                  "crane manufacturer.", default=1.0, gt=0.0, le=1.0),
+        "sheave_efficiency": Key("float", "Efficiency e of one sheave [-], about 0.98 for roller-bearing "
+                                 "sheaves (from memory); gives reeving_efficiency = (1 - e^n) / (n (1 - e)) "
+                                 "for n = falls. Not together with reeving_efficiency.", gt=0.0, le=1.0),
     },
     "load": {
         "mass_kg": Key("float", "Mass of the load including its rigging [kg].", required=True, gt=0.0),
@@ -210,6 +220,10 @@ TABLES: dict[str, dict[str, Key]] = {
                       "lx * lz is its area facing the wind.", gt=0.0),
         "drag_coefficient": Key("float", "Drag (force) coefficient of the hook block [-].",
                                 default=constants.LOAD_DRAG_COEFFICIENT, gt=0.0, le=5.0),
+        # -- hook load and line pull --
+        "wll_kN": Key("float", "Working load limit (rating) of the hook block [kN]; a caution is raised "
+                      "when the peak hook load (everything the block carries, its own weight included) "
+                      "exceeds it.", gt=0.0),
     },
     "rigging": {
         "kind": Key("str", "single: one leg from the hook to one attachment point, the load pivots "
@@ -258,6 +272,12 @@ TABLES: dict[str, dict[str, Key]] = {
                                 "([site] north_deg) [deg], as weather reports and anemometers give it "
                                 "(meteorological convention: 270 is a west wind, blowing toward the east). "
                                 "Give this or direction_deg, not both.", ge=0.0, le=360.0),
+        # -- wind onset --
+        "onset": Key("str", "steady: hook, rigging and load start hanging at rest in the steady wind (the "
+                     "lean it gives them, solved exactly), so the run swings only from what the crane "
+                     "does; step: they start plumb and the wind arrives at t = 0 as a sudden step, for "
+                     "studying a gust. start.swing_deg is measured from the start the onset gives.",
+                     default="steady", choices=("steady", "step")),
     },
     "output": {
         "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=constants.SAMPLE_HZ, ge=1.0, le=1000.0),

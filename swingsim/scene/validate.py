@@ -18,7 +18,7 @@ import numpy as np
 
 from swingsim.dynamics.registry import select_model
 from swingsim.dynamics.rigging import RiggingError, rigging_geometry
-from swingsim.dynamics.rope import elastic_rope
+from swingsim.dynamics.rope import elastic_rope, reeving_efficiency
 from swingsim.errors import SceneError
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
@@ -145,6 +145,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
 
     hook_t = r.table(data, "hook", schema.TABLES["hook"]) if "hook" in data else None
     rig_t = r.table(data, "rigging", schema.TABLES["rigging"]) if "rigging" in data else None
+    _read_reeving(r, data, rope)
     rope_o, load_o, start_o = Rope(**rope), Load(**load), Start(**start)
     hook_o, rig_o = _read_hook_rigging(r, hook_t, rig_t, rope_o, load_o, start_o, top["gravity_m_s2"])
 
@@ -180,6 +181,16 @@ def _read_wind(r: KeyReader, data: dict, site: Site) -> Wind:
                         "toward +y), not both", wind["direction_deg"])
         wind["direction_deg"] = wind_toward_deg(bearing, site.north_deg)
     return Wind(**wind)
+
+
+def _read_reeving(r: KeyReader, data: dict, rope: dict) -> None:
+    """``rope.sheave_efficiency`` gives ``rope.reeving_efficiency`` (in place); never both."""
+    if rope["sheave_efficiency"] is None:
+        return
+    if "reeving_efficiency" in data["rope"]:
+        raise r.err("rope.sheave_efficiency", "give either rope.reeving_efficiency or "
+                    "rope.sheave_efficiency, not both", rope["sheave_efficiency"])
+    rope["reeving_efficiency"] = reeving_efficiency(rope["sheave_efficiency"], rope["falls"])
 
 
 def _read_view(r: KeyReader, data: dict):
