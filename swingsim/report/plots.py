@@ -163,21 +163,24 @@ def _site_arrows(fig, scene) -> None:
 
 
 def _crane_reach(ax, crane):
-    """A slewing crane's slew axis and its radius limits (circles about the slew centre), kept to the view."""
+    """A slewing crane's slew axis and its radius limits (circles about the slew centre).
+
+    The circles are added as plain artists, which do not count toward the data limits,
+    so the plan keeps its scale on the lift itself; where a circle crosses the view it is
+    labelled with its radius.
+    """
     from matplotlib.patches import Circle
 
     if not crane.slewing:
         return
     cx, cy = crane.slew_center_m
     ax.plot([cx], [cy], "+", color=GREY, ms=12, mew=1.5, label="slew axis")
-    ax.autoscale_view()
-    view = ax.get_xlim(), ax.get_ylim()
     for radius, name in ((crane.min_radius_m, "min"), (crane.max_radius_m, "max")):
         if radius:
-            ax.add_patch(Circle((cx, cy), radius, fill=False, edgecolor=GREY, ls=":", lw=1.0,
-                                label=f"{name} radius {radius:g} m"))
-    ax.set_xlim(*view[0])
-    ax.set_ylim(*view[1])
+            ax.add_artist(Circle((cx, cy), radius, fill=False, edgecolor=GREY, ls=":", lw=1.0,
+                                 transform=ax.transData, clip_on=True))
+            ax.annotate(f"{name} radius {radius:g} m", (cx, cy + radius), fontsize=7, color=GREY,
+                        ha="center", va="bottom", annotation_clip=True)
 
 
 #: File name -> figure function ``fn(traj, summary, cols=None)``: given the run
