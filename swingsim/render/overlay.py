@@ -104,9 +104,9 @@ def clock_text(t_s: float, speed: float) -> str:
     return f"t = {t_s:6.2f} s{tag}"
 
 
-def _readout_text(angle_deg: float, speed_m_s: float, tension_kN: float, rope_m: float) -> str:
+def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_m: float) -> str:
     rows = [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
-            ("tension", f"{tension_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
+            ("hook load", f"{hook_load_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
     return "\n".join(f"{a:<12}{b:>7} {c:<3}" for a, b, c in rows)
 
 
@@ -190,7 +190,7 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     Returns
     -------
     FrameText
-        Clock, readout (rope angle, load speed, tension, rope length), events, zones, caution, banner, stop notice.
+        Clock, readout (rope angle, load speed, hook load, rope length), events, zones, caution, banner, stop notice.
     """
     from swingsim.render.facts import rope_angle_deg
 
