@@ -27,7 +27,7 @@ import numpy as np
 
 from swingsim.scene.model import slew_centre
 
-__all__ = ["chart_metrics", "chart_warnings", "counted_mass_kg", "tip_pull_N"]
+__all__ = ["chart_series", "chart_metrics", "chart_warnings", "counted_mass_kg", "tip_pull_N"]
 
 
 def counted_mass_kg(scene) -> float:
@@ -84,17 +84,66 @@ def _peak(t, values):
     return float(values[i]), float(t[i])
 
 
-def chart_metrics(traj, t: np.ndarray, s: dict) -> dict:
-    """The chart utilisation and the tip's side and out-load of a run, as ``summary.json`` keys.
+def chart_series(traj, t: np.ndarray, s: dict) -> dict:
+    """The chart quantities of a run at each sample time; None without a chart.
 
     Parameters
     ----------
     traj : Trajectory
         The run (its scene's chart, masses and gravity).
     t : ndarray (N,)
-        The metric sample times [s].
+        Sample times [s].
     s : dict
         The run sampled at ``t`` (:meth:`swingsim.simulation.Trajectory.sample`).
+
+    Returns
+    -------
+    dict or None
+        ``bodies`` (names whose radii are measured), ``radius_m`` (bodies, N),
+        ``capacity_kg`` (bodies, N; NaN off the chart), ``governing`` (N,) index of
+        the body whose radius gives the lowest capacity, ``governing_radius_m`` and
+        ``governing_capacity_kg`` (N,) (inf when every radius is off the chart),
+        ``off_chart`` (N,) bool, ``counted_load_N`` (N,) the hook load that counts
+        against the chart, ``utilisation_pct`` and ``static_utilisation_pct`` (N,),
+        and the tip pull of :func:`tip_pull_N` (N,) [N].
+    """
+    scene = traj.scene
+    chart = scene.crane.chart
+    if chart is None:
+        return None
+    g = scene.gravity_m_s2
+    centre = slew_centre(scene)
+    bodies = {"suspension point": s["suspension"], "load": s["load"]}
+    if s.get("hook") is not None:
+        bodies["hook"] = s["hook"]
+    names = list(bodies)
+    radius = np.stack([np.hypot(*(bodies[b][:, :2] - centre).T) for b in names])  # (bodies, N)
+    capacity = chart.capacity_at(radius)
+    # the lowest capacity on the chart at each instant, and which body's radius gives it
+    lowest = np.where(np.isfinite(capacity), capacity, np.inf)
+    governing = np.argmin(lowest, axis=0)
+    cols = np.arange(len(t))
+    cap_min = lowest[governing, cols]
+    not_counted = (scene.hook.mass_kg if scene.hook is not None and "hook" not in scene.crane.chart_includes
+                   else 0.0)
+    load_N = s["rope_tension_N"] - not_counted * g
+    return {"bodies": names, "radius_m": radius, "capacity_kg": capacity, "governing": governing,
+            "governing_radius_m": radius[governing, cols], "governing_capacity_kg": cap_min,
+            "off_chart": ~np.isfinite(capacity).all(axis=0), "counted_load_N": load_N,
+            "utilisation_pct": 100.0 * load_N / (g * cap_min),
+            # the suspension point's radius: the load hanging plumb
+            "static_utilisation_pct": 100.0 * counted_mass_kg(scene) / capacity[0],
+            **tip_pull_N(s["suspension"], s["rope_dir"], s["rope_tension_N"], centre)}
+
+
+def chart_metrics(traj, t: np.ndarray, s: dict) -> dict:
+    """The chart utilisation and the tip's side and out-load of a run, as ``summary.json`` keys.
+
+    Parameters
+    ----------
+    traj, t, s
+        The run, its metric sample times [s] and the run sampled at them, as for
+        :func:`chart_series`.
 
     Returns
     -------
@@ -104,61 +153,43 @@ def chart_metrics(traj, t: np.ndarray, s: dict) -> dict:
         capacities and masses [kg], side, out- and in-load [kN] and the rope's
         lean across and along the jib [deg].
     """
+    c = chart_series(traj, t, s)
+    if c is None:
+        return {}
     scene = traj.scene
     chart = scene.crane.chart
-    if chart is None:
-        return {}
     g = scene.gravity_m_s2
-    centre = slew_centre(scene)
-    bodies = {"suspension point": s["suspension"], "load": s["load"]}
-    if s.get("hook") is not None:
-        bodies["hook"] = s["hook"]
-    names = list(bodies)
-    radius = np.stack([np.hypot(*(bodies[b][:, :2] - centre).T) for b in names])  # (bodies, N)
-    capacity = chart.capacity_at(radius)
-    off_chart = ~np.isfinite(capacity).all(axis=0)
-    # the lowest capacity on the chart at each instant, and which body's radius gives it
-    lowest = np.where(np.isfinite(capacity), capacity, np.inf)
-    which = np.argmin(lowest, axis=0)
-    cols = np.arange(len(t))
-    cap_min = lowest[which, cols]
-
-    mass = counted_mass_kg(scene)
-    not_counted = scene.hook.mass_kg if scene.hook is not None and "hook" not in scene.crane.chart_includes else 0.0
-    load_N = s["rope_tension_N"] - not_counted * g
-    util_pct = 100.0 * load_N / (g * cap_min)
-    static_pct = 100.0 * mass / capacity[0]  # the suspension point's radius: the plumb load
-    static, static_t = _peak(t, static_pct)
-    peak, peak_t = _peak(t, util_pct)
-    i = int(np.argmax(util_pct))
-    pull = tip_pull_N(s["suspension"], s["rope_dir"], s["rope_tension_N"], centre)
-    side, side_t = _peak(t, np.abs(pull["side_N"]))
-    out, out_t = _peak(t, np.maximum(pull["out_N"], 0.0))
-    inward, in_t = _peak(t, np.maximum(-pull["out_N"], 0.0))
-    side_deg = np.degrees(np.arctan2(np.abs(pull["side_N"]), pull["vertical_N"]))
-    out_deg = np.degrees(np.arctan2(pull["out_N"], pull["vertical_N"]))
-    first_off = float(t[int(np.argmax(off_chart))]) if off_chart.any() else None
+    static, static_t = _peak(t, c["static_utilisation_pct"])
+    peak, peak_t = _peak(t, c["utilisation_pct"])
+    i = int(np.argmax(c["utilisation_pct"]))
+    side, side_t = _peak(t, np.abs(c["side_N"]))
+    out, out_t = _peak(t, np.maximum(c["out_N"], 0.0))
+    inward, in_t = _peak(t, np.maximum(-c["out_N"], 0.0))
+    side_deg = np.degrees(np.arctan2(np.abs(c["side_N"]), c["vertical_N"]))
+    out_deg = np.degrees(np.arctan2(c["out_N"], c["vertical_N"]))
+    off = c["off_chart"]
+    load_N, cap = c["counted_load_N"][i], c["governing_capacity_kg"][i]
     return {
         "chart_file": scene.crane.chart_file,
         "chart_includes": list(scene.crane.chart_includes),
         "chart_radius_range_m": [chart.radius_m[0], chart.radius_m[-1]],
-        "chart_counted_mass_kg": mass,
+        "chart_counted_mass_kg": counted_mass_kg(scene),
         "static_utilisation_pct": static,
         "static_utilisation_time_s": static_t,
-        "static_utilisation_radius_m": float(radius[0, int(np.argmax(static_pct))]),
+        "static_utilisation_radius_m": float(c["radius_m"][0, int(np.nanargmax(c["static_utilisation_pct"]))]),
         "peak_utilisation_pct": peak,
         "peak_utilisation_time_s": peak_t,
-        "chart_radius_at_peak_m": float(radius[which[i], i]),
-        "chart_radius_at_peak_of": names[which[i]],
-        "chart_capacity_at_peak_kg": float(cap_min[i]),
-        "peak_counted_hook_load_kN": float(load_N[i]) / 1e3,
+        "chart_radius_at_peak_m": float(c["governing_radius_m"][i]),
+        "chart_radius_at_peak_of": c["bodies"][c["governing"][i]],
+        "chart_capacity_at_peak_kg": float(cap),
+        "peak_counted_hook_load_kN": float(load_N) / 1e3,
         "chart_margin_pct": 100.0 - peak,
-        "chart_margin_kg": float(cap_min[i] - load_N[i] / g),
+        "chart_margin_kg": float(cap - load_N / g),
         "chart_review_pct": scene.limits.chart_review_pct,
         "chart_limit_pct": scene.limits.chart_limit_pct,
-        "largest_load_radius_m": float(np.max(radius[names.index("load")])),
-        "off_chart_from_s": first_off,
-        "off_chart_time_s": float(np.sum(np.diff(t)[off_chart[:-1]])) if len(t) > 1 else 0.0,
+        "largest_load_radius_m": float(np.max(c["radius_m"][c["bodies"].index("load")])),
+        "off_chart_from_s": float(t[int(np.argmax(off))]) if off.any() else None,
+        "off_chart_time_s": float(np.sum(np.diff(t)[off[:-1]])) if len(t) > 1 else 0.0,
         "peak_side_load_kN": side / 1e3,
         "peak_side_load_time_s": side_t,
         "peak_out_load_kN": out / 1e3,
