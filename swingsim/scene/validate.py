@@ -233,7 +233,7 @@ def _check_path_on_chart(r: KeyReader, scene: Scene, motion) -> None:
     beyond = radius[in_move] if in_move.any() else radius[off]
     reach = float(np.max(beyond)) if float(np.max(beyond)) > high else float(np.min(beyond))
     move = scene.moves[index]
-    raise r.err(f"moves[{index}]", f"{move.name} takes the hook to radius {reach:.2f} m (at "
+    raise r.err(f"moves[{index}]", f"{move.name} takes the hook to radius {reach:.2f} m (leaving the chart at "
                 f"t = {t_off:.2f} s), {rule}")
 
 
