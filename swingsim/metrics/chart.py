@@ -228,20 +228,20 @@ def chart_warnings(d: dict, scene) -> list[str]:
              "rules with the competent person")
     given = scene.raw.get("limits", {})
     if static > 100.0:
-        out.append(f"The load hanging plumb needs {static:.0f}% of the rated capacity chart: the lift as "
+        out.append(f"The load hanging plumb needs {static:.1f}% of the rated capacity chart: the lift as "
                    f"planned is over the chart at radius {d['static_utilisation_radius_m']:.2f} m; "
                    "it must not go ahead as planned.")
     if peak > 100.0:
-        out.append(f"The swinging lift reaches {peak:.0f}% of the rated capacity chart {where}: over "
+        out.append(f"The swinging lift reaches {peak:.1f}% of the rated capacity chart {where}: over "
                    f"the chart; {defer}.")
     elif peak > lim.chart_limit_pct:
         src = "set in the scene" if "chart_limit_pct" in given else "a common-practice default"
-        out.append(f"The swinging lift reaches {peak:.0f}% of the rated capacity chart {where}, above "
+        out.append(f"The swinging lift reaches {peak:.1f}% of the rated capacity chart {where}, above "
                    f"{lim.chart_limit_pct:g}% ({src}): lifts this close to the chart commonly need "
                    f"extra review and sign-off (varies by company and jurisdiction); {defer}.")
     elif peak > lim.chart_review_pct:
         src = "set in the scene" if "chart_review_pct" in given else "a common-practice default"
-        out.append(f"The swinging lift reaches {peak:.0f}% of the rated capacity chart {where}, above "
+        out.append(f"The swinging lift reaches {peak:.1f}% of the rated capacity chart {where}, above "
                    f"{lim.chart_review_pct:g}% ({src}): such lifts commonly need extra review (varies "
                    f"by company and jurisdiction); {defer}.")
     if d["off_chart_from_s"] is not None:
