@@ -115,14 +115,18 @@ def supported(scene) -> bool:
     Parameters
     ----------
     scene : Scene
-        A validated scene.
+        A validated scene; only the model it selects decides.
 
     Returns
     -------
     bool
-        True when the scene's model is the point-mass model; other models (and a
-        model extension that cannot be built) go to the single-run solver.
+        True when the scene's model is the point-mass model and the suspension
+        point stays at its height; other models (and a model extension that cannot
+        be built), and a boom crane that luffs (its tip moves on an arc, which
+        the vectorised kinematics leave out), go to the single-run solver.
     """
+    if scene.crane.has_boom and any(m.axis == "radius" for m in scene.moves):
+        return False
     try:
         return type(select_model(scene)) is PointMassModel
     except Exception:  # a model extension that cannot build: leave it to simulate
@@ -215,7 +219,8 @@ def _kinematics(variants) -> ChunkKinematics:
     used = np.zeros(len(AXES), dtype=bool)
     for v in variants:
         used |= np.any(v.coef != 0.0, axis=(0, 2))
-    return ChunkKinematics([v.motion.origin_m for v in variants],
+    # the polar coordinates are taken about each variant's slew centre (only rates are needed)
+    return ChunkKinematics([np.subtract(v.motion.origin_m, (*v.motion.slew_center_m, 0.0)) for v in variants],
                            [v.motion.rope_length_m for v in variants], used)
 
 

@@ -44,7 +44,9 @@ class ChunkKinematics:
     Parameters
     ----------
     origins_m : ndarray (B, 3)
-        Suspension point of each variant at t = 0 [m].
+        Suspension point of each variant at t = 0, relative to its slew centre [m]
+        (only the suspension point's rates are evaluated, which the slew centre
+        moves only through the polar coordinates it gives).
     rope_lengths_m : ndarray (B,)
         Rope length of each variant at t = 0 [m].
     axes_used : ndarray (5,) of bool

@@ -173,7 +173,7 @@ class SwingModel(Protocol):
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            As for :meth:`mode_periods_s` [m].
 
         Returns
         -------
@@ -193,49 +193,46 @@ class ModelDefaults:
     extra_breakpoints: tuple = ()
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
-        """Unit direction of the hoist rope with the load hanging at rest (default: plumb).
+        """Default of :meth:`SwingModel.rest_direction`: the rope hangs plumb.
 
         Parameters
         ----------
         rope_length_m : float
-            Rope length [m] (a model with wind or rope drag leans with it).
+            Rope length [m]; unused, a plumb rope does not lean with it.
 
         Returns
         -------
         ndarray
-            Unit vector (3,) from the suspension point down the rope [-].
+            ``(0, 0, -1)`` [-].
         """
         return np.array([0.0, 0.0, -1.0])
 
     def event_message(self, name: str, t: float) -> str | None:
-        """The model's own explanation of a terminal event (default: none).
+        """Default of :meth:`SwingModel.event_message`: no message of the model's own.
 
         Parameters
         ----------
-        name : str
-            The event's key in :meth:`SwingModel.make_events`.
-        t : float
-            The instant the event occurred [s].
+        name, t : str, float
+            Event key and instant [s]; unused.
 
         Returns
         -------
-        str or None
-            A sentence for the run's status message, or None for the solver's
-            generic one.
+        None
+            The solver then writes its generic message.
         """
         return None
 
     def bounce_period_s(self, rope_length_m: float | None = None) -> float | None:
-        """Period of the vertical bounce on an elastic rope (default: none, rope inextensible).
+        """Default of :meth:`SwingModel.bounce_period_s`: no bounce (inextensible rope).
 
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            Rope length [m]; unused.
 
         Returns
         -------
-        float or None
-            The period [s], or None when the model has no bounce.
+        None
+            No vertical bounce period.
         """
         return None

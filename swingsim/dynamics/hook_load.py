@@ -78,7 +78,7 @@ from dataclasses import replace
 import numpy as np
 
 from swingsim import constants
-from swingsim.dynamics.base import ModelDefaults
+from swingsim.dynamics.base import ModelDefaults, SwingModel
 from swingsim.dynamics.pendulum import direction_from_projected
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from swingsim.dynamics.rope import elastic_rope
@@ -99,7 +99,7 @@ def model_name(scene) -> str | None:
     Parameters
     ----------
     scene : Scene
-        A validated scene.
+        A validated scene; its hook, rigid load, elastic rope and rigging decide.
 
     Returns
     -------
@@ -119,10 +119,11 @@ def model_name(scene) -> str | None:
     return None
 
 
-class HookLoadModel(ModelDefaults):
+class HookLoadModel(ModelDefaults, SwingModel):
     """Hook block, rigid or point load on rigging, inextensible or elastic rope.
 
-    Follows :class:`swingsim.dynamics.base.SwingModel`; the equations are in the
+    Implements :class:`swingsim.dynamics.base.SwingModel` (whose members document
+    the methods; what differs is in the Notes below); the equations are in the
     module Notes.  The attributes below are what the metrics and the tests read;
     everything else is internal.
 
@@ -187,6 +188,34 @@ class HookLoadModel(ModelDefaults):
         The scene's rope length (loaded, at rest) [m].
     extra_breakpoints : tuple of float
         The lift-off instant, where the equations change [s].
+
+    Notes
+    -----
+    What this model adds to the protocol:
+
+    - initial state: the whole hanging system tilted rigidly to
+      ``start.swing_deg``, at rest relative to the support (suspension point, hook
+      and load CG on one straight line); ``start.swing_rate_deg_s`` turns it
+      rigidly about the suspension point (yaw part dropped for a rigid load).
+      With ``rope_preload = "lift-off"`` it also finds :attr:`lift_off_time_s`,
+      and nothing moves before that instant;
+    - events ``slack`` (hoist rope), ``leg_slack`` (a leg below a hook block only)
+      and ``overswing`` (rope, leg or tilt at the chart's limit), with a message
+      of its own for a slack elastic rope or sling leg;
+    - swing periods linearised about rest with the support fixed,
+      :math:`K \\phi = \\omega^2 M \\phi` (generalised eigenproblem, scipy); a
+      degenerate pair (both swing planes alike) is listed once, a rigid load's
+      distinct modes all; the elastic rope's bounce, :math:`2\\pi\\sqrt{m / k}`,
+      is left out of them (it does not couple with the swing at rest);
+    - at rest the hoist rope carries the sum of the forces below it (gravity,
+      wind drag on load and hook, half the rope's own drag; fixed-point
+      iteration, as for the point-mass model);
+    - besides the required outputs: ``hook_vel`` (N, 3) [m/s], ``leg_tension_N``
+      (N, k) [N], ``attach_points`` (N, k, 3) [m], ``load_rotation`` (N, 3, 3),
+      ``load_tilt_deg`` (N, 2) (None for a point load), ``top_sling_tension_N``
+      (N, 2) [N], ``spreader_lugs`` (N, k, 3) and ``spreader_ends`` (N, 2, 3) [m]
+      for a spreader, ``rope_stretch_m`` (N,) [m] for an elastic rope, the static
+      leg loads [N] and ``extra_columns`` for the CSV.
     """
 
     def __init__(self, scene):
@@ -264,23 +293,6 @@ class HookLoadModel(ModelDefaults):
 
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
-        """The whole hanging system tilted rigidly to ``start.swing_deg``, at rest relative to the support.
-
-        The suspension point, hook and load CG lie on one straight line; a rate
-        ``start.swing_rate_deg_s`` turns everything rigidly about the suspension
-        point (yaw part dropped for a rigid load).  With ``rope_preload =
-        "lift-off"`` this also finds :attr:`lift_off_time_s`.
-
-        Parameters
-        ----------
-        motion : Motion
-            The prescribed crane motion (for the lift-off instant).
-
-        Returns
-        -------
-        ndarray
-            Coordinates then rates, ordered as :attr:`state_names` [chart units].
-        """
         sw = self.scene.start
         u, v, du, dv = direction_from_projected(
             math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
@@ -344,22 +356,6 @@ class HookLoadModel(ModelDefaults):
         return math.inf
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
-        """Hoist rope direction with everything hanging at rest in the steady wind.
-
-        The massless rope carries the sum of the forces on everything below it:
-        gravity, the wind's drag on the load and hook, and half the rope's own
-        drag (fixed-point iteration, as for the point-mass model).
-
-        Parameters
-        ----------
-        rope_length_m : float
-            Rope length [m] (the rope's own drag grows with it).
-
-        Returns
-        -------
-        ndarray
-            Unit vector (3,) down the rope [-].
-        """
         wv = np.array([self._wind_x_m_s, self._wind_y_m_s, 0.0])
         sp = float(np.linalg.norm(wv))
         F0 = (np.array([0.0, 0.0, -self.hanging_mass_kg * self.gravity_m_s2])
@@ -380,7 +376,8 @@ class HookLoadModel(ModelDefaults):
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            Rope length the system hangs on [m] (it sets the elastic rope's static
+            stretch); the scene's initial length by default.
 
         Returns
         -------
@@ -802,20 +799,6 @@ class HookLoadModel(ModelDefaults):
         return self._eval(y, kin_state, applied=False)
 
     def make_rhs(self, kin):
-        """Right-hand side of the equations of motion for one piece between breakpoints.
-
-        Before lift-off (``rope_preload = "lift-off"``) nothing moves.
-
-        Parameters
-        ----------
-        kin : callable
-            ``Motion.local(t0, t1)``: the SuspensionState at any t [s] of the piece.
-
-        Returns
-        -------
-        callable
-            ``f(t, y) -> dy/dt`` (the fast float path).
-        """
         nq = self.n_coordinates
         t_lift = self.lift_off_time_s if self.starts_resting else None
 
@@ -833,19 +816,6 @@ class HookLoadModel(ModelDefaults):
         return rhs
 
     def make_events(self, kin):
-        """Terminal events: hoist rope or single leg slack; rope, leg or tilt at the chart's limit.
-
-        Parameters
-        ----------
-        kin : callable
-            As for :meth:`make_rhs`.
-
-        Returns
-        -------
-        dict
-            ``slack``, ``leg_slack`` (a leg below a hook block only) and
-            ``overswing`` event functions for ``solve_ivp``.
-        """
         wlim = self._wlim
         ev = self._eval
 
@@ -897,21 +867,6 @@ class HookLoadModel(ModelDefaults):
         return events
 
     def event_message(self, name: str, t: float) -> str | None:
-        """What a slack elastic rope or a slack sling leg means for the lift.
-
-        Parameters
-        ----------
-        name : str
-            The event's key in :meth:`make_events`.
-        t : float
-            The instant of the event [s].
-
-        Returns
-        -------
-        str or None
-            A sentence for the run's status message; None for the solver's generic
-            message (inextensible rope slack, overswing).
-        """
         if name == "slack" and self.rope_is_elastic:
             return (f"the elastic hoist rope would go slack at t = {t:.3f} s (its tension falls to "
                     "zero): the load would be thrown upward and snatch the rope on the way down; "
@@ -941,25 +896,6 @@ class HookLoadModel(ModelDefaults):
         return M, 0.5 * (K + K.T)
 
     def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
-        """Small-amplitude periods of the swing modes about hanging rest, longest first.
-
-        Linearised about rest with the support fixed: :math:`K \\phi = \\omega^2 M \\phi`
-        (generalised eigenproblem, scipy).  A degenerate pair of modes (the two
-        swing planes of a symmetric system) is listed once, as for the point-mass
-        model; a rigid load has distinct modes in its two planes, all listed.
-        The elastic rope's vertical bounce is left out (see :meth:`bounce_period_s`);
-        it does not couple with the swing at rest.
-
-        Parameters
-        ----------
-        rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
-
-        Returns
-        -------
-        list of float
-            Periods [s].
-        """
         from scipy.linalg import eigh
 
         M, K = self._linear_MK(rope_length_m)
@@ -974,18 +910,6 @@ class HookLoadModel(ModelDefaults):
         return [2 * math.pi / math.sqrt(x) for x in out]
 
     def bounce_period_s(self, rope_length_m: float | None = None) -> float | None:
-        """Period of the vertical bounce on the elastic rope, :math:`2\\pi\\sqrt{m / k}`.
-
-        Parameters
-        ----------
-        rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
-
-        Returns
-        -------
-        float or None
-            The period [s]; None for an inextensible rope.
-        """
         if not self.rope_is_elastic:
             return None
         L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
@@ -994,29 +918,6 @@ class HookLoadModel(ModelDefaults):
 
     # -- outputs -----------------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
-        """Derived quantities at sample times (see :meth:`SwingModel.outputs`).
-
-        Parameters
-        ----------
-        t : ndarray
-            Sample times (N,) [s].
-        Y : ndarray
-            States (N, n).
-        motion : Motion
-            The prescribed crane motion.
-
-        Returns
-        -------
-        dict
-            The required outputs of :class:`~swingsim.dynamics.base.SwingModel`
-            (``hook`` (N, 3) [m], None without a hook block), and
-            ``hook_vel`` (N, 3) [m/s], ``leg_tension_N`` (N, k) [N],
-            ``attach_points`` (N, k, 3) [m], ``load_rotation`` (N, 3, 3),
-            ``load_tilt_deg`` (N, 2) (None for a point load), ``top_sling_tension_N``
-            (N, 2) [N], ``spreader_lugs`` (N, k, 3) and ``spreader_ends`` (N, 2, 3)
-            [m] for a spreader, ``rope_stretch_m`` (N,) [m] for an elastic rope, the
-            static leg loads [N] and ``extra_columns`` for the CSV.
-        """
         t = np.asarray(t, dtype=float)
         Y = np.asarray(Y, dtype=float)
         key = (hash(t.tobytes()), hash(Y.tobytes()), t.shape, id(motion))

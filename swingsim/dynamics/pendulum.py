@@ -41,7 +41,7 @@ import math
 import numpy as np
 
 from swingsim import constants
-from swingsim.dynamics.base import ModelDefaults
+from swingsim.dynamics.base import ModelDefaults, SwingModel
 from swingsim.dynamics.forces import drag_coefficient_per_mass
 
 
@@ -169,16 +169,14 @@ def tension_per_mass(u, v, du, dv, L, ddL, apx, apy, apz, fx, fy, fz):
 
     Parameters
     ----------
-    u, v : float or ndarray
-        Horizontal components of the unit rope direction [-].
-    du, dv : float or ndarray
-        Their rates [1/s].
-    L, ddL : float or ndarray
-        Rope length and its second derivative [m, m/s^2].
-    apx, apy, apz : float or ndarray
-        Acceleration of the suspension point [m/s^2].
-    fx, fy, fz : float or ndarray
-        Applied force per unit mass on the load (:func:`specific_force`) [m/s^2].
+    u, v, du, dv, L : float or ndarray
+        Rope direction chart, its rates and the rope length, as for
+        :func:`accelerations` [-, 1/s, m].
+    ddL : float or ndarray
+        Second derivative of the rope length [m/s^2].
+    apx, apy, apz, fx, fy, fz : float or ndarray
+        Acceleration of the suspension point and applied force per unit mass on
+        the load, as for :func:`accelerations` [m/s^2].
 
     Returns
     -------
@@ -224,7 +222,7 @@ def model_params(scene) -> dict:
     Parameters
     ----------
     scene : Scene
-        A validated scene.
+        A validated scene (its gravity, damping ratio, load, rope and wind).
 
     Returns
     -------
@@ -249,16 +247,28 @@ def model_params(scene) -> dict:
             "m": load.mass_kg}
 
 
-class PointMassModel(ModelDefaults):
+class PointMassModel(ModelDefaults, SwingModel):
     """The load as a point mass at the end of the hoist rope (no hook block).
 
-    Follows :class:`swingsim.dynamics.base.SwingModel`; the equations are in the
-    module Notes.
+    Implements :class:`swingsim.dynamics.base.SwingModel` (whose members document
+    the methods); the equations are in the module Notes.
 
     Parameters
     ----------
     scene : Scene
         A validated scene.
+
+    Notes
+    -----
+    What this model adds to the protocol:
+
+    - the state is ``(u, v, du, dv)`` [-, -, 1/s, 1/s], at t = 0 from
+      ``start.swing_deg`` and ``start.swing_rate_deg_s``;
+    - one swing period, the textbook pendulum's :math:`2\\pi\\sqrt{L / g}`;
+    - events ``slack`` (rope tension reaches zero) and ``overswing`` (the rope
+      reaches the model's angle limit);
+    - at rest the rope leans with the steady wind (:func:`rest_direction`);
+    - the outputs' ``hook`` is None.
     """
 
     name = "point-mass"
@@ -272,54 +282,18 @@ class PointMassModel(ModelDefaults):
 
     # -- set-up --------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
-        """The state at t = 0 from ``start.swing_deg`` and ``start.swing_rate_deg_s``.
-
-        Parameters
-        ----------
-        motion : Motion
-            The prescribed crane motion (not needed by this model).
-
-        Returns
-        -------
-        ndarray
-            ``(u, v, du, dv)`` [-, -, 1/s, 1/s].
-        """
         sw = self.scene.start
         return np.array(direction_from_projected(
             math.radians(sw.swing_deg[0]), math.radians(sw.swing_deg[1]),
             math.radians(sw.swing_rate_deg_s[0]), math.radians(sw.swing_rate_deg_s[1])))
 
     def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
-        """Small-amplitude swing period :math:`2\\pi\\sqrt{L / g}` (textbook).
-
-        Parameters
-        ----------
-        rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
-
-        Returns
-        -------
-        list of float
-            The one period [s].
-        """
         L = self.scene.rope.length_m if rope_length_m is None else rope_length_m
         return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
 
     # -- the equations -------------------------------------------------------
 
     def make_rhs(self, kin):
-        """Right-hand side of the equations of motion for one piece between breakpoints.
-
-        Parameters
-        ----------
-        kin : callable
-            ``Motion.local(t0, t1)``: the SuspensionState at any t [s] of the piece.
-
-        Returns
-        -------
-        callable
-            ``f(t, y) -> [du, dv, ddu, ddv]``.
-        """
         par = self.par
         sf, acc = specific_force, accelerations
 
@@ -334,18 +308,6 @@ class PointMassModel(ModelDefaults):
         return rhs
 
     def make_events(self, kin):
-        """Terminal events: the rope goes slack (tension <= 0), the swing reaches the model's limit.
-
-        Parameters
-        ----------
-        kin : callable
-            As for :meth:`make_rhs`.
-
-        Returns
-        -------
-        dict
-            ``slack`` and ``overswing`` event functions for ``solve_ivp``.
-        """
         par = self.par
         wlim = self._wlim
 
@@ -368,39 +330,10 @@ class PointMassModel(ModelDefaults):
         return {"slack": slack, "overswing": overswing}
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
-        """Rope direction at rest in the steady wind (suspension point still).
-
-        Parameters
-        ----------
-        rope_length_m : float
-            Rope length [m] (the rope's own drag grows with it).
-
-        Returns
-        -------
-        ndarray
-            Unit vector (3,) down the rope [-].
-        """
         return rest_direction(self.par, rope_length_m)
 
     # -- outputs ---------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
-        """Derived quantities at sample times (see :meth:`SwingModel.outputs`).
-
-        Parameters
-        ----------
-        t : ndarray
-            Sample times (N,) [s].
-        Y : ndarray
-            States (N, 4).
-        motion : Motion
-            The prescribed crane motion.
-
-        Returns
-        -------
-        dict
-            The required outputs of :class:`~swingsim.dynamics.base.SwingModel`;
-            ``hook`` is None.
-        """
         e = motion.evaluate(t)
         u, v, du, dv = Y[:, 0], Y[:, 1], Y[:, 2], Y[:, 3]
         w = np.sqrt(np.clip(1.0 - u * u - v * v, 0.0, None))

@@ -24,7 +24,7 @@ def model_name_for(scene) -> str:
     Parameters
     ----------
     scene : Scene
-        A scene whose keys are valid.
+        A scene whose keys are valid; each selector of :data:`SELECTORS` reads it.
 
     Returns
     -------
@@ -44,7 +44,7 @@ def select_model(scene):
     Parameters
     ----------
     scene : Scene
-        A scene whose keys are valid.
+        As for :func:`model_name_for`; the model is built for it.
 
     Returns
     -------

@@ -65,7 +65,7 @@ def box_inertia(mass_kg: float, size_m) -> np.ndarray:
     Parameters
     ----------
     mass_kg : float
-        Mass [kg].
+        Mass of the box, spread evenly through it [kg].
     size_m : sequence of float
         Side lengths along x, y, z [m].
 
@@ -114,10 +114,9 @@ def cylinder_inertia(mass_kg: float, size_m) -> np.ndarray:
 
     Parameters
     ----------
-    mass_kg : float
-        Mass [kg].
-    size_m : sequence of float
-        The bounding box's sides [m]; the axis as :func:`cylinder_axis` reads it.
+    mass_kg, size_m : float, sequence of float
+        As for :func:`box_inertia` [kg, m]; the cylinder's axis, diameter and
+        length as :func:`cylinder_axis` reads them from the box.
 
     Returns
     -------

@@ -147,6 +147,11 @@ class ElasticRope:
         """
         return self.lambda0_m + (L - self.loaded_length_m)
 
+    def _spring(self, L: float) -> tuple[float, float]:
+        """Unstretched fall length [m] and stiffness [N/m] at prescribed rope length ``L`` [m]."""
+        lam = self.unstretched(L)
+        return lam, self.stiffness(lam)
+
     def tension(self, ell, dell, L, dL):
         """Rope tension of the spring and dashpot, before the tension-only clamp.
 
@@ -166,8 +171,7 @@ class ElasticRope:
         float
             Tension [N]; negative means slack.
         """
-        lam = self.lambda0_m + (L - self.loaded_length_m)
-        k = self.K / (self.falls * lam + self.lead_length_m)
+        lam, k = self._spring(L)
         c = 2.0 * self.damping_ratio * math.sqrt(k * self.mass_kg)
         return k * (ell - lam) + c * (dell - dL)
 
@@ -176,18 +180,16 @@ class ElasticRope:
 
         Parameters
         ----------
-        ell : float
-            Stretched rope length [m].
-        L : float
-            Rope length the hoist motion prescribes [m].
+        ell, L : float
+            Stretched rope length and the length the hoist motion prescribes, as
+            for :meth:`tension` [m].
 
         Returns
         -------
         float
             Energy [J]; zero when slack.
         """
-        lam = self.lambda0_m + (L - self.loaded_length_m)
-        k = self.K / (self.falls * lam + self.lead_length_m)
+        lam, k = self._spring(L)
         x = ell - lam
         return 0.5 * k * x * x if x > 0 else 0.0
 

@@ -76,7 +76,9 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                    f"of {lim.clearance_m:.3f} m.")
     for z in s.get("zones", []):
         if z["inside"]:
-            out.append(f"The load enters {z['kind']} '{z['name']}' (from t = {z['first_within_margin_s']:.1f} s).")
+            who = ", ".join(z.get("entered_by") or ["load"])
+            out.append(f"Parts of the suspended system ({who}) {'pass over' if z['kind'] == 'exclusion' else 'touch'} "
+                       f"{z['kind']} '{z['name']}' (from t = {z.get('first_entry_s') or z['first_within_margin_s']:.1f} s).")
         elif z["within_margin"]:
             out.append(f"The load comes within {z['min_distance_m']:.2f} m of {z['kind']} '{z['name']}', "
                        f"inside its {z['margin_m']:g} m margin (from t = {z['first_within_margin_s']:.1f} s).")

@@ -23,6 +23,7 @@ from swingsim.metrics.chart import chart_metrics, chart_warnings
 from swingsim.metrics.definitions import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_metrics, model_warnings
 from swingsim.metrics.zones import zone_summaries
+from swingsim.scene.site import scene_wind_from_bearing_deg
 
 __all__ = ["Summary", "summarize", "metric_times", "rope_angle_rad", "angle_between"]
 
@@ -182,7 +183,7 @@ def summarize(traj) -> Summary:
                  if post.any() else None)
 
     # zones
-    zones = zone_summaries(t, s["load"], scene)
+    zones = zone_summaries(t, s, scene)
 
     pos_moves = [m for m in scene.moves]
     move_list = []
@@ -239,6 +240,7 @@ def summarize(traj) -> Summary:
         "settle_time_s": settle_time,
         "settled_at_s": settled_at,
         "zones": zones,
+        "wind_from_bearing_deg": scene_wind_from_bearing_deg(scene),
     }
     if not traj.valid:
         data["invalid_reason"] = traj.message

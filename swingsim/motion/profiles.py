@@ -47,7 +47,8 @@ class Profile:
     """Base class of a one-axis motion profile.
 
     Subclasses implement :meth:`evaluate` and set ``start_s``, ``end_s``,
-    ``breakpoints`` and ``distance``.
+    ``breakpoints`` and ``distance``; they inherit the docstrings of
+    :meth:`evaluate` and :meth:`local_poly`, whose contract is written here once.
     """
 
     start_s: float
@@ -61,7 +62,8 @@ class Profile:
         Parameters
         ----------
         t : float or array_like
-            Time(s) [s].
+            Time(s) [s]; before ``start_s`` the profile rests at 0, from ``end_s``
+            on at ``distance``.
 
         Returns
         -------
@@ -84,7 +86,8 @@ class Profile:
         Returns
         -------
         tuple of float or None
-            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None.
+            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
+            profile is not one cubic on [t0, t1].
         """
         return None
 
@@ -135,18 +138,6 @@ class PiecewiseCubic(Profile):
         return p, 0.0, 0.0
 
     def evaluate(self, t):
-        """Displacement, velocity and acceleration at time(s) ``t``.
-
-        Parameters
-        ----------
-        t : float or array_like
-            Time(s) [s].
-
-        Returns
-        -------
-        pos, vel, acc : ndarray
-            Same shape as ``t`` [axis unit, unit/s, unit/s^2].
-        """
         t = np.asarray(t, dtype=float)
         k = np.clip(np.searchsorted(self.knots, t, side="right") - 1, 0, len(self.j) - 1)
         tau = t - self.knots[k]
@@ -162,19 +153,6 @@ class PiecewiseCubic(Profile):
         return p, v, a
 
     def local_poly(self, t0, t1):
-        """The profile as one cubic on an interval, about its start (see :meth:`Profile.local_poly`).
-
-        Parameters
-        ----------
-        t0, t1 : float
-            The interval [s].
-
-        Returns
-        -------
-        tuple of float or None
-            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
-            profile is not one cubic on [t0, t1].
-        """
         if t1 <= self.knots[0]:
             return (0.0, 0.0, 0.0, 0.0)
         if t0 >= self.knots[-1]:
@@ -284,18 +262,12 @@ def s_curve(start_s: float, distance: float, speed: float, accel: float,
 
     Parameters
     ----------
-    start_s : float
-        Start of the move [s].
-    distance : float
-        Signed displacement [m or rad].
-    speed : float
-        Speed limit [unit/s].
-    accel : float
-        Acceleration limit [unit/s^2].
+    start_s, distance, speed, accel : float
+        As for :func:`trapezoid` [s, m or rad, unit/s, unit/s^2].
     jerk : float
         Jerk limit [unit/s^3].
     decel : float, optional
-        Deceleration limit [unit/s^2]; ``accel`` by default.
+        As for :func:`trapezoid` [unit/s^2].
 
     Returns
     -------
@@ -343,18 +315,6 @@ class SplineProfile(Profile):
         return float(self.spline(self.end_s - self.start_s))
 
     def evaluate(self, t):
-        """Displacement, velocity and acceleration at time(s) ``t``.
-
-        Parameters
-        ----------
-        t : float or array_like
-            Time(s) [s].
-
-        Returns
-        -------
-        pos, vel, acc : ndarray
-            Same shape as ``t`` [axis unit, unit/s, unit/s^2].
-        """
         t = np.asarray(t, dtype=float)
         tau = np.clip(t - self.start_s, 0.0, self.end_s - self.start_s)
         inside = (t >= self.start_s) & (t < self.end_s)
@@ -364,19 +324,6 @@ class SplineProfile(Profile):
         return p, v, a
 
     def local_poly(self, t0, t1):
-        """The profile as one cubic on an interval, about its start (see :meth:`Profile.local_poly`).
-
-        Parameters
-        ----------
-        t0, t1 : float
-            The interval [s].
-
-        Returns
-        -------
-        tuple of float or None
-            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
-            profile is not one cubic on [t0, t1].
-        """
         if t1 <= self.start_s:
             return (0.0, 0.0, 0.0, 0.0)
         if t0 >= self.end_s:
@@ -460,18 +407,6 @@ class SumProfile(Profile):
         return tuple(sorted(pts))
 
     def evaluate(self, t):
-        """Displacement, velocity and acceleration at time(s) ``t``.
-
-        Parameters
-        ----------
-        t : float or array_like
-            Time(s) [s].
-
-        Returns
-        -------
-        pos, vel, acc : ndarray
-            Same shape as ``t`` [axis unit, unit/s, unit/s^2].
-        """
         t = np.asarray(t, dtype=float)
         out = [np.zeros_like(t), np.zeros_like(t), np.zeros_like(t)]
         for w, s, p in self.parts:
@@ -480,19 +415,6 @@ class SumProfile(Profile):
         return tuple(out)
 
     def local_poly(self, t0, t1):
-        """The profile as one cubic on an interval, about its start (see :meth:`Profile.local_poly`).
-
-        Parameters
-        ----------
-        t0, t1 : float
-            The interval [s].
-
-        Returns
-        -------
-        tuple of float or None
-            ``(c0, c1, c2, c3)`` [unit, unit/s, unit/s^2, unit/s^3], or None when the
-            profile is not one cubic on [t0, t1].
-        """
         total = [0.0, 0.0, 0.0, 0.0]
         for w, s, p in self.parts:
             c = p.local_poly(t0 - s, t1 - s)

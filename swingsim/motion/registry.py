@@ -17,7 +17,8 @@ import numpy as np
 from swingsim import constants
 from swingsim.errors import SceneError
 from swingsim.motion import profiles, shaping
-from swingsim.motion.kinematics import Motion
+from swingsim.motion.kinematics import Boom, Motion
+from swingsim.motion.limits import check_reach, sample_times
 
 
 @dataclass(frozen=True)
@@ -86,7 +87,7 @@ def needs_swing_period(scene) -> bool:
     Parameters
     ----------
     scene : Scene
-        A scene whose keys are valid.
+        A scene whose keys are valid; its moves' profiles and shaper keys decide.
 
     Returns
     -------
@@ -146,6 +147,25 @@ def build_profile(move, scene, swing_period_s: float | None = None) -> profiles.
                          "or vanishes); check the values and units") from None
 
 
+def crane_boom(crane) -> Boom | None:
+    """The crane's luffing boom, or None when a radius move holds the suspension height.
+
+    Parameters
+    ----------
+    crane : Crane
+        The scene's ``[crane]`` (its ``boom_length_m``, ``boom_foot_m`` and ``level_luffing``).
+
+    Returns
+    -------
+    Boom or None
+        The boom when ``boom_length_m`` is given.
+    """
+    if crane.boom_length_m is None:
+        return None
+    offset, height = crane.boom_foot_m
+    return Boom(float(crane.boom_length_m), float(offset), float(height), bool(crane.level_luffing))
+
+
 def build_motion(scene, swing_period_s: float | None = None) -> Motion:
     """Build the suspension-point and rope-length motion of a scene.
 
@@ -164,8 +184,10 @@ def build_motion(scene, swing_period_s: float | None = None) -> Motion:
     Raises
     ------
     SceneError
-        When a profile cannot be built, or the hoist would make the rope
-        shorter than the minimum or a move outlasts the simulation.
+        When a profile cannot be built, the hoist (or level luffing) would make
+        the rope shorter than the minimum, a move outlasts the simulation, or a
+        move takes the suspension point beyond the crane's reach
+        (:func:`swingsim.motion.limits.check_reach`).
     """
     moves = []
     for m in scene.moves:
@@ -174,11 +196,11 @@ def build_motion(scene, swing_period_s: float | None = None) -> Motion:
             raise SceneError(scene.file, f"{move_key(m)}", f"ends at {prof.end_s:.3f} s, after the end of "
                              f"the simulation (duration_s = {scene.duration_s:g}); lengthen duration_s")
         moves.append((m.axis, prof))
-    motion = Motion(tuple(scene.crane.suspension_m), scene.rope.length_m, tuple(moves))
-    hoists = [p for a, p in moves if a == "hoist"]
-    if hoists:
-        pts = set(motion.breakpoints) | {0.0, scene.duration_s}
-        ts = np.union1d(np.array(sorted(pts)), np.linspace(0.0, scene.duration_s, 2001))
+    motion = Motion(tuple(scene.crane.suspension_m), scene.rope.length_m, tuple(moves),
+                    slew_center_m=tuple(scene.crane.slew_center_m), boom=crane_boom(scene.crane))
+    ts = sample_times(motion, scene.duration_s)
+    check_reach(scene, motion, ts)
+    if any(a == "hoist" for a, _ in moves) or motion.luffs:
         L = motion.evaluate(ts)["L"]
         if np.min(L) < constants.MIN_ROPE_LENGTH_M:
             i = int(np.argmin(L))

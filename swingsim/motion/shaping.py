@@ -111,12 +111,15 @@ def _check(period_s: float, zeta: float):
         raise ProfileError(f"the shaper damping ratio must be in [0, 1), got {zeta!r}")
 
 
-def _k_factor(zeta: float) -> float:
-    return math.exp(-zeta * math.pi / math.sqrt(1.0 - zeta * zeta))
+def _checked_terms(period_s: float, zeta: float) -> tuple[float, float]:
+    """Check the tuning; the impulse ratio K [-] and half the damped period [s].
 
-
-def _half_damped_period(period_s: float, zeta: float) -> float:
-    return 0.5 * period_s / math.sqrt(1.0 - zeta * zeta)
+    :math:`K = e^{-\\zeta\\pi/\\sqrt{1-\\zeta^2}}` (Singer & Seering 1990, module
+    References).
+    """
+    _check(period_s, zeta)
+    return (math.exp(-zeta * math.pi / math.sqrt(1.0 - zeta * zeta)),
+            0.5 * period_s / math.sqrt(1.0 - zeta * zeta))
 
 
 def zv(period_s: float, zeta: float = 0.0) -> Shaper:
@@ -138,9 +141,7 @@ def zv(period_s: float, zeta: float = 0.0) -> Shaper:
     ----------
     .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
     """
-    _check(period_s, zeta)
-    K = _k_factor(zeta)
-    h = _half_damped_period(period_s, zeta)
+    K, h = _checked_terms(period_s, zeta)
     return Shaper("zv", (1.0 / (1.0 + K), K / (1.0 + K)), (0.0, h))
 
 
@@ -149,10 +150,8 @@ def zvd(period_s: float, zeta: float = 0.0) -> Shaper:
 
     Parameters
     ----------
-    period_s : float
-        Undamped natural period [s].
-    zeta : float
-        Damping ratio [-].
+    period_s, zeta : float
+        Period [s] and damping ratio [-] of the mode to cancel, as for :func:`zv`.
 
     Returns
     -------
@@ -163,9 +162,7 @@ def zvd(period_s: float, zeta: float = 0.0) -> Shaper:
     ----------
     .. [1] N. C. Singer and W. P. Seering, 1990 (module References).
     """
-    _check(period_s, zeta)
-    K = _k_factor(zeta)
-    h = _half_damped_period(period_s, zeta)
+    K, h = _checked_terms(period_s, zeta)
     d = (1.0 + K) ** 2
     return Shaper("zvd", (1.0 / d, 2.0 * K / d, K * K / d), (0.0, h, 2.0 * h))
 
@@ -208,10 +205,8 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
 
     Parameters
     ----------
-    period_s : float
-        Undamped natural period [s].
-    zeta : float
-        Damping ratio [-]; for zeta > 0 the EI conditions are solved
+    period_s, zeta : float
+        As for :func:`zv` [s, -]; for zeta > 0 the EI conditions are solved
         numerically (see the module Notes).
     tolerance : float
         Residual vibration V allowed at the design frequency [-], 0 < V < 1.
@@ -234,11 +229,10 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
     ----------
     .. [2] W. Singhose, W. Seering and N. Singer, 1994 (module References).
     """
-    _check(period_s, zeta)
+    K, h = _checked_terms(period_s, zeta)
     V = float(tolerance)
     if not (0.0 < V < 1.0):
         raise ProfileError(f"the EI tolerance must be between 0 and 1, got {tolerance!r}")
-    h = _half_damped_period(period_s, zeta)
     times = (0.0, h, 2.0 * h)
     A0 = np.array([(1 + V) / 4, (1 - V) / 2, (1 + V) / 4])
     if zeta == 0.0:
@@ -255,7 +249,6 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
         # |S| = V and d|S|^2/dw = 2 Re(conj(S) dS/dw) = 0 at the design frequency
         return [abs(S) ** 2 - V * V, float(np.real(np.conj(S) * dS)) * w]
 
-    K = _k_factor(zeta)
     guess = np.array([A0[0], A0[1] * K]) / (A0[0] + A0[1] * K + A0[2] * K * K)
     x, info, ok, _ = fsolve(eqs, guess, full_output=True, xtol=1e-14)
     A = (float(x[0]), float(x[1]), float(1.0 - x[0] - x[1]))
@@ -320,6 +313,20 @@ SHAPERS = {
 _MAX_PERIODS = 1000
 
 
+def _first_fitting(period_s: float, fit):
+    """Speed and acceleration of the smallest whole number n >= 1 of periods that fits.
+
+    ``fit(n T)`` gives ``(speed, accel)`` when n periods fit the move's limits, else
+    None; :class:`ProfileError` when no n up to :data:`_MAX_PERIODS` fits.
+    """
+    _check(period_s, 0.0)
+    for n in range(1, _MAX_PERIODS + 1):
+        found = fit(n * period_s)
+        if found is not None:
+            return found
+    raise ProfileError("no whole number of swing periods fits the move's limits")
+
+
 def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel: float,
                            period_s: float) -> PiecewiseCubic:
     """Trapezoid whose acceleration and deceleration each last n whole periods.
@@ -339,23 +346,21 @@ def whole_period_trapezoid(start_s: float, distance: float, speed: float, accel:
     Returns
     -------
     PiecewiseCubic
-        The move.
+        The move: a trapezoid at the fitted speed and acceleration.
 
     Raises
     ------
     ProfileError
         When no whole number of periods up to 1000 fits the limits.
     """
-    _check(period_s, 0.0)
     D = abs(distance)
-    for n in range(1, _MAX_PERIODS + 1):
-        Ta = n * period_s
+
+    def fit(Ta):
         vp = min(speed, D / Ta)
         a = vp / Ta
-        if a <= accel * (1 + 1e-12):
-            break
-    else:
-        raise ProfileError("no whole number of swing periods fits the move's limits")
+        return (vp, a) if a <= accel * (1 + 1e-12) else None
+
+    vp, a = _first_fitting(period_s, fit)
     return trapezoid(start_s, distance, vp, a)
 
 
@@ -370,43 +375,33 @@ def whole_period_s_curve(start_s: float, distance: float, speed: float, accel: f
 
     Parameters
     ----------
-    start_s : float
-        Start of the move [s].
-    distance : float
-        Signed travel [m or rad].
-    speed : float
-        Speed limit [unit/s].
-    accel : float
-        Acceleration limit [unit/s^2].
+    start_s, distance, speed, accel, period_s : float
+        As for :func:`whole_period_trapezoid` [s, m or rad, unit/s, unit/s^2, s].
     jerk : float
-        Jerk [unit/s^3].
-    period_s : float
-        Swing period [s].
+        Jerk of the ramps [unit/s^3], used as given (not a limit).
 
     Returns
     -------
     PiecewiseCubic
-        The move.
+        The move: an s-curve at the fitted speed and acceleration, with ``jerk``.
 
     Raises
     ------
     ProfileError
-        When no whole number of periods up to 1000 fits the limits.
+        As for :func:`whole_period_trapezoid`.
     """
-    _check(period_s, 0.0)
     D = abs(distance)
-    for n in range(1, _MAX_PERIODS + 1):
-        nT = n * period_s
+
+    def fit(nT):
         v = speed
         if v * (nT + v / (nT * jerk)) > D:  # ramps up and down need more than D
             # v^2 / (nT j) + v nT - D = 0
             qa, qb = 1.0 / (nT * jerk), nT
             v = (-qb + math.sqrt(qb * qb + 4 * qa * D)) / (2 * qa)
         a = v / nT
-        if a <= accel * (1 + 1e-12) and v >= a * a / jerk:
-            break
-    else:
-        raise ProfileError("no whole number of swing periods fits the move's limits")
+        return (v, a) if a <= accel * (1 + 1e-12) and v >= a * a / jerk else None
+
+    v, a = _first_fitting(period_s, fit)
     return s_curve(start_s, distance, v, a, jerk)
 
 
@@ -492,19 +487,13 @@ def build_whole_period(move, scene, scale, swing_period_s=None) -> Profile:
 
     Parameters
     ----------
-    move : Move
-        The scene's move (its distance, speed, acceleration and shaper keys).
-    scene : Scene
-        Its scene (the damping ratio when the move gives none).
-    scale : float
-        Scene unit to internal unit (pi/180 for slew moves in degrees, else 1) [-].
-    swing_period_s : float, optional
-        The lift's first swing period [s], used when the move gives no
-        ``shaper_period_s``.
+    move, scene, scale, swing_period_s
+        As for :func:`build_shaped` (scale [-], period [s]); the damping ratio is
+        not used: whole periods of acceleration leave no swing at any damping.
 
     Returns
     -------
-    Profile
+    PiecewiseCubic
         The move in internal units.
     """
     T, _ = tuning(move, scene, swing_period_s)

@@ -129,10 +129,27 @@ def event_text(t_s: float, events) -> str:
     return "\n".join(on[-3:])
 
 
-def _zone_text(names) -> str:
-    if not names:
-        return ""
-    return "Load near zone: " + ", ".join(names)
+def zone_text(states) -> str:
+    """The zone lines of a frame: which parts of the suspended system are in or near which zone.
+
+    Parameters
+    ----------
+    states : sequence of tuple
+        ``(zone name, state, body names)`` of the zones not clear at this instant, the
+        state being the summary's verdict (:func:`swingsim.metrics.zones.verdict`).
+
+    Returns
+    -------
+    str
+        One line a zone, e.g. ``Load, rope IN zone: footpath`` or ``Load near zone: hut``;
+        empty when every zone is clear.
+    """
+    lines = []
+    for name, state, bodies in states:
+        who = ", ".join(bodies).replace("_", " ")
+        who = who[:1].upper() + who[1:]
+        lines.append(f"{who} {'IN' if state == 'entered' else 'near'} zone: {name}")
+    return "\n".join(lines)
 
 
 def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
@@ -144,7 +161,7 @@ def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
 
 
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
-               events, near_zones, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
+               events, zone_states, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
     """All the words of the frame at simulated time ``t_s``.
 
     Parameters
@@ -161,8 +178,8 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         The run's outputs at ``t_s`` (one instant of ``Trajectory.sample``).
     events : sequence of swingsim.render.facts.Event
         The run's events.
-    near_zones : sequence of str
-        Names of the zones within their margin of the load.
+    zone_states : sequence of tuple
+        ``(zone name, state, body names)`` of the zones not clear at ``t_s`` (see :func:`zone_text`).
     line_chars : int
         Longest caution line [characters].
     banner_chars : int
@@ -184,7 +201,7 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         clock=clock_text(t_s, speed),
         readout=_readout_text(ang, spd, ten, float(row["rope_length"])),
         event=event_text(t_s, events),
-        zone=_zone_text(near_zones),
+        zone=zone_text(zone_states),
         caution=caution_line(line_chars),
         banner=_banner_text(banner_chars) if _banner_on(video_t_s, video_len_s) else "",
         stopped=_stopped_text(t_s, facts),

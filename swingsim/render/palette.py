@@ -20,6 +20,8 @@ PALETTE = {
     "obstacle": "#6c757d", "exclusion": "#2a9d8f", "warn": "#d62828",
     "axis_x": "#9d0208", "axis_y": "#1b4332", "text": "#111111", "panel": "#ffffff",
     "banner": "#fff3b0",
+    # -- site bearings: the north arrow and the wind arrow on the ground --
+    "north": "#111111", "wind": "#0b6e99",
 }
 
 #: How each material of :class:`swingsim.scene3d.Body` is drawn: its palette colour, opacity,

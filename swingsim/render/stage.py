@@ -16,10 +16,12 @@ import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
 from swingsim import scene3d
-from swingsim.metrics.zones import load_half_size_m, zone_distance
+from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
 from swingsim.render.palette import LABEL_STYLE, PALETTE, STYLE, darker, envelope_image, ground_image, rgb
+from swingsim.scene.site import wind_words
+from swingsim.scene3d.meshes import arrow
 from swingsim.scene3d.poses import SAMPLE_KEYS
 from swingsim.scene3d.transforms import is_shown
 
@@ -157,6 +159,8 @@ class Stage:
                 colour, size, bold = LABEL_STYLE[label.role]
                 colour = PALETTE[colour] if label.role in ("grid", "axis_x", "axis_y") else darker(PALETTE[colour])
                 self._label(label.position_m, label.text, size=size, colour=colour, bold=bold)
+            if name == "axis_y":
+                self._site_arrows(body.mesh)
             if name == "envelope":  # the trail: the load's last TRAIL_S seconds
                 self.trail = pv.PolyData(np.repeat(self.scene3d.path_load_m[:1], TRAIL_N, axis=0),
                                          lines=np.concatenate([[TRAIL_N], np.arange(TRAIL_N)]))
@@ -179,8 +183,7 @@ class Stage:
         for z in scene.zones:
             solid, edges = self.actors[f"zone_{z.name}"]
             self.zones.append((z, solid, edges, PALETTE[z.kind]))
-        self._zone_state = [False] * len(self.zones)
-        self.load_half = load_half_size_m(scene)
+        self._zone_state = ["clear"] * len(self.zones)
         self.rope = self.actors["rope"][0]
         self.slings = [self.actors[f"sling_{i + 1}"][0] for i in range(self.scene3d.rigging.sling_count)]
         self.load_actor = self.actors["load"][0]
@@ -202,6 +205,34 @@ class Stage:
             tp.SetBold(bold)
             tp.SetJustificationToCentered()
             ren.AddActor(a)
+
+    def _site_arrows(self, axis_mesh):
+        """A north arrow and, with wind, an arrow the way the wind blows, on the ground beside the +x/+y arrows.
+
+        Same length as the axis arrows, beside them on the side away from +x: north
+        at ``site.north_deg`` from +x, the wind toward ``wind.direction_deg``, each
+        with its label (the wind as the bearing it comes from).
+        """
+        scene = self.traj.scene
+        v = axis_mesh.vertices
+        origin = v.min(axis=0)
+        length = float(np.ptp(v[:, 1]))
+        centre = np.array([origin[0] - 3.0 * length, origin[1] + 1.0 * length, 0.12])
+        north = math.radians(scene.site.north_deg)
+        d = np.array([math.cos(north), math.sin(north), 0.0])
+        self._add(_polydata(arrow(centre - 0.5 * length * d, d, length), "faces"), PALETTE["north"],
+                  lighting=False)
+        self._label(centre + 0.65 * length * d, "N", size=LABEL_STYLE["axis_x"][1], colour=PALETTE["north"],
+                    bold=True)
+        if scene.wind.speed_m_s > 0.0:
+            toward = math.radians(scene.wind.direction_deg)
+            w = np.array([math.cos(toward), math.sin(toward), 0.0])
+            at = centre + np.array([-0.2 * length, -1.6 * length, 0.0])
+            self._add(_polydata(arrow(at - 0.5 * length * w, w, length, tip_radius=0.12, shaft_radius=0.05),
+                                "faces"), PALETTE["wind"], lighting=False)
+            self._label(at + np.array([0.0, -0.75 * length, 0.0]),
+                        f"wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}",
+                        size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True)
 
     def _place_cameras(self):
         w, h = self.size
@@ -371,14 +402,14 @@ class Stage:
         p = np.asarray(row["suspension"], dtype=float)
         load = np.asarray(row["load"], dtype=float)
         self._update_trail(t, load)
-        near = self._update_zones(load)
+        states = self._update_zones(row)
         for ren, cam in zip(self.renderers, self.cams):
             if cam is None:
                 # aim a little above the load: the swing in the middle, clear of the banner
                 focus = (0.3 * p[0] + 0.7 * load[0], 0.3 * p[1] + 0.7 * load[1], load[2] + 0.3 * (p[2] - load[2]))
                 cam = views.follow(focus, self.follow_span, self.aspect)
             self._apply_camera(ren, cam)
-        ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, near,
+        ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
                                 self.line_chars, self.banner_chars, self.facts)
         # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
         # display (readable, and text is costly to rasterise); the clock and the picture
@@ -393,7 +424,8 @@ class Stage:
             self.txt[key].SetInput(getattr(ft, key))
             self.txt[key].SetVisibility(bool(getattr(ft, key)))
         self.last_text = ft
-        self.near_zones = near
+        self.zone_states = states
+        self.near_zones = [name for name, _state, _bodies in states]
         return ft
 
     def _update_trail(self, t, load):
@@ -409,25 +441,31 @@ class Stage:
         self.trail.points[:] = pts
         self.trail.Modified()
 
-    def _update_zones(self, load):
-        """Zones within their margin of the load turn the warning colour; returns their names.
+    def _update_zones(self, row):
+        """Zones entered or within their margin turn the warning colour; returns their states.
 
-        By the summary's own rule (``metrics.zone_distance``: the load's upright box
-        against the zone), so the video and the report agree.
+        By the summary's own verdict (:func:`swingsim.metrics.zones.zone_verdicts_at`:
+        every part of the suspended system against each zone), so the video and the
+        report say the same thing at the same instant.
+
+        Returns
+        -------
+        list of tuple
+            ``(zone name, state, body names)`` of the zones not clear.
         """
-        near = []
-        for j, (z, solid, edges, colour) in enumerate(self.zones):
-            d = zone_distance(load[None, :], np.asarray(z.min_m) - self.load_half, np.asarray(z.max_m) + self.load_half)
-            inside = bool(d[0] <= z.margin_m)
-            if inside:
-                near.append(z.name)
-            if inside != self._zone_state[j]:
-                c = rgb(PALETTE["warn"] if inside else colour)
+        shown = []
+        verdicts = zone_verdicts_at(row, self.traj.scene) if self.zones else []
+        for j, ((z, solid, edges, colour), (state, bodies)) in enumerate(zip(self.zones, verdicts)):
+            if state in (ENTERED, NEAR):
+                shown.append((z.name, state, bodies))
+            if state != self._zone_state[j]:
+                warn = state in (ENTERED, NEAR)
+                c = rgb(PALETTE["warn"] if warn else colour)
                 solid.GetProperty().SetColor(*c)
                 edges.GetProperty().SetColor(*c)
-                solid.GetProperty().SetOpacity(0.45 if inside else STYLE[z.kind]["opacity"])
-                self._zone_state[j] = inside
-        return near
+                solid.GetProperty().SetOpacity(0.6 if state == ENTERED else 0.45 if warn else STYLE[z.kind]["opacity"])
+                self._zone_state[j] = state
+        return shown
 
     # ------------------------------------------------------------------ output
     def grab(self) -> np.ndarray:

@@ -16,6 +16,7 @@ from swingsim.report.plots_rigging import rigging_figure
 from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, new_figure,
                                    shade_moves, title_and_caution)
 from swingsim.report.tables import timeseries_columns
+from swingsim.scene.site import wind_words
 
 
 def _time_plot(traj, cols):
@@ -76,8 +77,9 @@ def _speed_figure(traj, summary, cols=None):
 def _plan_figure(traj, summary, cols=None):
     """plan.png: the load's path in plan, and its offset from the plumb line (a figure function of :data:`FIGURES`).
 
-    Left: the suspension point's and the load's paths, the swing envelope and the
-    zones with their margins; right: the load relative to the point below the
+    Left: the suspension point's and the load's paths, the swing envelope, the
+    zones with their margins, and a slewing crane's slew axis and radius limits;
+    right: the load relative to the point below the
     suspension point, with the peak excursion and the clearance limit.
     """
     from matplotlib.patches import Circle, Rectangle
@@ -98,18 +100,26 @@ def _plan_figure(traj, summary, cols=None):
         ax1.add_patch(Circle((x, y), ex, facecolor=ENVELOPE, edgecolor="none", lw=0, zorder=0))
     ax1.plot(lx[0], ly[0], "o", color=LOAD, ms=6)
     ax1.plot(lx[-1], ly[-1], "s", color=LOAD, ms=6)
-    for z in scene.zones:
+    for z, verdict in zip(scene.zones, summary["zones"]):
         col = LIMIT if z.kind == "exclusion" else GREY
+        entered = verdict["entered"]
         ax1.add_patch(Rectangle(z.min_m[:2], z.max_m[0] - z.min_m[0], z.max_m[1] - z.min_m[1],
-                                facecolor=col, alpha=0.25, edgecolor=col))
+                                facecolor=col, alpha=0.45 if entered else 0.25, edgecolor=col,
+                                hatch="xx" if entered else None, lw=1.6 if entered else 1.0))
         ax1.add_patch(Rectangle((z.min_m[0] - z.margin_m, z.min_m[1] - z.margin_m),
                                 z.max_m[0] - z.min_m[0] + 2 * z.margin_m,
                                 z.max_m[1] - z.min_m[1] + 2 * z.margin_m,
                                 fill=False, edgecolor=col, ls="--", lw=0.8))
-        ax1.text(z.min_m[0], z.max_m[1], z.name, fontsize=7.5, va="bottom", color=col)
+        # the summary's own verdict, word for word
+        state = ("ENTERED by " + ", ".join(verdict["entered_by"]) if entered
+                 else "within margin" if verdict["within_margin"] else "clear")
+        ax1.text(z.min_m[0], z.max_m[1], f"{z.name} [{state}]", fontsize=7.5, va="bottom", color=col,
+                 fontweight="bold" if entered else "normal")
+    _crane_reach(ax1, scene.crane)
     ax1.set_aspect("equal", adjustable="datalim")
     label_axes(ax1, "x [m]", "y [m]", "best")
     ax1.set_title("plan view (blue band: swing envelope)", fontsize=9)
+    _site_arrows(fig, scene)
     dx, dy = lx - sx, ly - sy
     ax2.plot(dx, dy, color=LOAD, lw=0.9)
     ax2.add_patch(Circle((0, 0), ex, fill=False, color=ROPE, lw=1.5, label=f"peak excursion {ex:.2f} m"))
@@ -125,6 +135,50 @@ def _plan_figure(traj, summary, cols=None):
     ax2.set_title("load relative to the point below the suspension point", fontsize=9)
     title_and_caution(fig, f"{scene.title}: load path", summary)
     return fig
+
+
+def _site_arrows(fig, scene) -> None:
+    """A north arrow and, with wind, an arrow the way the wind blows, in the figure's top right corner.
+
+    Drawn with equal scales in plan like the plan view, so the arrows point as on
+    site: north at ``site.north_deg`` from +x, the wind toward ``wind.direction_deg``.
+    """
+    strip = fig.add_axes([0.62, 0.915, 0.37, 0.08])
+    strip.set_xlim(0.0, 8.0)
+    strip.set_ylim(-0.55, 0.55)
+    strip.set_aspect("equal", adjustable="box", anchor="E")
+    strip.axis("off")
+
+    def arrow(x, angle_deg, colour, width):
+        a = np.radians(angle_deg)
+        dx, dy = 0.45 * np.cos(a), 0.45 * np.sin(a)
+        strip.annotate("", xy=(x + dx, dy), xytext=(x - dx, -dy),
+                       arrowprops={"arrowstyle": "-|>", "color": colour, "lw": width, "mutation_scale": 10})
+
+    if scene.wind.speed_m_s > 0.0:
+        strip.text(1.9, 0.0, f"wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}", ha="right",
+                   va="center", fontsize=8, color=ROPE)
+        arrow(2.5, scene.wind.direction_deg, ROPE, 2.2)
+    arrow(7.2, scene.site.north_deg, INK, 1.6)
+    strip.text(6.6, 0.0, "site north", ha="right", va="center", fontsize=8, color=INK)
+
+
+def _crane_reach(ax, crane):
+    """A slewing crane's slew axis and its radius limits (circles about the slew centre), kept to the view."""
+    from matplotlib.patches import Circle
+
+    if not crane.slewing:
+        return
+    cx, cy = crane.slew_center_m
+    ax.plot([cx], [cy], "+", color=GREY, ms=12, mew=1.5, label="slew axis")
+    ax.autoscale_view()
+    view = ax.get_xlim(), ax.get_ylim()
+    for radius, name in ((crane.min_radius_m, "min"), (crane.max_radius_m, "max")):
+        if radius:
+            ax.add_patch(Circle((cx, cy), radius, fill=False, edgecolor=GREY, ls=":", lw=1.0,
+                                label=f"{name} radius {radius:g} m"))
+    ax.set_xlim(*view[0])
+    ax.set_ylim(*view[1])
 
 
 #: File name -> figure function ``fn(traj, summary, cols=None)``: given the run

@@ -16,6 +16,7 @@ from swingsim.metrics import cautions
 from swingsim.metrics.chart import chart_series
 from swingsim.metrics.single import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_summary_lines
+from swingsim.scene.site import wind_words
 
 
 def _clean(x):
@@ -197,8 +198,8 @@ def summary_text(summary, scene) -> str:
              + (f" (rope ends at {d['rope_length_end_m']:.2f} m)" if abs(d['rope_length_end_m'] - scene.rope.length_m) > 1e-9 else "")
              + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.2f} s; simulated {d['simulated_until_s']:.1f} s.")
     if scene.wind.speed_m_s:
-        w.append(f"Wind {scene.wind.speed_m_s:g} m/s toward {scene.wind.direction_deg:g} deg; rope at rest "
-                 f"leans {d['rest_rope_angle_deg']:.2f} deg downwind.")
+        w.append(f"Wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}, site north at "
+                 f"{scene.site.north_deg:g} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.2f} deg downwind.")
     if d.get("move_list"):
         w.append("")
         w.append("Moves")
@@ -243,12 +244,43 @@ def summary_text(summary, scene) -> str:
     if d["zones"]:
         w.append("")
         w.append("Obstacles and exclusion zones")
-        for z in d["zones"]:
-            state = "ENTERED" if z["inside"] else ("inside margin" if z["within_margin"] else "clear")
-            w.append(f"  {z['kind']:<9} {z['name']:<24} closest {z['min_distance_m']:.2f} m at t = {z['min_distance_time_s']:.1f} s  [{state}]")
+        w.extend(zone_lines(d["zones"]))
     w.append("")
     w.append("Cautions")
     for c in d["cautions"][1:] or ["(no scenario warnings)"]:
         w.append("  - " + c)
     w.append("")
     return "\n".join(w) + "\n"
+
+
+def zone_lines(zones) -> list:
+    """The zone lines of ``summary.txt``: each zone's verdict as a lift planner reads it.
+
+    Parameters
+    ----------
+    zones : list of dict
+        The ``zones`` entries of ``summary.json`` (:func:`swingsim.metrics.zones.zone_summaries`).
+
+    Returns
+    -------
+    list of str
+        Per zone: its verdict, closest approach and, when entered, when, for how long,
+        by which parts and (exclusion zones) how high above the zone's top.
+    """
+    w = []
+    for z in zones:
+        state = ("ENTERED" if z["entered"] else "inside margin" if z["within_margin"] else "clear")
+        how = "in plan" if z["kind"] == "exclusion" else ""
+        w.append(f"  {z['kind']:<9} {z['name']:<24} closest {z['min_distance_m']:.2f} m {how + ' ' if how else ''}"
+                 f"({z['min_distance_body']}) at t = {z['min_distance_time_s']:.1f} s  [{state}]")
+        for e in z["entries"]:
+            line = (f"    {'over it' if z['kind'] == 'exclusion' else 'touching'} from t = {e['start_s']:.1f} s "
+                    f"for {e['duration_s']:.1f} s: {', '.join(e['bodies'])}")
+            if "min_height_above_zone_m" in e:
+                line += f"; lowest {e['min_height_above_zone_m']:.2f} m above the zone's top"
+            w.append(line)
+    if any(z["kind"] == "exclusion" and z["entered"] for z in zones):
+        w.append("  An exclusion zone counts as entered when any part of the suspended load, rigging or rope")
+        w.append("  is over it at any height: clear it of people as the lift plan, local rules and the")
+        w.append("  competent person require; the height above it is no protection from a falling load.")
+    return w

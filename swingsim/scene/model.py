@@ -14,9 +14,10 @@ from typing import NamedTuple
 
 import numpy as np
 
+from swingsim.motion.limits import RAIL_KINDS, SLEWING_KINDS
+
 __all__ = ["RatedChart", "Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
-           "MoveTable", "Move", "Zone", "Scene", "models_rigid_load",
-           "slew_centre"]
+           "MoveTable", "Move", "Zone", "Site", "Scene", "models_rigid_load", "slew_centre"]
 
 
 class RatedChart(NamedTuple):
@@ -52,7 +53,7 @@ class RatedChart(NamedTuple):
 
 @dataclass(frozen=True)
 class Crane:
-    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit.
+    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit, its geometry.
 
     ``chart`` is the rated capacity chart read from ``chart_file`` (None without one).
     """
@@ -60,10 +61,35 @@ class Crane:
     suspension_m: tuple
     kind: str
     wind_limit_m_s: float
+    # -- crane geometry per kind (slew axis, radius limits, boom, rails) --
+    slew_center_m: tuple = (0.0, 0.0)
+    min_radius_m: float | None = None
+    max_radius_m: float | None = None
+    boom_length_m: float | None = None
+    boom_foot_m: tuple | None = None
+    level_luffing: bool = False
+    rail_span_m: float | None = None
+    travel_limits_m: tuple | None = None
+    cross_limits_m: tuple | None = None
     # -- rated capacity chart --
     chart_file: str | None = None
     chart_includes: tuple = ("hook", "rigging")
     chart: RatedChart | None = None
+
+    @property
+    def slewing(self) -> bool:
+        """Whether the crane slews about a slew axis (tower, luffing or mobile)."""
+        return self.kind in SLEWING_KINDS
+
+    @property
+    def on_rails(self) -> bool:
+        """Whether the crane travels on rails (gantry or bridge)."""
+        return self.kind in RAIL_KINDS
+
+    @property
+    def has_boom(self) -> bool:
+        """Whether a radius move luffs a boom (``boom_length_m`` is given)."""
+        return self.boom_length_m is not None
 
 
 @dataclass(frozen=True)
@@ -165,11 +191,24 @@ class Rigging:
 
 @dataclass(frozen=True)
 class Wind:
-    """Steady wind (``[wind]``)."""
+    """Steady wind (``[wind]``).
+
+    ``direction_deg`` is always the direction it blows toward, from +x toward +y:
+    a wind given by ``from_bearing_deg`` is converted on reading
+    (:func:`swingsim.scene.site.wind_toward_deg`).
+    """
 
     speed_m_s: float
     direction_deg: float
     air_density_kg_m3: float
+
+
+@dataclass(frozen=True)
+class Site:
+    """The site's bearings (``[site]``): where north is in the scene's axes."""
+
+    #: Direction of site north, from +x toward +y [deg].
+    north_deg: float = 90.0
 
 
 @dataclass(frozen=True)
@@ -262,6 +301,7 @@ class Scene:
     raw: dict = field(default_factory=dict)
     hook: Hook | None = None
     rigging: Rigging | None = None
+    site: Site = field(default_factory=Site)
 
     @property
     def rigid_load(self) -> bool:
@@ -311,7 +351,6 @@ def slew_centre(scene) -> np.ndarray:
     Returns
     -------
     ndarray (2,)
-        [x, y] of the slew axis [m]; the origin, about which slewing turns.
+        [x, y] of the slew axis [m] (``crane.slew_center_m``), about which slewing turns.
     """
-    # TODO(issue 10): scene.crane.slew_center_m once the crane geometry key is on main
-    return np.zeros(2)
+    return np.asarray(scene.crane.slew_center_m, dtype=float)

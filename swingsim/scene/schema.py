@@ -109,13 +109,49 @@ TABLES: dict[str, dict[str, Key]] = {
     "crane": {
         "suspension_m": Key("vec3", "Suspension point (trolley sheave or boom tip) at t = 0, [x, y, z], z up [m].",
                             required=True),
-        "kind": Key("str", "Crane type, for drawing and wording: tower (mast, jib, counter-jib), "
-                    "gantry or bridge (beam on rails), mobile (boom).", default="tower",
-                    choices=("tower", "gantry", "bridge", "mobile")),
+        "kind": Key("str", "Crane type, for drawing, wording and geometry: tower (mast, jib with a "
+                    "trolley, counter-jib), luffing (tower crane with a luffing jib: boom_length_m "
+                    "and boom_foot_m needed), gantry or bridge (beam on rails), mobile (boom).",
+                    default="tower", choices=("tower", "gantry", "bridge", "mobile", "luffing")),
         "wind_limit_m_s": Key("float", "In-service wind speed limit of this crane [m/s]; "
                               f"default {constants.IN_SERVICE_WIND_LIMIT_M_S:g} m/s is a rule of thumb only: "
                               "take the real value from the crane manufacturer.",
                               default=constants.IN_SERVICE_WIND_LIMIT_M_S, gt=0.0),
+        # -- crane geometry per kind (slew axis, radius limits, boom, rails) --
+        "slew_center_m": Key("vec2", "Slewing cranes (tower, luffing, mobile): where the slew axis "
+                             "(the mast or the slewing ring's centre) stands at t = 0, [x, y] [m]; "
+                             "slewing turns the jib or boom about it and radius moves are measured "
+                             "from it. Default the origin (common practice for a site grid set out "
+                             "from the crane).", default=(0.0, 0.0)),
+        "min_radius_m": Key("float", "Slewing cranes: smallest working radius, slew axis to hook [m] "
+                            "(the crane's chart or data sheet); a move that would go inside it is "
+                            "refused. Without it only a move through the slew axis is refused.",
+                            ge=0.0),
+        "max_radius_m": Key("float", "Slewing cranes: largest working radius, slew axis to hook [m] "
+                            "(the crane's chart or data sheet for this configuration); a move that "
+                            "would go beyond it is refused.", gt=0.0),
+        "boom_length_m": Key("float", "Boom (luffing) cranes, kind mobile or luffing: boom or luffing "
+                             "jib length, foot pin to tip sheave [m]. With it a radius move luffs: "
+                             "the tip moves on the arc about the foot pin. A mobile crane without "
+                             "it keeps the suspension height on radius moves (a schematic boom).",
+                             gt=0.0),
+        "boom_foot_m": Key("vec2", "Boom cranes: the boom foot pin's horizontal offset from the slew "
+                           "axis (toward the boom) and its height above the ground datum z = 0, "
+                           "[offset, height] [m]; needed with boom_length_m."),
+        "level_luffing": Key("bool", "Boom cranes: the crane keeps the hook's height while luffing "
+                             "(the rope is paid out or taken in as the tip rises or falls), as "
+                             "level-luffing cranes do; false: the load rises and falls with the tip.",
+                             default=False),
+        "rail_span_m": Key("float", "Gantry and bridge cranes: distance between the two rails, "
+                           "centre to centre [m]. The rails run along x; the span is across them, "
+                           "centred on cross_limits_m (or on the suspension point without them).",
+                           gt=0.0),
+        "travel_limits_m": Key("vec2", "Gantry and bridge cranes: the suspension point's range along "
+                               "the rails (x), [min, max] [m] (end stops less the buffer); a move "
+                               "beyond it is refused."),
+        "cross_limits_m": Key("vec2", "Gantry and bridge cranes: the trolley's range across the span "
+                              "(y), [min, max] [m] (the hook's approach to each rail); a move beyond "
+                              "it is refused."),
         # -- rated capacity chart (swingsim/metrics/chart.py) --
         "chart_file": Key("path", "The crane's rated capacity chart for this configuration, as its "
                           "manufacturer's chart gives it: a CSV with the header radius_m,capacity_kg, "
@@ -229,9 +265,16 @@ TABLES: dict[str, dict[str, Key]] = {
     },
     "wind": {
         "speed_m_s": Key("float", "Steady wind speed at load height [m/s].", default=0.0, ge=0.0),
-        "direction_deg": Key("float", "Direction the wind blows toward, from +x toward +y [deg].", default=0.0),
+        "direction_deg": Key("float", "Mathematical alternative to from_bearing_deg: the direction the wind "
+                             "blows toward, counter-clockwise from +x toward +y [deg]. Give this or "
+                             "from_bearing_deg, not both.", default=0.0),
         "air_density_kg_m3": Key("float", "Air density [kg/m^3]; ISO 2533 sea level by default.",
                                  default=constants.AIR_DENSITY_SEA_LEVEL, gt=0.0, le=2.0),
+        # -- site bearings (swingsim/scene/site.py) --
+        "from_bearing_deg": Key("float", "Compass bearing the wind comes from, clockwise from site north "
+                                "([site] north_deg) [deg], as weather reports and anemometers give it "
+                                "(meteorological convention: 270 is a west wind, blowing toward the east). "
+                                "Give this or direction_deg, not both.", ge=0.0, le=360.0),
     },
     "output": {
         "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=constants.SAMPLE_HZ, ge=1.0, le=1000.0),
@@ -263,6 +306,13 @@ TABLES: dict[str, dict[str, Key]] = {
         "up": Key("vec3", "Direction that is up in the picture [-].", default=(0.0, 0.0, 1.0)),
         "view_angle_deg": Key("float", "Vertical field of view of the custom view [deg].",
                               default=30.0, gt=1.0, lt=120.0),
+    },
+    # -- site bearings (swingsim/scene/site.py) --
+    "site": {
+        "north_deg": Key("float", "Direction of site north in the scene's axes, measured from +x toward +y "
+                         "[deg]; default 90: +y is north and +x is east. Wind bearings "
+                         "(wind.from_bearing_deg) and the north arrow on plots and video use it.",
+                         default=90.0, ge=-360.0, le=360.0),
     },
 }
 

@@ -20,11 +20,14 @@ from swingsim.dynamics.registry import select_model
 from swingsim.dynamics.rigging import RiggingError, rigging_geometry
 from swingsim.dynamics.rope import elastic_rope
 from swingsim.errors import SceneError
+from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
-from swingsim.scene.model import (Crane, Hook, Limits, Load, Move, Rigging, Rope, Scene, Start, View, Wind,
-                                  Zone, models_rigid_load, slew_centre)
+from swingsim.scene.geometry import check_crane
+from swingsim.scene.model import (Crane, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start, View,
+                                  Wind, Zone, models_rigid_load, slew_centre)
 from swingsim.scene.read import KeyReader, line_of_key, read_chart, read_document, read_table, suggest
+from swingsim.scene.site import wind_toward_deg
 
 __all__ = ["load_scene", "scene_from_dict", "MESH_SUFFIXES"]
 
@@ -111,11 +114,13 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         if name in data and not isinstance(data[name], dict):
             raise r.err(name, f"expected a table [{name}]", data[name])
     crane = r.table(data, "crane", schema.TABLES["crane"], required=True)
+    check_crane(r, data["crane"], crane)
     rope = r.table(data, "rope", schema.TABLES["rope"], required=True)
     load = r.table(data, "load", schema.TABLES["load"], required=True)
     start = r.table(data, "start", schema.TABLES["start"])
     damping = r.table(data, "damping", schema.TABLES["damping"])
-    wind = r.table(data, "wind", schema.TABLES["wind"])
+    site = Site(**r.table(data, "site", schema.TABLES["site"]))
+    wind = _read_wind(r, data, site)
     output = r.table(data, "output", schema.TABLES["output"])
     limits = r.table(data, "limits", schema.TABLES["limits"])
     view = _read_view(r, data)
@@ -149,9 +154,9 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         notes=top["notes"],
         crane=_read_crane(r, crane), rope=rope_o, load=load_o,
         start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
-        wind=Wind(**wind), sample_hz=output["sample_hz"], limits=Limits(**limits),
+        wind=wind, sample_hz=output["sample_hz"], limits=Limits(**limits),
         zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
-        hook=hook_o, rigging=rig_o,
+        hook=hook_o, rigging=rig_o, site=site,
     )
     if validate_motion:
         # a move that cannot be built is bad input; a profile tuned to the swing period is
@@ -164,6 +169,19 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
 
 #: File types a load mesh may have (read with pyvista).
 MESH_SUFFIXES = (".stl", ".obj", ".ply")
+
+
+def _read_wind(r: KeyReader, data: dict, site: Site) -> Wind:
+    """The ``[wind]`` table, its direction given as a compass bearing or as a mathematical angle, not both."""
+    wind = r.table(data, "wind", schema.TABLES["wind"])
+    bearing = wind.pop("from_bearing_deg")
+    if bearing is not None:
+        if "direction_deg" in data.get("wind", {}):
+            raise r.err("wind.direction_deg", "give either wind.from_bearing_deg (the compass bearing "
+                        "the wind comes from) or wind.direction_deg (where it blows toward, from +x "
+                        "toward +y), not both", wind["direction_deg"])
+        wind["direction_deg"] = wind_toward_deg(bearing, site.north_deg)
+    return Wind(**wind)
 
 
 def _read_view(r: KeyReader, data: dict):
@@ -194,7 +212,7 @@ def _read_crane(r: KeyReader, crane: dict) -> Crane:
                     "and a chart's capacity always carries it", list(includes))
     if crane["chart_file"] is None:
         return Crane(**crane)
-    if crane["kind"] in ("gantry", "bridge"):
+    if crane["kind"] not in SLEWING_KINDS:
         raise r.err("crane.chart_file", f"a capacity chart by radius needs a slewing crane, not kind "
                     f"'{crane['kind']}'", crane["chart_file"])
     chart = read_chart(crane["chart_file"], r.base_dir, "crane.chart_file", r.file)

@@ -11,6 +11,10 @@ from dataclasses import dataclass
 import numpy as np
 
 
+#: Where a mobile crane's boom foot pivots when the scene gives no boom, in the turret's frame [m].
+SCHEMATIC_BOOM_FOOT_M = (-1.2, 0.0, 3.2)
+
+
 @dataclass(frozen=True)
 class Layout:
     """Sizes of the schematic crane and of the ground [m].
@@ -18,7 +22,7 @@ class Layout:
     Attributes
     ----------
     kind : str
-        ``crane.kind``: "tower", "gantry", "bridge" or "mobile".
+        ``crane.kind``: "tower", "luffing", "gantry", "bridge" or "mobile".
     suspension_height_m : float
         Height of the suspension point (the jib or beam's underside) [m].
     jib_length_m, counter_jib_length_m : float
@@ -35,6 +39,10 @@ class Layout:
         "box", "cylinder" or "mesh" (a user's mesh file).
     axes_xy_m : tuple of float
         Where the +x/+y arrows stand: just off the lift's own area [m].
+    boom_foot_m : tuple of float
+        A boom crane's foot pin in the slewing part's frame, (along the boom, 0,
+        height above the ground) [m]: the scene's ``crane.boom_foot_m``, or a
+        schematic pin when the scene gives no boom.
     """
 
     kind: str
@@ -47,6 +55,7 @@ class Layout:
     load_size_m: tuple
     load_shape: str
     axes_xy_m: tuple = (0.0, 0.0)
+    boom_foot_m: tuple = SCHEMATIC_BOOM_FOOT_M
 
 
 def default_load_size(mass_kg: float) -> tuple:
@@ -81,9 +90,12 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
     Returns
     -------
     Layout
-        The jib 12 % past the largest radius plus 2 m (8 m at least), the rails
-        4 m past the suspension point's y range (10 m apart at least) and 8 m
-        past its x range, the ground 8 m plus 15 % past everything.
+        The jib 12 % past the largest radius plus 2 m (8 m at least); the rails
+        along x, ``crane.rail_span_m`` apart about the middle of
+        ``crane.cross_limits_m`` (or 4 m past the suspension point's y range, 10 m
+        apart at least), from 8 m before to 8 m past the suspension point's x
+        range or ``crane.travel_limits_m``; a boom crane's foot pin where the
+        scene puts it; the ground 8 m plus 15 % past everything.
     """
     scene = traj.scene
     t = np.linspace(0.0, traj.t_end_s, 400)
@@ -95,8 +107,9 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
     pts = [p[:, :2], load[:, :2], np.stack([crane.travel_x_m, crane.travel_y_m], -1)]
     for z in scene.zones:
         pts.append(np.array([z.min_m[:2], z.max_m[:2]]))
-    kind = scene.crane.kind
-    if kind == "tower":  # the jib's sweep around the base's two extreme positions
+    crane_keys = scene.crane
+    kind = crane_keys.kind
+    if kind in ("tower", "luffing"):  # the jib's sweep around the base's two extreme positions
         ang = np.linspace(0, 2 * np.pi, 33)
         bx, by = crane.travel_x_m, crane.travel_y_m
         for xb, yb in ((bx.min(), by.min()), (bx.max(), by.max())):
@@ -104,13 +117,8 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
     allp = np.concatenate(pts)
     core = np.concatenate(pts[:3])
     axes_xy = tuple(float(v) for v in core.min(axis=0) - 5.0)
-    y_lo = float(p[:, 1].min()) - 4.0
-    y_hi = float(p[:, 1].max()) + 4.0
-    if y_hi - y_lo < 10.0:
-        mid = 0.5 * (y_lo + y_hi)
-        y_lo, y_hi = mid - 5.0, mid + 5.0
-    x_lo = float(p[:, 0].min()) - 8.0
-    x_hi = float(p[:, 0].max()) + 8.0
+    y_lo, y_hi = _rail_lines(p, crane_keys)
+    x_lo, x_hi = _rail_ends(p, crane_keys)
     if kind in ("gantry", "bridge"):
         allp = np.concatenate([allp, [[x_lo, y_lo], [x_hi, y_hi]]])
     pad = 8.0 + 0.15 * float(np.max(allp.max(axis=0) - allp.min(axis=0)))
@@ -119,4 +127,35 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
     return Layout(kind=kind, suspension_height_m=z0, jib_length_m=jib, counter_jib_length_m=max(4.0, 0.32 * jib),
                   rail_x_m=(x_lo, x_hi), rail_y_m=(y_lo, y_hi),
                   ground_m=(float(lo[0]), float(hi[0]), float(lo[1]), float(hi[1])),
-                  load_size_m=tuple(load_size_m), load_shape=load_shape, axes_xy_m=axes_xy)
+                  load_size_m=tuple(load_size_m), load_shape=load_shape, axes_xy_m=axes_xy,
+                  boom_foot_m=_boom_foot(crane_keys))
+
+
+def _boom_foot(crane) -> tuple:
+    """The boom's foot pin in the slewing part's frame [m] (the scene's, or the schematic one)."""
+    if crane.boom_foot_m is None:
+        return SCHEMATIC_BOOM_FOOT_M
+    offset, height = crane.boom_foot_m
+    return (float(offset), 0.0, float(height))
+
+
+def _rail_lines(p, crane) -> tuple:
+    """The two rails' y: the scene's span about its cross range, or a span fitted to the run."""
+    if crane.rail_span_m is not None:
+        limits = crane.cross_limits_m
+        mid = 0.5 * (limits[0] + limits[1]) if limits is not None else float(p[0, 1])
+        return mid - 0.5 * crane.rail_span_m, mid + 0.5 * crane.rail_span_m
+    y_lo = float(p[:, 1].min()) - 4.0
+    y_hi = float(p[:, 1].max()) + 4.0
+    if y_hi - y_lo < 10.0:
+        mid = 0.5 * (y_lo + y_hi)
+        y_lo, y_hi = mid - 5.0, mid + 5.0
+    return y_lo, y_hi
+
+
+def _rail_ends(p, crane) -> tuple:
+    """Where the rails start and end along x: 8 m past the travel limits, or past the run's x range."""
+    lo, hi = float(p[:, 0].min()), float(p[:, 0].max())
+    if crane.travel_limits_m is not None:
+        lo, hi = min(lo, crane.travel_limits_m[0]), max(hi, crane.travel_limits_m[1])
+    return lo - 8.0, hi + 8.0

@@ -262,10 +262,6 @@ def _tie(a, b, radius_m=0.06) -> Mesh:
     return cylinder(a, b, radius_m, 8, caps=False)
 
 
-#: Where a mobile crane's boom foot pivots, in the turret's frame [m].
-BOOM_PIVOT_M = (-1.2, 0.0, 3.2)
-
-
 @dataclass(frozen=True)
 class CranePart:
     """A crane body: its mesh, its material name and how it moves.
@@ -293,10 +289,14 @@ def crane_parts(layout) -> dict:
     -------
     dict
         Body name (``crane``, ``slewing_part``, ``jib``, ``counterweight``,
-        ``gantry``, ``bridge``, ``boom``, ``trolley``) -> :class:`CranePart`.
+        ``gantry``, ``bridge``, ``boom``, ``trolley``) -> :class:`CranePart`; a
+        luffing tower crane has a mast, a slewing part and its luffing jib named
+        ``boom``.
     """
     if layout.kind == "tower":
         return _tower(layout)
+    if layout.kind == "luffing":
+        return _luffing_tower(layout)
     if layout.kind in ("gantry", "bridge"):
         return _gantry(layout)
     return _mobile()
@@ -318,6 +318,28 @@ def _tower(lay) -> dict:
         "jib": CranePart(box(0.0, jib, -0.5, 0.5, z0 + 0.4, top), "crane", "slew"),
         "counterweight": CranePart(box(-counter, -counter + 2.2, -1.1, 1.1, z0 - 1.2, z0 + 0.6), "crane_dark", "slew"),
         "trolley": CranePart(box(-0.6, 0.6, -0.6, 0.6, 0.0, 0.4), "trolley", "trolley"),
+    }
+
+
+def _luffing_tower(lay) -> dict:
+    """Mast to the slewing part's floor just below the boom's foot pin, counter-jib and A-frame."""
+    offset, _, foot = lay.boom_foot_m
+    counter = lay.counter_jib_length_m
+    w = 1.6
+    floor = foot - 1.2
+    apex = (-1.0, 0.0, foot + 7.0)
+    ties = [_tie(apex, (offset, 0.0, foot)), _tie(apex, (-counter + 1.0, 0.0, floor + 1.0))]
+    return {
+        "crane": CranePart(merge([box(-w / 2, w / 2, -w / 2, w / 2, 0.0, floor),
+                                  box(-2.5, 2.5, -2.5, 2.5, 0.0, 0.6)]), "crane", "base"),
+        "slewing_part": CranePart(merge([box(-counter, offset + 0.6, -1.2, 1.2, floor, floor + 1.0),
+                                         box(-1.4, -0.6, -0.5, 0.5, floor + 1.0, apex[2]),
+                                         box(offset - 0.6, offset + 0.6, -1.2, 1.2, floor + 1.0, foot + 0.2),
+                                         box(0.8, 2.6, -2.6, -1.3, floor - 1.6, floor + 0.6)] + ties),
+                                  "crane", "slew"),
+        "counterweight": CranePart(box(-counter, -counter + 2.2, -1.1, 1.1, floor - 1.6, floor + 1.0),
+                                   "crane_dark", "slew"),
+        "boom": CranePart(box(0.0, 1.0, -0.45, 0.45, -0.45, 0.45), "crane", "boom"),
     }
 
 

@@ -14,8 +14,8 @@ from typing import NamedTuple
 
 import numpy as np
 
+from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.scene3d import transforms
-from swingsim.scene3d.meshes import BOOM_PIVOT_M
 
 #: The model outputs the rigging's poses are made from (``Trajectory.sample`` keys).
 SAMPLE_KEYS = ("suspension", "load", "hook", "load_rotation", "attach_points", "spreader_ends",
@@ -64,7 +64,7 @@ class Frames(NamedTuple):
     segments: dict
 
 
-def crane_transforms(roles: dict, kind: str, crane, suspension_m) -> dict:
+def crane_transforms(roles: dict, layout, crane, suspension_m) -> dict:
     """Transforms of the crane's moving bodies at n instants.
 
     Parameters
@@ -72,10 +72,11 @@ def crane_transforms(roles: dict, kind: str, crane, suspension_m) -> dict:
     roles : dict
         Body name -> role ("fixed", "base", "slew", "trolley", "bridge" or "boom";
         see :class:`swingsim.scene3d.meshes.CranePart`).
-    kind : str
-        ``crane.kind``; the trolley turns with the jib of a tower or mobile crane only.
+    layout : swingsim.scene3d.layout.Layout
+        The crane's kind (the trolley turns with the jib of a slewing crane only)
+        and a boom's foot pin in the slewing part's frame.
     crane : swingsim.motion.kinematics.CranePose
-        Base travel x, y [m], jib angle [rad] and radius [m] at the n instants.
+        Where the slew axis stands x, y [m], jib angle [rad] and radius [m] at the n instants.
     suspension_m : array_like, shape (n, 3)
         The suspension point [m].
 
@@ -96,12 +97,13 @@ def crane_transforms(roles: dict, kind: str, crane, suspension_m) -> dict:
         elif role == "slew":
             out[name] = slew
         elif role == "trolley":
-            heading = phi if kind in ("tower", "mobile") else np.zeros(n)
+            heading = phi if layout.kind in SLEWING_KINDS else np.zeros(n)
             out[name] = transforms.translation(p) @ transforms.rotation_z(heading)
         elif role == "bridge":
             out[name] = transforms.translation(np.stack([p[:, 0], np.zeros(n), np.zeros(n)], -1))
         elif role == "boom":
-            pivot = (slew @ np.array([*BOOM_PIVOT_M, 1.0]))[:, :3]
+            # from the foot pin to the tip sheave, at every instant (the boom luffs with the radius)
+            pivot = (slew @ np.array([*layout.boom_foot_m, 1.0]))[:, :3]
             out[name] = transforms.segment(pivot, p + (0.0, 0.0, 0.3), axis=0)
     return out
 

@@ -118,7 +118,7 @@ class Scene3D:
             Transforms (n, 4, 4) of every moving body and segments (n, 2, 3).
         """
         found = poses.rigging_frames(self.rigging, samples)
-        found.transforms.update(poses.crane_transforms(self.crane_roles, self.layout.kind, crane,
+        found.transforms.update(poses.crane_transforms(self.crane_roles, self.layout, crane,
                                                        samples["suspension"]))
         return found
 
@@ -171,7 +171,7 @@ class Scene3D:
             (N, 3) points [m].
         """
         t = np.linspace(0.0, self.traj.t_end_s, instants)
-        mats = poses.crane_transforms(self.crane_roles, self.layout.kind, self.traj.motion.pose(t),
+        mats = poses.crane_transforms(self.crane_roles, self.layout, self.traj.motion.pose(t),
                                       self.traj.motion.evaluate(t)["p"])
         pts = [self.path_load_m]
         for names in self._crane_groups:

@@ -79,7 +79,7 @@ class Trajectory:
         Parameters
         ----------
         t : float or array_like
-            Time(s) [s].
+            Time(s) within the run, 0 to :attr:`t_end_s` [s].
 
         Returns
         -------
