@@ -19,6 +19,7 @@ from scipy.optimize import minimize_scalar
 
 from swingsim._version import __version__
 from swingsim.metrics import cautions, definitions
+from swingsim.metrics.chart import chart_metrics, chart_warnings
 from swingsim.metrics.definitions import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_metrics, model_warnings
 from swingsim.metrics.zones import zone_summaries
@@ -251,6 +252,8 @@ def summarize(traj) -> Summary:
         data["invalid_reason"] = traj.message
     # -- hook block, rigging, rigid load, elastic rope (metrics_models.py; empty for point mass) --
     data.update(model_metrics(traj, t, s))
+    # -- rated capacity chart: utilisation, side and out-load at the tip (metrics/chart.py; empty without a chart) --
+    data.update(chart_metrics(traj, t, s))
     data["cautions"] = ([cautions.CAUTION] + cautions.scenario_warnings(data, scene)
-                        + model_warnings(data, scene))
+                        + model_warnings(data, scene) + chart_warnings(data, scene))
     return Summary(data)

@@ -11,6 +11,7 @@ import io
 import numpy as np
 
 from swingsim.io.files import atomic_write_bytes
+from swingsim.report.plots_chart import chart_figure
 from swingsim.report.plots_rigging import rigging_figure
 from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, new_figure,
                                    shade_moves, title_and_caution)
@@ -188,9 +189,10 @@ def _crane_reach(ax, crane):
 #: and its time-series columns (:func:`swingsim.report.tables.timeseries_columns`, sampled
 #: once for all plots; by the function itself when None), it returns the matplotlib figure
 #: with its title and the caution line, or None when the run's model has nothing to show
-#: (rigging.png, :func:`swingsim.report.plots_rigging.rigging_figure`, needs sling legs).
+#: (rigging.png, :func:`swingsim.report.plots_rigging.rigging_figure`, needs sling legs;
+#: chart.png, :func:`swingsim.report.plots_chart.chart_figure`, needs ``crane.chart_file``).
 FIGURES = {"swing.png": _swing_figure, "speed.png": _speed_figure, "plan.png": _plan_figure,
-           "rigging.png": rigging_figure}
+           "rigging.png": rigging_figure, "chart.png": chart_figure}
 
 
 def write_plots(traj, summary, out_dir, cols=None) -> list:

@@ -89,7 +89,11 @@ def shade_moves(ax, scene, motion) -> None:
         The motion (each move's start and end [s]).
     """
     ymax = ax.get_ylim()[1]
+    x0, x1 = ax.get_xlim()
+    starts = []  # label starts so far, one per text row: a name that would run into one goes a row lower
     for (_axis, prof), m in zip(motion.moves, scene.moves):
         ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
-        ax.text(prof.start_s, ymax, " " + m.name, fontsize=7.5, va="top", ha="left", color=INK,
-                rotation=0, clip_on=True)
+        row = next((i for i, s in enumerate(starts) if prof.start_s - s > 0.2 * (x1 - x0)), len(starts))
+        starts[row:row + 1] = [prof.start_s]
+        ax.annotate(" " + m.name, (prof.start_s, ymax), xytext=(0, -10 * row), textcoords="offset points",
+                    fontsize=7.5, va="top", ha="left", color=INK, annotation_clip=True)

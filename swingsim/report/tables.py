@@ -13,6 +13,7 @@ import math
 import numpy as np
 
 from swingsim.metrics import cautions
+from swingsim.metrics.chart import chart_series
 from swingsim.metrics.definitions import line_pull
 from swingsim.metrics.single import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_summary_lines
@@ -98,6 +99,15 @@ def timeseries_columns(traj, t=None) -> dict:
     })
     for key, arr in s.get("extra_columns", {}).items():
         cols[key] = arr
+    # -- rated capacity chart (swingsim/metrics/chart.py) --
+    chart = chart_series(traj, t, s)
+    if chart is not None:
+        cols["chart_radius_m"] = chart["governing_radius_m"]
+        cols["chart_capacity_kg"] = chart["governing_capacity_kg"]
+        cols["chart_utilisation_pct"] = chart["utilisation_pct"]
+        cols["chart_static_utilisation_pct"] = chart["static_utilisation_pct"]
+        cols["tip_side_load_kN"] = chart["side_N"] / 1e3
+        cols["tip_out_load_kN"] = chart["out_N"] / 1e3
     return cols
 
 
@@ -129,6 +139,39 @@ def _fmt(x, unit="", nd=2):
     if x is None:
         return "n/a"
     return f"{x:.{nd}f}{(' ' + unit) if unit else ''}"
+
+
+def _chart_lines(d: dict) -> list:
+    """The summary.txt section on the rated capacity chart; empty without a chart."""
+    if "peak_utilisation_pct" not in d:
+        return []
+    low, high = d["chart_radius_range_m"]
+    counted = " and ".join(["load (with its rigging)"] + (["hook block"] if "hook" in d["chart_includes"] else []))
+    w = ["", f"Rated capacity chart ({d['chart_file']}, {low:g} to {high:g} m, read linearly between its radii, "
+         "never beyond)",
+         f"  Counted against the chart       {d['chart_counted_mass_kg']:.0f} kg: {counted}",
+         f"  Static (load hanging plumb)     {d['static_utilisation_pct']:.1f}% of the chart at radius "
+         f"{d['static_utilisation_radius_m']:.2f} m",
+         f"  Peak while swinging             {d['peak_utilisation_pct']:.1f}% at t = {d['peak_utilisation_time_s']:.1f} s: "
+         f"hook load {d['peak_counted_hook_load_kN']:.2f} kN (as "
+         f"{d['chart_capacity_at_peak_kg'] - d['chart_margin_kg']:.0f} kg) against "
+         f"{d['chart_capacity_at_peak_kg']:.0f} kg at the {d['chart_radius_at_peak_of']}'s radius "
+         f"{d['chart_radius_at_peak_m']:.2f} m",
+         f"  Margin to the chart at the peak {d['chart_margin_kg']:.0f} kg ({d['chart_margin_pct']:.1f}% of the chart)",
+         f"  Review thresholds               {d['chart_review_pct']:g}% extra review, {d['chart_limit_pct']:g}% "
+         "close to the chart (common practice; varies by company and jurisdiction)"]
+    if d["off_chart_from_s"] is not None:
+        w.append(f"  OFF THE CHART                   the swinging load leaves the chart's radii from t = "
+                 f"{d['off_chart_from_s']:.1f} s (largest load radius {d['largest_load_radius_m']:.2f} m)")
+    w += [f"  Side load on the tip (peak)     {d['peak_side_load_kN']:.2f} kN at t = {d['peak_side_load_time_s']:.1f} s "
+          f"(rope {d['peak_side_angle_deg']:.2f} deg off vertical across the jib)",
+          f"  Out-load on the tip (peak)      {d['peak_out_load_kN']:.2f} kN outward at t = "
+          f"{d['peak_out_load_time_s']:.1f} s, {d['peak_in_load_kN']:.2f} kN inward at t = "
+          f"{d['peak_in_load_time_s']:.1f} s (rope up to {d['peak_out_angle_deg']:.2f} deg out)",
+          "  Compare the side and out-load with the manufacturer's allowable off-vertical for this crane.",
+          "  The manufacturer's chart and its notes, the lift plan, local rules and the competent person",
+          "  decide whether the lift may go ahead; these figures are for planning only."]
+    return w
 
 
 def summary_text(summary, scene) -> str:
@@ -199,6 +242,8 @@ def summary_text(summary, scene) -> str:
                  f"{d['period_difference_pct']:+.2f}% against small-angle")
         if d.get("period_exact_at_amplitude_s"):
             w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's', 3)} (elliptic integral)")
+    # -- rated capacity chart (swingsim/metrics/chart.py) --
+    w.extend(_chart_lines(d))
     if d["zones"]:
         w.append("")
         w.append("Obstacles and exclusion zones")

@@ -12,15 +12,51 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import NamedTuple
 
+import numpy as np
+
 from swingsim.motion.limits import RAIL_KINDS, SLEWING_KINDS
 
-__all__ = ["Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
-           "MoveTable", "Move", "Zone", "Site", "Scene", "models_rigid_load"]
+__all__ = ["RatedChart", "Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
+           "MoveTable", "Move", "Zone", "Site", "Scene", "models_rigid_load", "slew_centre"]
+
+
+class RatedChart(NamedTuple):
+    """A rated capacity chart (``crane.chart_file``): capacity against radius.
+
+    The rule: linear interpolation between the listed radii, never
+    extrapolated; outside ``[radius_m[0], radius_m[-1]]`` the chart gives no
+    capacity.
+    """
+
+    #: Radii from the slew axis [m], strictly increasing.
+    radius_m: tuple
+    #: Rated capacity at each radius [kg], all > 0.
+    capacity_kg: tuple
+
+    def capacity_at(self, radius_m):
+        """Rated capacity at the given radii, linear between the chart's points.
+
+        Parameters
+        ----------
+        radius_m : float or array_like
+            Horizontal distance(s) from the slew axis [m].
+
+        Returns
+        -------
+        ndarray
+            Capacity [kg] at each radius; NaN outside the chart's radii (never
+            extrapolated).
+        """
+        return np.interp(np.asarray(radius_m, dtype=float), self.radius_m, self.capacity_kg,
+                         left=np.nan, right=np.nan)
 
 
 @dataclass(frozen=True)
 class Crane:
-    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit, its geometry."""
+    """The crane (``[crane]``): where the rope hangs from, its type, its wind limit, its geometry.
+
+    ``chart`` is the rated capacity chart read from ``chart_file`` (None without one).
+    """
 
     suspension_m: tuple
     kind: str
@@ -35,6 +71,10 @@ class Crane:
     rail_span_m: float | None = None
     travel_limits_m: tuple | None = None
     cross_limits_m: tuple | None = None
+    # -- rated capacity chart --
+    chart_file: str | None = None
+    chart_includes: tuple = ("hook", "rigging")
+    chart: RatedChart | None = None
 
     @property
     def slewing(self) -> bool:
@@ -185,6 +225,9 @@ class Limits:
     swing_caution_deg: float
     settle_deg: float
     clearance_m: float | None
+    # -- rated capacity chart --
+    chart_review_pct: float = 75.0
+    chart_limit_pct: float = 90.0
 
 
 class MoveTable(NamedTuple):
@@ -302,3 +345,19 @@ def models_rigid_load(load: Load, has_hook: bool, has_rigging: bool) -> bool:
         with a hook block or rigging.
     """
     return load.inertia_kg_m2 is not None or (load.size_m is not None and (has_hook or has_rigging))
+
+
+def slew_centre(scene) -> np.ndarray:
+    """Where the slew axis stands in plan: the centre that radii are measured from.
+
+    Parameters
+    ----------
+    scene : Scene
+        The validated scene.
+
+    Returns
+    -------
+    ndarray (2,)
+        [x, y] of the slew axis [m] (``crane.slew_center_m``), about which slewing turns.
+    """
+    return np.asarray(scene.crane.slew_center_m, dtype=float)

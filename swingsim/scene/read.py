@@ -1,4 +1,4 @@
-"""Reading scene files: the TOML document, the CSV tables of recorded moves, key by key.
+"""Reading scene files: the TOML document, the CSV tables of recorded moves and capacity charts, key by key.
 
 Every error names the file, the key path, the value and what is allowed, and
 suggests the nearest known key when a key is unknown.  The keys are those of
@@ -20,9 +20,9 @@ from typing import NamedTuple
 
 from swingsim.errors import SceneError
 from swingsim.scene import schema
-from swingsim.scene.model import MoveTable
+from swingsim.scene.model import MoveTable, RatedChart
 
-__all__ = ["SceneDocument", "read_document", "line_of_key", "KeyReader", "read_table", "suggest"]
+__all__ = ["SceneDocument", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
 
 
 class SceneDocument(NamedTuple):
@@ -313,6 +313,16 @@ class KeyReader:
                     raise bad()
                 pts.append(tuple(float(x) for x in p))
             return tuple(pts)
+        if k == "strs":
+            if (not isinstance(v, list) or any(not isinstance(x, str) for x in v)
+                    or len(set(v)) != len(v)):
+                raise bad()
+            for x in v:
+                if key.choices and x not in key.choices:
+                    near = difflib.get_close_matches(x, key.choices, n=1, cutoff=0.6)
+                    hint = f" (did you mean '{near[0]}'?)" if near else ""
+                    raise self.err(where, f"expected {key.allowed()}{hint}; '{x}' is not one", v)
+            return tuple(v)
         if k == "path":
             if not isinstance(v, str) or not v or "\x00" in v:
                 raise bad()
@@ -353,6 +363,68 @@ class KeyReader:
         return {k: self.value(t, k, key, f"{name}.{k}") for k, key in keys.items()}
 
 
+class _Row(NamedTuple):
+    """One data row of a two-column CSV file."""
+
+    #: 1-based number of the row among the data rows.
+    number: int
+    #: 1-based line of the row in the file.
+    line: int
+    first: float
+    second: float
+
+
+def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, row_name,
+                      header_hint: str = "") -> list:
+    """The data rows of a two-column CSV file with an exact header (``#`` lines are comments).
+
+    Shared by the move tables and the capacity chart: the checks every such file
+    needs (found, readable text, the header, two finite numbers a row, at least
+    two rows); the caller checks what its columns mean.  ``err(problem)`` makes the
+    caller's error; ``row_name(row)`` names a row in it (e.g. ``line 4 of the chart``).
+    """
+    p = Path(file)
+    full = p if p.is_absolute() else base_dir / p
+    if not full.exists():
+        raise err(f"{noun} file not found (paths are relative to the scene file's folder)")
+    if not full.is_file():
+        raise err("not a file")
+    try:
+        text = full.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        raise err("cannot be read as UTF-8 text (expected a CSV table)") from None
+    lines = [(i, r) for i, r in enumerate(csv.reader(text.splitlines()), start=1)
+             if r and not r[0].lstrip().startswith("#")]
+    want = ",".join(header)
+    if not lines:
+        raise err(f"empty {noun}; expected a header {want}")
+    found = [h.strip() for h in lines[0][1]]
+    if found != list(header):
+        raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} (found '{','.join(found)}')")
+    rows = []
+    for number, (line, r) in enumerate(lines[1:], start=1):
+        here = row_name(_Row(number, line, math.nan, math.nan))
+        if len(r) != 2:
+            raise err(f"{here}: expected 2 columns, found '{','.join(r)}'")
+        try:
+            a, b = float(r[0]), float(r[1])
+        except ValueError:
+            raise err(f"{here}: expected two numbers, found '{','.join(r)}'") from None
+        if not (math.isfinite(a) and math.isfinite(b)):
+            raise err(f"{here}: values must be finite numbers")
+        rows.append(_Row(number, line, a, b))
+    if len(rows) < 2:
+        raise err(f"a {noun} needs at least two data rows")
+    return rows
+
+
+def _check_increasing(rows: list, what: str, err, row_name) -> None:
+    """Refuse the first row whose first column does not exceed the row before (``what`` names it)."""
+    for before, row in zip(rows, rows[1:]):
+        if row.first <= before.first:
+            raise err(f"{row_name(row)}: {what} must increase strictly ({before.first:g} then {row.first:g})")
+
+
 def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str = "<scene>") -> MoveTable:
     """Read a table profile's CSV: header ``t_s,position_m`` (``t_s,angle_deg`` for slew).
 
@@ -384,46 +456,61 @@ def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str =
         When the file is missing or unreadable, or its header, rows or times
         are not those of a table profile.
     """
-    p = Path(file)
-    full = p if p.is_absolute() else base_dir / p
     want = "angle_deg" if axis == "slew" else "position_m"
 
     def err(problem):
         return SceneError(scene_file, key, problem, file)
 
-    if not full.exists():
-        raise err("table file not found (paths are relative to the scene file's folder)")
-    if not full.is_file():
-        raise err("not a file")
-    try:
-        text = full.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError):
-        raise err("cannot be read as UTF-8 text (expected a CSV table)") from None
-    rows = [r for r in csv.reader(text.splitlines()) if r and not r[0].lstrip().startswith("#")]
-    if not rows:
-        raise err(f"empty table; expected a header t_s,{want}")
-    header = [h.strip() for h in rows[0]]
-    if header != ["t_s", want]:
-        raise err(f"the table's header must be exactly 't_s,{want}' for axis {axis} "
-                  f"(found '{','.join(header)}')")
-    ts, xs = [], []
-    for i, r in enumerate(rows[1:], start=2):
-        if len(r) != 2:
-            raise err(f"data row {i - 1} of the table: expected 2 columns, found '{','.join(r)}'")
-        try:
-            t, x = float(r[0]), float(r[1])
-        except ValueError:
-            raise err(f"data row {i - 1} of the table: expected two numbers, found '{','.join(r)}'") from None
-        if not (math.isfinite(t) and math.isfinite(x)):
-            raise err(f"data row {i - 1} of the table: values must be finite numbers")
-        ts.append(t)
-        xs.append(x)
-    if len(ts) < 2:
-        raise err("a table needs at least two data rows")
-    if ts[0] != 0.0:
-        raise err(f"the table's first time must be 0 (times count from the move's start), found {ts[0]:g}")
-    for i in range(1, len(ts)):
-        if ts[i] <= ts[i - 1]:
-            raise err(f"data row {i + 1} of the table: times must increase strictly "
-                      f"({ts[i - 1]:g} then {ts[i]:g})")
-    return MoveTable(tuple(ts), tuple(xs))
+    def row_name(row):
+        return f"data row {row.number} of the table"
+
+    rows = _read_two_columns(file, base_dir, ("t_s", want), "table", err, row_name,
+                             header_hint=f" for axis {axis}")
+    if rows[0].first != 0.0:
+        raise err(f"the table's first time must be 0 (times count from the move's start), found {rows[0].first:g}")
+    _check_increasing(rows, "times", err, row_name)
+    return MoveTable(tuple(r.first for r in rows), tuple(r.second for r in rows))
+
+
+def read_chart(file: str, base_dir: Path, key: str = "crane.chart_file", scene_file: str = "<scene>") -> RatedChart:
+    """Read a rated capacity chart: a CSV with the header ``radius_m,capacity_kg``.
+
+    Errors name the scene file, the key that names the chart and the line of
+    the chart file where it applies.
+
+    Parameters
+    ----------
+    file : str
+        The CSV file as the scene names it (``crane.chart_file``).
+    base_dir : Path
+        Folder a relative ``file`` is relative to (the scene file's).
+    key : str, optional
+        Key path of the chart file in the scene.
+    scene_file : str, optional
+        The scene file's name, for errors.
+
+    Returns
+    -------
+    RatedChart
+        Radii [m] (>= 0, strictly increasing) and capacities [kg] (> 0).
+
+    Raises
+    ------
+    SceneError
+        When the file is missing or unreadable, or its header, radii or
+        capacities are not those of a chart.
+    """
+    def err(problem):
+        return SceneError(scene_file, key, problem, file)
+
+    def row_name(row):
+        return f"line {row.line} of the chart"
+
+    rows = _read_two_columns(file, base_dir, ("radius_m", "capacity_kg"), "chart", err, row_name)
+    for row in rows:
+        if row.first < 0.0:
+            raise err(f"{row_name(row)}: radius {row.first:g} m must be >= 0")
+        if row.second <= 0.0:
+            raise err(f"{row_name(row)}: capacity {row.second:g} kg must be > 0")
+    _check_increasing(rows, "radii", err, row_name)
+    return RatedChart(tuple(r.first for r in rows), tuple(r.second for r in rows))

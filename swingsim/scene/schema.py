@@ -21,7 +21,8 @@ class Key:
 
     kind: ``float``, ``int``, ``str``, ``bool``, ``vec2``, ``vec3``,
     ``floats`` (list of numbers), ``floats_or_float`` (one number or a list),
-    ``vec3s`` (list of [x, y, z] points), ``path`` (a file relative to the scene).
+    ``vec3s`` (list of [x, y, z] points), ``path`` (a file relative to the scene),
+    ``strs`` (a list of distinct strings, each one of ``choices``).
     ``gt``/``ge``/``le``/``lt`` bound numbers (and each component of vectors).
     """
 
@@ -43,6 +44,8 @@ class Key:
         str
             E.g. ``a number > 0 (finite)`` or ``one of 'x', 'y'``.
         """
+        if self.choices and self.kind == "strs":
+            return "a list of distinct names, each one of " + ", ".join(repr(c) for c in self.choices)
         if self.choices:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         what = {
@@ -52,7 +55,7 @@ class Key:
             "path": "a path to a file (relative to the scene file)",
             "floats_or_float": "a number or a list of numbers",
             "vec3s": "a list of [x, y, z] points",
-        }[self.kind]
+        }.get(self.kind, "a list of names")
         bounds = []
         if self.gt is not None:
             bounds.append(f"> {self.gt:g}")
@@ -149,6 +152,20 @@ TABLES: dict[str, dict[str, Key]] = {
         "cross_limits_m": Key("vec2", "Gantry and bridge cranes: the trolley's range across the span "
                               "(y), [min, max] [m] (the hook's approach to each rail); a move beyond "
                               "it is refused."),
+        # -- rated capacity chart (swingsim/metrics/chart.py) --
+        "chart_file": Key("path", "The crane's rated capacity chart for this configuration, as its "
+                          "manufacturer's chart gives it: a CSV with the header radius_m,capacity_kg, "
+                          "radii strictly increasing, capacities > 0 ('#' lines are comments). Read "
+                          "linearly between the listed radii and never beyond them: a planned path "
+                          "that takes the hook outside the chart's radii is bad input. Radius is "
+                          "measured horizontally from the slew axis. Never use a chart of another "
+                          "crane or configuration."),
+        "chart_includes": Key("strs", "Masses the chart's capacity must carry besides the load, per "
+                              "the chart's notes: hook (the [hook] block's mass_kg) and rigging "
+                              "(always counted: load.mass_kg includes the rigging). Default both, "
+                              "the cautious reading; leave out hook only when the chart's notes say "
+                              "its capacities already allow for the hook block.",
+                              default=("hook", "rigging"), choices=("hook", "rigging")),
     },
     "rope": {
         "length_m": Key("float", "Hoist rope length from the suspension point to the hook, "
@@ -290,6 +307,16 @@ TABLES: dict[str, dict[str, Key]] = {
                           gt=0.0, lt=45.0),
         "clearance_m": Key("float", "Largest allowed horizontal excursion of the load from the plumb line "
                            "below the suspension point [m].", gt=0.0),
+        # -- rated capacity chart (swingsim/metrics/chart.py) --
+        "chart_review_pct": Key("float", "Chart utilisation above which the lift is flagged for extra "
+                                "review [%]; lifts above 75% of the chart commonly need it (common "
+                                "practice; varies by company and jurisdiction: follow the lift plan).",
+                                default=75.0, gt=0.0, le=100.0),
+        "chart_limit_pct": Key("float", "Chart utilisation above which the lift is flagged as close "
+                               "to the chart [%]; lifts above 90% of the chart commonly need extra "
+                               "review and sign-off (common practice; varies by company and "
+                               "jurisdiction: follow the lift plan).",
+                               default=90.0, gt=0.0, le=100.0),
     },
     # Camera of `swingsim render --view custom`; the whole table is optional, and
     # position_m and focus_m are required when it is given (checked in validate.py).

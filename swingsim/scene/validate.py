@@ -20,12 +20,13 @@ from swingsim.dynamics.registry import select_model
 from swingsim.dynamics.rigging import RiggingError, rigging_geometry
 from swingsim.dynamics.rope import elastic_rope, reeving_efficiency
 from swingsim.errors import SceneError
+from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
 from swingsim.scene.geometry import check_crane
 from swingsim.scene.model import (Crane, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start, View,
-                                  Wind, Zone, models_rigid_load)
-from swingsim.scene.read import KeyReader, line_of_key, read_document, read_table, suggest
+                                  Wind, Zone, models_rigid_load, slew_centre)
+from swingsim.scene.read import KeyReader, line_of_key, read_chart, read_document, read_table, suggest
 from swingsim.scene.site import wind_toward_deg
 
 __all__ = ["load_scene", "scene_from_dict", "MESH_SUFFIXES"]
@@ -152,7 +153,7 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
     scene = Scene(
         title=top["title"], duration_s=top["duration_s"], gravity_m_s2=top["gravity_m_s2"],
         notes=top["notes"],
-        crane=Crane(**crane), rope=rope_o, load=load_o,
+        crane=_read_crane(r, crane), rope=rope_o, load=load_o,
         start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
         wind=wind, sample_hz=output["sample_hz"], limits=Limits(**limits),
         zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
@@ -162,7 +163,8 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         # a move that cannot be built is bad input; a profile tuned to the swing period is
         # built with the period of the model the scene selects, as the run will
         period = float(select_model(scene).mode_periods_s()[0]) if needs_swing_period(scene) else None
-        build_motion(scene, swing_period_s=period)
+        motion = build_motion(scene, swing_period_s=period)
+        _check_path_on_chart(r, scene, motion)
     return scene
 
 
@@ -207,6 +209,61 @@ def _read_view(r: KeyReader, data: dict):
     if np.linalg.norm(np.cross(d, up / np.linalg.norm(up))) < 1e-3:
         raise r.err("view.up", "must not point along the line of sight (position_m to focus_m)", list(v["up"]))
     return View(**v)
+
+
+# ----------------------------------------------------------------------------
+# rated capacity chart (swingsim/metrics/chart.py measures the lift against it)
+
+
+def _read_crane(r: KeyReader, crane: dict) -> Crane:
+    """The ``[crane]`` table, with its capacity chart read and its chart keys checked."""
+    includes = crane["chart_includes"]
+    if "rigging" not in includes:
+        raise r.err("crane.chart_includes", "must list 'rigging': load.mass_kg includes the rigging, "
+                    "and a chart's capacity always carries it", list(includes))
+    if crane["chart_file"] is None:
+        return Crane(**crane)
+    if crane["kind"] not in SLEWING_KINDS:
+        raise r.err("crane.chart_file", f"a capacity chart by radius needs a slewing crane, not kind "
+                    f"'{crane['kind']}'", crane["chart_file"])
+    chart = read_chart(crane["chart_file"], r.base_dir, "crane.chart_file", r.file)
+    return Crane(**crane, chart=chart)
+
+
+def _check_path_on_chart(r: KeyReader, scene: Scene, motion) -> None:
+    """Refuse a planned path that takes the hook (the suspension point's plumb line) off the chart.
+
+    The chart is never extrapolated: every radius the crane's motion reaches must
+    lie within the chart's listed radii.
+    """
+    chart = scene.crane.chart
+    if chart is None:
+        return
+    t = np.union1d(np.linspace(0.0, scene.duration_s, 4001),
+                   [b for b in motion.breakpoints if b <= scene.duration_s])
+    radius = np.hypot(*(motion.evaluate(t)["p"][:, :2] - slew_centre(scene)).T)
+    off = ~np.isfinite(chart.capacity_at(radius))
+    if not off.any():
+        return
+    low, high = chart.radius_m[0], chart.radius_m[-1]
+    rule = (f"outside the chart's radii {low:g} to {high:g} m ({scene.crane.chart_file}); "
+            "the chart is never extrapolated")
+    first = int(np.argmax(off))
+    if first == 0:
+        raise r.err("crane.suspension_m", f"the hook starts at radius {radius[0]:.2f} m, {rule}",
+                    list(scene.crane.suspension_m))
+    t_off = t[first]
+    # the move under way when the path leaves the chart (else the last one started before)
+    started = [i for i, (_axis, prof) in enumerate(motion.moves) if prof.start_s < t_off]
+    during = [i for i in started if motion.moves[i][1].end_s >= t_off]
+    index = (during or started)[-1]
+    prof = motion.moves[index][1]
+    in_move = (t >= prof.start_s) & (t <= prof.end_s) & off
+    beyond = radius[in_move] if in_move.any() else radius[off]
+    reach = float(np.max(beyond)) if float(np.max(beyond)) > high else float(np.min(beyond))
+    move = scene.moves[index]
+    raise r.err(f"moves[{index}]", f"{move.name} takes the hook to radius {reach:.2f} m (leaving the chart at "
+                f"t = {t_off:.2f} s), {rule}")
 
 
 def _check_mesh_file(r: KeyReader, load: dict) -> None:
