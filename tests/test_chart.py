@@ -164,3 +164,22 @@ def test_demo_states_its_invented_chart():
     head = (data / "demo_chart.csv").read_text().splitlines()[0]
     assert head.startswith("#") and "INVENTED" in head
     assert "INVENTED" in (data / "demo.toml").read_text()
+
+
+def test_video_readout_gives_the_summary_utilisation(tmp_path):
+    """The video's per-frame chart figure is the time series' own (one definition, metrics.chart)."""
+    from swingsim.metrics.chart import chart_series
+    from swingsim.render.overlay import frame_text
+
+    traj = simulate(_scene(tmp_path, swing_deg=(8.0, 0.0)))
+    t = np.linspace(0.0, traj.t_end_s, 7)
+    s = traj.sample(t)
+    whole = chart_series(traj, t, s)["utilisation_pct"]
+    for i, ti in enumerate(t):
+        one = {k: np.asarray(s[k])[i][None] for k in ("suspension", "load", "rope_dir", "rope_tension_N")}
+        one["hook"] = None
+        pct = chart_series(traj, np.array([ti]), one)["utilisation_pct"][0]
+        assert pct == pytest.approx(whole[i], rel=1e-12)
+        row = {k: np.asarray(s[k])[i] for k in ("rope_dir", "load_vel", "rope_tension_N", "rope_length")}
+        text = frame_text(ti, None, 10.0, 1.0, row, (), (), chart_pct=pct).readout
+        assert "of chart" in text and f"{pct:6.1f}" in text

@@ -6,6 +6,8 @@ can be checked without rendering anything.
 
 from __future__ import annotations
 
+import math
+
 from dataclasses import dataclass
 
 import numpy as np
@@ -104,9 +106,12 @@ def clock_text(t_s: float, speed: float) -> str:
     return f"t = {t_s:6.2f} s{tag}"
 
 
-def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_m: float) -> str:
+def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_m: float,
+                  chart_pct: float | None = None) -> str:
     rows = [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
             ("hook load", f"{hook_load_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
+    if chart_pct is not None:
+        rows.append(("of chart", f"{chart_pct:6.1f}" if math.isfinite(chart_pct) else "   off", "%"))
     return "\n".join(f"{a:<12}{b:>7} {c:<3}" for a, b, c in rows)
 
 
@@ -161,7 +166,8 @@ def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
 
 
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
-               events, zone_states, line_chars: int = 200, banner_chars: int = 70, facts=None) -> FrameText:
+               events, zone_states, line_chars: int = 200, banner_chars: int = 70, facts=None,
+               chart_pct: float | None = None) -> FrameText:
     """All the words of the frame at simulated time ``t_s``.
 
     Parameters
@@ -186,11 +192,14 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         Longest banner line [characters].
     facts : swingsim.render.facts.Facts, optional
         The run's facts, for the notice of an early stop.
+    chart_pct : float, optional
+        The swinging lift's utilisation of the rated capacity chart at this instant [%]
+        (``metrics.chart``); shown when the scene has a chart.
 
     Returns
     -------
     FrameText
-        Clock, readout (rope angle, load speed, hook load, rope length), events, zones, caution, banner, stop notice.
+        Clock, readout (rope angle, load speed, hook load, rope length, chart utilisation), events, zones, caution, banner, stop notice.
     """
     from swingsim.render.facts import rope_angle_deg
 
@@ -199,7 +208,7 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     ten = float(row["rope_tension_N"]) / 1000.0
     return FrameText(
         clock=clock_text(t_s, speed),
-        readout=_readout_text(ang, spd, ten, float(row["rope_length"])),
+        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct),
         event=event_text(t_s, events),
         zone=zone_text(zone_states),
         caution=caution_line(line_chars),

@@ -16,6 +16,7 @@ import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
 
 from swingsim import scene3d
+from swingsim.metrics.chart import chart_series
 from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
@@ -251,6 +252,16 @@ class Stage:
         longest = float(np.max(self.traj.sample(np.linspace(0, self.traj.t_end_s, 50))["rope_length"]))
         self.follow_span = 0.35 * longest + 2.5 * max(self.lay.load_size_m) + 3.0
 
+    def _chart_pct(self, t: float, row: dict) -> float | None:
+        """The chart utilisation at one instant, as the summary measures it; None without a chart."""
+        if self.traj.scene.crane.chart is None:
+            return None
+        one = {k: np.asarray(row[k], dtype=float)[None] for k in
+               ("suspension", "load", "rope_dir", "rope_tension_N") if row.get(k) is not None}
+        one["hook"] = None if row.get("hook") is None else np.asarray(row["hook"], dtype=float)[None]
+        series = chart_series(self.traj, np.array([t]), one)
+        return float(series["utilisation_pct"][0])
+
     def _apply_camera(self, ren, cam: views.Camera):
         c = ren.GetActiveCamera()
         c.SetFocalPoint(*cam.focus)
@@ -410,7 +421,7 @@ class Stage:
                 cam = views.follow(focus, self.follow_span, self.aspect)
             self._apply_camera(ren, cam)
         ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
-                                self.line_chars, self.banner_chars, self.facts)
+                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row))
         # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
         # display (readable, and text is costly to rasterise); the clock and the picture
         # show every frame's own time.
