@@ -41,8 +41,6 @@ Z_UP_TO_Y_UP = np.array([[1.0, 0.0, 0.0], [0.0, 0.0, 1.0], [0.0, -1.0, 0.0]])
 SUMMARY_KEYS = ("peak_rope_angle_deg", "peak_rope_angle_time_s", "peak_excursion_m", "swing_at_move_end_deg",
                 "residual_swing_deg", "settle_time_s", "peak_rope_tension_kN", "dynamic_factor",
                 "min_clearance_m", "cautions")
-#: Key rate limits [1/s].
-MIN_FPS, MAX_FPS = 0.1, 240.0
 #: A channel whose keys all lie this close to the first is written as the node's still value.
 _STILL_TOL = 1e-6
 
