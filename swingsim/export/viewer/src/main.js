@@ -63,7 +63,9 @@ async function start() {
   }
   const plot = new SwingPlot(ui.plot, series, data.events, range, data.colours, data.settle_deg);
 
-  const state = { t: range[0], playing: true, speed: 1, view: "oblique", last: null };
+  const state = { t: range[0], playing: true, speed: 1, view: "oblique", last: null, dirty: 0 };
+  const redraw = () => { state.dirty += 1; };
+  if (stage) for (const c of Object.values(stage.controls)) c.addEventListener("change", redraw);
   const clamp = (t) => Math.min(range[1], Math.max(range[0], t));
 
   function applyFragment(fragment) {
@@ -80,6 +82,7 @@ async function start() {
 
   function setView(name) {
     state.view = name;
+    redraw();
     for (const [key, button] of Object.entries(ui.viewButtons)) button.classList.toggle("on", key === name);
     if (stage) {
       stage.setTime(state.t);
@@ -91,6 +94,7 @@ async function start() {
     if (playing && state.t >= range[1]) state.t = range[0];
     state.playing = playing;
     state.last = null;
+    redraw();
   }
 
   function seek(t) {
@@ -150,18 +154,27 @@ async function start() {
   window.addEventListener("resize", () => {
     if (stage) stage.resize();
     plot.layout();
+    redraw();
   });
 
   setView(state.view);
   applyFragment(readFragment());
 
+  // Draws only when something changed: playing, a seek, a view, an orbit or a resize.
   let frames = 0;
+  let drawn = null;
   function frame(now) {
     if (state.playing) {
       if (state.last !== null) state.t = clamp(state.t + (now - state.last) / 1000 * state.speed);
       state.last = now;
       if (state.t >= range[1]) state.playing = false;
     }
+    const key = `${state.t}|${state.playing}|${state.view}|${state.dirty}`;
+    if (key === drawn) {
+      requestAnimationFrame(frame);
+      return;
+    }
+    drawn = key;
     showReadouts(state.t);
     plot.draw(state.t);
     const report = { t: state.t, playing: state.playing, view: state.view, range };

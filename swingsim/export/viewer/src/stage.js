@@ -201,8 +201,8 @@ export class Stage {
     const rect = this.renderer.domElement.getBoundingClientRect();
     const out = {
       canvas: { left: rect.left, top: rect.top, width: rect.width, height: rect.height },
-      projection: Array.from(this.camera.projectionMatrix.elements),
-      view: Array.from(this.camera.matrixWorldInverse.elements),
+      projection_matrix: Array.from(this.camera.projectionMatrix.elements),
+      view_matrix: Array.from(this.camera.matrixWorldInverse.elements),
     };
     if (this.load) {
       const p = this.load.getWorldPosition(new Vector3());

@@ -39,6 +39,15 @@ export function buildPage(data, range, eventColour) {
   const plot = el("canvas", { class: "plot", title: "Click to go to a time" });
   side.appendChild(plot);
 
+  if (data.facts.length) {
+    side.appendChild(el("h2", { text: "Summary" }));
+    const facts = el("dl", { class: "readouts" });
+    for (const f of data.facts) {
+      facts.appendChild(el("dt", { text: f.label }));
+      facts.appendChild(el("dd", { text: `${f.value} ${f.unit}` }));
+    }
+    side.appendChild(facts);
+  }
   side.appendChild(el("h2", { text: "Events" }));
   const events = el("ul", { class: "events" });
   const eventItems = [];
@@ -53,15 +62,6 @@ export function buildPage(data, range, eventColour) {
   }
   side.appendChild(events);
 
-  if (data.facts.length) {
-    side.appendChild(el("h2", { text: "Summary" }));
-    const facts = el("dl", { class: "readouts" });
-    for (const f of data.facts) {
-      facts.appendChild(el("dt", { text: f.label }));
-      facts.appendChild(el("dd", { text: `${f.value} ${f.unit}` }));
-    }
-    side.appendChild(facts);
-  }
   side.appendChild(el("div", { class: "version", text: `swingsim ${data.version} - drag to orbit, right-drag to pan, wheel to zoom` }));
 
   const bar = el("div", { id: "bar" });
