@@ -121,7 +121,7 @@ export class SwingPlot {
     g.drawImage(this.background, 0, 0);
     g.scale(this.ratio, this.ratio);
     const xx = this.x(t);
-    g.strokeStyle = this.colours.warn || "#d62828";
+    g.strokeStyle = this.colours.load || "#f26b1d";
     g.lineWidth = 1.5;
     g.beginPath();
     g.moveTo(xx, this.pad.top);
@@ -129,7 +129,7 @@ export class SwingPlot {
     g.stroke();
     const v = this.series.at("rope_angle_deg", t);
     if (v !== null) {
-      g.fillStyle = this.colours.warn || "#d62828";
+      g.fillStyle = this.colours.load || "#f26b1d";
       g.beginPath();
       g.arc(xx, this.y(Math.min(v, this.yMax)), 3, 0, 2 * Math.PI);
       g.fill();
