@@ -251,8 +251,12 @@ def _validator_missing() -> str | None:
     return None
 
 
-@pytest.mark.skipif(_validator_missing() is not None, reason=str(_validator_missing()))
 def test_khronos_validator_every_bundled_scene(tmp_path):
+    missing = _validator_missing()
+    if missing and os.environ.get("CI"):
+        pytest.fail(f"the glTF-Validator must run in CI: {missing}")
+    if missing:
+        pytest.skip(missing)
     files = []
     for i, path in enumerate(scene_files()):
         files.append(_export(path, tmp_path / f"{i}-{path.stem}", "--fps", "4") / "lift.glb")
