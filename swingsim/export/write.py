@@ -6,13 +6,13 @@ is written when :mod:`swingsim.export.viewer` is installed.
 
 from __future__ import annotations
 
-import importlib.util
 import math
 from pathlib import Path
 
 from swingsim.errors import InputError, SceneError
 from swingsim.export.gltf import build_gltf
 from swingsim.io.files import atomic_write_bytes, atomic_write_text
+from swingsim.metrics.single import summarize
 from swingsim.scene.plausibility import MAX_FRAMES
 
 #: File names of the export.
@@ -75,13 +75,15 @@ def check_export_options(scene, *, fps: float, t_from=None, t_to=None, fmt: str 
     return t0, t1
 
 
-def _viewer_module():
-    """The viewer page's module, or None when this install has no viewer."""
-    if importlib.util.find_spec("swingsim.export.viewer") is None:
+def _viewer_html():
+    """The viewer page's maker, ``viewer_html(glb_bytes, traj, summary) -> str``, or None without a viewer."""
+    try:
+        from swingsim.export.viewer import viewer_html
+    except ModuleNotFoundError as exc:
+        if exc.name != "swingsim.export.viewer":
+            raise
         return None
-    from swingsim.export import viewer
-
-    return viewer
+    return viewer_html
 
 
 def write_export(traj, summary, out_dir, *, fps: float = 30.0, t_from=None, t_to=None, fmt: str = "glb",
@@ -111,6 +113,7 @@ def write_export(traj, summary, out_dir, *, fps: float = 30.0, t_from=None, t_to
         The files written: the glTF file(s), then ``viewer.html`` when there is a viewer.
     """
     out = Path(out_dir)
+    summary = summarize(traj) if summary is None else summary
     asset = build_gltf(traj, summary, fps=fps, t_from=t_from, t_to=t_to, load_mesh=load_mesh)
     glb = asset.to_glb()
     if fmt == "gltf":
@@ -118,7 +121,7 @@ def write_export(traj, summary, out_dir, *, fps: float = 30.0, t_from=None, t_to
         written = [atomic_write_bytes(out / BIN_NAME, binary), atomic_write_text(out / GLTF_NAME, text)]
     else:
         written = [atomic_write_bytes(out / GLB_NAME, glb)]
-    viewer = _viewer_module()
-    if viewer is not None:
-        written.append(atomic_write_text(out / VIEWER_NAME, viewer.viewer_html(glb, traj, summary)))
+    viewer_html = _viewer_html()
+    if viewer_html is not None:
+        written.append(atomic_write_text(out / VIEWER_NAME, viewer_html(glb, traj, summary)))
     return written
