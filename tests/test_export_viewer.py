@@ -277,6 +277,8 @@ class Browser:
 @pytest.fixture(scope="module")
 def browser():
     if CHROMIUM is None:
+        if os.environ.get("CI"):
+            pytest.fail("headless Chromium must run in CI (.ci/run installs the Debian package chromium)")
         pytest.skip("headless Chromium (Debian package chromium) is not installed")
     b = Browser()
     yield b
