@@ -332,7 +332,7 @@ def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None,
     buf = _Buffer(doc)
     mats: dict = {}
     index = {name: i for i, name in enumerate(names)}
-    grid = ground.ground_grid(s3d.layout.ground_m)
+    grid = ground.GroundGrid.covering(s3d.layout.ground_m)
 
     for name in names:
         body = s3d.bodies[name]
