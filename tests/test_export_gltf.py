@@ -141,6 +141,51 @@ def test_translations_equal_time_series(scene, bodies, tmp_path):
         assert "hook" not in [n.name for n in gltf.nodes]  # no hook block, no hook node
 
 
+def test_rope_and_slings_follow_their_ends(tmp_path):
+    """Rope and sling legs: translation, rotation and scale keyed at every key; the rope starts at the suspension point."""
+    out = _export(DEMO, tmp_path / "x", "--fps", "5")
+    gltf, blob = _read(out / "lift.glb")
+    t, tracks = _tracks(gltf, blob)
+    keyed = {}
+    for ch in gltf.animations[0].channels:
+        keyed.setdefault(gltf.nodes[ch.target.node].name, set()).add(ch.target.path)
+    legs = [n.name for n in gltf.nodes if n.name == "rope" or n.name.startswith("sling_")]
+    assert len(legs) >= 2
+    for name in legs:
+        assert keyed[name] == {"translation", "rotation", "scale"}, name
+    traj, _ = _run(str(DEMO))
+    cols = timeseries_columns(traj, t.astype(float))
+    rope = _world(gltf, tracks, "rope")
+    want = np.column_stack([cols[f"suspension_{a}_m"] for a in "xyz"])
+    np.testing.assert_allclose(_to_scene(rope[:, :3, 3]), want, atol=1e-3, rtol=0)
+    # the unit rod's far end (local +z of the scene, +y in the file) lies below the suspension point
+    end = _to_scene(np.einsum("nij,j->ni", rope, [0.0, 1.0, 0.0, 1.0])[:, :3])
+    assert np.all(end[:, 2] < want[:, 2] - 1.0)
+
+
+def test_user_load_mesh_embedded(tmp_path):
+    """A load given as an STL file (ASCII STL, a tetrahedron) is the load node's mesh."""
+    stl = tmp_path / "part.stl"
+    tri = [((0, 0, 0), (1, 0, 0), (0, 1, 0)), ((0, 0, 0), (0, 1, 0), (0, 0, 1)),
+           ((0, 0, 0), (0, 0, 1), (1, 0, 0)), ((1, 0, 0), (0, 0, 1), (0, 1, 0))]
+    text = ["solid part"]
+    for a, b, c in tri:
+        text += ["facet normal 0 0 0", " outer loop", *(f"  vertex {x} {y} {z}" for x, y, z in (a, b, c)),
+                 " endloop", "endfacet"]
+    stl.write_text("\n".join(text + ["endsolid part", ""]))
+    scene = tmp_path / "s.toml"
+    scene.write_text(DEMO.read_text().replace("[load]\n", '[load]\nmesh_file = "part.stl"\n', 1))
+    out = _export(scene, tmp_path / "x", "--fps", "2")
+    gltf, blob = _read(out / "lift.glb")
+    node = next(n for n in gltf.nodes if n.name == "load")
+    prim = gltf.meshes[node.mesh].primitives[0]
+    pos = _accessor(gltf, blob, prim.attributes.POSITION)
+    assert len(_accessor(gltf, blob, prim.indices)) == 3 * 4  # four triangles
+    # the tetrahedron's corners, back in the scene's axes
+    assert {tuple(np.round(_to_scene(p.astype(float)), 6) + 0.0) for p in pos} == \
+        {(0.0, 0.0, 0.0), (1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)}
+
+
 def test_load_rotation_carries_tilt(tmp_path):
     """The load node's world rotation is the model's load rotation (tilt and yaw) after the axis change."""
     scene = ROOT / "scenes" / "panel_bridle_hook_block.toml"

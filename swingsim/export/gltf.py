@@ -360,6 +360,7 @@ def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None,
 
     time_acc = buf.accessor(t.astype(np.float32), "SCALAR")
     channels, samplers = [], []
+    outputs: dict = {}  # identical key arrays (e.g. the jib's and the slewing part's turn) are stored once
     for name in names:
         if name not in world:
             continue
@@ -370,7 +371,8 @@ def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None,
         trs = dict(zip(("translation", "rotation", "scale"), _trs(m)))
         node = doc["nodes"][index[name]]
         for path, values in trs.items():
-            still = np.all(np.abs(values - values[0]) <= _STILL_TOL)
+            # a rope or sling leg follows its two end points at every key, even when one part stays still
+            still = name not in frames.segments and np.all(np.abs(values - values[0]) <= _STILL_TOL)
             if still:
                 default = {"translation": [0, 0, 0], "rotation": [0, 0, 0, 1], "scale": [1, 1, 1]}[path]
                 v = [float(x) for x in values[0]]
@@ -379,8 +381,10 @@ def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None,
                 continue
             node[path] = [float(x) for x in values[0]]
             kind = "VEC4" if path == "rotation" else "VEC3"
-            samplers.append({"input": time_acc, "interpolation": "LINEAR",
-                             "output": buf.accessor(values.astype(np.float32), kind)})
+            keys = values.astype(np.float32)
+            if keys.tobytes() not in outputs:
+                outputs[keys.tobytes()] = buf.accessor(keys, kind)
+            samplers.append({"input": time_acc, "interpolation": "LINEAR", "output": outputs[keys.tobytes()]})
             channels.append({"sampler": len(samplers) - 1, "target": {"node": index[name], "path": path}})
     if channels:
         doc["animations"].append({"name": title, "channels": channels, "samplers": samplers})
