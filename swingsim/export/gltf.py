@@ -283,7 +283,8 @@ def _parents(s3d, names) -> dict:
     return out
 
 
-def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None, load_mesh=None) -> GltfAsset:
+def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None, load_mesh=None,
+               scene3d_built=None) -> GltfAsset:
     """The animated glTF scene of a run.
 
     Parameters
@@ -300,6 +301,8 @@ def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None,
         Key times stay true simulated times.
     load_mesh : swingsim.scene3d.Mesh, optional
         A user's mesh of the load (centre of gravity at its origin, z up) [m].
+    scene3d_built : swingsim.scene3d.Scene3D, optional
+        The run's 3D scene when the caller has built it already (the viewer uses the same).
 
     Returns
     -------
@@ -313,7 +316,7 @@ def build_gltf(traj, summary=None, *, fps: float = 30.0, t_from=None, t_to=None,
     quaternion: scipy.spatial.transform.Rotation.from_matrix.
     """
     summary = summarize(traj) if summary is None else summary
-    s3d = scene3d.build(traj, load_mesh=load_mesh)
+    s3d = scene3d.build(traj, load_mesh=load_mesh) if scene3d_built is None else scene3d_built
     t = _key_times(traj, fps, t_from, t_to)
     samples = traj.sample(t)
     has_hook = samples.get("hook") is not None

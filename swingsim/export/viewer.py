@@ -103,8 +103,7 @@ def _views(traj, scene3d) -> dict:
     fitted = {name: _camera_json(views.fit(name, points, FIT_ASPECT)) for name in views.PRESETS if name != "follow"}
     # follow: the video's framing, aimed a little above the load (see render/stage.py)
     longest = float(np.max(traj.sample(np.linspace(0.0, traj.t_end_s, 50))["rope_length"]))
-    span = 0.35 * longest + 2.5 * max(scene3d.layout.load_size_m) + 3.0
-    cam = views.follow((0.0, 0.0, 0.0), span, FIT_ASPECT)
+    cam = views.follow((0.0, 0.0, 0.0), views.follow_span(longest, scene3d.layout.load_size_m), FIT_ASPECT)
     fitted["follow"] = dict(_camera_json(cam), focus_load_share=0.7, focus_rise_share=0.3)
     return fitted
 

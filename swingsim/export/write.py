@@ -1,7 +1,6 @@
 """Write a run's 3D export: ``lift.glb`` (or ``lift.gltf`` + ``lift.bin``) and ``viewer.html``.
 
-Every file is written atomically (:mod:`swingsim.io.files`).  The viewer page
-is written when :mod:`swingsim.export.viewer` is installed.
+Every file is written atomically (:mod:`swingsim.io.files`).
 """
 
 from __future__ import annotations
@@ -10,7 +9,9 @@ import math
 from pathlib import Path
 
 from swingsim.errors import InputError, SceneError
+from swingsim import scene3d
 from swingsim.export.gltf import build_gltf
+from swingsim.export.viewer import viewer_html
 from swingsim.io.files import atomic_write_bytes, atomic_write_text
 from swingsim.metrics.single import summarize
 from swingsim.scene.plausibility import MAX_FRAMES
@@ -75,17 +76,6 @@ def check_export_options(scene, *, fps: float, t_from=None, t_to=None, fmt: str 
     return t0, t1
 
 
-def _viewer_html():
-    """The viewer page's maker, ``viewer_html(glb_bytes, traj, summary) -> str``, or None without a viewer."""
-    try:
-        from swingsim.export.viewer import viewer_html
-    except ModuleNotFoundError as exc:
-        if exc.name != "swingsim.export.viewer":
-            raise
-        return None
-    return viewer_html
-
-
 def write_export(traj, summary, out_dir, *, fps: float = 30.0, t_from=None, t_to=None, fmt: str = "glb",
                  load_mesh=None) -> list:
     """Write the animated glTF scene of a run and its viewer page into ``out_dir``.
@@ -110,18 +100,17 @@ def write_export(traj, summary, out_dir, *, fps: float = 30.0, t_from=None, t_to
     Returns
     -------
     list of pathlib.Path
-        The files written: the glTF file(s), then ``viewer.html`` when there is a viewer.
+        The files written: the glTF file(s), then ``viewer.html``.
     """
     out = Path(out_dir)
     summary = summarize(traj) if summary is None else summary
-    asset = build_gltf(traj, summary, fps=fps, t_from=t_from, t_to=t_to, load_mesh=load_mesh)
+    built = scene3d.build(traj, load_mesh=load_mesh)  # one 3D scene for the file and the page
+    asset = build_gltf(traj, summary, fps=fps, t_from=t_from, t_to=t_to, scene3d_built=built)
     glb = asset.to_glb()
     if fmt == "gltf":
         text, binary = asset.to_gltf(BIN_NAME)
         written = [atomic_write_bytes(out / BIN_NAME, binary), atomic_write_text(out / GLTF_NAME, text)]
     else:
         written = [atomic_write_bytes(out / GLB_NAME, glb)]
-    viewer_html = _viewer_html()
-    if viewer_html is not None:
-        written.append(atomic_write_text(out / VIEWER_NAME, viewer_html(glb, traj, summary)))
+    written.append(atomic_write_text(out / VIEWER_NAME, viewer_html(glb, traj, summary, scene3d=built)))
     return written
