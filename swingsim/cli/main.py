@@ -29,6 +29,8 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "render": ("swingsim.cli.render", "render a 3D briefing video (MP4/GIF/PNG frames) and stills of a scene"),
     "compare": ("swingsim.cli.compare", "run every variant of a sweep file and rank them "
                 "(comparison.csv, report.html)"),
+    "export": ("swingsim.cli.export", "export the lift as an animated 3D scene (glTF 2.0 .glb) and a "
+               "self-contained viewer.html"),
     "plan-move": ("swingsim.cli.plan", "find the fastest move whose residual swing stays "
                   "under a bound over a range of rope lengths"),
 }

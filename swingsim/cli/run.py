@@ -13,6 +13,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from swingsim.cli.export import load_mesh_of
 from swingsim.cli.options import add_output_arguments, add_scene_argument
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
@@ -46,6 +47,9 @@ def add_run_arguments(p: argparse.ArgumentParser) -> None:
     """
     _add_output_arguments(p)
     p.add_argument("--video", action="store_true", help="also render the 3D video and stills")
+    p.add_argument("--export", action="store_true",
+                   help="also write the animated 3D scene lift.glb and viewer.html "
+                        "(keys at --fps over --from/--to, as 'swingsim export')")
     add_render_arguments(p, scene=False)  # the render options (no pyvista import)
 
 
@@ -120,6 +124,7 @@ def _do_run(args, scene_path, default_out) -> int:
         o.update({k: v for k, v in _video_options(args, scene).items() if k in o})
         check_options(scene, **o)
         check_frames(scene, o["fps"], o["speed"], o["window"], allow=args.allow_implausible)
+    export = _export_options(args, scene)
     traj = simulate(scene)
     summary = summarize(traj)
     clean_partials(out)
@@ -128,12 +133,31 @@ def _do_run(args, scene_path, default_out) -> int:
         from swingsim.render import render_scene
 
         written += render_scene(traj, summary, out, **_video_options(args, scene))
+    if export is not None:
+        from swingsim.export.write import write_export
+
+        written += write_export(traj, summary, out, **export)
     _print(args, _headline(summary))
     _print(args, f"wrote {len(written)} files to {out}")
     if not traj.valid:
         sys.stderr.write(f"swingsim: run invalid: {traj.message}\n")
         return 1
     return 0
+
+
+def _export_options(args, scene):
+    """Keyword arguments of ``write_export`` for ``run --export`` and ``demo`` (checked), or None."""
+    from swingsim.export.write import check_export_options
+
+    if getattr(args, "command", "") == "demo":
+        fps, t_from, t_to = 30.0, None, None
+    elif getattr(args, "export", False):
+        fps, t_from, t_to = args.fps, args.t_from, args.t_to
+    else:
+        return None
+    t0, t1 = check_export_options(scene, fps=fps, t_from=t_from, t_to=t_to, allow=args.allow_implausible,
+                                  source=getattr(args, "command", "run"))
+    return dict(fps=fps, t_from=t0, t_to=t1, fmt="glb", load_mesh=load_mesh_of(scene))
 
 
 def _video_options(args, scene=None) -> dict:

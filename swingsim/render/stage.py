@@ -250,7 +250,7 @@ class Stage:
                 cam = views.fit(view, pts, aspect)
             self.cams.append(cam)
         longest = float(np.max(self.traj.sample(np.linspace(0, self.traj.t_end_s, 50))["rope_length"]))
-        self.follow_span = 0.35 * longest + 2.5 * max(self.lay.load_size_m) + 3.0
+        self.follow_span = views.follow_span(longest, self.lay.load_size_m)
 
     def _chart_pct(self, t: float, row: dict) -> float | None:
         """The chart utilisation at one instant, as the summary measures it; None without a chart."""

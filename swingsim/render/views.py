@@ -109,6 +109,24 @@ def fit(name: str, points, aspect: float, margin: float = 0.92) -> Camera:
     return Camera(tuple(focus + d * dist), tuple(focus), tuple(up))
 
 
+def follow_span(longest_rope_m: float, load_size_m) -> float:
+    """The width of ground the follow view keeps in frame: the rope's swing room and the load [m].
+
+    Parameters
+    ----------
+    longest_rope_m : float
+        The longest rope length of the run [m].
+    load_size_m : sequence of 3 float
+        The load's size [m].
+
+    Returns
+    -------
+    float
+        ``0.35 L + 2.5 * largest load side + 3`` [m] (a framing rule of our own).
+    """
+    return 0.35 * float(longest_rope_m) + 2.5 * max(load_size_m) + 3.0
+
+
 def follow(focus, span: float, aspect: float) -> Camera:
     """Camera of the ``follow`` view: the same direction as ``oblique``, ``span`` metres high in view.
 
