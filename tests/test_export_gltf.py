@@ -175,6 +175,8 @@ def test_user_load_mesh_embedded(tmp_path):
     stl.write_text("\n".join(text + ["endsolid part", ""]))
     scene = tmp_path / "s.toml"
     scene.write_text(DEMO.read_text().replace("[load]\n", '[load]\nmesh_file = "part.stl"\n', 1))
+    for extra in DEMO.parent.glob("*.csv"):  # files the demo names beside it (its chart)
+        (tmp_path / extra.name).write_bytes(extra.read_bytes())
     out = _export(scene, tmp_path / "x", "--fps", "2")
     gltf, blob = _read(out / "lift.glb")
     node = next(n for n in gltf.nodes if n.name == "load")
