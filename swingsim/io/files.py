@@ -302,12 +302,8 @@ def locked_out_dir(out: Path | str, force: bool, what: str = "--out"):
 
     Parameters
     ----------
-    out : Path or str
-        The output folder.
-    force : bool
-        Accept a folder that already holds files (``--force``).
-    what : str, optional
-        The option that named the folder, for the messages.
+    out, force, what
+        The output folder, ``--force`` and the option's name, as for :func:`check_out_dir`.
 
     Yields
     ------
@@ -349,12 +345,8 @@ def output_run(out: Path | str, force: bool, what: str = "--out"):
 
     Parameters
     ----------
-    out : Path or str
-        The output folder.
-    force : bool
-        Accept a folder that already holds files (``--force``).
-    what : str, optional
-        The option that named the folder, for the messages.
+    out, force, what
+        The output folder, ``--force`` and the option's name, as for :func:`check_out_dir`.
 
     Yields
     ------
