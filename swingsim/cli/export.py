@@ -12,7 +12,7 @@ from pathlib import Path
 
 from swingsim.errors import InputError, SimulationError
 from swingsim.export.write import FORMATS, check_export_options, write_export
-from swingsim.io.files import check_out_dir, clean_partials
+from swingsim.io.files import check_out_dir, output_run
 
 HELP = "export the lift as an animated 3D scene (glTF 2.0 .glb) and a self-contained viewer.html"
 
@@ -95,8 +95,12 @@ def main(args) -> int:
     try:
         traj = simulate(scene)
         summary = summarize(traj)
-        clean_partials(out)
-        paths = write_export(traj, summary, out, fps=args.fps, t_from=t0, t_to=t1, fmt=args.fmt, load_mesh=mesh)
+        with output_run(out, args.force) as stage:  # locked; the files appear only when all are done
+            paths = [stage.final(p) for p in write_export(traj, summary, stage.path, fps=args.fps, t_from=t0,
+                                                          t_to=t1, fmt=args.fmt, load_mesh=mesh)]
+    except InputError as exc:
+        print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
+        return 2
     except SimulationError as exc:
         print(f"swingsim: {exc}", file=sys.stderr)
         return 1

@@ -25,7 +25,7 @@ from pathlib import Path
 
 from swingsim.cli.options import add_output_arguments, add_scene_argument
 from swingsim.errors import InputError
-from swingsim.io.files import check_out_dir
+from swingsim.io.files import locked_out_dir, reported_write_errors
 from swingsim.scene import load_scene
 from swingsim.study import plan as planning
 
@@ -82,8 +82,8 @@ def main(args: argparse.Namespace) -> int:
     bound_deg = float(args.max_residual_deg)
     planning.check_request(scene, args.move, bound_deg, low, high)
     out = Path(args.out) if args.out else Path(Path(args.scene).stem + "-plan")
-    check_out_dir(out, args.force)
-    report = planning.write_plan(scene, args.move, bound_deg, low, high, out)
+    with locked_out_dir(out, args.force) as folder, reported_write_errors(folder):
+        report = planning.write_plan(scene, args.move, bound_deg, low, high, folder)
     if not args.quiet:
         print("\n".join(report.lines[2:]))
         print(f"-> {out}/")

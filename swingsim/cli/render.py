@@ -119,7 +119,7 @@ def main(args) -> int:
     from swingsim.render.api import check_options
     from swingsim.render.gl import RenderUnavailableError
 
-    from swingsim.io.files import check_out_dir
+    from swingsim.io.files import check_out_dir, output_run
 
     try:
         scene = load_scene(args.scene)
@@ -138,7 +138,8 @@ def main(args) -> int:
         summary = _summary(traj)
         from swingsim.render.api import render_scene
 
-        paths = render_scene(traj, summary, out, quiet=args.quiet, **opts)
+        with output_run(out, args.force) as stage:  # locked; the files appear only when all are done
+            paths = [stage.final(p) for p in render_scene(traj, summary, stage.path, quiet=args.quiet, **opts)]
     except InputError as exc:
         print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
         return 2

@@ -17,7 +17,7 @@ from swingsim.cli.export import load_mesh_of
 from swingsim.cli.options import add_output_arguments, add_scene_argument
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
-from swingsim.io.files import check_out_dir, clean_partials
+from swingsim.io.files import check_out_dir, output_run
 from swingsim.metrics.single import summarize
 from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_frames, check_plausible
@@ -124,19 +124,20 @@ def _do_run(args, scene_path, default_out) -> int:
         o.update({k: v for k, v in _video_options(args, scene).items() if k in o})
         check_options(scene, **o)
         check_frames(scene, o["fps"], o["speed"], o["window"], allow=args.allow_implausible)
+        load_mesh_of(scene)  # a file that is not a mesh: refused before anything is written
     export = _export_options(args, scene)
-    traj = simulate(scene)
-    summary = summarize(traj)
-    clean_partials(out)
-    written = write_run_outputs(traj, summary, out, plots=not args.no_plots)
-    if want_video and traj.valid:
-        from swingsim.render import render_scene
+    with output_run(out, args.force) as stage:
+        traj = simulate(scene)
+        summary = summarize(traj)
+        written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots)
+        if want_video and traj.valid:
+            from swingsim.render import render_scene
 
-        written += render_scene(traj, summary, out, **_video_options(args, scene))
-    if export is not None:
-        from swingsim.export.write import write_export
+            written += render_scene(traj, summary, stage.path, **_video_options(args, scene))
+        if export is not None:
+            from swingsim.export.write import write_export
 
-        written += write_export(traj, summary, out, **export)
+            written += write_export(traj, summary, stage.path, **export)
     _print(args, _headline(summary))
     _print(args, f"wrote {len(written)} files to {out}")
     if not traj.valid:

@@ -9,7 +9,10 @@ only the files this run produces are replaced.
 from __future__ import annotations
 
 import contextlib
+import errno
+import fcntl
 import os
+import shutil
 import tempfile
 from pathlib import Path
 
@@ -151,4 +154,205 @@ def clean_partials(out: Path | str) -> None:
     if out.is_dir():
         for p in out.glob(TMP_PREFIX + "*"):
             with contextlib.suppress(OSError):
-                p.unlink()
+                if p.is_dir() and not p.is_symlink():
+                    shutil.rmtree(p)  # a staging or parts folder of a killed run
+                else:
+                    p.unlink()
+
+
+def replace_folder(tmp: Path, target: Path) -> None:
+    """Move the folder ``tmp`` onto ``target``, replacing an older folder of that name.
+
+    Parameters
+    ----------
+    tmp : Path
+        The complete new folder (on the same file system as ``target``).
+    target : Path
+        Its final name.
+    """
+    if target.is_dir() and not target.is_symlink():
+        old = target.with_name(f"{TMP_PREFIX}{target.name}-old-{os.getpid()}")
+        os.replace(target, old)
+        os.replace(tmp, target)
+        shutil.rmtree(old, ignore_errors=True)
+    else:
+        os.replace(tmp, target)
+
+
+class Staging:
+    """A hidden folder inside the output folder that a run writes into; see :func:`staged_outputs`."""
+
+    def __init__(self, out: Path):
+        self.out = out
+        out.mkdir(parents=True, exist_ok=True)
+        self.path = Path(tempfile.mkdtemp(prefix=TMP_PREFIX + "stage-", dir=out))
+        os.chmod(self.path, 0o777 & ~_umask())
+
+    def final(self, path: Path | str) -> Path:
+        """The final name of a file written into the staging folder.
+
+        Parameters
+        ----------
+        path : Path or str
+            A path inside :attr:`path`.
+
+        Returns
+        -------
+        Path
+            The same name inside the output folder.
+        """
+        return self.out / Path(path).relative_to(self.path)
+
+    def publish(self) -> None:
+        """Move every entry of the staging folder into the output folder (replacing older ones)."""
+        for entry in sorted(self.path.iterdir()):
+            target = self.out / entry.name
+            if entry.is_dir():
+                replace_folder(entry, target)
+            else:
+                os.replace(entry, target)
+            WRITTEN.append(target)
+        self.path.rmdir()
+
+    def discard(self) -> None:
+        """Remove the staging folder and everything in it."""
+        WRITTEN[:] = [p for p in WRITTEN if self.path not in Path(p).parents]
+        shutil.rmtree(self.path, ignore_errors=True)
+
+
+@contextlib.contextmanager
+def staged_outputs(out: Path | str):
+    """Stage a run's outputs in a hidden folder of ``out``; move them into place only on success.
+
+    On any exception (a failed plot, a full disk, an interruption) the staging
+    folder is removed and ``out`` is left as it was.
+
+    Parameters
+    ----------
+    out : Path or str
+        The output folder (it must exist; see :func:`locked_out_dir`).
+
+    Yields
+    ------
+    Staging
+        ``path`` is the folder to write into; ``final(p)`` names a staged file's final path.
+    """
+    stage = Staging(Path(out))
+    try:
+        yield stage
+    except BaseException:
+        stage.discard()
+        raise
+    stage.publish()
+
+
+#: Errors of a folder that cannot take the output (the user can fix them: exit 2, not an internal fault).
+UNWRITABLE = frozenset({errno.ENOSPC, errno.EDQUOT, errno.EROFS, errno.EACCES, errno.EPERM, errno.EFBIG})
+
+
+@contextlib.contextmanager
+def reported_write_errors(out: Path | str, what: str = "--out"):
+    """Turn a full, read-only or forbidden output folder into one line naming the folder and the reason.
+
+    Parameters
+    ----------
+    out : Path or str
+        The output folder, named in the message.
+    what : str, optional
+        The option that named the folder.
+
+    Yields
+    ------
+    None
+        Write inside the ``with`` block.
+
+    Raises
+    ------
+    InputError
+        For an ``OSError`` whose errno is in :data:`UNWRITABLE`; any other error passes unchanged.
+    """
+    try:
+        yield
+    except OSError as exc:
+        if exc.errno not in UNWRITABLE:
+            raise
+        raise InputError(str(out), "", f"{what} folder cannot be written: {exc.strerror}") from None
+
+
+def _lock_folder(out: Path, what: str) -> int:
+    """An exclusive ``flock`` on the folder itself (no lock file is left behind); the descriptor."""
+    fd = os.open(out, os.O_RDONLY | os.O_DIRECTORY)
+    try:
+        fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except BlockingIOError:
+        os.close(fd)
+        raise InputError(str(out), "", f"another swingsim command is writing into this {what} folder; "
+                         "wait for it to finish or choose another folder") from None
+    return fd
+
+
+@contextlib.contextmanager
+def locked_out_dir(out: Path | str, force: bool, what: str = "--out"):
+    """Create ``out`` if needed, lock it for this command alone, and check it (:func:`check_out_dir`).
+
+    The lock is an exclusive ``flock`` on the folder, released when the ``with``
+    block ends or the process dies; a second command into the same folder is
+    refused at once.  A folder this call created is removed again when it is
+    still empty at the end (input refused, or a run that failed).
+
+    Parameters
+    ----------
+    out, force, what
+        The output folder, ``--force`` and the option's name, as for :func:`check_out_dir`.
+
+    Yields
+    ------
+    Path
+        ``out``, locked and with the temporary files of a killed earlier run removed.
+
+    Raises
+    ------
+    InputError
+        When ``out`` is a file, not empty (without ``force``), in use by another
+        command, or cannot be created.
+    """
+    out = check_out_dir(out, True, what)
+    created = not out.exists()
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise InputError(str(out), "", f"{what} folder cannot be created: {exc.strerror or exc}") from None
+    try:
+        fd = _lock_folder(out, what)
+        try:
+            check_out_dir(out, force, what)
+            clean_partials(out)
+            yield out
+        finally:
+            os.close(fd)
+    finally:
+        if created:
+            with contextlib.suppress(OSError):
+                out.rmdir()  # only when empty
+
+
+@contextlib.contextmanager
+def output_run(out: Path | str, force: bool, what: str = "--out"):
+    """The output folder of one command, locked (:func:`locked_out_dir`) and staged (:func:`staged_outputs`).
+
+    Every file the command writes goes into the staging folder; they all appear
+    in ``out`` only when the ``with`` block ends without an exception.
+
+    Parameters
+    ----------
+    out, force, what
+        The output folder, ``--force`` and the option's name, as for :func:`check_out_dir`.
+
+    Yields
+    ------
+    Staging
+        Write into its ``path``; its ``final(p)`` names where a file ends up.
+    """
+    with locked_out_dir(out, force, what) as folder, reported_write_errors(folder, what), \
+            staged_outputs(folder) as stage:
+        yield stage

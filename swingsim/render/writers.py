@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
-from swingsim.io.files import TMP_PREFIX, WRITTEN, atomic_path
+from swingsim.io.files import TMP_PREFIX, WRITTEN, atomic_path, replace_folder
 
 #: H.264 settings: 'veryfast' keeps the encoder ahead of the renderer on two cores;
 #: CRF 20 is visually clean for flat-shaded pictures (common practice: 18-23).
@@ -28,17 +28,6 @@ def _tmp_name(target: Path, suffix: str = "") -> Path:
     fd, name = tempfile.mkstemp(prefix=TMP_PREFIX + target.name + "-", suffix=suffix, dir=target.parent)
     os.close(fd)
     return Path(name)
-
-
-def _replace_folder(tmp: Path, target: Path) -> None:
-    """Move the folder ``tmp`` onto ``target``, replacing an older folder of that name."""
-    if target.is_dir() and not target.is_symlink():
-        old = target.with_name(f"{TMP_PREFIX}{target.name}-old-{os.getpid()}")
-        os.replace(target, old)
-        os.replace(tmp, target)
-        shutil.rmtree(old, ignore_errors=True)
-    else:
-        os.replace(tmp, target)
 
 
 class _Atomic:
@@ -209,13 +198,18 @@ class PngSequenceWriter:
         pathlib.Path
             The folder.
         """
-        _replace_folder(self.tmp, self.target)
+        replace_folder(self.tmp, self.target)
         WRITTEN.append(self.target)
         return self.target
 
     def abort(self):
         """Remove the frames written so far."""
         shutil.rmtree(self.tmp, ignore_errors=True)
+
+
+def _concat_quote(path: str) -> str:
+    """A path quoted for ffmpeg's concat list: in ``'...'`` a quote is written ``'\\''`` (ffmpeg-formats, concat)."""
+    return "'" + path.replace("'", "'\\''") + "'"
 
 
 def concat_mp4(parts, target: Path) -> Path:
@@ -243,7 +237,8 @@ def concat_mp4(parts, target: Path) -> Path:
     target = Path(target)
     listing = _tmp_name(target, ".txt")
     try:
-        listing.write_text("".join(f"file '{Path(p).resolve().as_posix()}'\n" for p in parts), encoding="utf-8")
+        listing.write_text("".join(f"file {_concat_quote(Path(p).resolve().as_posix())}\n" for p in parts),
+                           encoding="utf-8")
         with atomic_path(target, suffix=".part") as tmp:
             r = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "concat",
                                 "-safe", "0", "-i", str(listing), "-c", "copy", "-movflags", "+faststart",

@@ -14,7 +14,7 @@ import io
 import math
 
 from swingsim.metrics import cautions
-from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE
+from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE, literal_text
 
 # one colour per category, our own palette
 _COLOURS = [ROPE, LOAD, "#4f7d3a", "#7a4fa0", "#b08a1e", "#2d8f8f", INK, "#a0507a"]
@@ -196,14 +196,16 @@ def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str
     parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
     for k in cols:
         others = [c for c in cols if c != k]
-        img = _quantity_figure(rows, k, others)
+        with literal_text():  # user text (names, keys) drawn as it is
+            img = _quantity_figure(rows, k, others)
         parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
                      f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
                      f"move ends; right: when the last move ends; against <code>{e(k)}</code>"
                      + (", one colour per combination of the other compared values" if others else "")
                      + ".</figcaption></figure>")
     if sensitivity:
-        img = _sensitivity_figure(sensitivity)
+        with literal_text():
+            img = _sensitivity_figure(sensitivity)
         parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
         parts.append(f'<figure class="plot"><img alt="sensitivity of the residual swing to rope length" '
                      f'src="data:image/png;base64,{img}"><figcaption>{e(sensitivity["move"])}: every profile '

@@ -13,7 +13,7 @@ import numpy as np
 from swingsim.io.files import atomic_write_bytes
 from swingsim.report.plots_chart import chart_figure
 from swingsim.report.plots_rigging import rigging_figure
-from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, new_figure,
+from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, literal_text, new_figure,
                                    shade_moves, title_and_caution)
 from swingsim.report.tables import timeseries_columns
 from swingsim.scene.site import wind_words
@@ -220,11 +220,12 @@ def write_plots(traj, summary, out_dir, cols=None) -> list:
 
     paths = []
     for name, fn in FIGURES.items():
-        fig = fn(traj, summary, cols)
-        if fig is None:  # a figure the run's model has nothing for
-            continue
-        buf = io.BytesIO()
-        fig.savefig(buf, format="png", metadata={"Software": None})
-        plt.close(fig)
+        with literal_text():  # titles, move and zone names are user text: no maths parsing
+            fig = fn(traj, summary, cols)
+            if fig is None:  # a figure the run's model has nothing for
+                continue
+            buf = io.BytesIO()
+            fig.savefig(buf, format="png", metadata={"Software": None})
+            plt.close(fig)
         paths.append(atomic_write_bytes(Path(out_dir) / name, buf.getvalue()))
     return paths

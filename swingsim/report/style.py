@@ -16,6 +16,23 @@ GREY = "#8c959f"
 ENVELOPE = "#d6e6ef"
 
 
+def literal_text():
+    """A matplotlib rc context in which text is drawn literally (``$`` is not read as maths).
+
+    Titles, move labels and zone names are user text: ``$x^$`` must print as it
+    is, not crash the maths parser.  Every figure of the project is created and
+    saved inside this context.
+
+    Returns
+    -------
+    contextlib.AbstractContextManager
+        ``matplotlib.rc_context`` with ``text.parse_math`` off.
+    """
+    import matplotlib
+
+    return matplotlib.rc_context({"text.parse_math": False})
+
+
 def new_figure(width_in: float = 10.0, height_in: float = 5.6):
     """A matplotlib figure on the Agg backend (no display needed), 110 dpi.
 

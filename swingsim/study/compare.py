@@ -5,10 +5,13 @@
 ``comparison.csv``
     One row per variant: ``variant`` (index), ``name``, the varied values in
     columns named by their dotted keys, then the summary numbers
-    (:data:`swingsim.batch.SUMMARY_KEYS`).  Rows are appended as chunks of
-    variants finish, so an interrupted run keeps what it finished and
-    ``--resume`` runs only the rest; at the end the file is rewritten in
-    variant order.
+    (:data:`swingsim.batch.SUMMARY_KEYS`), and last ``crc32``: the CRC-32 (as
+    eight hex digits) of the row's other fields as written (comma-separated,
+    CSV-quoted), so a row cut short by a full disk or a kill is never taken as
+    finished.  Rows are appended as chunks of variants finish, so an
+    interrupted run keeps what it finished and ``--resume`` runs only the
+    rest (a row whose field count, numbers or checksum do not hold runs
+    again); at the end the file is rewritten in variant order.
 ``ranking.csv``
     The variants in order of the sweep's objective (smallest first), ranked
     only when within the objective's limits.
@@ -33,6 +36,7 @@ import csv
 import io
 import math
 import os
+import zlib
 from dataclasses import dataclass
 from pathlib import Path
 from typing import NamedTuple
@@ -42,10 +46,14 @@ import numpy as np
 from swingsim.batch import engine as batch
 from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
-from swingsim.io.files import atomic_write_text, check_out_dir, clean_partials
+from swingsim.io.files import atomic_write_text, locked_out_dir, reported_write_errors, staged_outputs
 from swingsim.scene.edit import get_dotted, with_move
 
 CSV_NAME = "comparison.csv"
+#: The last column of ``comparison.csv``: CRC-32 of the row's other fields.
+CHECK_COLUMN = "crc32"
+#: Summary keys whose cells are text (every other summary cell is a number, a bool or empty).
+TEXT_KEYS = ("status", "model", "engine")
 OUTPUTS = (CSV_NAME, "ranking.csv", "sensitivity.csv", "report.html")
 
 #: Rope-length errors of the sensitivity study [-].
@@ -119,9 +127,9 @@ def header(sweep) -> list[str]:
     Returns
     -------
     list of str
-        The column names.
+        The column names, the checksum column last.
     """
-    return ["variant", "name", *sweep.keys, *batch.SUMMARY_KEYS]
+    return ["variant", "name", *sweep.keys, *batch.SUMMARY_KEYS, CHECK_COLUMN]
 
 
 def row_cells(sweep, variant, summary) -> list[str]:
@@ -151,10 +159,46 @@ def _csv_line(cells) -> str:
     return buf.getvalue()
 
 
+def row_checksum(cells) -> str:
+    """The ``crc32`` cell of a row of ``comparison.csv``.
+
+    Parameters
+    ----------
+    cells : sequence of str
+        The row's other cells, in column order.
+
+    Returns
+    -------
+    str
+        CRC-32 (``zlib.crc32``) of the cells written as one CSV line without its
+        line end, encoded as UTF-8, as eight lowercase hex digits.
+    """
+    return f"{zlib.crc32(_csv_line(cells)[:-1].encode('utf-8')):08x}"
+
+
+def _checked_line(cells) -> str:
+    """A row of ``comparison.csv`` with its checksum cell last."""
+    return _csv_line([*cells, row_checksum(cells)])
+
+
+def _row_is_whole(row, n_columns) -> bool:
+    """Whether a row read back is complete: field count, checksum, every summary cell of its kind."""
+    if len(row) != n_columns or not row[0].isdigit() or row[-1] != row_checksum(row[:-1]):
+        return False
+    summary_cells = row[-1 - len(batch.SUMMARY_KEYS):-1]
+    for key, text in zip(batch.SUMMARY_KEYS, summary_cells):
+        value = parse_cell(text)
+        if key not in TEXT_KEYS and isinstance(value, str):
+            return False  # a number that does not parse
+    return True
+
+
 def read_done(sweep, path: Path) -> dict:
     """Finished rows of an earlier run's ``comparison.csv``.
 
-    A row cut short by an interruption is skipped (that variant runs again).
+    A row that is not whole (cut short by an interruption or a full disk, a
+    number that does not parse, a checksum that does not match) is skipped:
+    that variant runs again.
 
     Parameters
     ----------
@@ -182,8 +226,8 @@ def read_done(sweep, path: Path) -> dict:
     done = {}
     nkeys = 2 + len(sweep.keys)
     for r in rows[1:]:
-        if len(r) != len(want) or not r[0].isdigit():
-            continue  # a row cut short by an interruption: run that variant again
+        if not _row_is_whole(r, len(want)):
+            continue  # run that variant again
         i = int(r[0])
         if i >= len(sweep.variants):
             raise InputError(str(path), f"row of variant {i}", "not in this sweep; use another --out or --force")
@@ -191,7 +235,7 @@ def read_done(sweep, path: Path) -> dict:
         if r[:nkeys] != expect:
             raise InputError(str(path), f"row of variant {i}", "its varied values differ from this sweep's; "
                              "use another --out, or --force to start again")
-        done[i] = {k: parse_cell(v) for k, v in zip(batch.SUMMARY_KEYS, r[nkeys:])}
+        done[i] = {k: parse_cell(v) for k, v in zip(batch.SUMMARY_KEYS, r[nkeys:-1])}
     return done
 
 
@@ -565,46 +609,44 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
 
     out = Path(out)
     csv_path = out / CSV_NAME
-    done = {}
-    if resume and csv_path.exists():
-        if out.exists() and not out.is_dir():
-            raise InputError(str(out), "", "--out names an existing file, not a folder")
-        done = read_done(sweep, csv_path)
-    else:
-        check_out_dir(out, force)
-    clean_partials(out)
-    scenes = sweep.scenes
-    todo = [i for i in range(len(scenes)) if i not in done]
-    size = chunk_size or batch.chunk_size_for([scenes[i] for i in todo] or scenes)
-    ranges = [[todo[j] for j in r] for r in batch.chunks(len(todo), size)]
-    hdr = header(sweep)
-    out.mkdir(parents=True, exist_ok=True)
-    # start (or restart) the running CSV with the finished rows only
-    lines = [_csv_line(hdr)] + [_csv_line(row_cells(sweep, sweep.variants[i], done[i])) for i in sorted(done)]
-    atomic_write_text(csv_path, "".join(lines))
-    results = dict(done)
-    with open(csv_path, "a", encoding="utf-8", newline="") as fh:
-        def on_result(r, res):
-            for i, s in zip(r, res):
-                results[i] = s
-                fh.write(_csv_line(row_cells(sweep, sweep.variants[i], s)))
-            fh.flush()
-            os.fsync(fh.fileno())
-            if progress:
-                progress(len(r))
+    resuming = resume and csv_path.is_file()
+    with locked_out_dir(out, force or resuming) as out, reported_write_errors(out):
+        done = read_done(sweep, csv_path) if resuming else {}
+        scenes = sweep.scenes
+        todo = [i for i in range(len(scenes)) if i not in done]
+        size = chunk_size or batch.chunk_size_for([scenes[i] for i in todo] or scenes)
+        ranges = [[todo[j] for j in r] for r in batch.chunks(len(todo), size)]
+        hdr = header(sweep)
+        # the running CSV (what --resume reads) starts again with the finished rows only
+        lines = [_csv_line(hdr)] + [_checked_line(row_cells(sweep, sweep.variants[i], done[i]))
+                                    for i in sorted(done)]
+        atomic_write_text(csv_path, "".join(lines))
+        results = dict(done)
+        with open(csv_path, "a", encoding="utf-8", newline="") as fh:
+            def on_result(r, res):
+                for i, s in zip(r, res):
+                    results[i] = s
+                    fh.write(_checked_line(row_cells(sweep, sweep.variants[i], s)))
+                fh.flush()
+                os.fsync(fh.fileno())
+                if progress:
+                    progress(len(r))
 
-        run_chunks(scenes, ranges, workers=workers, cluster=cluster, engine=engine, on_result=on_result)
-    summaries = [results[i] for i in range(len(scenes))]
-    lines = [_csv_line(hdr)] + [_csv_line(row_cells(sweep, v, s)) for v, s in zip(sweep.variants, summaries)]
-    atomic_write_text(csv_path, "".join(lines))
-    ranking = rank(sweep, summaries)
-    atomic_write_text(out / "ranking.csv", ranking_csv(sweep, ranking))
-    do_sens = sweep.sensitivity if sensitivity is None else sensitivity
-    sens = sensitivity_study(sweep.base) if do_sens else None
-    if sens:
-        atomic_write_text(out / "sensitivity.csv", sensitivity_csv(sens))
-    rows = [{"index": v.index, "name": v.name, "values": effective_values(sweep, v), "summary": s}
-            for v, s in zip(sweep.variants, summaries)]
-    atomic_write_text(out / "report.html", comparison_html(sweep, rows, ranking, sens))
+            run_chunks(scenes, ranges, workers=workers, cluster=cluster, engine=engine, on_result=on_result)
+        summaries = [results[i] for i in range(len(scenes))]
+        ranking = rank(sweep, summaries)
+        do_sens = sweep.sensitivity if sensitivity is None else sensitivity
+        sens = sensitivity_study(sweep.base) if do_sens else None
+        rows = [{"index": v.index, "name": v.name, "values": effective_values(sweep, v), "summary": s}
+                for v, s in zip(sweep.variants, summaries)]
+        # the finished files appear together, and only when all of them are complete
+        with staged_outputs(out) as stage:
+            lines = [_csv_line(hdr)] + [_checked_line(row_cells(sweep, v, s))
+                                        for v, s in zip(sweep.variants, summaries)]
+            atomic_write_text(stage.path / CSV_NAME, "".join(lines))
+            atomic_write_text(stage.path / "ranking.csv", ranking_csv(sweep, ranking))
+            if sens:
+                atomic_write_text(stage.path / "sensitivity.csv", sensitivity_csv(sens))
+            atomic_write_text(stage.path / "report.html", comparison_html(sweep, rows, ranking, sens))
     return Comparison(summaries=summaries, ranking=ranking, ran=len(todo), reused=len(done),
                       sensitivity=sens)

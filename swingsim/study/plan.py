@@ -36,7 +36,7 @@ import numpy as np
 
 from swingsim.batch import engine as batch
 from swingsim.errors import InputError
-from swingsim.io.files import atomic_write_text
+from swingsim.io.files import atomic_write_text, staged_outputs
 from swingsim.metrics import cautions
 from swingsim.metrics.single import summarize
 from swingsim.motion.profiles import from_table
@@ -505,78 +505,82 @@ def write_plan(scene, index, max_residual_deg, low, high, out) -> PlanReport:
     PlanReport
         The lines of ``plan.txt`` and whether a plan was found.
     """
-    bound_deg = float(max_residual_deg)
-    search = plan_move(scene, index, bound_deg * SEARCH_MARGIN, low, high)
-    fine = rope_lengths(low, high, 4 * len(search.rope_lengths_m) - 3)
-    raw = scene.raw["moves"][index]
-    slew = raw["axis"] == "slew"
-    unit = "deg" if slew else "m"
-    # the scene's own move, for comparison
-    own = Candidate("the scene's move as given", dict(raw))
-    evaluate(scene, index, [own], fine)
-    table_name = f"move{index}-plan.csv"
-    snippet = {k: raw[k] for k in ("label", "axis", "start_s") if k in raw}
-    snippet["profile"] = "table"
-    verified, chosen = None, None
-    tried = [c for c in search.candidates if c.worst_residual_deg <= bound_deg * SEARCH_MARGIN][:5]
-    for c in tried:
-        t, x = sample_profile(scene, index, c.move)
-        head = "t_s,angle_deg" if slew else "t_s,position_m"
-        text = head + "\n" + "".join(f"{a!r},{b!r}\n" for a, b in zip(t.tolist(), x.tolist()))
-        atomic_write_text(out / table_name, text)
-        ver = verify_table(scene, index, table_name, out, fine, snippet)
-        peaks = table_limits(t, x)
-        if all(v["valid"] and v["residual_swing_deg"] is not None and v["residual_swing_deg"] <= bound_deg
-               for v in ver):
-            verified, chosen = ver, c
-            break
-    lines = [cautions.CAUTION, "",
-             f"Plan for move {index} ({scene.moves[index].name}) of {scene.name}: residual swing at most "
-             f"{bound_deg:g} deg for rope lengths {low:g} to {high:g} m.", ""]
-    result = {"scene": scene.name, "move": index, "max_residual_deg": bound_deg, "rope_range_m": [low, high],
-              "caution": cautions.CAUTION}
-    own_d = own.end_s - float(raw.get("start_s", 0.0))
-    lines.append(f"Scene's move as given ({raw['profile']}): {own_d:.2f} s, residual swing "
-                 f"{min(own.residuals_deg):.3f} to {max(own.residuals_deg):.3f} deg over the range.")
-    result["given"] = {"profile": raw["profile"], "duration_s": own_d,
-                       "residual_swing_deg": dict(zip(fine, own.residuals_deg))}
-    if chosen is None:
-        if (out / table_name).exists():
-            (out / table_name).unlink()
-        lines.append("")
-        lines.append(f"No profile in the search meets {bound_deg:g} deg over the whole range within the "
-                     "move's limits. Narrow the rope range, allow more residual swing, or plan the move in stages.")
-        result["plan"] = None
-    else:
-        dur = chosen.end_s - float(raw.get("start_s", 0.0))
-        speed_key = "speed_deg_s" if slew else "speed_m_s"
-        acc_key = "accel_deg_s2" if slew else "accel_m_s2"
-        lines += [f"Planned: {chosen.label}: {dur:.2f} s ({dur - own_d:+.2f} s against the given move).",
-                  f"Verified by simulating the written table (nonlinear model) at {len(verified)} rope "
-                  "lengths: batch engine at all, single-run solver (*) at both ends and the worst:"]
-        for v in verified:
-            star = "*" if v["solver"] == "single" else " "
-            lines.append(f"  rope {v['rope_length_m']:7.2f} m{star} residual swing "
-                         f"{v['residual_swing_deg']:.3f} deg, peak rope angle {v['peak_rope_angle_deg']:.2f} deg")
-        lines.append(f"The table as the scene interpolates it: peak speed {peaks.peak_speed:.6g} {unit}/s "
-                     f"(limit {raw[speed_key]:g}), peak acceleration {peaks.peak_accel:.4g} {unit}/s^2 "
-                     f"(limit {raw[acc_key]:g}).")
-        toml = [f"# Planned by swingsim plan-move: {chosen.label}.",
-                f"# Residual swing <= {bound_deg:g} deg for rope lengths {low:g} to {high:g} m "
-                "(verified by simulation).",
-                "# " + cautions.CAUTION_SHORT,
-                "# Replace move " + str(index) + " of the scene with this table (table_file is relative to "
-                "the scene file: copy the CSV beside it, or adjust the path).",
-                "[[moves]]"]
-        for k, v in snippet.items():
-            toml.append(f"{k} = {json.dumps(v)}")
-        rel = os.path.relpath(out / table_name, scene.base_dir)
-        toml.append(f"table_file = {json.dumps(Path(rel).as_posix())}")
-        atomic_write_text(out / f"move{index}-plan.toml", "\n".join(toml) + "\n")
-        result["plan"] = {"label": chosen.label, "duration_s": dur, "move": chosen.move,
-                          "table_file": table_name, "verified": verified,
-                          "table_peak_speed": peaks.peak_speed, "table_peak_accel": peaks.peak_accel}
-    lines += ["", cautions.CAUTION]
-    atomic_write_text(out / "plan.txt", "\n".join(lines) + "\n")
-    atomic_write_text(out / "plan.json", json.dumps(result, indent=2, default=float) + "\n")
+    out = Path(out)
+    # every file is staged: a stopped or failed plan never leaves an unverified table under its final name
+    with staged_outputs(out) as stage:
+        staged = stage.path
+        bound_deg = float(max_residual_deg)
+        search = plan_move(scene, index, bound_deg * SEARCH_MARGIN, low, high)
+        fine = rope_lengths(low, high, 4 * len(search.rope_lengths_m) - 3)
+        raw = scene.raw["moves"][index]
+        slew = raw["axis"] == "slew"
+        unit = "deg" if slew else "m"
+        # the scene's own move, for comparison
+        own = Candidate("the scene's move as given", dict(raw))
+        evaluate(scene, index, [own], fine)
+        table_name = f"move{index}-plan.csv"
+        snippet = {k: raw[k] for k in ("label", "axis", "start_s") if k in raw}
+        snippet["profile"] = "table"
+        verified, chosen = None, None
+        tried = [c for c in search.candidates if c.worst_residual_deg <= bound_deg * SEARCH_MARGIN][:5]
+        for c in tried:
+            t, x = sample_profile(scene, index, c.move)
+            head = "t_s,angle_deg" if slew else "t_s,position_m"
+            text = head + "\n" + "".join(f"{a!r},{b!r}\n" for a, b in zip(t.tolist(), x.tolist()))
+            atomic_write_text(staged / table_name, text)
+            ver = verify_table(scene, index, table_name, staged, fine, snippet)
+            peaks = table_limits(t, x)
+            if all(v["valid"] and v["residual_swing_deg"] is not None and v["residual_swing_deg"] <= bound_deg
+                   for v in ver):
+                verified, chosen = ver, c
+                break
+        lines = [cautions.CAUTION, "",
+                 f"Plan for move {index} ({scene.moves[index].name}) of {scene.name}: residual swing at most "
+                 f"{bound_deg:g} deg for rope lengths {low:g} to {high:g} m.", ""]
+        result = {"scene": scene.name, "move": index, "max_residual_deg": bound_deg, "rope_range_m": [low, high],
+                  "caution": cautions.CAUTION}
+        own_d = own.end_s - float(raw.get("start_s", 0.0))
+        lines.append(f"Scene's move as given ({raw['profile']}): {own_d:.2f} s, residual swing "
+                     f"{min(own.residuals_deg):.3f} to {max(own.residuals_deg):.3f} deg over the range.")
+        result["given"] = {"profile": raw["profile"], "duration_s": own_d,
+                           "residual_swing_deg": dict(zip(fine, own.residuals_deg))}
+        if chosen is None:
+            if (staged / table_name).exists():
+                (staged / table_name).unlink()
+            lines.append("")
+            lines.append(f"No profile in the search meets {bound_deg:g} deg over the whole range within the "
+                         "move's limits. Narrow the rope range, allow more residual swing, or plan the move in stages.")
+            result["plan"] = None
+        else:
+            dur = chosen.end_s - float(raw.get("start_s", 0.0))
+            speed_key = "speed_deg_s" if slew else "speed_m_s"
+            acc_key = "accel_deg_s2" if slew else "accel_m_s2"
+            lines += [f"Planned: {chosen.label}: {dur:.2f} s ({dur - own_d:+.2f} s against the given move).",
+                      f"Verified by simulating the written table (nonlinear model) at {len(verified)} rope "
+                      "lengths: batch engine at all, single-run solver (*) at both ends and the worst:"]
+            for v in verified:
+                star = "*" if v["solver"] == "single" else " "
+                lines.append(f"  rope {v['rope_length_m']:7.2f} m{star} residual swing "
+                             f"{v['residual_swing_deg']:.3f} deg, peak rope angle {v['peak_rope_angle_deg']:.2f} deg")
+            lines.append(f"The table as the scene interpolates it: peak speed {peaks.peak_speed:.6g} {unit}/s "
+                         f"(limit {raw[speed_key]:g}), peak acceleration {peaks.peak_accel:.4g} {unit}/s^2 "
+                         f"(limit {raw[acc_key]:g}).")
+            toml = [f"# Planned by swingsim plan-move: {chosen.label}.",
+                    f"# Residual swing <= {bound_deg:g} deg for rope lengths {low:g} to {high:g} m "
+                    "(verified by simulation).",
+                    "# " + cautions.CAUTION_SHORT,
+                    "# Replace move " + str(index) + " of the scene with this table (table_file is relative to "
+                    "the scene file: copy the CSV beside it, or adjust the path).",
+                    "[[moves]]"]
+            for k, v in snippet.items():
+                toml.append(f"{k} = {json.dumps(v)}")
+            rel = os.path.relpath(out / table_name, scene.base_dir)
+            toml.append(f"table_file = {json.dumps(Path(rel).as_posix())}")
+            atomic_write_text(staged / f"move{index}-plan.toml", "\n".join(toml) + "\n")
+            result["plan"] = {"label": chosen.label, "duration_s": dur, "move": chosen.move,
+                              "table_file": table_name, "verified": verified,
+                              "table_peak_speed": peaks.peak_speed, "table_peak_accel": peaks.peak_accel}
+        lines += ["", cautions.CAUTION]
+        atomic_write_text(staged / "plan.txt", "\n".join(lines) + "\n")
+        atomic_write_text(staged / "plan.json", json.dumps(result, indent=2, default=float) + "\n")
     return PlanReport(lines, chosen is not None)
