@@ -22,7 +22,7 @@ from swingsim.errors import SceneError
 from swingsim.scene import schema
 from swingsim.scene.model import MoveTable, RatedChart
 
-__all__ = ["SceneDocument", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
+__all__ = ["SceneDocument", "MAX_NESTING", "parse_toml", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
 
 
 class SceneDocument(NamedTuple):
@@ -44,6 +44,63 @@ def _toml_error_line(exc: tomllib.TOMLDecodeError) -> int | None:
     return int(m.group(1)) if m else None
 
 
+#: Deepest nesting of tables and arrays in a scene or sweep file (a scene needs 5:
+#: the document, ``[[zones]]``, one zone, its list of points, one point).
+MAX_NESTING = 8
+
+
+def _nesting_depth(data) -> int:
+    """Deepest nesting of dicts and lists in ``data`` (the document itself is 1), without recursion."""
+    deepest = 0
+    stack = [(data, 1)]
+    while stack:
+        node, depth = stack.pop()
+        deepest = max(deepest, depth)
+        if depth > MAX_NESTING:
+            break
+        children = node.values() if isinstance(node, dict) else node
+        stack.extend((c, depth + 1) for c in children if isinstance(c, (dict, list)))
+    return deepest
+
+
+def parse_toml(text: str, file: str, kind: str = "scene", error=SceneError) -> dict:
+    """Parse a TOML scene or sweep file's text, refusing syntax errors and deep nesting in one line.
+
+    Parameters
+    ----------
+    text : str
+        The file's text.
+    file : str
+        The file's name as the user gave it, for errors.
+    kind : str, optional
+        What the file is (``scene``, ``sweep``), for errors.
+    error : type, optional
+        The :class:`~swingsim.errors.InputError` subclass to raise.
+
+    Returns
+    -------
+    dict
+        The document, as ``tomllib`` returns it.
+
+    Raises
+    ------
+    InputError
+        For a TOML syntax error (with its line) or tables and arrays nested
+        more than :data:`MAX_NESTING` deep.
+    """
+    too_deep = f"tables and arrays nested more than {MAX_NESTING} deep; a {kind} file needs far fewer"
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        msg = str(exc).split(" (at ")[0]
+        raise error(file, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
+    except RecursionError:
+        raise error(file, "", too_deep) from None
+    if _nesting_depth(data) > MAX_NESTING:
+        raise error(file, "", too_deep)
+    return data
+
+
 def read_document(path) -> SceneDocument:
     """Read a scene file as a TOML document.
 
@@ -61,7 +118,7 @@ def read_document(path) -> SceneDocument:
     ------
     SceneError
         When the file is missing, unreadable, not UTF-8 text or not valid TOML
-        (with the line of a syntax error).
+        (with the line of a syntax error), or nested too deeply.
     """
     path = Path(path)
     shown = str(path)
@@ -77,15 +134,10 @@ def read_document(path) -> SceneDocument:
         text = raw_bytes.decode("utf-8")
     except UnicodeDecodeError:
         raise SceneError(shown, "", "not a UTF-8 text file (a scene is a TOML text file)") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        msg = str(exc).split(" (at ")[0]
-        raise SceneError(shown, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
-    return SceneDocument(data, text, shown)
+    return SceneDocument(parse_toml(text, shown), text, shown)
 
 
-_KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>\d+)\])?(\.(?P<key>[\w-]+))?")
+_KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>[0-9]+)\])?(\.(?P<key>[\w-]+))?")
 
 
 def line_of_key(text: str, key_path: str) -> int | None:

@@ -42,6 +42,7 @@ import numpy as np
 from swingsim.batch import engine as batch
 from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
+from swingsim.io.failures import read_text_file
 from swingsim.io.files import atomic_write_text, check_out_dir, clean_partials
 from swingsim.scene.edit import get_dotted, with_move
 
@@ -173,7 +174,7 @@ def read_done(sweep, path: Path) -> dict:
     InputError
         When the file belongs to a different sweep (other columns, variants or values).
     """
-    text = path.read_text(encoding="utf-8")
+    text = read_text_file(path, lambda problem: InputError(str(path), "", f"cannot resume from it: {problem}"))
     rows = list(csv.reader(io.StringIO(text)))
     want = header(sweep)
     if not rows or rows[0] != want:
@@ -182,7 +183,7 @@ def read_done(sweep, path: Path) -> dict:
     done = {}
     nkeys = 2 + len(sweep.keys)
     for r in rows[1:]:
-        if len(r) != len(want) or not r[0].isdigit():
+        if len(r) != len(want) or not (r[0].isascii() and r[0].isdigit()):
             continue  # a row cut short by an interruption: run that variant again
         i = int(r[0])
         if i >= len(sweep.variants):
