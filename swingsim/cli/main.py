@@ -21,7 +21,7 @@ import sys
 from swingsim._version import __version__
 from swingsim.cli import run
 from swingsim.cli.options import add_scene_argument
-from swingsim.errors import InputError, SimulationError
+from swingsim.errors import InputError, SimulationError, escape_text
 from swingsim.io.failures import is_user_fixable, os_error_input
 from swingsim.io.files import WRITTEN
 
@@ -40,7 +40,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2
-        sys.stderr.write(f"swingsim: error: {message} (see 'swingsim --help')\n")
+        sys.stderr.write(f"swingsim: error: {escape_text(message)} (see 'swingsim --help')\n")
         raise SystemExit(2)
 
 
@@ -106,7 +106,7 @@ def main(argv=None) -> int:
         sys.stderr.write(f"swingsim: error: {exc.one_line()}\n")
         return 2
     except SimulationError as exc:
-        sys.stderr.write(f"swingsim: {exc}\n")
+        sys.stderr.write(f"swingsim: {escape_text(str(exc))}\n")
         return 1
     except KeyboardInterrupt:
         done = ", ".join(p.name for p in WRITTEN) or "none"
@@ -123,7 +123,7 @@ def main(argv=None) -> int:
     except Exception as exc:  # an internal fault: one line, traceback on request
         if os.environ.get("SWINGSIM_DEBUG"):
             raise
-        sys.stderr.write(f"swingsim: internal error: {type(exc).__name__}: {exc} "
+        sys.stderr.write(f"swingsim: internal error: {type(exc).__name__}: {escape_text(str(exc))} "
                          "(set SWINGSIM_DEBUG=1 for the traceback; please report it)\n")
         return 1
     finally:

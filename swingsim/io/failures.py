@@ -19,7 +19,8 @@ from pathlib import Path
 
 from swingsim.errors import InputError
 
-__all__ = ["MAX_TEXT_FILE_BYTES", "USER_FIXABLE_ERRNOS", "is_user_fixable", "os_error_input", "read_text_file"]
+__all__ = ["MAX_TEXT_FILE_BYTES", "USER_FIXABLE_ERRNOS", "is_user_fixable", "os_error_input", "check_output_path",
+           "read_text_file"]
 
 #: Largest text file (scene, sweep, table, chart, an earlier comparison) read [bytes].
 MAX_TEXT_FILE_BYTES = 256 * 1024 * 1024
@@ -82,6 +83,46 @@ def os_error_input(exc: OSError) -> InputError:
     return InputError(os.fsdecode(path), "", reason)
 
 
+def check_output_path(out: Path | str, what: str = "--out") -> None:
+    """Refuse an output folder that cannot be made, before anything is written.
+
+    Looks at the path without creating anything: a name with a NUL byte or
+    longer than the file system allows, a part of the path that is a file, and
+    an existing folder on the way that cannot be written (read-only or system
+    folder, no permission).
+
+    Parameters
+    ----------
+    out : Path or str
+        The output folder (it need not exist).
+    what : str, optional
+        The option that named the folder, for the message.
+
+    Raises
+    ------
+    InputError
+        One line naming the path and the reason.
+    """
+    text = os.fspath(out)
+    if "\x00" in text:
+        raise InputError(text, "", f"{what} holds a NUL character, which no file name may hold")
+    path = Path(text)
+    existing = path
+    while not existing.exists() and existing != existing.parent:
+        existing = existing.parent
+    if existing.exists() and not existing.is_dir():
+        if existing == path:
+            return  # the caller says a file is not a folder
+        raise InputError(text, "", f"{what}: {_HINTS[errno.ENOTDIR]} ({os.fspath(existing)})")
+    name_max = os.pathconf(existing, "PC_NAME_MAX") if hasattr(os, "pathconf") else 255
+    for part in path.parts:
+        if len(os.fsencode(part)) > name_max:
+            raise InputError(text, "", f"{what}: a name in the path is longer than the {name_max} bytes "
+                             "the file system allows")
+    if existing != path and not os.access(existing, os.W_OK | os.X_OK):
+        raise InputError(text, "", f"{what}: {_HINTS[errno.EACCES]} ({os.fspath(existing)} is not writable)")
+
+
 def read_text_file(path: Path | str, err, max_bytes: int = MAX_TEXT_FILE_BYTES) -> str:
     """A regular file's UTF-8 text; a leading UTF-8 byte-order mark is accepted and removed.
 
@@ -116,7 +157,7 @@ def read_text_file(path: Path | str, err, max_bytes: int = MAX_TEXT_FILE_BYTES) 
     except OSError as exc:
         raise err(f"cannot read: {(exc.strerror or type(exc).__name__).lower()}") from None
     if not stat.S_ISREG(info.st_mode):
-        raise err("not a regular file (a folder, device or other special file); expected a text file")
+        raise err("not a file (a folder, device or other special file; expected a regular text file)")
     if info.st_size > max_bytes:
         raise err(f"file of {info.st_size} bytes is larger than the {max_bytes} bytes allowed")
     try:

@@ -15,10 +15,12 @@ import difflib
 import math
 import re
 import tomllib
+import unicodedata
 from pathlib import Path
 from typing import NamedTuple
 
-from swingsim.errors import SceneError
+from swingsim.errors import SceneError, quote
+from swingsim.io.failures import read_text_file
 from swingsim.scene import schema
 from swingsim.scene.model import MoveTable, RatedChart
 
@@ -117,23 +119,12 @@ def read_document(path) -> SceneDocument:
     Raises
     ------
     SceneError
-        When the file is missing, unreadable, not UTF-8 text or not valid TOML
-        (with the line of a syntax error), or nested too deeply.
+        When the file is missing, not a regular file, unreadable, not UTF-8
+        text (a leading byte-order mark is removed) or not valid TOML (with the
+        line of a syntax error), or nested too deeply.
     """
-    path = Path(path)
     shown = str(path)
-    if not path.exists():
-        raise SceneError(shown, "", "file not found")
-    if not path.is_file():
-        raise SceneError(shown, "", "not a file")
-    try:
-        raw_bytes = path.read_bytes()
-    except OSError as exc:
-        raise SceneError(shown, "", f"cannot read: {exc.strerror}") from None
-    try:
-        text = raw_bytes.decode("utf-8")
-    except UnicodeDecodeError:
-        raise SceneError(shown, "", "not a UTF-8 text file (a scene is a TOML text file)") from None
+    text = read_text_file(path, lambda problem: SceneError(shown, "", f"{problem} (a scene is a TOML text file)"))
     return SceneDocument(parse_toml(text, shown), text, shown)
 
 
@@ -439,12 +430,7 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
     full = p if p.is_absolute() else base_dir / p
     if not full.exists():
         raise err(f"{noun} file not found (paths are relative to the scene file's folder)")
-    if not full.is_file():
-        raise err("not a file")
-    try:
-        text = full.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError):
-        raise err("cannot be read as UTF-8 text (expected a CSV table)") from None
+    text = read_text_file(full, err)
     lines = [(i, r) for i, r in enumerate(csv.reader(text.splitlines()), start=1)
              if r and not r[0].lstrip().startswith("#")]
     want = ",".join(header)
@@ -452,22 +438,40 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
         raise err(f"empty {noun}; expected a header {want}")
     found = [h.strip() for h in lines[0][1]]
     if found != list(header):
-        raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} (found '{','.join(found)}')")
+        raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} ({_found_header(found)})")
     rows = []
     for number, (line, r) in enumerate(lines[1:], start=1):
         here = row_name(_Row(number, line, math.nan, math.nan))
         if len(r) != 2:
-            raise err(f"{here}: expected 2 columns, found '{','.join(r)}'")
-        try:
-            a, b = float(r[0]), float(r[1])
-        except ValueError:
-            raise err(f"{here}: expected two numbers, found '{','.join(r)}'") from None
+            raise err(f"{here}: expected 2 columns, found {len(r)}")
+        numbers = []
+        for column, cell in zip(header, r):
+            try:
+                numbers.append(float(cell))
+            except ValueError:
+                raise err(f"{here}: expected a number in column {column}, found {quote(cell.strip())}") from None
+        a, b = numbers
         if not (math.isfinite(a) and math.isfinite(b)):
             raise err(f"{here}: values must be finite numbers")
         rows.append(_Row(number, line, a, b))
     if len(rows) < 2:
         raise err(f"a {noun} needs at least two data rows")
     return rows
+
+
+def _found_header(cells: list) -> str:
+    """What a wrong header is shown as: its names quoted when it is a header of names, else not at all.
+
+    A first line that is not a short list of column names (another kind of
+    file: a password file, an environment dump, JSON) is never quoted.
+    """
+    def name_like(cell):
+        return 0 < len(cell) <= 40 and all(
+            ch.isalnum() or ch in "_ .()-" or unicodedata.category(ch) == "Cf" for ch in cell)
+
+    if len(cells) <= 4 and all(name_like(c) for c in cells):
+        return f"found {quote(','.join(cells))}"
+    return "its first line is not a header of column names"
 
 
 def _check_increasing(rows: list, what: str, err, row_name) -> None:

@@ -32,6 +32,7 @@ from pathlib import Path
 from typing import NamedTuple
 
 from swingsim.errors import InputError, SceneError
+from swingsim.io.failures import read_text_file
 from swingsim.scene import load_scene, scene_from_dict, schema
 from swingsim.scene.edit import list_index, set_dotted
 from swingsim.scene.read import parse_toml
@@ -120,12 +121,9 @@ def load_sweep(path, *, allow_implausible: bool = False) -> Sweep:
     """
     path = Path(path)
     shown = str(path)
-    if not path.is_file():
-        raise InputError(shown, "", "sweep file not found" if not path.exists() else "not a file")
-    try:
-        text = path.read_text(encoding="utf-8")
-    except UnicodeDecodeError:
-        raise InputError(shown, "", "not a UTF-8 text file (a sweep is a TOML text file)") from None
+    if not path.exists():
+        raise InputError(shown, "", "sweep file not found")
+    text = read_text_file(path, lambda problem: InputError(shown, "", f"{problem} (a sweep is a TOML text file)"))
     data = parse_toml(text, shown, kind="sweep", error=InputError)
     return sweep_from_dict(data, file=shown, base_dir=path.parent, allow_implausible=allow_implausible)
 
