@@ -4,8 +4,9 @@
 commands (:data:`COMMANDS`) each have a module with ``add_arguments(parser)``
 and ``main(args) -> int``.  No physics here.
 
-Exit codes: 0 done; 1 the run could not give a trustworthy result or an
-internal fault; 2 bad input (one line on stderr, nothing written); 130
+Exit codes: 0 done; 1 the run could not give a trustworthy result, a fault
+of the disk or system, or an internal fault; 2 bad input or an unusable
+output path (one line on stderr naming the path, nothing written); 130
 interrupted.
 """
 
@@ -20,7 +21,8 @@ import sys
 from swingsim._version import __version__
 from swingsim.cli import run
 from swingsim.cli.options import add_scene_argument
-from swingsim.errors import InputError, SimulationError
+from swingsim.errors import InputError, SimulationError, escape_text
+from swingsim.io.failures import is_user_fixable, os_error_input
 from swingsim.io.files import WRITTEN
 
 #: Extension subcommands: name -> (module, help).  Each module exposes
@@ -38,7 +40,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2
-        sys.stderr.write(f"swingsim: error: {message} (see 'swingsim --help')\n")
+        sys.stderr.write(f"swingsim: error: {escape_text(message)} (see 'swingsim --help')\n")
         raise SystemExit(2)
 
 
@@ -104,17 +106,24 @@ def main(argv=None) -> int:
         sys.stderr.write(f"swingsim: error: {exc.one_line()}\n")
         return 2
     except SimulationError as exc:
-        sys.stderr.write(f"swingsim: {exc}\n")
+        sys.stderr.write(f"swingsim: {escape_text(str(exc))}\n")
         return 1
     except KeyboardInterrupt:
         done = ", ".join(p.name for p in WRITTEN) or "none"
         sys.stderr.write(f"swingsim: interrupted; files finished before the stop: {done}; "
                          "no partial file was left under a final name\n")
         return 130
+    except OSError as exc:  # a path that cannot be read or written: one line naming it
+        if is_user_fixable(exc):
+            sys.stderr.write(f"swingsim: error: {os_error_input(exc).one_line()}\n")
+            return 2
+        sys.stderr.write(f"swingsim: {os_error_input(exc).one_line()} (a fault of the disk or system, "
+                         "not of the input)\n")
+        return 1
     except Exception as exc:  # an internal fault: one line, traceback on request
         if os.environ.get("SWINGSIM_DEBUG"):
             raise
-        sys.stderr.write(f"swingsim: internal error: {type(exc).__name__}: {exc} "
+        sys.stderr.write(f"swingsim: internal error: {type(exc).__name__}: {escape_text(str(exc))} "
                          "(set SWINGSIM_DEBUG=1 for the traceback; please report it)\n")
         return 1
     finally:

@@ -17,6 +17,7 @@ import tempfile
 from pathlib import Path
 
 from swingsim.errors import InputError
+from swingsim.io.failures import check_output_path
 
 TMP_PREFIX = ".swingsim-partial-"
 
@@ -133,6 +134,7 @@ def check_out_dir(out: Path | str, force: bool, what: str = "--out") -> Path:
     InputError
         When ``out`` is a file, or a non-empty folder without ``force``.
     """
+    check_output_path(out, what)
     out = Path(out)
     if out.exists() and not out.is_dir():
         raise InputError(str(out), "", f"{what} names an existing file, not a folder")

@@ -14,7 +14,28 @@ from typing import Any
 from swingsim.scene.model import Scene
 from swingsim.scene.validate import scene_from_dict
 
-__all__ = ["get_dotted", "set_dotted", "with_move"]
+__all__ = ["list_index", "get_dotted", "set_dotted", "with_move"]
+
+
+def list_index(part: str) -> int | None:
+    """A dotted key's part read as a list index: ASCII digits only (``"0"``, ``"12"``).
+
+    Other characters that Python counts as digits (Arabic-Indic, superscript,
+    full-width) are not indices: a key means what it shows.
+
+    Parameters
+    ----------
+    part : str
+        One part of a dotted key, e.g. ``"0"`` in ``moves.0.accel_m_s2``.
+
+    Returns
+    -------
+    int or None
+        The index, or None when ``part`` is not made of ASCII digits.
+    """
+    if part.isascii() and part.isdigit():
+        return int(part)
+    return None
 
 
 def get_dotted(data: dict, dotted: str, default=None):
@@ -38,9 +59,10 @@ def get_dotted(data: dict, dotted: str, default=None):
     cur = data
     for part in dotted.split("."):
         if isinstance(cur, list):
-            if not part.isdigit() or int(part) >= len(cur):
+            index = list_index(part)
+            if index is None or index >= len(cur):
                 return default
-            cur = cur[int(part)]
+            cur = cur[index]
         elif isinstance(cur, dict):
             if part not in cur:
                 return default
@@ -66,23 +88,35 @@ def set_dotted(data: dict, dotted: str, value: Any) -> dict:
     -------
     dict
         The edited copy (not validated).
+
+    Raises
+    ------
+    KeyError
+        When a part that indexes a list is not an index (see :func:`list_index`).
     """
     out = copy.deepcopy(data)
     parts = dotted.split(".")
     cur: Any = out
     for part in parts[:-1]:
         if isinstance(cur, list):
-            cur = cur[int(part)]
+            cur = cur[_index_of(part, dotted)]
         else:
             if part not in cur:
                 cur[part] = {}
             cur = cur[part]
     last = parts[-1]
     if isinstance(cur, list):
-        cur[int(last)] = value
+        cur[_index_of(last, dotted)] = value
     else:
         cur[last] = value
     return out
+
+
+def _index_of(part: str, dotted: str) -> int:
+    index = list_index(part)
+    if index is None:
+        raise KeyError(f"{dotted}: '{part}' is not a list index (ASCII digits only)")
+    return index
 
 
 def with_move(scene: Scene, index: int, move: dict, *, rope_length_m: float | None = None,

@@ -15,14 +15,16 @@ import difflib
 import math
 import re
 import tomllib
+import unicodedata
 from pathlib import Path
 from typing import NamedTuple
 
-from swingsim.errors import SceneError
+from swingsim.errors import SceneError, quote
+from swingsim.io.failures import read_text_file
 from swingsim.scene import schema
 from swingsim.scene.model import MoveTable, RatedChart
 
-__all__ = ["SceneDocument", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
+__all__ = ["SceneDocument", "MAX_NESTING", "parse_toml", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
 
 
 class SceneDocument(NamedTuple):
@@ -44,6 +46,63 @@ def _toml_error_line(exc: tomllib.TOMLDecodeError) -> int | None:
     return int(m.group(1)) if m else None
 
 
+#: Deepest nesting of tables and arrays in a scene or sweep file (a scene needs 5:
+#: the document, ``[[zones]]``, one zone, its list of points, one point).
+MAX_NESTING = 8
+
+
+def _nesting_depth(data) -> int:
+    """Deepest nesting of dicts and lists in ``data`` (the document itself is 1), without recursion."""
+    deepest = 0
+    stack = [(data, 1)]
+    while stack:
+        node, depth = stack.pop()
+        deepest = max(deepest, depth)
+        if depth > MAX_NESTING:
+            break
+        children = node.values() if isinstance(node, dict) else node
+        stack.extend((c, depth + 1) for c in children if isinstance(c, (dict, list)))
+    return deepest
+
+
+def parse_toml(text: str, file: str, kind: str = "scene", error=SceneError) -> dict:
+    """Parse a TOML scene or sweep file's text, refusing syntax errors and deep nesting in one line.
+
+    Parameters
+    ----------
+    text : str
+        The file's text.
+    file : str
+        The file's name as the user gave it, for errors.
+    kind : str, optional
+        What the file is (``scene``, ``sweep``), for errors.
+    error : type, optional
+        The :class:`~swingsim.errors.InputError` subclass to raise.
+
+    Returns
+    -------
+    dict
+        The document, as ``tomllib`` returns it.
+
+    Raises
+    ------
+    InputError
+        For a TOML syntax error (with its line) or tables and arrays nested
+        more than :data:`MAX_NESTING` deep.
+    """
+    too_deep = f"tables and arrays nested more than {MAX_NESTING} deep; a {kind} file needs far fewer"
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        msg = str(exc).split(" (at ")[0]
+        raise error(file, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
+    except RecursionError:
+        raise error(file, "", too_deep) from None
+    if _nesting_depth(data) > MAX_NESTING:
+        raise error(file, "", too_deep)
+    return data
+
+
 def read_document(path) -> SceneDocument:
     """Read a scene file as a TOML document.
 
@@ -60,32 +119,16 @@ def read_document(path) -> SceneDocument:
     Raises
     ------
     SceneError
-        When the file is missing, unreadable, not UTF-8 text or not valid TOML
-        (with the line of a syntax error).
+        When the file is missing, not a regular file, unreadable, not UTF-8
+        text (a leading byte-order mark is removed) or not valid TOML (with the
+        line of a syntax error), or nested too deeply.
     """
-    path = Path(path)
     shown = str(path)
-    if not path.exists():
-        raise SceneError(shown, "", "file not found")
-    if not path.is_file():
-        raise SceneError(shown, "", "not a file")
-    try:
-        raw_bytes = path.read_bytes()
-    except OSError as exc:
-        raise SceneError(shown, "", f"cannot read: {exc.strerror}") from None
-    try:
-        text = raw_bytes.decode("utf-8")
-    except UnicodeDecodeError:
-        raise SceneError(shown, "", "not a UTF-8 text file (a scene is a TOML text file)") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        msg = str(exc).split(" (at ")[0]
-        raise SceneError(shown, "", f"TOML syntax error: {msg}", line=_toml_error_line(exc)) from None
-    return SceneDocument(data, text, shown)
+    text = read_text_file(path, lambda problem: SceneError(shown, "", f"{problem} (a scene is a TOML text file)"))
+    return SceneDocument(parse_toml(text, shown), text, shown)
 
 
-_KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>\d+)\])?(\.(?P<key>[\w-]+))?")
+_KEY_PATH = re.compile(r"^(?P<table>[A-Za-z_][\w-]*)(\[(?P<index>[0-9]+)\])?(\.(?P<key>[\w-]+))?")
 
 
 def line_of_key(text: str, key_path: str) -> int | None:
@@ -387,12 +430,7 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
     full = p if p.is_absolute() else base_dir / p
     if not full.exists():
         raise err(f"{noun} file not found (paths are relative to the scene file's folder)")
-    if not full.is_file():
-        raise err("not a file")
-    try:
-        text = full.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError):
-        raise err("cannot be read as UTF-8 text (expected a CSV table)") from None
+    text = read_text_file(full, err)
     lines = [(i, r) for i, r in enumerate(csv.reader(text.splitlines()), start=1)
              if r and not r[0].lstrip().startswith("#")]
     want = ",".join(header)
@@ -400,22 +438,40 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
         raise err(f"empty {noun}; expected a header {want}")
     found = [h.strip() for h in lines[0][1]]
     if found != list(header):
-        raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} (found '{','.join(found)}')")
+        raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} ({_found_header(found)})")
     rows = []
     for number, (line, r) in enumerate(lines[1:], start=1):
         here = row_name(_Row(number, line, math.nan, math.nan))
         if len(r) != 2:
-            raise err(f"{here}: expected 2 columns, found '{','.join(r)}'")
-        try:
-            a, b = float(r[0]), float(r[1])
-        except ValueError:
-            raise err(f"{here}: expected two numbers, found '{','.join(r)}'") from None
+            raise err(f"{here}: expected 2 columns, found {len(r)}")
+        numbers = []
+        for column, cell in zip(header, r):
+            try:
+                numbers.append(float(cell))
+            except ValueError:
+                raise err(f"{here}: expected a number in column {column}, found {quote(cell.strip())}") from None
+        a, b = numbers
         if not (math.isfinite(a) and math.isfinite(b)):
             raise err(f"{here}: values must be finite numbers")
         rows.append(_Row(number, line, a, b))
     if len(rows) < 2:
         raise err(f"a {noun} needs at least two data rows")
     return rows
+
+
+def _found_header(cells: list) -> str:
+    """What a wrong header is shown as: its names quoted when it is a header of names, else not at all.
+
+    A first line that is not a short list of column names (another kind of
+    file: a password file, an environment dump, JSON) is never quoted.
+    """
+    def name_like(cell):
+        return 0 < len(cell) <= 40 and all(
+            ch.isalnum() or ch in "_ .()-" or unicodedata.category(ch) == "Cf" for ch in cell)
+
+    if len(cells) <= 4 and all(name_like(c) for c in cells):
+        return f"found {quote(','.join(cells))}"
+    return "its first line is not a header of column names"
 
 
 def _check_increasing(rows: list, what: str, err, row_name) -> None:

@@ -46,6 +46,7 @@ import numpy as np
 from swingsim.batch import engine as batch
 from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
+from swingsim.io.failures import read_text_file
 from swingsim.io.files import atomic_write_text, locked_out_dir, reported_write_errors, staged_outputs
 from swingsim.scene.edit import get_dotted, with_move
 
@@ -217,7 +218,7 @@ def read_done(sweep, path: Path) -> dict:
     InputError
         When the file belongs to a different sweep (other columns, variants or values).
     """
-    text = path.read_text(encoding="utf-8")
+    text = read_text_file(path, lambda problem: InputError(str(path), "", f"cannot resume from it: {problem}"))
     rows = list(csv.reader(io.StringIO(text)))
     want = header(sweep)
     if not rows or rows[0] != want:
@@ -226,8 +227,8 @@ def read_done(sweep, path: Path) -> dict:
     done = {}
     nkeys = 2 + len(sweep.keys)
     for r in rows[1:]:
-        if not _row_is_whole(r, len(want)):
-            continue  # run that variant again
+        if not _row_is_whole(r, len(want)) or not (r[0].isascii() and r[0].isdigit()):
+            continue  # a cut, damaged or foreign row: run that variant again
         i = int(r[0])
         if i >= len(sweep.variants):
             raise InputError(str(path), f"row of variant {i}", "not in this sweep; use another --out or --force")
@@ -609,7 +610,7 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
 
     out = Path(out)
     csv_path = out / CSV_NAME
-    resuming = resume and csv_path.is_file()
+    resuming = resume and csv_path.exists()  # read_done refuses what is not a regular text file
     with locked_out_dir(out, force or resuming) as out, reported_write_errors(out):
         done = read_done(sweep, csv_path) if resuming else {}
         scenes = sweep.scenes

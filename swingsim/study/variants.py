@@ -27,14 +27,15 @@ import copy
 import difflib
 import itertools
 import math
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import NamedTuple
 
 from swingsim.errors import InputError, SceneError
+from swingsim.io.failures import read_text_file
 from swingsim.scene import load_scene, scene_from_dict, schema
-from swingsim.scene.edit import set_dotted
+from swingsim.scene.edit import list_index, set_dotted
+from swingsim.scene.read import parse_toml
 from swingsim.scene.model import Scene
 
 __all__ = ["Sweep", "Variant", "load_sweep", "sweep_from_dict", "OBJECTIVE_KEYS", "MAX_VARIANTS"]
@@ -120,14 +121,10 @@ def load_sweep(path, *, allow_implausible: bool = False) -> Sweep:
     """
     path = Path(path)
     shown = str(path)
-    if not path.is_file():
-        raise InputError(shown, "", "sweep file not found" if not path.exists() else "not a file")
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except UnicodeDecodeError:
-        raise InputError(shown, "", "not a UTF-8 text file (a sweep is a TOML text file)") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(shown, "", f"TOML syntax error: {str(exc).split(' (at ')[0]}") from None
+    if not path.exists():
+        raise InputError(shown, "", "sweep file not found")
+    text = read_text_file(path, lambda problem: InputError(shown, "", f"{problem} (a sweep is a TOML text file)"))
+    data = parse_toml(text, shown, kind="sweep", error=InputError)
     return sweep_from_dict(data, file=shown, base_dir=path.parent, allow_implausible=allow_implausible)
 
 
@@ -166,9 +163,10 @@ def _check_path(file: str, where: str, dotted: str, base_raw: dict):
     if head in schema.ARRAYS:
         keys = schema.ARRAYS[head]
         n = len(base_raw.get(head, []) or [])
-        if len(parts) != 3 or not parts[1].isdigit():
-            raise bad(f"expected \"{head}.<index>.<key>\", e.g. \"{head}.0.{next(iter(keys))}\"")
-        i = int(parts[1])
+        i = list_index(parts[1]) if len(parts) == 3 else None
+        if i is None:
+            raise bad(f"expected \"{head}.<index>.<key>\" with the index in ASCII digits 0-9, "
+                      f"e.g. \"{head}.0.{next(iter(keys))}\"")
         if i >= n:
             raise bad(f"the base scene has {n} {head}; index {i} does not exist (indices from 0)")
         if parts[2] not in keys:
