@@ -20,6 +20,7 @@ from typing import NamedTuple
 
 from swingsim.errors import SceneError
 from swingsim.scene import schema
+from swingsim.scene.plausibility import MAX_TABLE_BYTES, MAX_NOTES_CHARS, MAX_TABLE_ROWS, check_text
 from swingsim.scene.model import MoveTable, RatedChart
 
 __all__ = ["SceneDocument", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
@@ -265,6 +266,9 @@ class KeyReader:
         if k == "str":
             if not isinstance(v, str):
                 raise bad()
+            problem = check_text(v, **({"limit": MAX_NOTES_CHARS, "allow": "\n\t"} if name == "notes" else {}))
+            if problem:
+                raise self.err(where, problem, v[:80])
             if key.choices and v not in key.choices:
                 near = difflib.get_close_matches(v, key.choices, n=1, cutoff=0.6)
                 hint = f" (did you mean '{near[0]}'?)" if near else ""
@@ -389,6 +393,9 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
         raise err(f"{noun} file not found (paths are relative to the scene file's folder)")
     if not full.is_file():
         raise err("not a file")
+    if full.stat().st_size > MAX_TABLE_BYTES:
+        raise err(f"the {noun} file is larger than {MAX_TABLE_BYTES // 1_000_000} MB (at most "
+                  f"{MAX_TABLE_ROWS} rows are read)")
     try:
         text = full.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError):
@@ -401,21 +408,35 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
     found = [h.strip() for h in lines[0][1]]
     if found != list(header):
         raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} (found '{','.join(found)}')")
+    if len(lines) - 1 > MAX_TABLE_ROWS:
+        raise err(f"the {noun} has {len(lines) - 1} data rows; at most {MAX_TABLE_ROWS} are allowed")
     rows = []
     for number, (line, r) in enumerate(lines[1:], start=1):
         here = row_name(_Row(number, line, math.nan, math.nan))
         if len(r) != 2:
             raise err(f"{here}: expected 2 columns, found '{','.join(r)}'")
-        try:
-            a, b = float(r[0]), float(r[1])
-        except ValueError:
-            raise err(f"{here}: expected two numbers, found '{','.join(r)}'") from None
+        if not all(_NUMBER.fullmatch(c.strip()) for c in r):
+            raise err(f"{here}: expected two numbers, found {_shown(','.join(r))}")
+        a, b = float(r[0]), float(r[1])
         if not (math.isfinite(a) and math.isfinite(b)):
             raise err(f"{here}: values must be finite numbers")
         rows.append(_Row(number, line, a, b))
     if len(rows) < 2:
         raise err(f"a {noun} needs at least two data rows")
     return rows
+
+
+#: A plain decimal number (no digit separators, no non-ASCII digits, no inf or nan words).
+_NUMBER = re.compile(r"[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?", re.ASCII)
+
+#: Smallest interval between two times of a recorded move [s]: a record sampled faster than 10 kHz,
+#: or times in the wrong unit, would make the spline's accelerations overflow.
+MIN_TABLE_STEP_S = 1e-4
+
+
+def _shown(text: str, limit: int = 60) -> str:
+    """User text for a message: escaped (no control characters reach the terminal) and shortened."""
+    return repr(text if len(text) <= limit else text[:limit] + "...")
 
 
 def _check_increasing(rows: list, what: str, err, row_name) -> None:
@@ -469,6 +490,10 @@ def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str =
     if rows[0].first != 0.0:
         raise err(f"the table's first time must be 0 (times count from the move's start), found {rows[0].first:g}")
     _check_increasing(rows, "times", err, row_name)
+    for before, row in zip(rows, rows[1:]):
+        if row.first - before.first < MIN_TABLE_STEP_S:
+            raise err(f"{row_name(before)} and the next are {row.first - before.first:.3g} s apart; times must "
+                      f"be at least {MIN_TABLE_STEP_S:g} s apart (times in seconds, a record of at most 10 kHz)")
     return MoveTable(tuple(r.first for r in rows), tuple(r.second for r in rows))
 
 
