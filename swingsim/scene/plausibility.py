@@ -87,6 +87,42 @@ def check_plausible(scene, allow: bool = False) -> list[str]:
     return notes
 
 
+def check_limit(source: str, key: str, value: float, allow: bool = False) -> str:
+    """Refuse (or, with ``allow``, describe) one value beyond its limit in :data:`LIMITS`.
+
+    For values that reach a scene from elsewhere than the scene file (e.g. the
+    rope lengths of ``plan-move --rope-range``), held to the same limits.
+
+    Parameters
+    ----------
+    source : str
+        What gave the value (a file or an option), named in the message.
+    key : str
+        The limit's key in :data:`LIMITS`, e.g. ``"rope.length_m"``.
+    value : float
+        The value, in the limit's unit [unit of the limit].
+    allow : bool, optional
+        Describe the value instead of refusing it (``--allow-implausible``).
+
+    Returns
+    -------
+    str
+        A note when the value is beyond its limit and ``allow`` is set; "" otherwise.
+
+    Raises
+    ------
+    SceneError
+        Without ``allow``, when the value is beyond its limit.
+    """
+    limit = LIMITS[key]
+    if not value > limit.value:
+        return ""
+    what = f"{key} beyond the plausibility limit of {limit.value:g} {limit.unit} ({limit.why})"
+    if not allow:
+        raise SceneError(source, "value", what + "; pass --allow-implausible to use it anyway", value)
+    return f"{value:g}: {what}"
+
+
 def _model_values(scene) -> dict:
     """Values of the hook-and-load keys that the limits above bound."""
     out = {}
