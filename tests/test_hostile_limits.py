@@ -231,3 +231,9 @@ def test_plan_move_holds_the_rope_range_to_the_plausibility_limit(tmp_path):
              "--out", "p", cwd=tmp_path)
     assert r.returncode == 2 and "plausibility" in r.stderr and "--rope-range" in r.stderr, r.stderr
     assert not (tmp_path / "p").exists()
+
+
+def test_sweep_title_is_held_to_the_text_rules(sweep):
+    with pytest.raises(InputError) as ei:
+        sweep({"rope.length_m": [8.0, 9.0]}, title="study \x1b]0;x\x07")
+    assert "control character" in ei.value.one_line() and "\x1b" not in ei.value.one_line()

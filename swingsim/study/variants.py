@@ -35,7 +35,7 @@ from typing import NamedTuple
 from swingsim.errors import InputError, SceneError
 from swingsim.scene import load_scene, scene_from_dict, schema
 from swingsim.scene.edit import set_dotted
-from swingsim.scene.plausibility import check_plausible
+from swingsim.scene.plausibility import check_plausible, check_text
 from swingsim.scene.model import Scene
 
 __all__ = ["Sweep", "Variant", "load_sweep", "sweep_from_dict", "OBJECTIVE_KEYS", "MAX_VARIANTS"]
@@ -290,6 +290,8 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
     title = data.get("title", base.title)
     if not isinstance(title, str):
         raise InputError(file, "title", "expected a string", title)
+    if check_text(title):
+        raise InputError(file, "title", check_text(title), title[:80])
     notes = data.get("notes", "")
     if not isinstance(notes, str):
         raise InputError(file, "notes", "expected a string", notes)
