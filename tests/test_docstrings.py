@@ -18,7 +18,6 @@ import ast
 import re
 from pathlib import Path
 
-import pytest
 
 PACKAGE = Path(__file__).resolve().parents[1] / "swingsim"
 SECTION = re.compile(r"^\s*(Parameters|Returns|Yields|Raises|Attributes|Notes|References|Examples|See Also|Other Parameters)\s*\n\s*-{3,}\s*$", re.M)

@@ -9,7 +9,7 @@ apostrophe in a path is a valid path, and nothing hidden is left behind.
 import csv
 import io
 import os
-import shutil
+
 import subprocess
 import sys
 import zlib

@@ -10,7 +10,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from swingsim.cli.options import add_output_arguments
+from swingsim.cli.options import add_output_arguments, out_folder
 from swingsim.errors import InputError
 from swingsim.metrics import cautions
 from swingsim.study.compare import cell, compare
@@ -71,7 +71,7 @@ def main(args: argparse.Namespace) -> int:
     if args.resume and args.force:
         raise InputError("--resume", "", "cannot be combined with --force (which starts again)")
     sweep = load_sweep(args.sweep, allow_implausible=getattr(args, "allow_implausible", False))
-    out = Path(args.out) if args.out else Path(Path(args.sweep).stem + "-comparison")
+    out = Path(out_folder(args, Path(args.sweep).stem + "-comparison"))
     quiet = getattr(args, "quiet", False)
     bar = None
     if not quiet and sys.stderr.isatty():

@@ -10,8 +10,9 @@ import argparse
 import sys
 from pathlib import Path
 
-from swingsim.errors import InputError, SimulationError
 from swingsim.export.write import FORMATS, check_export_options, write_export
+from swingsim.cli.options import out_folder
+from swingsim.errors import InputError, SimulationError
 from swingsim.io.files import check_out_dir, output_run
 
 HELP = "export the lift as an animated 3D scene (glTF 2.0 .glb) and a self-contained viewer.html"
@@ -87,7 +88,7 @@ def main(args) -> int:
         check_plausible(scene, allow=args.allow_implausible)
         t0, t1 = check_export_options(scene, fps=args.fps, t_from=args.t_from, t_to=args.t_to, fmt=args.fmt,
                                       allow=args.allow_implausible)
-        out = check_out_dir(args.out or f"{Path(args.scene).stem}-export", args.force)
+        out = check_out_dir(out_folder(args, f"{Path(args.scene).stem}-export"), args.force)
         mesh = load_mesh_of(scene)
     except InputError as exc:
         print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import argparse
 
+from swingsim.errors import InputError
+
 
 def add_scene_argument(parser: argparse.ArgumentParser, metavar: str | None = None) -> None:
     """Add the positional ``scene`` (the scene file a command reads) to a command's parser.
@@ -39,3 +41,31 @@ def add_output_arguments(parser: argparse.ArgumentParser, out_help: str, replace
     parser.add_argument("--force", action="store_true",
                         help=f"write into a non-empty output folder, replacing only {replaced}")
     parser.add_argument("--quiet", *(["-q"] if short_flags else []), action="store_true", help=quiet_help)
+
+
+def out_folder(args: argparse.Namespace, default: str) -> str:
+    """The output folder a command writes: ``--out``, or ``default`` when it is not given.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        The parsed options (``out``).
+    default : str
+        The folder when ``--out`` is not given.
+
+    Returns
+    -------
+    str
+        The folder's path as given.
+
+    Raises
+    ------
+    InputError
+        For ``--out ''`` (an empty path names no folder; it is never taken as the default).
+    """
+    if args.out is None:
+        return default
+    if not args.out.strip():
+        raise InputError("--out", "", "empty path; name the output folder, or leave --out out for "
+                         f"the default ({default})")
+    return args.out

@@ -23,10 +23,11 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from swingsim.cli.options import add_output_arguments, add_scene_argument
+from swingsim.cli.options import add_output_arguments, add_scene_argument, out_folder
 from swingsim.errors import InputError
 from swingsim.io.files import locked_out_dir, reported_write_errors
 from swingsim.scene import load_scene
+from swingsim.scene.plausibility import check_limit, check_plausible
 from swingsim.study import plan as planning
 
 
@@ -54,6 +55,8 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--rope-range", required=True, metavar="LOW:HIGH",
                    help="rope lengths the plan must cover [m], e.g. 8:20")
     add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files")
+    p.add_argument("--allow-implausible", action="store_true",
+                   help="accept values beyond the plausibility limits (a very long rope or heavy load)")
 
 
 def main(args: argparse.Namespace) -> int:
@@ -64,7 +67,7 @@ def main(args: argparse.Namespace) -> int:
     args : argparse.Namespace
         The parsed request of :func:`add_arguments`: ``scene`` (file), ``move`` (index),
         ``max_residual_deg`` [deg], ``rope_range`` (``LOW:HIGH`` [m]), and ``out``,
-        ``force``, ``quiet``.
+        ``force``, ``quiet``, ``allow_implausible``.
 
     Returns
     -------
@@ -78,10 +81,12 @@ def main(args: argparse.Namespace) -> int:
         For a bad scene, request or output folder, before anything is written.
     """
     scene = load_scene(args.scene)
+    check_plausible(scene, allow=getattr(args, "allow_implausible", False))
     low, high = _parse_range(args.rope_range)
+    check_limit("--rope-range", "rope.length_m", high, allow=getattr(args, "allow_implausible", False))
     bound_deg = float(args.max_residual_deg)
     planning.check_request(scene, args.move, bound_deg, low, high)
-    out = Path(args.out) if args.out else Path(Path(args.scene).stem + "-plan")
+    out = Path(out_folder(args, Path(args.scene).stem + "-plan"))
     with locked_out_dir(out, args.force) as folder, reported_write_errors(folder):
         report = planning.write_plan(scene, args.move, bound_deg, low, high, folder)
     if not args.quiet:

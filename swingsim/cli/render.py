@@ -10,7 +10,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from swingsim.cli.options import add_output_arguments, add_scene_argument
+from swingsim.cli.options import add_output_arguments, add_scene_argument, out_folder
 from swingsim.render.views import VIEWS
 
 HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
@@ -129,7 +129,7 @@ def main(args) -> int:
 
         check_plausible(scene, allow=args.allow_implausible)
         check_frames(scene, opts["fps"], opts["speed"], opts["window"], allow=args.allow_implausible)
-        out = check_out_dir(args.out or f"{Path(args.scene).stem}-video", args.force)
+        out = check_out_dir(out_folder(args, f"{Path(args.scene).stem}-video"), args.force)
     except InputError as exc:
         print(f"swingsim: error: {exc.one_line()}", file=sys.stderr)
         return 2

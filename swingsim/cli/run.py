@@ -14,9 +14,10 @@ import sys
 from pathlib import Path
 
 from swingsim.cli.export import load_mesh_of
-from swingsim.cli.options import add_output_arguments, add_scene_argument
+from swingsim.cli.options import add_output_arguments, add_scene_argument, out_folder
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
+from swingsim.errors import InputError
 from swingsim.io.files import check_out_dir, output_run
 from swingsim.metrics.single import summarize
 from swingsim.scene import load_scene
@@ -114,8 +115,9 @@ def _do_run(args, scene_path, default_out) -> int:
 
     scene = load_scene(scene_path)
     check_plausible(scene, allow=args.allow_implausible)
-    out = check_out_dir(args.out or default_out, args.force)
+    out = check_out_dir(out_folder(args, default_out), args.force)
     want_video = getattr(args, "video", False)
+    _refuse_unused_video_options(args, want_video)
     if want_video:
         _require_renderer()
         from swingsim.render.api import check_options  # bad video options: one line, before anything is written
@@ -144,6 +146,25 @@ def _do_run(args, scene_path, default_out) -> int:
         sys.stderr.write(f"swingsim: run invalid: {traj.message}\n")
         return 1
     return 0
+
+
+#: Options of the video group that ``run --export`` uses too (the glTF keys' rate and time window).
+_EXPORT_SHARES = ("fps", "t_from", "t_to")
+
+
+def _refuse_unused_video_options(args, want_video: bool) -> None:
+    """A video option given to ``run`` without ``--video`` would be ignored: refuse it instead."""
+    if want_video or getattr(args, "command", "") != "run":
+        return
+    defaults = argparse.ArgumentParser(add_help=False)
+    add_render_arguments(defaults, scene=False)
+    for action in defaults._actions:
+        if getattr(args, action.dest, action.default) == action.default:
+            continue
+        if getattr(args, "export", False) and action.dest in _EXPORT_SHARES:
+            continue
+        raise InputError(action.option_strings[0], "", "is a video option and would be ignored; add --video "
+                         "(or leave it out)", getattr(args, action.dest))
 
 
 def _export_options(args, scene):

@@ -25,7 +25,7 @@ from swingsim.metrics.models import model_metrics, model_warnings
 from swingsim.metrics.zones import zone_summaries
 from swingsim.scene.site import scene_wind_from_bearing_deg
 
-__all__ = ["Summary", "summarize", "metric_times", "rope_angle_rad", "angle_between"]
+__all__ = ["Summary", "summarize", "final_check", "metric_times", "rope_angle_rad", "angle_between"]
 
 #: Metric sample rate floor [Hz] and samples per natural period (whichever is finer).
 _MIN_RATE_HZ = 50.0
@@ -256,4 +256,67 @@ def summarize(traj) -> Summary:
     data.update(chart_metrics(traj, t, s))
     data["cautions"] = ([cautions.CAUTION] + cautions.scenario_warnings(data, scene)
                         + model_warnings(data, scene) + chart_warnings(data, scene))
-    return Summary(data)
+    summary = Summary(data)
+    final_check(traj, summary, s)
+    return summary
+
+
+def _first_non_finite(value, key: str = ""):
+    """Key path of the first number in ``value`` (nested dicts and lists) that is not finite, or None."""
+    if isinstance(value, dict):
+        items = ((f"{key}.{k}" if key else str(k), v) for k, v in value.items())
+    elif isinstance(value, (list, tuple)):
+        items = ((f"{key}[{i}]", v) for i, v in enumerate(value))
+    elif isinstance(value, (float, np.floating)) and not math.isfinite(value):
+        return key
+    else:
+        return None
+    for k, v in items:
+        found = _first_non_finite(v, k)
+        if found is not None:
+            return found
+    return None
+
+
+def final_check(traj, summary: Summary, samples: dict | None = None) -> None:
+    """The last word before a result is called valid: every sample and summary number finite.
+
+    A run whose motion or numbers hold NaN or infinity (IEEE 754 non-finite values)
+    is marked invalid in place, in the summary and in the trajectory (``status``
+    ``"nonfinite"``), so every output and the exit code say so.
+
+    Parameters
+    ----------
+    traj : Trajectory
+        The solved run; its status and message are set when the check fails.
+    summary : Summary
+        Its summary; ``valid``, ``status`` and ``invalid_reason`` are set when the check fails.
+    samples : dict, optional
+        Outputs already sampled at the metric times (:meth:`Trajectory.sample`);
+        the run is also sampled at its output times (``timeseries.csv``).
+    """
+    reason = None
+    grids = [samples] if samples is not None else []
+    grids.append(traj.sample(traj.sample_times()))
+    for grid in grids:
+        for name, values in grid.items():
+            arr = np.asarray(values)
+            if arr.dtype.kind in "fc" and not np.all(np.isfinite(arr)):
+                bad = ~np.isfinite(arr.reshape(arr.shape[0], -1)).all(axis=1) if arr.ndim else np.array([True])
+                t_bad = float(np.atleast_1d(grid["t"])[int(np.argmax(bad))]) if arr.ndim else 0.0
+                reason = (f"the motion is not a finite number ({name} at t = {t_bad:.3f} s); "
+                          "no result of this run can be trusted")
+                break
+        if reason:
+            break
+    if reason is None:
+        key = _first_non_finite({k: v for k, v in summary.data.items() if k != "cautions"})
+        if key is not None:
+            reason = f"the summary number {key} is not a finite number; no result of this run can be trusted"
+    if reason is None:
+        return
+    if traj.valid:
+        traj.status, traj.message = "nonfinite", reason
+    summary.data["valid"] = False
+    summary.data["status"] = traj.status
+    summary.data["invalid_reason"] = traj.message

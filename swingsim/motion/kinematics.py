@@ -53,7 +53,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from swingsim.motion.profiles import Profile, SumProfile
+from swingsim.motion.profiles import SumProfile
 
 AXES = ("x", "y", "slew", "radius", "hoist")
 

@@ -8,6 +8,7 @@ engineering limits.
 from __future__ import annotations
 
 import math
+import unicodedata
 from typing import NamedTuple
 
 from swingsim.dynamics.rope import elastic_rope
@@ -86,6 +87,42 @@ def check_plausible(scene, allow: bool = False) -> list[str]:
     return notes
 
 
+def check_limit(source: str, key: str, value: float, allow: bool = False) -> str:
+    """Refuse (or, with ``allow``, describe) one value beyond its limit in :data:`LIMITS`.
+
+    For values that reach a scene from elsewhere than the scene file (e.g. the
+    rope lengths of ``plan-move --rope-range``), held to the same limits.
+
+    Parameters
+    ----------
+    source : str
+        What gave the value (a file or an option), named in the message.
+    key : str
+        The limit's key in :data:`LIMITS`, e.g. ``"rope.length_m"``.
+    value : float
+        The value, in the limit's unit [unit of the limit].
+    allow : bool, optional
+        Describe the value instead of refusing it (``--allow-implausible``).
+
+    Returns
+    -------
+    str
+        A note when the value is beyond its limit and ``allow`` is set; "" otherwise.
+
+    Raises
+    ------
+    SceneError
+        Without ``allow``, when the value is beyond its limit.
+    """
+    limit = LIMITS[key]
+    if not value > limit.value:
+        return ""
+    what = f"{key} beyond the plausibility limit of {limit.value:g} {limit.unit} ({limit.why})"
+    if not allow:
+        raise SceneError(source, "value", what + "; pass --allow-implausible to use it anyway", value)
+    return f"{value:g}: {what}"
+
+
 def _model_values(scene) -> dict:
     """Values of the hook-and-load keys that the limits above bound."""
     out = {}
@@ -139,3 +176,44 @@ def check_frames(scene, fps: float, speed: float, window=None, allow: bool = Fal
                          f"plausibility limit of {MAX_FRAMES} (an hour at 30 fps); pass --allow-implausible "
                          "to render it anyway", f"{fps:g} fps at speed {speed:g}")
     return frames
+
+
+#: Longest title, move name, zone name or other text a scene may hold [characters].
+MAX_TEXT_CHARS = 200
+#: Longest free-text ``notes`` [characters] (newlines and tabs allowed there).
+MAX_NOTES_CHARS = 20_000
+#: Most data rows of a recorded-move table or a capacity chart.
+MAX_TABLE_ROWS = 200_000
+#: Largest table file read [bytes] (the rows above, with room for comments).
+MAX_TABLE_BYTES = 20_000_000
+
+
+def check_text(text: str, limit: int = MAX_TEXT_CHARS, allow: str = "") -> str:
+    """Why a piece of user text (a title, a label, a name) cannot be shown as given, or "".
+
+    Text is drawn on plots, printed to the terminal and written to ``summary.txt``:
+    control characters (Unicode category Cc, e.g. escape sequences, newlines) and
+    format characters (category Cf, e.g. bidirectional overrides that reorder what
+    is shown) are refused, as is text longer than ``limit``.
+
+    Parameters
+    ----------
+    text : str
+        The text as the file gives it.
+    limit : int, optional
+        Most characters allowed [characters].
+    allow : str, optional
+        Control characters allowed all the same [characters] (newline and tab in notes).
+
+    Returns
+    -------
+    str
+        The problem in words, or "" when the text is fine.
+    """
+    if len(text) > limit:
+        return f"{len(text)} characters, longer than the limit of {limit} characters"
+    for ch in text:
+        if unicodedata.category(ch) in ("Cc", "Cf") and ch not in allow:
+            return (f"holds the control character U+{ord(ch):04X}; titles, labels and names may not hold "
+                    "control or bidirectional-override characters")
+    return ""

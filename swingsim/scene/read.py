@@ -22,6 +22,7 @@ from typing import NamedTuple
 from swingsim.errors import SceneError, quote
 from swingsim.io.failures import read_text_file
 from swingsim.scene import schema
+from swingsim.scene.plausibility import MAX_TABLE_BYTES, MAX_NOTES_CHARS, MAX_TABLE_ROWS, check_text
 from swingsim.scene.model import MoveTable, RatedChart
 
 __all__ = ["SceneDocument", "MAX_NESTING", "parse_toml", "read_document", "line_of_key", "KeyReader", "read_table", "read_chart", "suggest"]
@@ -308,6 +309,9 @@ class KeyReader:
         if k == "str":
             if not isinstance(v, str):
                 raise bad()
+            problem = check_text(v, **({"limit": MAX_NOTES_CHARS, "allow": "\n\t"} if name == "notes" else {}))
+            if problem:
+                raise self.err(where, problem, v[:80])
             if key.choices and v not in key.choices:
                 near = difflib.get_close_matches(v, key.choices, n=1, cutoff=0.6)
                 hint = f" (did you mean '{near[0]}'?)" if near else ""
@@ -430,6 +434,9 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
     full = p if p.is_absolute() else base_dir / p
     if not full.exists():
         raise err(f"{noun} file not found (paths are relative to the scene file's folder)")
+    if full.is_file() and full.stat().st_size > MAX_TABLE_BYTES:
+        raise err(f"the {noun} file is larger than {MAX_TABLE_BYTES // 1_000_000} MB (at most "
+                  f"{MAX_TABLE_ROWS} rows are read)")
     text = read_text_file(full, err)
     lines = [(i, r) for i, r in enumerate(csv.reader(text.splitlines()), start=1)
              if r and not r[0].lstrip().startswith("#")]
@@ -439,6 +446,8 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
     found = [h.strip() for h in lines[0][1]]
     if found != list(header):
         raise err(f"the {noun}'s header must be exactly '{want}'{header_hint} ({_found_header(found)})")
+    if len(lines) - 1 > MAX_TABLE_ROWS:
+        raise err(f"the {noun} has {len(lines) - 1} data rows; at most {MAX_TABLE_ROWS} are allowed")
     rows = []
     for number, (line, r) in enumerate(lines[1:], start=1):
         here = row_name(_Row(number, line, math.nan, math.nan))
@@ -446,10 +455,9 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
             raise err(f"{here}: expected 2 columns, found {len(r)}")
         numbers = []
         for column, cell in zip(header, r):
-            try:
-                numbers.append(float(cell))
-            except ValueError:
-                raise err(f"{here}: expected a number in column {column}, found {quote(cell.strip())}") from None
+            if not _NUMBER.fullmatch(cell.strip()):  # plain decimals only: no 1_0.0, no inf
+                raise err(f"{here}: expected a number in column {column}, found {quote(cell.strip())}")
+            numbers.append(float(cell))
         a, b = numbers
         if not (math.isfinite(a) and math.isfinite(b)):
             raise err(f"{here}: values must be finite numbers")
@@ -472,6 +480,14 @@ def _found_header(cells: list) -> str:
     if len(cells) <= 4 and all(name_like(c) for c in cells):
         return f"found {quote(','.join(cells))}"
     return "its first line is not a header of column names"
+
+
+#: A plain decimal number (no digit separators, no non-ASCII digits, no inf or nan words).
+_NUMBER = re.compile(r"[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?", re.ASCII)
+
+#: Smallest interval between two times of a recorded move [s]: a record sampled faster than 10 kHz,
+#: or times in the wrong unit, would make the spline's accelerations overflow.
+MIN_TABLE_STEP_S = 1e-4
 
 
 def _check_increasing(rows: list, what: str, err, row_name) -> None:
@@ -525,6 +541,10 @@ def read_table(file: str, base_dir: Path, key: str, axis: str, scene_file: str =
     if rows[0].first != 0.0:
         raise err(f"the table's first time must be 0 (times count from the move's start), found {rows[0].first:g}")
     _check_increasing(rows, "times", err, row_name)
+    for before, row in zip(rows, rows[1:]):
+        if row.first - before.first < MIN_TABLE_STEP_S:
+            raise err(f"{row_name(before)} and the next are {row.first - before.first:.3g} s apart; times must "
+                      f"be at least {MIN_TABLE_STEP_S:g} s apart (times in seconds, a record of at most 10 kHz)")
     return MoveTable(tuple(r.first for r in rows), tuple(r.second for r in rows))
 
 

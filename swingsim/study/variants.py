@@ -36,6 +36,7 @@ from swingsim.io.failures import read_text_file
 from swingsim.scene import load_scene, scene_from_dict, schema
 from swingsim.scene.edit import list_index, set_dotted
 from swingsim.scene.read import parse_toml
+from swingsim.scene.plausibility import check_plausible, check_text
 from swingsim.scene.model import Scene
 
 __all__ = ["Sweep", "Variant", "load_sweep", "sweep_from_dict", "OBJECTIVE_KEYS", "MAX_VARIANTS"]
@@ -128,15 +129,24 @@ def load_sweep(path, *, allow_implausible: bool = False) -> Sweep:
     return sweep_from_dict(data, file=shown, base_dir=path.parent, allow_implausible=allow_implausible)
 
 
-def _flatten(table: dict, prefix: str = "", leaf_range: bool = True) -> dict:
-    """{"rope": {"length_m": [..]}} -> {"rope.length_m": [..]}; a range table is a leaf."""
+def _flatten(table: dict, prefix: str = "", leaf_range: bool = True, file: str = "<sweep>",
+             where: str = "vary") -> dict:
+    """{"rope": {"length_m": [..]}} -> {"rope.length_m": [..]}; a range table (or ``{}``) is a leaf.
+
+    A scene key given twice (as a table and as a dotted key) is an error: neither is dropped silently.
+    """
     out = {}
     for k, v in table.items():
         key = f"{prefix}{k}"
-        if isinstance(v, dict) and not (leaf_range and v and set(v) <= _RANGE):
-            out.update(_flatten(v, key + ".", leaf_range))
+        if isinstance(v, dict) and not (leaf_range and set(v) <= _RANGE):
+            found = _flatten(v, key + ".", leaf_range, file, where)
         else:
-            out[key] = v
+            found = {key: v}
+        for dotted, value in found.items():
+            if dotted in out:
+                raise InputError(file, f'{where}."{dotted}"', "the scene key is given twice (as a table and as "
+                                 "a dotted key); give it once")
+            out[dotted] = value
     return out
 
 
@@ -151,7 +161,7 @@ def _check_path(file: str, where: str, dotted: str, base_raw: dict):
     if head in schema.TOP:
         if len(parts) != 1:
             raise bad(f"'{head}' is a top-level scene key; use \"{head}\"")
-        return
+        return schema.TOP[head]
     if head in schema.TABLES:
         if len(parts) != 2:
             raise bad(f"expected \"{head}.<key>\" with one of: {', '.join(schema.TABLES[head])}")
@@ -159,7 +169,7 @@ def _check_path(file: str, where: str, dotted: str, base_raw: dict):
             near = difflib.get_close_matches(parts[1], list(schema.TABLES[head]), n=1, cutoff=0.6)
             hint = f" (did you mean '{head}.{near[0]}'?)" if near else ""
             raise bad(f"unknown scene key{hint}; [{head}] has: {', '.join(schema.TABLES[head])}")
-        return
+        return schema.TABLES[head][parts[1]]
     if head in schema.ARRAYS:
         keys = schema.ARRAYS[head]
         n = len(base_raw.get(head, []) or [])
@@ -173,19 +183,24 @@ def _check_path(file: str, where: str, dotted: str, base_raw: dict):
             near = difflib.get_close_matches(parts[2], list(keys), n=1, cutoff=0.6)
             hint = f" (did you mean '{head}.{i}.{near[0]}'?)" if near else ""
             raise bad(f"unknown key of [[{head}]]{hint}")
-        return
+        return keys[parts[2]]
     near = difflib.get_close_matches(head, list(schema.TOP) + list(schema.TABLES) + list(schema.ARRAYS),
                                      n=1, cutoff=0.6)
     hint = f" (did you mean '{near[0]}'?)" if near else ""
     raise bad(f"not a scene key{hint}")
 
 
-def _values(file: str, where: str, v) -> list:
-    """A [vary] entry -> its list of values."""
+def _values(file: str, where: str, v, kind: str = "float") -> list:
+    """A [vary] entry -> its list of values; a range's count is checked before it is expanded.
+
+    ``kind`` is the schema kind of the varied key: a range of an ``int`` key must give whole numbers.
+    """
     if isinstance(v, list):
         if not v:
             raise InputError(file, where, "empty list; give at least one value", v)
         return v
+    if isinstance(v, dict) and not v:
+        raise InputError(file, where, "empty range {}; give from, to and count, or a list of values")
     if isinstance(v, dict) and set(v) <= _RANGE:
         missing = _RANGE - set(v)
         if missing:
@@ -197,9 +212,20 @@ def _values(file: str, where: str, v) -> list:
                 raise InputError(file, f"{where}.{name}", "expected a finite number", x)
         if isinstance(n, bool) or not isinstance(n, int) or n < 1:
             raise InputError(file, f"{where}.count", "expected a whole number >= 1", n)
+        if n > MAX_VARIANTS:
+            raise InputError(file, f"{where}.count", f"a range of more than {MAX_VARIANTS} values; at most "
+                             f"{MAX_VARIANTS} variants are allowed (split the study)", n)
         if n == 1:
-            return [float(a)]
-        return [float(a + (b - a) * k / (n - 1)) for k in range(n)]
+            values = [float(a)]
+        else:
+            values = [float(a + (b - a) * k / (n - 1)) for k in range(n)]
+        if kind == "int":
+            if any(not x.is_integer() for x in values):
+                raise InputError(file, where, "the key takes whole numbers and this range gives fractions; "
+                                 "choose from, to and count so that every step is a whole number, or list "
+                                 "the values", v)
+            values = [int(x) for x in values]
+        return values
     raise InputError(file, where, "expected a list of values or a range { from = .., to = .., "
                      "count = .. }", v)
 
@@ -229,7 +255,8 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
     base_dir : Path or str, optional
         Folder the ``base`` scene is relative to.
     allow_implausible : bool, optional
-        Accept more than :data:`PLAUSIBLE_VARIANTS` variants.
+        Accept more than :data:`PLAUSIBLE_VARIANTS` variants, and variants beyond the
+        scene plausibility limits (:mod:`swingsim.scene.plausibility`).
 
     Returns
     -------
@@ -261,6 +288,8 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
     title = data.get("title", base.title)
     if not isinstance(title, str):
         raise InputError(file, "title", "expected a string", title)
+    if check_text(title):
+        raise InputError(file, "title", check_text(title), title[:80])
     notes = data.get("notes", "")
     if not isinstance(notes, str):
         raise InputError(file, "notes", "expected a string", notes)
@@ -295,12 +324,12 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
     vary = data.get("vary", {})
     if not isinstance(vary, dict):
         raise InputError(file, "vary", "expected a table [vary]", vary)
-    vary = _flatten(vary)
+    vary = _flatten(vary, file=file)
     lists = {}
     for k, v in vary.items():
         where = f'vary."{k}"'
-        _check_path(file, where, k, base.raw)
-        lists[k] = _values(file, where, v)
+        key = _check_path(file, where, k, base.raw)
+        lists[k] = _values(file, where, v, key.kind)
     named = data.get("variants", [])
     if not isinstance(named, list) or any(not isinstance(x, dict) for x in named):
         raise InputError(file, "variants", "expected an array of tables [[variants]]", named)
@@ -327,7 +356,7 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
         if name in names:
             raise InputError(file, f"{where}.name", "duplicate name", name)
         names.add(name)
-        vals = _flatten({k: v for k, v in x.items() if k != "name"}, leaf_range=False)
+        vals = _flatten({k: v for k, v in x.items() if k != "name"}, leaf_range=False, file=file, where=where)
         for k in vals:
             _check_path(file, f'{where}."{k}"', k, base.raw)
         cases.append(_Case(name, vals, where))
@@ -344,6 +373,7 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
             d = set_dotted(d, k, copy.deepcopy(val))
         try:
             sc = scene_from_dict(d, file=base.file, base_dir=base.base_dir)
+            check_plausible(sc, allow=allow_implausible)
         except SceneError as exc:
             label = f"variant {idx}" + (f" '{case.name}'" if case.name else "")
             raise InputError(file, case.where, f"{label} ({_describe(case.values)}) is not a valid scene: "
