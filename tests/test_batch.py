@@ -7,6 +7,8 @@ slewing, radius, hoisting, s-curves, shaped moves and table profiles.
 """
 
 
+import math
+
 import numpy as np
 import pytest
 
@@ -182,3 +184,24 @@ def test_vendored_tableau_order_conditions():
         assert float(b @ c**k) == pytest.approx(1.0 / (k + 1), abs=1e-14), k
     for k in range(rk8.ORDER - 1):
         assert float(b @ (A @ c**k)) == pytest.approx(1.0 / ((k + 1) * (k + 2)), abs=1e-14), k
+
+
+def test_non_finite_batch_number_goes_to_the_single_run_solver(monkeypatch):
+    """A batch summary holding a non-finite number is never reported as valid from the batch:
+    the variant is run again by the single-run solver, whose final check decides (issue: nothing
+    wrong passes as right)."""
+    from swingsim.batch import engine
+
+    real = engine.measure_block
+
+    def poisoned(*args, **kw):
+        block = real(*args, **kw)
+        block.summaries[0]["peak_excursion_m"] = float("nan")
+        return block
+
+    monkeypatch.setattr(engine, "measure_block", poisoned)
+    sc = make_scene({"moves": [{"axis": "x", "profile": "trapezoid", "start_s": 1.0, "distance_m": 5.0,
+                                "speed_m_s": 1.0, "accel_m_s2": 0.5}]}, duration_s=30.0)
+    out = engine.run_chunk([sc, sc])
+    assert out[0]["engine"] == "single" and math.isfinite(out[0]["peak_excursion_m"])
+    assert out[1]["engine"] == "batch"

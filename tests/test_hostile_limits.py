@@ -113,7 +113,7 @@ def test_table_cells_must_be_plain_decimal_numbers(tmp_path, cell):
     scene = _table_scene(tmp_path, ["0,0", f"{cell},1", "20,2"])
     with pytest.raises(SceneError) as ei:
         load_scene(scene)
-    assert "expected two numbers" in ei.value.one_line()
+    assert "expected a number in column t_s" in ei.value.one_line()
 
 
 @pytest.mark.parametrize("text", ["a\x1b[2Jb", "crane \u202e lift", "two\nlines", "tab\there", "del\x7f"])
@@ -237,3 +237,13 @@ def test_sweep_title_is_held_to_the_text_rules(sweep):
     with pytest.raises(InputError) as ei:
         sweep({"rope.length_m": [8.0, 9.0]}, title="study \x1b]0;x\x07")
     assert "control character" in ei.value.one_line() and "\x1b" not in ei.value.one_line()
+
+
+@pytest.mark.parametrize("text", ["1_0:20", "8:2_0", "٨:20", "inf:20", "8:20:30"])
+def test_rope_range_takes_plain_numbers_only(tmp_path, text):
+    # Python's float() reads "1_0" as 10 and "٨" as 8: a careless range must be refused, not guessed
+    (tmp_path / "s.toml").write_text(BASE_TOML)
+    r = _cli("plan-move", "s.toml", "--move", "0", "--max-residual-deg", "1", "--rope-range", text,
+             "--out", "p", cwd=tmp_path)
+    assert r.returncode == 2 and "--rope-range" in r.stderr and len(r.stderr.strip().splitlines()) == 1, r.stderr
+    assert not (tmp_path / "p").exists()

@@ -85,8 +85,9 @@ def test_file_that_is_not_a_mesh_refused_before_anything_is_written(tmp_path):
     scene = tmp_path / "scene.toml"
     scene.write_text(text, encoding="utf-8")
     out = tmp_path / "out"
-    for option in ("--export", "--video"):
-        r = _cli("run", str(scene), "--out", str(out), option, "--size", "160x120", "--fps", "5")
+    for options in (("--export", "--fps", "5"), ("--video", "--size", "160x120", "--fps", "5")):
+        option = options[0]
+        r = _cli("run", str(scene), "--out", str(out), *options)
         if "OpenGL" in r.stderr:
             pytest.skip("no OpenGL for the video")
         assert r.returncode == 2, (option, r.stderr)

@@ -333,9 +333,18 @@ def _chunk_batch(variants, samples_per_step):
                               lambda t0, sel=sel: dense.refine_peak_sq(run, sel, t0))
         sums.extend(block.summaries)
         oks.append(block.ok)
-    for s in sums:
+    ok = np.concatenate(oks)
+    for k, s in enumerate(sums):
         s.update({"valid": True, "status": "ok", "model": "point-mass", "engine": "batch"})
-    return sums, np.concatenate(oks)
+        if not _all_finite(s):
+            ok[k] = False  # a number the batch cannot vouch for: the single-run solver (and its final check) decides
+    return sums, ok
+
+
+def _all_finite(summary: dict) -> bool:
+    """True when every number of a summary is finite (None stands for "not measured" and passes)."""
+    return all(math.isfinite(v) for v in summary.values()
+               if isinstance(v, (float, np.floating)) and not isinstance(v, bool))
 
 
 def _single(scene) -> dict:

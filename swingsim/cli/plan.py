@@ -28,15 +28,16 @@ from swingsim.errors import InputError
 from swingsim.io.files import locked_out_dir, reported_write_errors
 from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_limit, check_plausible
+from swingsim.scene.read import PLAIN_NUMBER
 from swingsim.study import plan as planning
 
 
 def _parse_range(text: str):
     """``"8:20"`` -> (8.0, 20.0); InputError naming ``--rope-range`` otherwise."""
-    try:
-        lo, hi = (float(x) for x in text.split(":"))
-    except ValueError:
-        raise InputError("--rope-range", "value", "expected LOW:HIGH in metres, e.g. 8:20", text) from None
+    parts = text.split(":")
+    if len(parts) != 2 or not all(PLAIN_NUMBER.fullmatch(x.strip()) for x in parts):
+        raise InputError("--rope-range", "value", "expected LOW:HIGH in metres as plain numbers, e.g. 8:20", text)
+    lo, hi = (float(x) for x in parts)
     return lo, hi
 
 

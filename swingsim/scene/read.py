@@ -455,7 +455,7 @@ def _read_two_columns(file: str, base_dir: Path, header: tuple, noun: str, err, 
             raise err(f"{here}: expected 2 columns, found {len(r)}")
         numbers = []
         for column, cell in zip(header, r):
-            if not _NUMBER.fullmatch(cell.strip()):  # plain decimals only: no 1_0.0, no inf
+            if not PLAIN_NUMBER.fullmatch(cell.strip()):  # plain decimals only: no 1_0.0, no inf
                 raise err(f"{here}: expected a number in column {column}, found {quote(cell.strip())}")
             numbers.append(float(cell))
         a, b = numbers
@@ -483,7 +483,7 @@ def _found_header(cells: list) -> str:
 
 
 #: A plain decimal number (no digit separators, no non-ASCII digits, no inf or nan words).
-_NUMBER = re.compile(r"[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?", re.ASCII)
+PLAIN_NUMBER = re.compile(r"[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?", re.ASCII)
 
 #: Smallest interval between two times of a recorded move [s]: a record sampled faster than 10 kHz,
 #: or times in the wrong unit, would make the spline's accelerations overflow.
