@@ -11,7 +11,7 @@ import sys
 from pathlib import Path
 
 from swingsim.export.write import FORMATS, check_export_options, write_export
-from swingsim.cli.options import out_folder
+from swingsim.cli.options import add_allow_implausible, finish_written, out_folder
 from swingsim.errors import InputError, SimulationError
 from swingsim.io.files import check_out_dir, output_run
 
@@ -40,8 +40,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--force", action="store_true",
                         help="write into a non-empty output folder, replacing only this export's files")
     parser.add_argument("--quiet", "-q", action="store_true", help="print nothing but errors")
-    parser.add_argument("--allow-implausible", action="store_true",
-                        help="accept values beyond the plausibility limits (very long runs or many keys)")
+    add_allow_implausible(parser, "very long runs or many keys")
 
 
 def load_mesh_of(scene):
@@ -108,10 +107,4 @@ def main(args) -> int:
     except OSError as exc:
         print(f"swingsim: cannot write to {out}: {exc.strerror or exc}", file=sys.stderr)
         return 1
-    if not args.quiet:
-        for p in paths:
-            print(p)
-    if not traj.valid:
-        print(f"swingsim: run invalid: {traj.message}; the animation stops there", file=sys.stderr)
-        return 1
-    return 0
+    return finish_written(paths, traj, args.quiet, "the animation")

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 
 from swingsim.errors import InputError
 
@@ -69,3 +70,45 @@ def out_folder(args: argparse.Namespace, default: str) -> str:
         raise InputError("--out", "", "empty path; name the output folder, or leave --out out for "
                          f"the default ({default})")
     return args.out
+
+
+def add_allow_implausible(parser, examples: str) -> None:
+    """``--allow-implausible``: accept values beyond the plausibility limits.
+
+    Parameters
+    ----------
+    parser : argparse.ArgumentParser or argparse._ArgumentGroup
+        Where the option goes.
+    examples : str
+        What the limits catch for this command, for its help text.
+    """
+    parser.add_argument("--allow-implausible", action="store_true",
+                        help=f"accept values beyond the plausibility limits ({examples})")
+
+
+def finish_written(paths, traj, quiet: bool, what_stops: str) -> int:
+    """Print the files a command wrote (unless quiet) and its exit code for the run's validity.
+
+    Parameters
+    ----------
+    paths : list of pathlib.Path
+        The files written.
+    traj : swingsim.simulation.Trajectory
+        The run they were made from.
+    quiet : bool
+        Print nothing on success.
+    what_stops : str
+        What the output is, for the notice of an invalid run (e.g. "the video").
+
+    Returns
+    -------
+    int
+        0, or 1 when the run is not valid (its reason printed on stderr).
+    """
+    if not quiet:
+        for path in paths:
+            print(path)
+    if not traj.valid:
+        print(f"swingsim: run invalid: {traj.message}; {what_stops} stops there", file=sys.stderr)
+        return 1
+    return 0

@@ -23,7 +23,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from swingsim.cli.options import add_output_arguments, add_scene_argument, out_folder
+from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
 from swingsim.errors import InputError
 from swingsim.io.files import locked_out_dir, reported_write_errors
 from swingsim.scene import load_scene
@@ -56,8 +56,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--rope-range", required=True, metavar="LOW:HIGH",
                    help="rope lengths the plan must cover [m], e.g. 8:20")
     add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files")
-    p.add_argument("--allow-implausible", action="store_true",
-                   help="accept values beyond the plausibility limits (a very long rope or heavy load)")
+    add_allow_implausible(p, "a very long rope or heavy load")
 
 
 def main(args: argparse.Namespace) -> int:

@@ -10,7 +10,8 @@ import argparse
 import sys
 from pathlib import Path
 
-from swingsim.cli.options import add_output_arguments, add_scene_argument, out_folder
+from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument, finish_written,
+                                  out_folder)
 from swingsim.render.views import VIEWS
 
 HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
@@ -31,8 +32,7 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
         add_scene_argument(parser, metavar="SCENE")
         add_output_arguments(parser, "folder for the video and stills (default: <scene name>-video)",
                              "this render's files", quiet_help="no progress bar, no list of files", short_flags=True)
-        parser.add_argument("--allow-implausible", action="store_true",
-                            help="accept values beyond the plausibility limits (very long runs or videos)")
+        add_allow_implausible(parser, "very long runs or videos")
     g = parser.add_argument_group("video")
     g.add_argument("--size", metavar="WxH", default="1280x720", help="frame size in pixels (default 1280x720)")
     g.add_argument("--fps", type=float, default=30.0, help="frames per second (default 30)")
@@ -152,13 +152,7 @@ def main(args) -> int:
     except RuntimeError as exc:  # encoder or worker failure, already one line
         print(f"swingsim: {exc}", file=sys.stderr)
         return 1
-    if not args.quiet:
-        for p in paths:
-            print(p)
-    if not traj.valid:
-        print(f"swingsim: run invalid: {traj.message}; the video stops there", file=sys.stderr)
-        return 1
-    return 0
+    return finish_written(paths, traj, args.quiet, "the video")
 
 
 def _summary(traj):

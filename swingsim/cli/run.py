@@ -14,7 +14,7 @@ import sys
 from pathlib import Path
 
 from swingsim.cli.export import load_mesh_of
-from swingsim.cli.options import add_output_arguments, add_scene_argument, out_folder
+from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.errors import InputError
@@ -34,8 +34,7 @@ def _add_output_arguments(p, scene=True):
         add_scene_argument(p)
     add_output_arguments(p, "output folder (default: <scene name>-results)", "this run's files")
     p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
-    p.add_argument("--allow-implausible", action="store_true",
-                   help="accept values beyond the plausibility limits (e.g. very long runs)")
+    add_allow_implausible(p, "e.g. very long runs")
 
 
 def add_run_arguments(p: argparse.ArgumentParser) -> None:
