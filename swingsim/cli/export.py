@@ -11,7 +11,8 @@ import sys
 from pathlib import Path
 
 from swingsim.export.write import FORMATS, check_export_options, write_export
-from swingsim.cli.options import add_allow_implausible, finish_written, out_folder
+from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument,
+                                  finish_written, out_folder)
 from swingsim.errors import InputError, SimulationError
 from swingsim.io.files import check_out_dir, output_run
 
@@ -26,9 +27,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser : argparse.ArgumentParser
         The subcommand's parser, filled in place.
     """
-    parser.add_argument("scene", metavar="SCENE", help="scene file (TOML)")
-    parser.add_argument("--out", "-o", metavar="DIR", default=None,
-                        help="output folder (default: <scene name>-export)")
+    add_scene_argument(parser, "SCENE")
+    add_output_arguments(parser, "output folder (default: <scene name>-export)", "this export's files",
+                         short_flags=True)
     parser.add_argument("--fps", type=float, default=30.0,
                         help="animation keys per second of simulated time (default 30)")
     parser.add_argument("--from", dest="t_from", type=float, default=None, metavar="SECONDS",
@@ -37,9 +38,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="end of the exported time window [s] (default: the run's end)")
     parser.add_argument("--format", dest="fmt", choices=FORMATS, default="glb",
                         help="glb (one binary file, default) or gltf (JSON text and a .bin)")
-    parser.add_argument("--force", action="store_true",
-                        help="write into a non-empty output folder, replacing only this export's files")
-    parser.add_argument("--quiet", "-q", action="store_true", help="print nothing but errors")
     add_allow_implausible(parser, "very long runs or many keys")
 
 
