@@ -1,10 +1,8 @@
-"""``swingsim run``, ``swingsim demo`` and ``swingsim check``: their arguments, and what they print.
+"""``swingsim run`` and ``swingsim demo``: their arguments, and what they print.
 
 ``run`` and ``demo`` simulate a scene and write the run's outputs
 (:func:`swingsim.report.outputs.write_run_outputs`, and the video with
-``--video``); ``check`` (its one argument is the scene,
-:func:`swingsim.cli.options.add_scene_argument`) validates a scene and lists its
-plausibility notes.
+``--video``).  ``check`` is :mod:`swingsim.cli.check`.
 """
 
 from __future__ import annotations
@@ -14,7 +12,8 @@ import sys
 from pathlib import Path
 
 from swingsim.cli.export import load_mesh_of
-from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
+from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument, out_folder,
+                                  time_window)
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.errors import InputError
@@ -26,13 +25,17 @@ from swingsim.simulation import simulate
 
 #: The bundled demo scene.
 DEMO_SCENE = Path(__file__).parent.parent / "data" / "demo.toml"
+#: The folder ``swingsim demo`` writes when ``--out`` is not given (in the current folder).
+DEMO_OUT = "swingsim-demo"
 
 
 def _add_output_arguments(p, scene=True):
-    """Options shared by ``run`` and ``demo``."""
+    """Options shared by ``run`` and ``demo``: the scene (run), -o/-f/-q, the plots, the limits."""
     if scene:
         add_scene_argument(p)
-    add_output_arguments(p, "output folder (default: <scene name>-results)", "this run's files")
+    add_output_arguments(p, "output folder (default: <scene name>-results, in the current folder)" if scene
+                         else f"output folder (default: {DEMO_OUT}, in the current folder)", "this run's files",
+                         quiet_help="print nothing but errors (no headline, no list of files)")
     p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
     add_allow_implausible(p, "e.g. very long runs")
 
@@ -85,27 +88,6 @@ def _headline(summary) -> str:
     for c in d["cautions"]:
         lines.append("  ! " + c)
     return "\n".join(lines)
-
-
-def check(args: argparse.Namespace) -> int:
-    """Run ``swingsim check``: validate the scene, print ``ok`` and its plausibility notes.
-
-    Parameters
-    ----------
-    args : argparse.Namespace
-        The parsed options (``scene``).
-
-    Returns
-    -------
-    int
-        The exit code: 0 (a bad scene raises :class:`~swingsim.errors.SceneError` instead).
-    """
-    scene = load_scene(args.scene)
-    notes = check_plausible(scene, allow=True)
-    print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
-    for n in notes:
-        print(f"  note: {n}")
-    return 0
 
 
 def _do_run(args, scene_path, default_out) -> int:
@@ -173,6 +155,7 @@ def _export_options(args, scene):
     if getattr(args, "command", "") == "demo":
         fps, t_from, t_to = 30.0, None, None
     elif getattr(args, "export", False):
+        time_window(args, scene, "run")  # --to past the run's end: refused, not cut
         fps, t_from, t_to = args.fps, args.t_from, args.t_to
     else:
         return None
@@ -239,4 +222,4 @@ def demo(args: argparse.Namespace) -> int:
             args.video = True
         except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
             sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
-    return _do_run(args, DEMO_SCENE, "swingsim-demo")
+    return _do_run(args, DEMO_SCENE, DEMO_OUT)
