@@ -469,6 +469,9 @@ TABLES: dict[str, dict[str, Key]] = {
     },
 }
 
+#: Tables every scene must have (``scene/validate.py`` reads them with ``required=True``).
+REQUIRED_TABLES = ("crane", "rope", "load")
+
 MOVE = {
     "axis": Key("str", "Axis that moves: x and y travel (along the rails and across the span of a gantry or "
                 "bridge crane), slew, radius (trolley travel along a jib, or luffing), hoist.", required=True,
