@@ -110,7 +110,7 @@ def move_lines(scene, motion) -> list[str]:
     """
     if not scene.moves:
         return ["moves: none (the load hangs; only the start swing and the wind move it)"]
-    lines = [f"moves ({len(scene.moves)}):"]
+    lines = ["moves:"]
     for move, (axis, prof) in zip(scene.moves, motion.moves):
         unit = "deg" if axis == "slew" else "m"
         distance = math.degrees(prof.distance) if axis == "slew" else prof.distance  # slew profiles run in rad
@@ -189,5 +189,6 @@ def check(args: argparse.Namespace) -> int:
             print(textwrap.fill(f"beyond a plausibility limit (a run needs --allow-implausible): {n}", WIDTH,
                                 initial_indent="  note: ", subsequent_indent="    "))
         print(cautions.CAUTION_SHORT)
-    print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
+    n = len(scene.moves)
+    print(f"{args.scene}: ok ({n} move{'' if n == 1 else 's'}, {scene.duration_s:g} s)")
     return 0
