@@ -168,3 +168,23 @@ def test_schema_command_writes_the_committed_files(tmp_path, capsys):
     assert main(["schema", "-o", str(out), "-f", "-q"]) == 0
     assert capsys.readouterr().out == ""
     assert (out / SCENE_FILE).read_bytes() == (COMMITTED / SCENE_FILE).read_bytes()
+
+
+def test_every_default_and_choice_passes_its_own_key_schema():
+    # a default or a choice the schema refused would mark a correct scene red in the editor
+    doc = json.loads((COMMITTED / SCENE_FILE).read_text(encoding="utf-8"))
+    js = _jsonschema()
+    places = [(doc["properties"], schema.TOP)]
+    places += [(doc["properties"][t]["properties"], keys) for t, keys in schema.TABLES.items()]
+    places += [(doc["properties"][a]["items"]["properties"], keys) for a, keys in schema.ARRAYS.items()]
+    checked = 0
+    for props, keys in places:
+        for name, key in keys.items():
+            sub = js.Draft7Validator(props[name])
+            values = ([] if key.default is None else [json.loads(json.dumps(key.default))])
+            if key.choices and key.kind == "str":
+                values += list(key.choices)
+            for value in values:
+                assert not list(sub.iter_errors(value)), (name, value)
+                checked += 1
+    assert checked > 40
