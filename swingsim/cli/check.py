@@ -32,7 +32,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     Parameters
     ----------
     p : argparse.ArgumentParser
-        The subcommand's parser, filled in place.
+        The ``check`` parser; the scene and ``-q`` are added to it.
     """
     add_scene_argument(p)
     add_quiet_argument(p, "print only the final 'ok' line (errors still go to stderr)")

@@ -89,7 +89,7 @@ def key_schema(key: Key) -> dict:
     Parameters
     ----------
     key : swingsim.scene.schema.Key
-        The key's entry in the scene schema.
+        The key: its ``doc`` and ``allowed()`` give the description, its ``default`` the default.
 
     Returns
     -------
