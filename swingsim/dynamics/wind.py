@@ -206,12 +206,13 @@ def synthesise(spectrum_fn, duration_s: float, rng, dt_s: float = SAMPLE_INTERVA
 class _Record:
     """A periodic cubic spline through a synthesised record, evaluated fast on floats."""
 
-    def __init__(self, t, x):
+    def __init__(self, t, x, keep_s):
         self.dt = float(t[1] - t[0])
-        self.n = len(t)
-        self.period = self.n * self.dt
+        self.period = len(t) * self.dt
         s = CubicSpline(np.append(t, self.period), np.append(x, x[0]), bc_type="periodic")
-        self.c = np.ascontiguousarray(s.c.T)  # (n, 4): tau^3, tau^2, tau, 1
+        # the pieces the run reaches (the record is longer, for its low frequencies)
+        self.n = min(len(t), int(math.ceil(keep_s / self.dt)) + 2)
+        self.c = np.ascontiguousarray(s.c.T[:self.n])  # (n, 4): tau^3, tau^2, tau, 1
         self._rows = self.c.tolist()
 
     def __call__(self, t: float) -> float:
@@ -271,10 +272,12 @@ class WindField:
             rng = np.random.default_rng(self.seed)
             rec = max(RECORD_S, float(duration_s) + 1.0)
             U, sp = self.mean_speed_m_s, self.spectrum
-            self._along = _Record(*synthesise(lambda f: spectral_density(sp, "along", f, sig, U, Lu), rec, rng))
+            keep = float(duration_s)
+            self._along = _Record(*synthesise(lambda f: spectral_density(sp, "along", f, sig, U, Lu), rec, rng),
+                                  keep)
             if lat > 0.0:
                 self._across = _Record(*synthesise(
-                    lambda f: spectral_density(sp, "across", f, lat * sig, U, Lv), rec, rng))
+                    lambda f: spectral_density(sp, "across", f, lat * sig, U, Lv), rec, rng), keep)
         #: True when the wind changes in time (turbulence or gusts)
         self.varies = self._along is not None or bool(self.gusts)
         #: True when the wind changes with height
@@ -488,40 +491,78 @@ class BatchWind:
         Parameters
         ----------
         t : ndarray
-            Times, one per variant (B,) [s].
+            Times, a row per variant: (B,) or (B, M) [s].
         height_m : ndarray
-            Heights, one per variant (B,) [m].
+            Heights, broadcastable with ``t`` [m].
 
         Returns
         -------
         tuple of ndarray
-            ``(wx, wy)``, each (B,) [m/s].
+            ``(wx, wy)``, each shaped as ``t`` [m/s].
         """
         B = len(self.fields)
-        t = np.broadcast_to(np.asarray(t, dtype=float), (B,))
-        s = self.mean.copy()
-        c = np.zeros(B)
+        t = np.asarray(t, dtype=float)
+        if t.ndim == 0:
+            t = np.broadcast_to(t, (B,))
+
+        def col(a):  # one value per variant, against the shape of t
+            return a.reshape((B,) + (1,) * (t.ndim - 1))
+
+        s = np.broadcast_to(col(self.mean), t.shape).copy()
+        c = np.zeros(t.shape)
         if self.coef is not None:
-            tm = np.mod(t, self.period)
-            i = np.minimum((tm / self.dt).astype(np.intp), self.n - 1)
+            tm = np.mod(t, col(self.period))
+            i = np.clip((tm / self.dt).astype(np.intp), 0, col(self.n) - 1)
             tau = tm - i * self.dt
-            ar = np.arange(B)
+            ar = col(np.arange(B))
             for j, out in ((0, s), (1, c)):
                 k = self.coef[j, ar, i]
-                out += ((k[:, 0] * tau + k[:, 1]) * tau + k[:, 2]) * tau + k[:, 3]
-        wx = s * self.ex - c * self.ey
-        wy = s * self.ey + c * self.ex
-        for t0, t1, peak, gx, gy in self.gusts:
+                out += ((k[..., 0] * tau + k[..., 1]) * tau + k[..., 2]) * tau + k[..., 3]
+        ex, ey = col(self.ex), col(self.ey)
+        wx = s * ex - c * ey
+        wy = s * ey + c * ex
+        for g in self.gusts:
+            t0, t1, peak, gx, gy = (col(a) for a in g)
             inside = (t > t0) & (t <= t1)
             a = np.where(inside, 0.5 * peak * (1.0 - np.cos(2.0 * np.pi * (t - t0) / np.where(inside, t1 - t0, 1.0))),
                          0.0)
             wx = wx + a * gx
             wy = wy + a * gy
         if self.sheared:
-            z = np.broadcast_to(np.asarray(height_m, dtype=float), (B,))
-            f = np.array([float(fl.profile_factor(z[i])) for i, fl in enumerate(self.fields)])
+            f = self.profile_factor(np.broadcast_to(np.asarray(height_m, dtype=float), t.shape))
             wx, wy = wx * f, wy * f
         return wx, wy
+
+    def profile_factor(self, height_m):
+        """:meth:`WindField.profile_factor` of each variant (rows of ``height_m``) [-].
+
+        Parameters
+        ----------
+        height_m : ndarray
+            Heights (B,) or (B, M) [m].
+
+        Returns
+        -------
+        ndarray
+            The factors, shaped as ``height_m`` [-].
+        """
+        z = np.asarray(height_m, dtype=float)
+        return np.stack([np.broadcast_to(f.profile_factor(z[i]), z[i].shape) for i, f in enumerate(self.fields)])
+
+    def select(self, rows) -> "BatchWind":
+        """The same winds for some variants only.
+
+        Parameters
+        ----------
+        rows : array_like of int
+            Indices of the variants kept.
+
+        Returns
+        -------
+        BatchWind
+            The kept variants' winds.
+        """
+        return BatchWind([self.fields[i] for i in np.atleast_1d(rows)])
 
     def terms(self, t, load_height_m, rope_mid_height_m) -> tuple:
         """:meth:`WindField.terms` of every variant at once.
@@ -543,9 +584,7 @@ class BatchWind:
         wx, wy = self.velocities(t, load_height_m)
         if not self.sheared:
             return wx, wy, 1.0
-        B = len(self.fields)
-        zl = np.broadcast_to(np.asarray(load_height_m, dtype=float), (B,))
-        zm = np.broadcast_to(np.asarray(rope_mid_height_m, dtype=float), (B,))
-        rf = np.array([float(f.profile_factor(zm[i])) / float(f.profile_factor(zl[i]))
-                       for i, f in enumerate(self.fields)])
-        return wx, wy, rf
+        shape = np.shape(wx)
+        zl = np.broadcast_to(np.asarray(load_height_m, dtype=float), shape)
+        zm = np.broadcast_to(np.asarray(rope_mid_height_m, dtype=float), shape)
+        return wx, wy, self.profile_factor(zm) / self.profile_factor(zl)
