@@ -270,7 +270,7 @@ class WindField:
             self.length_scales_m = (Lu, Lv)
             self.sigma_m_s = (sig, lat * sig)
             rng = np.random.default_rng(self.seed)
-            rec = max(RECORD_S, float(duration_s) + 1.0)
+            rec = max(RECORD_S, float(duration_s))
             U, sp = self.mean_speed_m_s, self.spectrum
             keep = float(duration_s)
             self._along = _Record(*synthesise(lambda f: spectral_density(sp, "along", f, sig, U, Lu), rec, rng),
