@@ -310,7 +310,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
         sw = self.scene.start
-        L0 = float(motion.evaluate(np.array([0.0]))["L"][0])
+        e0 = motion.evaluate(np.array([0.0]))
+        L0 = float(e0["L"][0])
+        self._rest_support_z = float(e0["p"][0][2])  # where the rest in the mean wind hangs from
         # lift-off: the load rests on its support, plumb below the suspension point, until the
         # rope lifts it; the wind then takes it as it leaves the ground
         in_wind = starts_in_steady_wind(self.scene) and not self.starts_resting
@@ -543,14 +545,26 @@ class HookLoadModel(ModelDefaults, SwingModel):
         and the wind at the rope's mid-height over it [-].  ``t = None`` is the steady mean
         wind at the reference height (the rest the run starts from).
         """
-        if self.wind is None or t is None:
+        if self.wind is None:
             return self._wind_x_m_s, self._wind_y_m_s, 1.0
+        if t is None:  # at rest in the mean wind, below the support of t = 0 (pz = 0 in the rest's frame)
+            z0 = getattr(self, "_rest_support_z", None)
+            if z0 is None or not self.wind.sheared:
+                return self._wind_x_m_s, self._wind_y_m_s, 1.0
+            wx, wy = self.wind.mean_velocity_at(z0 + Hz)
+            return wx, wy, self._height_factor(z0 + 0.5 * (pz + Hz), z0 + Hz)
         return self.wind.terms(t, Hz, 0.5 * (pz + Hz))
 
     def _height_factor(self, z, z_ref, t=0.0):
-        """Wind at height ``z`` over the wind at ``z_ref`` (1 without a profile, or at rest) [-]."""
-        if self.wind is None or not self.wind.sheared or t is None:
+        """Wind at height ``z`` over the wind at ``z_ref`` (1 without a profile) [-]; at rest (``t = None``)
+        both heights are below the support of t = 0."""
+        if self.wind is None or not self.wind.sheared:
             return 1.0
+        if t is None:
+            z0 = getattr(self, "_rest_support_z", None)
+            if z0 is None:
+                return 1.0
+            z, z_ref = z + z0, z_ref + z0
         return float(self.wind.profile_factor(z)) / float(self.wind.profile_factor(z_ref))
 
     def _qdd(self, y, kin_state, t=0.0):

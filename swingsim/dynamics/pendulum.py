@@ -422,12 +422,21 @@ class PointMassModel(ModelDefaults, SwingModel):
         return {"slack": slack, "overswing": overswing}
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
-        par = self.par
-        if self.wind is not None and self.wind.sheared and self._suspension_height_m is not None:
-            # the mean wind at the load's height, hanging plumb below the start's suspension point
-            wx, wy = self.wind.mean_velocity_at(self._suspension_height_m - rope_length_m)
-            par = dict(par, wx=wx, wy=wy)
-        return rest_direction(par, rope_length_m)
+        z0 = self._suspension_height_m
+        if self.wind is None or not self.wind.sheared or z0 is None:
+            return rest_direction(self.par, rope_length_m)
+        # the mean wind at the load's and the rope's heights as they hang, leaning, below the
+        # start's suspension point (the heights depend on the lean: a few passes settle it)
+        f, L = self.wind, rope_length_m
+        n = np.array([0.0, 0.0, -1.0])
+        for _ in range(8):
+            z_load, z_mid = z0 + L * n[2], z0 + 0.5 * L * n[2]
+            wx, wy = f.mean_velocity_at(z_load)
+            new = rest_direction(self.par, L, wind=(wx, wy, float(f.profile_factor(z_mid) / f.profile_factor(z_load))))
+            if np.max(np.abs(new - n)) < 1e-15:
+                return new
+            n = new
+        return n
 
     # -- outputs ---------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
@@ -486,7 +495,7 @@ class PointMassModel(ModelDefaults, SwingModel):
         return np.tile([self.par["wx"], self.par["wy"]], (len(t), 1))
 
 
-def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
+def rest_direction(par: dict, L: float, iterations: int = 60, wind=None) -> np.ndarray:
     """Unit rope direction of the load hanging at rest in the steady wind.
 
     At rest relative to a still suspension point the rope lies along the
@@ -502,6 +511,9 @@ def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
         Rope length [m].
     iterations : int
         Most fixed-point iterations.
+    wind : tuple, optional
+        The mean wind as :func:`specific_force` takes it (``(wx, wy, rope_factor)`` [m/s, m/s, -]);
+        ``par``'s steady wind when None.
 
     Returns
     -------
@@ -511,7 +523,7 @@ def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
     u = v = 0.0
     for _ in range(iterations):
         w = max(1.0 - u * u - v * v, 1e-12) ** 0.5
-        fx, fy, fz = specific_force(u, v, w, 0.0, 0.0, L, 0.0, 0.0, 0.0, 0.0, par)
+        fx, fy, fz = specific_force(u, v, w, 0.0, 0.0, L, 0.0, 0.0, 0.0, 0.0, par, 0.0, wind)
         n = math.sqrt(fx * fx + fy * fy + fz * fz)
         u_new, v_new = fx / n, fy / n
         if abs(u_new - u) + abs(v_new - v) < 1e-15:
