@@ -208,7 +208,8 @@ def summary_text(summary, scene) -> str:
              + (f" (rope ends at {d['rope_length_end_m']:.2f} m)" if abs(d['rope_length_end_m'] - scene.rope.length_m) > 1e-9 else "")
              + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.2f} s; simulated {d['simulated_until_s']:.1f} s.")
     if scene.wind.speed_m_s:
-        w.append(f"Wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}, site north at "
+        at = "" if scene.wind.profile == "uniform" else f" at {scene.wind.reference_height_m:g} m"
+        w.append(f"Wind {scene.wind.speed_m_s:g} m/s{at} {wind_words(scene)}, site north at "
                  f"{scene.site.north_deg:g} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.2f} deg "
                  "downwind; " + _wind_start(d, scene))
     if d.get("move_list"):
