@@ -18,10 +18,9 @@ from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.errors import InputError
 from swingsim.io.files import check_out_dir, output_run
-from swingsim.metrics.single import summarize
 from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_frames, check_plausible
-from swingsim.simulation import simulate
+from swingsim.study.realisations import run_scene
 
 #: The bundled demo scene.
 DEMO_SCENE = Path(__file__).parent.parent / "data" / "demo.toml"
@@ -110,8 +109,7 @@ def _do_run(args, scene_path, default_out) -> int:
         load_mesh_of(scene)  # a file that is not a mesh: refused before anything is written
     export = _export_options(args, scene)
     with output_run(out, args.force) as stage:
-        traj = simulate(scene)
-        summary = summarize(traj)
+        traj, summary = run_scene(scene)  # with wind.realisations: the worst one and the statistics
         written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots)
         if want_video and traj.valid:
             from swingsim.render import render_scene

@@ -425,9 +425,39 @@ TABLES: dict[str, dict[str, Key]] = {
                      "studying a gust. start.swing_deg is measured from the start the onset gives.",
                      default="steady", choices=("steady", "step"), synonyms=synonyms(
                          (("gust", "gusty", "sudden", "squall"), "step", "a wind arriving suddenly at t = 0 is "
-                          "onset = \"step\""),
+                          "onset = \"step\"; gusts during the run are [[wind.gusts]]"),
                          (("constant", "static", "mean", "already blowing"), "steady",
                           "a wind already blowing at the start is onset = \"steady\""))),
+        # -- gusts, turbulence, profile (swingsim/dynamics/wind.py) --
+        "profile": Key("str", "How the wind grows with height: uniform (speed_m_s at every height), "
+                       "power (power law, shear_exponent) or log (logarithmic law, roughness_length_m); "
+                       "speed_m_s, the turbulence and the gusts are then given at reference_height_m "
+                       "and every body sees the wind at its own height.",
+                       default="uniform", choices=("uniform", "power", "log")),
+        "reference_height_m": Key("float", "Height above the ground the wind speeds are given at "
+                                  "(an anemometer's height) [m]; 10 m as in wind codes (common practice).",
+                                  default=10.0, gt=0.0, le=500.0),
+        "shear_exponent": Key("float", "Power-law exponent of the profile [-]; default 1/7, the classic "
+                              "open-terrain value (from memory).", default=1.0 / 7.0, ge=0.0, le=1.0),
+        "roughness_length_m": Key("float", "Roughness length of the log-law profile [m]; default 0.05, "
+                                  "EN 1991-1-4 terrain category II (from memory).",
+                                  default=0.05, gt=0.0, le=2.0),
+        "turbulence_intensity": Key("float", "Turbulence intensity: standard deviation of the along-wind "
+                                    "speed over the mean speed_m_s [-]; 0 for no turbulence. Needs "
+                                    "speed_m_s > 0.", default=0.0, ge=0.0, le=1.0),
+        "spectrum": Key("str", "Turbulence spectrum: kaimal (IEC 61400-1 ed. 3), von-karman (IEC 61400-1 "
+                        "ed. 2 form) or davenport (Davenport 1961), each with its published length scale "
+                        "(docs/models.md).", default="kaimal", choices=("kaimal", "von-karman", "davenport")),
+        "length_scale_m": Key("float", "Along-wind length scale of the spectrum [m], instead of its "
+                              "published default.", gt=0.0, le=10000.0),
+        "lateral_intensity_ratio": Key("float", "Across-wind over along-wind turbulence standard "
+                                       "deviation [-]; 0.8 as IEC 61400-1 ed. 3 (from memory); 0 for "
+                                       "along-wind turbulence only.", default=0.8, ge=0.0, le=1.5),
+        "seed": Key("int", "Seed of the turbulence's random phases [-]: the same seed gives the same "
+                    "wind.", default=0, ge=0),
+        "realisations": Key("int", "Number of independent turbulence realisations (seeds seed, seed+1, "
+                            "...) to run; above 1 the summary gives their statistics (gust_statistics) "
+                            "and the worst one's time series.", default=1, ge=1, le=10000),
     },
     "output": {
         "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=constants.SAMPLE_HZ, ge=1.0, le=1000.0),
@@ -524,6 +554,19 @@ ZONE = {
                     default=1.0, ge=0.0),
 }
 
+#: One discrete gust (``[[wind.gusts]]``, an array inside ``[wind]``).
+GUST = {
+    "start_s": Key("float", "When the gust starts [s].", required=True, ge=0.0),
+    "peak_m_s": Key("float", "Speed the gust adds at its peak [m/s], with the 1 - cosine shape of "
+                    "gust-load practice (at reference_height_m with a profile).", required=True, gt=0.0,
+                    le=60.0),
+    "duration_s": Key("float", "Length of the gust from start to end [s].", required=True, gt=0.0),
+    "from_bearing_deg": Key("float", "Compass bearing the gust comes from [deg]; the mean wind's by "
+                            "default.", ge=0.0, le=360.0),
+    "direction_deg": Key("float", "Mathematical alternative to from_bearing_deg: where the gust blows "
+                         "toward, from +x toward +y [deg]; the mean wind's by default."),
+}
+
 ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
 
 
@@ -552,6 +595,7 @@ def reference_markdown() -> str:
         table(f"[{name}]", keys)
     for name, keys in ARRAYS.items():
         table(f"[[{name}]]", keys)
+    table("[[wind.gusts]]", GUST)
     return "\n".join(out)
 
 
