@@ -141,6 +141,10 @@ def scene_schema() -> dict:
     for name, keys in schema.ARRAYS.items():
         props[name] = {"type": "array", "description": f"[[{name}]]: an array of tables, one per entry.",
                        "items": table_schema(keys, f"One entry of [[{name}]].")}
+    for (table, name), keys in schema.NESTED_ARRAYS.items():
+        props[table]["properties"][name] = {
+            "type": "array", "description": f"[[{table}.{name}]]: an array of tables inside [{table}].",
+            "items": table_schema(keys, f"One entry of [[{table}.{name}]].")}
     required = [name for name, k in schema.TOP.items() if k.required] + list(schema.REQUIRED_TABLES)
     return {"$schema": DRAFT_7, "title": "swingsim scene file",
             "description": ("A lift to simulate: crane, rope, load, moves, wind, zones. SI units; every "

@@ -569,6 +569,9 @@ GUST = {
 
 ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
 
+#: Arrays of tables inside a table: (table, key) -> the entry's keys.
+NESTED_ARRAYS: dict[tuple[str, str], dict[str, Key]] = {("wind", "gusts"): GUST}
+
 
 def reference_markdown() -> str:
     """The scene key reference as Markdown (docs/scene-reference.md).
@@ -595,7 +598,8 @@ def reference_markdown() -> str:
         table(f"[{name}]", keys)
     for name, keys in ARRAYS.items():
         table(f"[[{name}]]", keys)
-    table("[[wind.gusts]]", GUST)
+    for (owner, name), keys in NESTED_ARRAYS.items():
+        table(f"[[{owner}.{name}]]", keys)
     return "\n".join(out)
 
 
