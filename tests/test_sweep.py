@@ -72,7 +72,8 @@ name = "slow"
     ('base = "base.toml"\n[vary]\n"rope.length_m" = { from = 1.0, to = 2.0, count = 0 }\n',
      'vary."rope.length_m".count', ">= 1"),
     ('base = "base.toml"\n[vary]\n"rope.length_m" = 7.0\n', 'vary."rope.length_m"', "expected a list"),
-    ('base = "base.toml"\n[vary]\n"rope.length_m" = [5.0, -2.0]\n', "vary", "variant 1"),
+    # per column: the error names the column (the sweep key), the value and the first variant with it
+    ('base = "base.toml"\n[vary]\n"rope.length_m" = [5.0, -2.0]\n', 'vary."rope.length_m"', "variant 1"),
     ('base = "base.toml"\n[vary]\n"moves.0.profile" = ["trapezoid", "s-curve"]\n', "vary",
      "needs distance_m, speed_m_s, accel_m_s2, jerk_m_s3"),
     ('base = "base.toml"\n[objective]\nminimize = "settle_time"\n[vary]\n"rope.length_m" = [5.0]\n',

@@ -63,10 +63,11 @@ from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_f
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize
 from swingsim.motion import profiles
-from swingsim.motion.kinematics import AXES
-from swingsim.simulation import prepare, simulate
+from swingsim.motion.kinematics import AXES, Motion
+from swingsim.motion.registry import build_profile, crane_boom, needs_swing_period
+from swingsim.simulation import simulate
 
-__all__ = ["run_batch", "run_chunk", "supported", "chunks", "chunk_size_for", "SUMMARY_KEYS",
+__all__ = ["run_batch", "run_chunk", "run_table_chunk", "SceneList", "supported", "chunks", "chunk_size_for", "SUMMARY_KEYS",
            "DEFAULT_STEPS_PER_PERIOD", "DEFAULT_SAMPLES_PER_STEP"]
 
 #: Fixed steps per shortest swing period (see the module docstring).
@@ -166,11 +167,35 @@ class _Variant:
     move_end: float
 
 
-def _prepare(scene, steps_per_period) -> _Variant:
-    model, motion = prepare(scene, PointMassModel(scene))
-    T = scene.duration_s
+class _Cache:
+    """What a chunk's preparation builds once and reuses: models per group, profiles per distinct move."""
+
+    def __init__(self):
+        self.models = {}
+        self.profiles = {}
+        self.cuts = {}
+        self.grids = {}
+
+
+def _profiles_of(table, g, m, cache, model):
+    """The move profiles of move combination ``m`` in group ``g`` (built once per distinct move)."""
+    gs, ms = table.group_scene(g), table.move_scene(m)
+    period = float(model.mode_periods_s()[0]) if needs_swing_period(ms) else None
+    key = (m, period, gs.damping_ratio, gs.duration_s)
+    got = cache.profiles.get(key)
+    if got is None:
+        got = tuple((mv.axis, build_profile(mv, gs, period)) for mv in ms.moves)
+        cache.profiles[key] = got
+    return key, got
+
+
+def _cuts_and_coefficients(key, moves, T, cache):
+    """Segment boundaries of a run and each axis's cubic coefficients on them (once per distinct move)."""
+    got = cache.cuts.get(key)
+    if got is not None:
+        return got
     pts = {0.0, T}
-    for _, prof in motion.moves:
+    for _, prof in moves:
         pts |= {b for b in _segment_times(prof) if 0.0 < b < T}
     cuts = np.array(sorted(pts))
     cuts = cuts[np.concatenate([[True], np.diff(cuts) > 1e-12])]
@@ -183,7 +208,7 @@ def _prepare(scene, steps_per_period) -> _Variant:
     t2 = a0 + 0.75 * (a1 - a0)
     d = tm - a0
     both = np.concatenate([tm, t2])
-    for ax, prof in motion.moves:
+    for ax, prof in moves:
         # each profile is one cubic on each segment: read it off at two interior points
         pp, vv, aa = prof.evaluate(both)
         p, v, a = pp[:nseg], vv[:nseg], aa[:nseg]
@@ -191,24 +216,69 @@ def _prepare(scene, steps_per_period) -> _Variant:
         c = np.stack([p - v * d + a * d**2 / 2 - j * d**3 / 6, v - a * d + j * d**2 / 2,
                       (a - j * d) / 2, j / 6], axis=-1)
         coef[:, AXES.index(ax)] += c
+    cache.cuts[key] = (cuts, coef)
+    return cuts, coef
+
+
+def _step_grid(cuts, hmax, T):
+    n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
+    nseg = len(cuts) - 1
+    seg = np.repeat(np.arange(nseg), n)
+    first = np.repeat(np.cumsum(n) - n, n)
+    k = np.arange(len(seg)) - first
+    grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
+    return grid, seg
+
+
+def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
+    """One variant of a columnar table, from its group's scene and its move combination's profiles."""
+    g, m = int(table.group_ids[i]), int(table.move_ids[i])
+    gs = table.group_scene(g)
+    model = cache.models.get(g)
+    if model is None:
+        model = cache.models[g] = PointMassModel(gs)
+    key, moves = _profiles_of(table, g, m, cache, model)
+    motion = Motion(tuple(gs.crane.suspension_m), gs.rope.length_m, moves,
+                    slew_center_m=tuple(gs.crane.slew_center_m), boom=crane_boom(gs.crane))
+    T = gs.duration_s
+    cuts, coef = _cuts_and_coefficients(key, moves, T, cache)
     # shortest rope over the run -> shortest period -> step bound
-    if any(ax == "hoist" for ax, _ in motion.moves):
+    if any(ax == "hoist" for ax, _ in moves):
         Ls = motion.evaluate(np.union1d(cuts, np.linspace(0.0, T, 201)))["L"]
         Lmin = float(np.min(Ls))
         L_end = float(motion.evaluate(np.array([T]))["L"][0])
     else:
         Lmin = L_end = float(motion.rope_length_m)
-    hmax = _period(scene, Lmin) / steps_per_period
-    n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
-    seg = np.repeat(np.arange(nseg), n)
-    first = np.repeat(np.cumsum(n) - n, n)
-    k = np.arange(len(seg)) - first
-    grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
+    hmax = _period(gs, Lmin) / steps_per_period
+    gkey = (key, hmax)
+    got = cache.grids.get(gkey)
+    if got is None:
+        got = cache.grids[gkey] = _step_grid(cuts, hmax, T)
+    grid, seg = got
     rest = np.asarray(model.rest_direction(L_end))
-    return _Variant(scene, motion, model, cuts, coef, grid, seg,
+    return _Variant(gs, motion, model, cuts, coef, grid, seg,
                     np.asarray(model.initial_state(motion), dtype=float), rest,
                     float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
                     L_end, motion.last_move_end_s)
+
+
+def _prepare(scene, steps_per_period) -> _Variant:
+    """One scene prepared for the batch (the data path of :func:`run_table_chunk`)."""
+    return _prepare_row(SceneList([scene]), 0, steps_per_period, _Cache())
+
+
+def _supported_row(table, i, verdicts) -> bool:
+    """:func:`supported` for a row of a columnar table (decided once per group and move combination)."""
+    key = (int(table.group_ids[i]), int(table.move_ids[i]))
+    got = verdicts.get(key)
+    if got is None:
+        gs, ms = table.group_scene(key[0]), table.move_scene(key[1])
+        if gs.crane.has_boom and any(mv.axis == "radius" for mv in ms.moves):
+            got = False
+        else:
+            got = supported(gs)
+        verdicts[key] = got
+    return got
 
 
 # ----------------------------------------------------------------------------
@@ -354,6 +424,48 @@ def _single(scene) -> dict:
     return {k: d.get(k) for k in SUMMARY_KEYS}
 
 
+class SceneList:
+    """A list of scenes seen as a columnar table (each scene its own group and move combination).
+
+    The batch engine's data path reads a *variant table*: ``n`` rows,
+    ``group_ids`` and ``move_ids`` (int arrays numbering the distinct
+    combinations of the keys outside the moves and of the move keys),
+    ``group_scene(g)`` (a validated scene with group ``g``'s values: the model,
+    crane, rope, duration and limits are read from it), ``move_scene(m)`` (a
+    validated scene whose ``moves`` are combination ``m``'s) and ``scene(i)``
+    (the full scene of row ``i``, for the single-run solver).  A sweep's
+    :class:`swingsim.study.variants.VariantTable` is one; this class makes a
+    plain list of scenes one.
+
+    Parameters
+    ----------
+    scenes : sequence of Scene
+        Validated scenes.
+    """
+
+    def __init__(self, scenes):
+        self.scenes = list(scenes)
+        self.n = len(self.scenes)
+        self.group_ids = self.move_ids = np.arange(self.n)
+
+    def group_scene(self, g):
+        """The scene of row ``g``.
+
+        Parameters
+        ----------
+        g : int
+            Row.
+
+        Returns
+        -------
+        Scene
+            The scene.
+        """
+        return self.scenes[g]
+
+    move_scene = scene = group_scene
+
+
 def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
               samples_per_step=DEFAULT_SAMPLES_PER_STEP, engine="batch") -> list[dict]:
     """Summaries of a list of validated scenes (one chunk), in order.
@@ -374,21 +486,53 @@ def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
     list of dict
         Keys :data:`SUMMARY_KEYS`; ``engine`` says which solver produced it.
     """
-    out: list = [None] * len(scenes)
+    return run_table_chunk(SceneList(scenes), steps_per_period=steps_per_period,
+                           samples_per_step=samples_per_step, engine=engine)
+
+
+def run_table_chunk(table, rows=None, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
+                    samples_per_step=DEFAULT_SAMPLES_PER_STEP, engine="batch") -> list[dict]:
+    """Summaries of rows of a columnar variant table (one chunk), in order.
+
+    The table is read by column (see :class:`SceneList` for what it provides):
+    a model is built once per group, the motion profiles and their cubic
+    coefficients once per distinct move, and a full scene only for a row that
+    goes to the single-run solver.
+
+    Parameters
+    ----------
+    table : VariantTable or SceneList
+        The variants.
+    rows : sequence of int, optional
+        Rows to run (default: every row).
+    steps_per_period : int
+        Fixed steps per shortest swing period of each variant.
+    samples_per_step : int
+        Dense samples per step for the summary.
+    engine : {"batch", "single"}
+        ``"single"`` solves every row with :func:`swingsim.simulation.simulate`.
+
+    Returns
+    -------
+    list of dict
+        One summary per row (keys :data:`SUMMARY_KEYS`; ``engine`` says which solver produced it).
+    """
+    rows = list(range(table.n)) if rows is None else [int(i) for i in rows]
+    out: list = [None] * len(rows)
     todo = []
     if engine == "batch":
-        for i, sc in enumerate(scenes):
-            if supported(sc):
-                todo.append(i)
+        verdicts: dict = {}
+        todo = [k for k, i in enumerate(rows) if _supported_row(table, i, verdicts)]
     if todo:
-        variants = [_prepare(scenes[i], steps_per_period) for i in todo]
+        cache = _Cache()
+        variants = [_prepare_row(table, rows[k], steps_per_period, cache) for k in todo]
         sums, ok = _chunk_batch(variants, samples_per_step)
-        for i, s, good in zip(todo, sums, ok):
+        for k, s, good in zip(todo, sums, ok):
             if good:
-                out[i] = {k: s.get(k) for k in SUMMARY_KEYS}
-    for i, sc in enumerate(scenes):
-        if out[i] is None:
-            out[i] = _single(sc)
+                out[k] = {key: s.get(key) for key in SUMMARY_KEYS}
+    for k, i in enumerate(rows):
+        if out[k] is None:
+            out[k] = _single(table.scene(i))
     return out
 
 
