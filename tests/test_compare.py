@@ -82,13 +82,13 @@ def test_resume_runs_only_the_rest(tmp_path, monkeypatch):
     lines = want.splitlines(keepends=True)
     (part / "comparison.csv").write_text("".join(lines[:5]) + lines[5][:40])
     seen = []
-    real = batch.run_chunk
+    real = batch.run_table_chunk
 
-    def spy(scenes, **kw):
-        seen.append(len(scenes))
-        return real(scenes, **kw)
+    def spy(table, rows=None, **kw):
+        seen.append(table.n if rows is None else len(rows))
+        return real(table, rows, **kw)
 
-    monkeypatch.setattr(batch, "run_chunk", spy)
+    monkeypatch.setattr(batch, "run_table_chunk", spy)
     assert compare_cli.main(args(sw_path, part, resume=True, chunk=3)) == 0
     assert sum(seen) == 10 - 4  # the four finished variants were not run again
     assert (part / "comparison.csv").read_text() == want

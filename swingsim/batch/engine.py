@@ -524,7 +524,11 @@ def run_table_chunk(table, rows=None, *, steps_per_period=DEFAULT_STEPS_PER_PERI
         verdicts: dict = {}
         todo = [k for k, i in enumerate(rows) if _supported_row(table, i, verdicts)]
     if todo:
-        cache = _Cache()
+        cache = getattr(table, "engine_cache", None)
+        if not isinstance(cache, _Cache):
+            cache = _Cache()
+            if hasattr(table, "engine_cache"):
+                table.engine_cache = cache  # profiles and grids reused by the next chunk of the same table
         variants = [_prepare_row(table, rows[k], steps_per_period, cache) for k in todo]
         sums, ok = _chunk_batch(variants, samples_per_step)
         for k, s, good in zip(todo, sums, ok):

@@ -69,7 +69,7 @@ def _variant_table(sweep, results, ranking, entries, max_rows):
     show = list(_SHOW)
     if obj not in show:
         show.insert(0, obj)
-    parts = ['<div class="wide"><table class="ranking"><thead><tr><th>rank</th><th>variant</th>'
+    parts = ['<div class="wide"><table><thead><tr><th>rank</th><th>variant</th>'
              '<th class="l">name</th>' + "".join(f"<th>{_head(c)}</th>" for c in cols)
              + "".join(f"<th>{_head(c)}</th>" for c in show) + '<th class="l">not ranked because</th></tr>'
              "</thead><tbody>"]
@@ -93,7 +93,7 @@ def _robust_table(sweep, ranking, entries, max_rows):
     t = sweep.table
     over = sweep.robust_over
     others = [k for k in sweep.keys if k != over]
-    parts = ['<div class="wide"><table class="ranking"><thead><tr><th>rank</th><th>first variant</th>'
+    parts = ['<div class="wide"><table><thead><tr><th>rank</th><th>first variant</th>'
              + "".join(f"<th>{_head(c)}</th>" for c in others)
              + f"<th>worst {_head(obj)}</th><th>best</th><th>mean</th><th>worst at {_head(over)}</th>"
              '<th>variants</th><th class="l">not ranked because</th></tr></thead><tbody>']
@@ -165,7 +165,7 @@ def comparison_html(sweep, results, ranking, sensitivity=None, max_rows=100) -> 
         table = _robust_table(sweep, ranking, entries, max_rows) if sweep.robust_over else \
             _variant_table(sweep, results, ranking, entries, max_rows)
         if g == 0:
-            table[0] = table[0].replace('<table class="ranking">', '<table class="ranking" id="ranking">')
+            table[0] = table[0].replace("<table>", "<table id=\"ranking\">")
         parts.extend(table)
         if len(entries) > max_rows:
             parts.append(f'<p class="meta">The first {max_rows} of {len(entries):,} rows; every variant is in '

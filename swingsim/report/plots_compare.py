@@ -59,10 +59,11 @@ def _png(plt, fig) -> str:
     return base64.b64encode(buf.getvalue()).decode("ascii")
 
 
-def _finish(fig, title):
+def _finish(fig, title, right=0.98):
+    # a fixed layout: tight_layout measured every tick label again and cost more than the drawing
     fig.suptitle(title, fontsize=10, color=INK)
     fig.text(0.5, 0.005, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color=LIMIT)
-    fig.tight_layout(rect=(0, 0.04, 1, 0.95))
+    fig.subplots_adjust(left=0.08, right=right, bottom=0.2, top=0.88, wspace=0.3)
 
 
 def column_values(table, key) -> np.ndarray:
@@ -114,6 +115,12 @@ def is_numeric(values) -> bool:
 
 def _codes(values):
     """Distinct values (in first-appearance order) and each row's code."""
+    if values.dtype != object:
+        uniq, first, inv = np.unique(values, return_index=True, return_inverse=True)
+        order = np.argsort(first, kind="stable")
+        renum = np.empty_like(order)
+        renum[order] = np.arange(len(order))
+        return [float(u) for u in uniq[order]], renum[inv.reshape(-1)]
     lookup: dict = {}
     codes = np.array([lookup.setdefault(repr(x), len(lookup)) for x in values.tolist()], dtype=np.intp)
     labels = [None] * len(lookup)
@@ -122,6 +129,12 @@ def _codes(values):
         if labels[c] is None:
             labels[c] = x
     return labels, codes
+
+
+def _no_labels():
+    from matplotlib.ticker import NullFormatter
+
+    return NullFormatter()
 
 
 def _short(key):
@@ -249,10 +262,11 @@ def quantity_figure(table, results, key, keys) -> str:
                 ax.plot(x_pos, m, color=col, lw=1.2 if numeric else 0, marker="o", ms=4, label=name)
         if log:
             ax.set_yscale("log")
+            ax.yaxis.set_minor_formatter(_no_labels())
         ax.set_xlabel(key)
         ylabel = _LABELS[what] + (f" (log; below {LOG_FLOOR_DEG:g} drawn at it)" if log else "")
         ax.set_ylabel(ylabel, fontsize=8.5)
-        ax.grid(True, color="#e3e7ea", which="both" if log else "major")
+        ax.grid(True, color="#e3e7ea")
         if not numeric:
             ax.set_xticks(x_pos)
             ax.set_xticklabels([_show(c) for c in x_labels], rotation=20, fontsize=8)
@@ -344,7 +358,7 @@ def heatmap_figure(table, results, x_key, y_key) -> str:
         cb.set_label(("worst " if what == RESIDUAL else "longest ") + _LABELS[what], fontsize=8)
         ax.set_xlabel(x_key, fontsize=8.5)
         ax.set_ylabel(y_key, fontsize=8.5)
-    _finish(fig, f"Over {x_key} and {y_key} (worst case over the other compared values)")
+    _finish(fig, f"Over {x_key} and {y_key} (worst case over the other compared values)", right=0.95)
     return _png(plt, fig)
 
 
@@ -380,11 +394,12 @@ def sensitivity_figure(sens) -> str:
                 color=_COLOURS[i % len(_COLOURS)], label=name)
     if log:
         ax.set_yscale("log")
+        ax.yaxis.set_minor_formatter(_no_labels())
     ax.axvline(0.0, color=GREY, lw=0.8)
     ax.set_xlabel("rope length error: actual / design - 1 [%]")
     ax.set_ylabel("residual rope angle [deg]" + (f" (log; below {LOG_FLOOR_DEG:g} drawn at it)" if log else ""),
                   fontsize=8.5)
-    ax.grid(True, color="#e3e7ea", which="both" if log else "major")
+    ax.grid(True, color="#e3e7ea")
     ax.legend(fontsize=8)
     _finish(fig, f"Sensitivity to rope length (design {sens['design_length_m']:g} m, "
                  f"period {sens['design_period_s']:.2f} s)")

@@ -921,8 +921,11 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
         # the running CSV (what --resume reads) starts again with the finished rows only
         lines = [_csv_line(hdr)] + [_checked_line(row_cells(sweep, i, done[i])) for i in sorted(done)]
         atomic_write_text(csv_path, "".join(lines))
+        written = [] if not done else None  # row order of the running CSV (None: not variant order)
         with open(csv_path, "a", encoding="utf-8", newline="") as fh:
             def on_result(r, res):
+                if written is not None:
+                    written.extend(r)
                 fh.write("".join(_checked_line(row_cells(sweep, i, s)) for i, s in zip(r, res)))
                 for i, s in zip(r, res):
                     results.put(i, s)
@@ -937,7 +940,8 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
         sens = sensitivity_study(sweep.base) if do_sens else None
         # the finished files appear together, and only when all of them are complete
         with staged_outputs(out) as stage:
-            _write_table(stage.path / CSV_NAME, sweep, results)
+            if written != list(range(table.n)):  # rows came out of order (Dask, --resume): sort them
+                _write_table(stage.path / CSV_NAME, sweep, results)
             write_ranking_csv(stage.path / "ranking.csv", sweep, ranking, results)
             if sens:
                 atomic_write_text(stage.path / "sensitivity.csv", sensitivity_csv(sens))

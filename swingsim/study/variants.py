@@ -175,6 +175,8 @@ class VariantTable:
         self.group_ids, self._group_first = self._codes(self.other_keys)
         self.move_ids, self._move_first = self._codes(self.move_keys)
         self._scenes: dict = {}
+        #: What the batch engine builds once per table and reuses from chunk to chunk (its own cache).
+        self.engine_cache = None
         #: (dotted move key, profile) -> number of variants where the key was left out.
         self.ignored: dict = {}
 
@@ -340,6 +342,7 @@ class VariantTable:
 
     def __getstate__(self):
         d = dict(self.__dict__)
+        d["engine_cache"] = None
         d["_scenes"] = {}  # scenes are rebuilt where they are needed (small pickles to workers)
         return d
 
