@@ -13,6 +13,7 @@ from pathlib import Path
 from swingsim.cli.options import add_output_arguments, out_folder
 from swingsim.errors import InputError
 from swingsim.metrics import cautions
+from swingsim.report.plots_compare import format_number
 from swingsim.study.compare import cell, compare
 from swingsim.study.variants import PLAUSIBLE_VARIANTS, load_sweep
 
@@ -108,9 +109,11 @@ def main(args: argparse.Namespace) -> int:
                 shown = [k for k in sweep.keys if k != sweep.robust_over and k not in sweep.group_by]
                 vals = ", ".join(f"{k} = {cell(sweep.table.value(i, k))}" for k in shown)
                 if sweep.robust_over:
-                    print(f"  {rk.rank[e]}. {vals}: worst {key} = {rk.worst[e]:.3g} over {sweep.robust_over} "
-                          f"(best {rk.best[e]:.3g}, mean {rk.mean[e]:.3g})")
+                    f = [format_number(float(x), key) for x in (rk.worst[e], rk.best[e], rk.mean[e])]
+                    print(f"  {rk.rank[e]}. {vals}: worst {key} = {f[0]} over {sweep.robust_over} "
+                          f"(best {f[1]}, mean {f[2]})")
                 else:
-                    print(f"  {rk.rank[e]}. variant {i}{label}: {key} = {rk.worst[e]:.3g} ({vals})")
+                    print(f"  {rk.rank[e]}. variant {i}{label}: {key} = {format_number(float(rk.worst[e]), key)} "
+                          f"({vals})")
         print(cautions.CAUTION_SHORT)
     return 0

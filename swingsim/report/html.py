@@ -16,7 +16,7 @@ from __future__ import annotations
 import html
 
 from swingsim.metrics import cautions
-from swingsim.report.plots_compare import (format_number, heatmap_figure, heatmap_keys, quantity_figure,
+from swingsim.report.plots_compare import (column_values, format_number, heatmap_figure, heatmap_keys, quantity_figure,
                                            sensitivity_figure)
 from swingsim.report.style import literal_text
 
@@ -52,8 +52,8 @@ def _head(key: str) -> str:
     return e(key)
 
 
-def _fmt(x, key="") -> str:
-    return html.escape(format_number(x, key))
+def _fmt(x, key="", digits=3) -> str:
+    return html.escape(format_number(x, key, digits))
 
 
 _SHOW = ["last_move_end_s", "peak_rope_angle_deg", "residual_rope_angle_deg", "settled_at_s",
@@ -69,8 +69,9 @@ def _variant_table(sweep, results, ranking, entries, max_rows):
     show = list(_SHOW)
     if obj not in show:
         show.insert(0, obj)
+    named = any(t.names)
     parts = ['<div class="wide"><table><thead><tr><th>rank</th><th>variant</th>'
-             '<th class="l">name</th>' + "".join(f"<th>{_head(c)}</th>" for c in cols)
+             + ('<th class="l">name</th>' if named else "") + "".join(f"<th>{_head(c)}</th>" for c in cols)
              + "".join(f"<th>{_head(c)}</th>" for c in show) + '<th class="l">not ranked because</th></tr>'
              "</thead><tbody>"]
     for en in entries[:max_rows]:
@@ -78,8 +79,9 @@ def _variant_table(sweep, results, ranking, entries, max_rows):
         s = results.summary(i)
         rk = int(ranking.rank[en])
         cls = "" if rk else ' class="out"'
-        parts.append(f"<tr{cls}><td>{rk if rk else '&ndash;'}</td><td>{i}</td><td class=\"l\">{e(t.names[i])}</td>"
-                     + "".join(f"<td>{_fmt(t.value(i, c), c)}</td>" for c in cols)
+        parts.append(f"<tr{cls}><td>{rk if rk else '&ndash;'}</td><td>{i}</td>"
+                     + (f'<td class="l">{e(t.names[i])}</td>' if named else "")
+                     + "".join(f"<td>{_fmt(t.value(i, c), c, 4)}</td>" for c in cols)
                      + "".join(f"<td>{_fmt(s.get(c), c)}</td>" for c in show)
                      + f'<td class="l">{e(ranking.note[en])}</td></tr>')
     parts.append("</tbody></table></div>")
@@ -103,7 +105,7 @@ def _robust_table(sweep, ranking, entries, max_rows):
         w = int(ranking.worst_at[en])
         cls = "" if rk else ' class="out"'
         parts.append(f"<tr{cls}><td>{rk if rk else '&ndash;'}</td><td>{i}</td>"
-                     + "".join(f"<td>{_fmt(t.value(i, c), c)}</td>" for c in others)
+                     + "".join(f"<td>{_fmt(t.value(i, c), c, 4)}</td>" for c in others)
                      + f"<td>{_fmt(float(ranking.worst[en]), obj)}</td><td>{_fmt(float(ranking.best[en]), obj)}</td>"
                      + f"<td>{_fmt(float(ranking.mean[en]), obj)}</td>"
                      + f"<td>{_fmt(t.value(w, over), over) if w < t.n else '&ndash;'}</td>"
@@ -186,6 +188,8 @@ def comparison_html(sweep, results, ranking, sensitivity=None, max_rows=100) -> 
                          "the last move ends.</figcaption></figure>")
         parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
         for k in sweep.keys:
+            if len(set(map(repr, column_values(t, k).tolist()))) < 2:
+                continue  # one value only: nothing to draw against
             img = quantity_figure(t, results, k, sweep.keys)
             parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
                          f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '

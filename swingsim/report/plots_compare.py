@@ -63,7 +63,7 @@ def _finish(fig, title, right=0.98):
     # a fixed layout: tight_layout measured every tick label again and cost more than the drawing
     fig.suptitle(title, fontsize=10, color=INK)
     fig.text(0.5, 0.005, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color=LIMIT)
-    fig.subplots_adjust(left=0.08, right=right, bottom=0.2, top=0.88, wspace=0.3)
+    fig.subplots_adjust(left=0.09, right=right, bottom=0.2, top=0.88, wspace=0.32)
 
 
 def column_values(table, key) -> np.ndarray:
@@ -135,6 +135,14 @@ def _no_labels():
     from matplotlib.ticker import NullFormatter
 
     return NullFormatter()
+
+
+def _log_axis(axis):
+    """A log axis labelled in plain numbers (0.001, 0.1, 10: the report draws text literally, no TeX)."""
+    from matplotlib.ticker import FuncFormatter
+
+    axis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
+    axis.set_minor_formatter(_no_labels())
 
 
 def _short(key):
@@ -255,16 +263,25 @@ def quantity_figure(table, results, key, keys) -> str:
                 m, lo_g, hi_g = (np.maximum(a, LOG_FLOOR_DEG) for a in (m, lo[g], hi[g]))
             else:
                 lo_g, hi_g = lo[g], hi[g]
-            if aggregated:
-                ax.fill_between(x_pos, lo_g, hi_g, color=col, alpha=0.18, lw=0, step=None if numeric else "mid")
+            if not numeric:
+                # categories: the spread as a bar from best to worst, the median as a dot (no joining line)
+                shift = (g - (len(line_labels) - 1) / 2) * min(0.8 / max(len(line_labels), 1), 0.15)
+                xg = x_pos + shift
+                okg = np.isfinite(m)
+                ax.vlines(xg[okg], lo_g[okg], hi_g[okg], color=col, lw=3, alpha=0.35)
+                ax.plot(xg[okg], m[okg], color=col, lw=0, marker="o", ms=4, label=name)
+            elif aggregated:
+                ax.fill_between(x_pos, lo_g, hi_g, color=col, alpha=0.18, lw=0)
                 ax.plot(x_pos, m, color=col, lw=1.4, marker="o" if len(x_pos) <= 30 else None, ms=3, label=name)
             else:
-                ax.plot(x_pos, m, color=col, lw=1.2 if numeric else 0, marker="o", ms=4, label=name)
+                ax.plot(x_pos, m, color=col, lw=1.2, marker="o", ms=4, label=name)
         if log:
             ax.set_yscale("log")
-            ax.yaxis.set_minor_formatter(_no_labels())
+            _log_axis(ax.yaxis)
         ax.set_xlabel(key)
-        ylabel = _LABELS[what] + (f" (log; below {LOG_FLOOR_DEG:g} drawn at it)" if log else "")
+        if not numeric:
+            ax.set_xlim(-0.6, len(x_pos) - 0.4)
+        ylabel = _LABELS[what] + (f" (log)" if log else "")
         ax.set_ylabel(ylabel, fontsize=8.5)
         ax.grid(True, color="#e3e7ea")
         if not numeric:
@@ -355,6 +372,8 @@ def heatmap_figure(table, results, x_key, y_key) -> str:
             norm = LogNorm(vmin=np.nanmin(grid), vmax=np.nanmax(grid))
         mesh = ax.pcolormesh(_edges(xs), _edges(ys), grid, shading="flat", cmap="viridis", norm=norm)
         cb = fig.colorbar(mesh, ax=ax)
+        if norm is not None:
+            _log_axis(cb.ax.yaxis)
         cb.set_label(("worst " if what == RESIDUAL else "longest ") + _LABELS[what], fontsize=8)
         ax.set_xlabel(x_key, fontsize=8.5)
         ax.set_ylabel(y_key, fontsize=8.5)
@@ -394,10 +413,10 @@ def sensitivity_figure(sens) -> str:
                 color=_COLOURS[i % len(_COLOURS)], label=name)
     if log:
         ax.set_yscale("log")
-        ax.yaxis.set_minor_formatter(_no_labels())
+        _log_axis(ax.yaxis)
     ax.axvline(0.0, color=GREY, lw=0.8)
     ax.set_xlabel("rope length error: actual / design - 1 [%]")
-    ax.set_ylabel("residual rope angle [deg]" + (f" (log; below {LOG_FLOOR_DEG:g} drawn at it)" if log else ""),
+    ax.set_ylabel("residual rope angle [deg]" + (f" (log)" if log else ""),
                   fontsize=8.5)
     ax.grid(True, color="#e3e7ea")
     ax.legend(fontsize=8)
@@ -406,7 +425,7 @@ def sensitivity_figure(sens) -> str:
     return _png(plt, fig)
 
 
-def format_number(x, key: str = "") -> str:
+def format_number(x, key: str = "", digits: int = 3) -> str:
     """A summary or compared number as the report prints it: sensible decimals, never ``7.21e-06``.
 
     Angles in degrees below 0.01 print as ``< 0.01`` (below what the models
@@ -420,6 +439,8 @@ def format_number(x, key: str = "") -> str:
         The value: a number, a bool, text, or None / NaN for none.
     key : str, optional
         The key it belongs to (its unit suffix chooses the rule, e.g. ``_deg``).
+    digits : int, optional
+        Significant digits (4 for the compared values a user typed, so 13.75 stays 13.75).
 
     Returns
     -------
@@ -437,14 +458,14 @@ def format_number(x, key: str = "") -> str:
     x = float(x)
     if math.isinf(x):
         return "∞" if x > 0 else "-∞"
-    if key.endswith("_deg") and abs(x) < 0.01:
+    if key.endswith("_deg") and abs(x) < 0.01 and digits <= 3:
         return "< 0.01" if x >= 0 else "> -0.01"
     if x == 0.0:
         return "0"
     mag = math.floor(math.log10(abs(x)))
     if -3 <= mag < 6:
-        decimals = max(0, 2 - mag)
+        decimals = max(0, digits - 1 - mag)
         text = f"{x:.{decimals}f}"
         return text.rstrip("0").rstrip(".") if "." in text else text
     exp3 = 3 * (mag // 3)
-    return f"{x / 10.0**exp3:.3g}×10^{exp3}"
+    return f"{x / 10.0**exp3:.{digits}g}×10^{exp3}"
