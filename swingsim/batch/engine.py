@@ -157,8 +157,7 @@ class _Variant:
     model: object
     cuts: np.ndarray        # segment boundaries, 0 .. duration
     coef: np.ndarray        # (nseg, 5, 4) cubic coefficients per axis about each segment start
-    grid: np.ndarray        # step end times
-    seg: np.ndarray         # segment index of each step
+    hmax: float             # longest step [s]
     y0: np.ndarray
     rest: np.ndarray
     period0: float
@@ -174,7 +173,6 @@ class _Cache:
         self.models = {}
         self.profiles = {}
         self.cuts = {}
-        self.grids = {}
 
 
 def _profiles_of(table, g, m, cache, model):
@@ -220,14 +218,51 @@ def _cuts_and_coefficients(key, moves, T, cache):
     return cuts, coef
 
 
-def _step_grid(cuts, hmax, T):
-    n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
-    nseg = len(cuts) - 1
-    seg = np.repeat(np.arange(nseg), n)
-    first = np.repeat(np.cumsum(n) - n, n)
-    k = np.arange(len(seg)) - first
-    grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
-    return grid, seg
+def _step_grids(variants):
+    """Every variant's step grid, for the whole chunk at once (padded with zero-length steps at the end).
+
+    Each segment ``[c_j, c_j+1]`` of a variant gets ``n_j = max(1, ceil((c_j+1 - c_j) / hmax))``
+    equal steps; step ``k`` of segment ``j`` ends at ``c_j + (c_j+1 - c_j) * (k / n_j)``, the same
+    arithmetic for every variant, so a variant's grid does not depend on the others of its chunk.
+
+    Returns
+    -------
+    tg : ndarray (B, N + 1)
+        Step start times (the last column and the padding: the run's end) [s].
+    sg : ndarray (B, N)
+        Segment of each step (the padding: the last segment).
+    """
+    B = len(variants)
+    S = max(len(v.cuts) - 1 for v in variants)
+    cuts = np.empty((B, S + 1))
+    nseg = np.empty(B, dtype=np.intp)
+    hmax = np.empty(B)
+    for i, v in enumerate(variants):
+        k = len(v.cuts)
+        cuts[i, :k] = v.cuts
+        cuts[i, k:] = v.cuts[-1]
+        nseg[i] = k - 1
+        hmax[i] = v.hmax
+    real = np.arange(S)[None, :] < nseg[:, None]
+    n = np.where(real, np.maximum(1, np.ceil(np.diff(cuts, axis=1) / hmax[:, None] - 1e-9)), 0).astype(np.intp)
+    total = n.sum(axis=1)
+    N = int(total.max())
+    cum = np.cumsum(n, axis=1)
+    k = np.arange(N)
+    seg = np.zeros((B, N), dtype=np.intp)
+    for j in range(S - 1):  # segment of each step: how many segment ends lie at or before it
+        seg += k[None, :] >= cum[:, j:j + 1]
+    inside = k[None, :] < total[:, None]
+    seg = np.where(inside, seg, nseg[:, None] - 1)
+    rows = np.arange(B)[:, None]
+    first = (cum - n)[rows, seg]
+    nn = n[rows, seg]
+    c0, c1 = cuts[rows, seg], cuts[rows, seg + 1]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = c0 + (c1 - c0) * ((k[None, :] - first) / nn)
+    end = cuts[np.arange(B), nseg][:, None]
+    tg = np.concatenate([np.where(inside, t, end), end], axis=1)
+    return tg, seg
 
 
 def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
@@ -250,13 +285,8 @@ def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
     else:
         Lmin = L_end = float(motion.rope_length_m)
     hmax = _period(gs, Lmin) / steps_per_period
-    gkey = (key, hmax)
-    got = cache.grids.get(gkey)
-    if got is None:
-        got = cache.grids[gkey] = _step_grid(cuts, hmax, T)
-    grid, seg = got
     rest = np.asarray(model.rest_direction(L_end))
-    return _Variant(gs, motion, model, cuts, coef, grid, seg,
+    return _Variant(gs, motion, model, cuts, coef, hmax,
                     np.asarray(model.initial_state(motion), dtype=float), rest,
                     float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
                     L_end, motion.last_move_end_s)
@@ -330,18 +360,12 @@ def _rhs(y, kin, par):
 
 def _integrate(variants) -> dense.IntegratedChunk:
     B = len(variants)
-    N = max(len(v.grid) - 1 for v in variants)
-    tg = np.empty((B, N + 1))
-    sg = np.zeros((B, N), dtype=np.intp)
+    tg, sg = _step_grids(variants)
+    N = sg.shape[1]
     nseg = max(len(v.cuts) - 1 for v in variants)
     coef = np.zeros((B, nseg, len(AXES), 4))
     t0s = np.zeros((B, nseg))
     for i, v in enumerate(variants):
-        n = len(v.grid)
-        tg[i, :n] = v.grid
-        tg[i, n:] = v.grid[-1]
-        sg[i, :n - 1] = v.seg
-        sg[i, n - 1:] = v.seg[-1]
         k = len(v.cuts) - 1
         coef[i, :k] = v.coef
         t0s[i, :k] = v.cuts[:-1]
@@ -413,8 +437,13 @@ def _chunk_batch(variants, samples_per_step):
 
 def _all_finite(summary: dict) -> bool:
     """True when every number of a summary is finite (None stands for "not measured" and passes)."""
-    return all(math.isfinite(v) for v in summary.values()
-               if isinstance(v, (float, np.floating)) and not isinstance(v, bool))
+    for v in summary.values():
+        if type(v) is float:
+            if v - v != 0.0:  # inf - inf and nan - nan are nan
+                return False
+        elif isinstance(v, (float, np.floating)) and not isinstance(v, bool) and not math.isfinite(v):
+            return False
+    return True
 
 
 def _single(scene) -> dict:

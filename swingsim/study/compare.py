@@ -79,6 +79,8 @@ def cell(x) -> str:
     str
         ``repr`` of a float, ``true``/``false``, ``[a, b]`` for a list, ``""`` for None.
     """
+    if type(x) is float:  # the common case first (a summary is mostly floats)
+        return repr(x)
     if x is None:
         return ""
     if isinstance(x, bool):
