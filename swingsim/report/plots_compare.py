@@ -44,18 +44,18 @@ _LABELS = {RESIDUAL: "residual rope angle [deg]", MOVE_TIME: "move time: last mo
 
 
 def _figure(width=9.0, height=4.2):
-    import matplotlib
+    # a bare Figure on the Agg canvas: no pyplot (its import and figure manager cost more than a plot)
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
 
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot as plt
+    fig = Figure(figsize=(width, height), dpi=100)
+    FigureCanvasAgg(fig)
+    return None, fig
 
-    return plt, plt.figure(figsize=(width, height), dpi=100)
 
-
-def _png(plt, fig) -> str:
+def _png(_plt, fig) -> str:
     buf = io.BytesIO()
     fig.savefig(buf, format="png")
-    plt.close(fig)
     return base64.b64encode(buf.getvalue()).decode("ascii")
 
 
