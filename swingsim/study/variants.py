@@ -39,6 +39,7 @@ compare a trapezoid, an s-curve and the shapers with ``jerk_m_s3`` set.
 from __future__ import annotations
 
 import copy
+import dataclasses
 import difflib
 import math
 from dataclasses import dataclass, field
@@ -174,7 +175,9 @@ class VariantTable:
         self.other_keys = tuple(k for k in self.keys if not k.startswith("moves."))
         self.group_ids, self._group_first = self._codes(self.other_keys)
         self.move_ids, self._move_first = self._codes(self.move_keys)
-        self._scenes: dict = {}
+        self._scenes: dict = {}        # scenes built and validated from their documents
+        self._group_scenes: dict = {}  # group -> a validated scene with its values
+        self._move_scenes: dict = {}   # move combination -> a validated scene with its moves
         #: What the batch engine builds once per table and reuses from chunk to chunk (its own cache).
         self.engine_cache = None
         #: (dotted move key, profile) -> number of variants where the key was left out.
@@ -256,7 +259,13 @@ class VariantTable:
         return d
 
     def scene(self, i: int) -> Scene:
-        """The validated scene of variant ``i`` (built once, then cached).
+        """The scene of variant ``i``.
+
+        Composed from its group's scene (every key outside the moves) and its
+        move combination's scene (the moves), both validated, with the variant's
+        own document as ``raw``: no file is read again (a Dask worker gets the two
+        scenes with its column slice).  The load validated every combination
+        (:func:`_check_combinations`).
 
         Parameters
         ----------
@@ -271,12 +280,36 @@ class VariantTable:
         Raises
         ------
         InputError
-            When the variant is not a valid scene (naming the sweep file and the variant).
+            When a scene it is composed from is not valid (naming the sweep file and the variant).
+        """
+        sc = self._scenes.get(i)
+        if sc is not None:
+            return sc
+        gs = self.group_scene(int(self.group_ids[i]))
+        ms = self.move_scene(int(self.move_ids[i]))
+        return dataclasses.replace(gs, moves=ms.moves, raw=self.document(i))
+
+    def built(self, i: int) -> Scene:
+        """The scene of variant ``i`` built from its document and validated (cached).
+
+        Parameters
+        ----------
+        i : int
+            Row (variant index).
+
+        Returns
+        -------
+        Scene
+            The validated scene.
+
+        Raises
+        ------
+        InputError
+            When the variant is not a valid scene.
         """
         sc = self._scenes.get(i)
         if sc is None:
-            sc = self._build(i)
-            self._scenes[i] = sc
+            sc = self._scenes[i] = self._build(i)
         return sc
 
     def _build(self, i):
@@ -303,7 +336,10 @@ class VariantTable:
         Scene
             The scene of the group's first variant.
         """
-        return self.scene(int(self._group_first[g]))
+        sc = self._group_scenes.get(g)
+        if sc is None:
+            sc = self._group_scenes[g] = self.built(int(self._group_first[g]))
+        return sc
 
     def move_scene(self, m: int) -> Scene:
         """A validated scene with the move values of combination ``m``.
@@ -318,7 +354,10 @@ class VariantTable:
         Scene
             The scene of the combination's first variant (its ``moves`` are the combination's).
         """
-        return self.scene(int(self._move_first[m]))
+        sc = self._move_scenes.get(m)
+        if sc is None:
+            sc = self._move_scenes[m] = self.built(int(self._move_first[m]))
+        return sc
 
     def take(self, rows) -> "VariantTable":
         """The table of some rows only (column slices), e.g. one chunk for a Dask worker.
@@ -338,6 +377,11 @@ class VariantTable:
         t = VariantTable(self.base, {k: c[rows] for k, c in self.columns.items()},
                          {k: g[rows] for k, g in self.given.items()}, [self.names[i] for i in rows],
                          self.file, self.allow_implausible)
+        # the validated scenes its rows are composed from travel with the slice (no file is read again)
+        for g, first in enumerate(t._group_first):
+            t._group_scenes[g] = self.group_scene(int(self.group_ids[rows[first]]))
+        for m, first in enumerate(t._move_first):
+            t._move_scenes[m] = self.move_scene(int(self.move_ids[rows[first]]))
         return t
 
     def __getstate__(self):
@@ -699,7 +743,8 @@ def sweep_from_dict(data: dict, *, file: str = "<sweep>", base_dir: Path | str =
         if vals is not None:
             inner = math.prod(sizes[pos + 1:])
             codes = (np.arange(n_prod) // inner) % len(vals)
-            prod_vals = [vals[c] for c in codes] if not _numeric(vals) else np.asarray(vals, float)[codes]
+            floats = _numeric(vals) and not all(isinstance(x, int) for x in vals)
+            prod_vals = np.asarray(vals, float)[codes] if floats else [vals[c] for c in codes]
         else:
             prod_vals = [None] * n_prod
         named_vals = [v.get(k) for _, v in extra]
@@ -809,7 +854,7 @@ def _check_combinations(table: VariantTable) -> None:
             table._build(i)
         return
     for i in sorted(set(table._group_first.tolist()) | set(table._move_first.tolist())):
-        table.scene(i)
+        table.built(i)
     tuned = [m for m in range(len(table._move_first)) if needs_swing_period(table.move_scene(m))]
     if not tuned:
         return
