@@ -16,7 +16,7 @@ from __future__ import annotations
 import html
 
 from swingsim.metrics import cautions
-from swingsim.report.plots_compare import (column_values, format_number, heatmap_figure, heatmap_keys, quantity_figure,
+from swingsim.report.plots_compare import (format_number, heatmap_figure, heatmap_keys, quantity_figure,
                                            sensitivity_figure)
 from swingsim.report.style import literal_text
 
@@ -188,7 +188,7 @@ def comparison_html(sweep, results, ranking, sensitivity=None, max_rows=100) -> 
                          "the last move ends.</figcaption></figure>")
         parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
         for k in sweep.keys:
-            if len(set(map(repr, column_values(t, k).tolist()))) < 2:
+            if len(t.codes([k])[1]) < 2:
                 continue  # one value only: nothing to draw against
             img = quantity_figure(t, results, k, sweep.keys)
             parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '

@@ -66,44 +66,13 @@ def _finish(fig, title, right=0.98):
     fig.subplots_adjust(left=0.09, right=right, bottom=0.2, top=0.88, wspace=0.32)
 
 
-def column_values(table, key) -> np.ndarray:
-    """Every variant's value of a compared key (the base scene's where a variant sets none).
-
-    Parameters
-    ----------
-    table : swingsim.study.variants.VariantTable
-        The variants.
-    key : str
-        A compared dotted key.
-
-    Returns
-    -------
-    ndarray
-        Floats for a numeric key, objects otherwise.
-    """
-    col = table.columns[key]
-    given = table.given[key]
-    if given.all():
-        return col.astype(float) if _numeric_column(col) else col
-    base = table.value(int(np.flatnonzero(~given)[0]), key)
-    out = col.copy()
-    out[~given] = base
-    return out.astype(float) if _numeric_column(out) else out
-
-
-def _numeric_column(col) -> bool:
-    if col.dtype != object:
-        return True
-    return all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in col)
-
-
 def is_numeric(values) -> bool:
     """Whether a column of values is numbers only (then it is drawn on a numeric axis).
 
     Parameters
     ----------
     values : ndarray
-        A column from :func:`column_values`.
+        A column of values (``VariantTable.effective``).
 
     Returns
     -------
@@ -113,22 +82,15 @@ def is_numeric(values) -> bool:
     return values.dtype != object and bool(np.all(np.isfinite(values)))
 
 
-def _codes(values):
-    """Distinct values (in first-appearance order) and each row's code."""
-    if values.dtype != object:
-        uniq, first, inv = np.unique(values, return_index=True, return_inverse=True)
-        order = np.argsort(first, kind="stable")
-        renum = np.empty_like(order)
-        renum[order] = np.arange(len(order))
-        return [float(u) for u in uniq[order]], renum[inv.reshape(-1)]
-    lookup: dict = {}
-    codes = np.array([lookup.setdefault(repr(x), len(lookup)) for x in values.tolist()], dtype=np.intp)
-    labels = [None] * len(lookup)
-    for x in values.tolist():
-        c = lookup[repr(x)]
-        if labels[c] is None:
-            labels[c] = x
-    return labels, codes
+def _distinct(table, keys):
+    """Distinct combinations of ``keys`` (value tuples, in first-appearance order) and each row's code."""
+    codes, first = table.codes(keys)
+    cols = [table.effective(k) for k in keys]
+    return [tuple(_plain(c[f]) for c in cols) for f in first], codes
+
+
+def _plain(x):
+    return x.item() if isinstance(x, np.generic) else x
 
 
 def _no_labels():
@@ -221,9 +183,10 @@ def quantity_figure(table, results, key, keys) -> str:
         The PNG, base64-encoded.
     """
     plt, fig = _figure()
-    xs = column_values(table, key)
+    xs = table.effective(key)
     numeric = is_numeric(xs)
-    x_labels, x_codes = _codes(xs)
+    x_labels, x_codes = _distinct(table, [key])
+    x_labels = [x for (x,) in x_labels]
     if numeric:
         order = np.argsort(np.asarray(x_labels, dtype=float))
         rank_of = np.empty_like(order)
@@ -233,22 +196,22 @@ def quantity_figure(table, results, key, keys) -> str:
     else:
         x_pos = np.arange(len(x_labels), dtype=float)
     others = [k for k in keys if k != key]
-    other_cols = {k: column_values(table, k) for k in others}
+    other_cols = {k: table.effective(k) for k in others}
     # keys whose value varies (a key a variant leaves unset shows the base value, never None)
-    varying = [k for k in others if len(_codes(other_cols[k])[0]) > 1]
-    combo_labels, combo = _combination_codes(other_cols, varying)
+    varying = [k for k in others if len(table.codes([k])[1]) > 1]
+    combo_labels, combo = _distinct(table, varying) if varying else ([()], np.zeros(table.n, dtype=np.intp))
     if len(combo_labels) <= MAX_LINES:
         lines, colour_keys, aggregated = combo, varying, False
         line_labels = combo_labels
     else:
         # aggregate over the other keys, one band per value of a category key with few values
         cat = next((k for k in varying if not is_numeric(other_cols[k])
-                    and len(_codes(other_cols[k])[0]) <= MAX_LINES), None)
+                    and len(table.codes([k])[1]) <= MAX_LINES), None)
         if cat is None:
             lines, line_labels, colour_keys = np.zeros(table.n, dtype=np.intp), [()], []
         else:
-            labels, lines = _codes(other_cols[cat])
-            line_labels, colour_keys = [(x,) for x in labels], [cat]
+            line_labels, lines = _distinct(table, [cat])
+            colour_keys = [cat]
         aggregated = True
     axes = [fig.add_subplot(1, 2, 1), fig.add_subplot(1, 2, 2)]
     for ax, what in zip(axes, (RESIDUAL, MOVE_TIME)):
@@ -295,18 +258,6 @@ def quantity_figure(table, results, key, keys) -> str:
     return _png(plt, fig)
 
 
-def _combination_codes(cols, keys):
-    """Distinct combinations of ``keys`` (their value tuples) and each row's code."""
-    if not keys:
-        n = len(next(iter(cols.values()))) if cols else 0
-        return [()], np.zeros(n, dtype=np.intp)
-    per = [_codes(cols[k]) for k in keys]
-    stacked = np.stack([c for _, c in per], axis=1)
-    uniq, first, inv = np.unique(stacked, axis=0, return_index=True, return_inverse=True)
-    labels = [tuple(per[j][0][u[j]] for j in range(len(keys))) for u in uniq]
-    return labels, inv.reshape(-1)
-
-
 def heatmap_keys(table, keys):
     """The two compared numbers with the most values, when both have enough for a heat map.
 
@@ -324,7 +275,7 @@ def heatmap_keys(table, keys):
     """
     counts = []
     for k in keys:
-        col = column_values(table, k)
+        col = table.effective(k)
         if is_numeric(col):
             counts.append((len(np.unique(col)), k))
     counts.sort(key=lambda c: -c[0])
@@ -356,7 +307,7 @@ def heatmap_figure(table, results, x_key, y_key) -> str:
     from matplotlib.colors import LogNorm
 
     plt, fig = _figure(9.0, 4.0)
-    xv, yv = column_values(table, x_key), column_values(table, y_key)
+    xv, yv = table.effective(x_key), table.effective(y_key)
     xs, xi = np.unique(xv, return_inverse=True)
     ys, yi = np.unique(yv, return_inverse=True)
     for p, what in enumerate((RESIDUAL, MOVE_TIME)):

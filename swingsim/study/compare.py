@@ -288,6 +288,25 @@ class Results:
             self.text[k][i] = summary.get(k) or ""
         self.done[i] = True
 
+    def put_many(self, rows, summaries) -> None:
+        """Store the summaries of several variants (a chunk) at once.
+
+        Parameters
+        ----------
+        rows : sequence of int
+            Variant indices.
+        summaries : sequence of dict
+            Their summaries, in the same order.
+        """
+        rows = np.asarray(rows, dtype=np.intp)
+        for k in NUMBER_KEYS:
+            vals = [s.get(k) for s in summaries]
+            self.numbers[k][rows] = [np.nan if x is None or isinstance(x, (str, bool)) else float(x) for x in vals]
+        self.valid[rows] = [bool(s.get("valid", True)) for s in summaries]
+        for k in TEXT_KEYS:
+            self.text[k][rows] = [s.get(k) or "" for s in summaries]
+        self.done[rows] = True
+
     def summary(self, i: int) -> dict:
         """The summary of variant ``i`` as a dict (None for a number it has not).
 
@@ -349,24 +368,6 @@ def effective_values(sweep, variant) -> dict:
     """
     i = variant if isinstance(variant, (int, np.integer)) else variant.index
     return {k: sweep.table.value(i, k) for k in sweep.keys}
-
-
-def _codes(sweep, keys) -> np.ndarray:
-    """A code per variant numbering the distinct combinations of ``keys`` (in order of first appearance)."""
-    n = sweep.table.n
-    if not keys:
-        return np.zeros(n, dtype=np.intp)
-    parts = []
-    for k in keys:
-        lookup: dict = {}
-        parts.append([lookup.setdefault(repr(sweep.table.value(i, k)), len(lookup)) for i in range(n)])
-    _, first, inv = np.unique(np.array(parts).T, axis=0, return_index=True, return_inverse=True)
-    inv = inv.reshape(-1)
-    # renumber by first appearance, so codes follow the variant order
-    order = np.argsort(first, kind="stable")
-    renum = np.empty_like(order)
-    renum[order] = np.arange(len(order))
-    return renum[inv]
 
 
 @dataclass(frozen=True)
@@ -479,7 +480,7 @@ def rank(sweep, results) -> Ranking:
             fail[i] = f"{k} = {'n/a' if math.isnan(x[i]) else f'{x[i]:.3g}'} > {bound:g}"
     ok = fail == ""
     others = [k for k in sweep.keys if k != sweep.robust_over] if sweep.robust_over else None
-    entry = _codes(sweep, others) if sweep.robust_over else np.arange(n)
+    entry = sweep.table.codes(others)[0] if sweep.robust_over else np.arange(n)
     ne = int(entry.max()) + 1 if n else 0
     count = np.bincount(entry, minlength=ne)
     n_ok = np.bincount(entry, weights=ok, minlength=ne)
@@ -506,7 +507,7 @@ def rank(sweep, results) -> Ranking:
             notes[e] = f"{len(reasons)} of {count[e]} variants over {sweep.robust_over} do not count: {reasons[0]}"
         else:
             notes[e] = reasons[0]
-    group = _codes(sweep, list(sweep.group_by))[first] if sweep.group_by else np.zeros(ne, dtype=np.intp)
+    group = sweep.table.codes(list(sweep.group_by))[0][first] if sweep.group_by else np.zeros(ne, dtype=np.intp)
     rank_ = np.zeros(ne, dtype=np.intp)
     order = []
     for g in range(int(group.max()) + 1 if ne else 0):
@@ -584,9 +585,9 @@ def ranking_cells(sweep, ranking: Ranking, results: Results, e: int) -> list[str
         at = cell(t.value(w, sweep.robust_over)) if w < t.n else ""
         return [rk, *grp, str(i), t.names[i], *(cell(t.value(i, k)) for k in others), num(ranking.worst[e]),
                 num(ranking.best[e]), num(ranking.mean[e]), at, str(int(ranking.count[e])), ranking.note[e]]
-    s = results.summary(i)
-    return [rk, *grp, str(i), t.names[i], *(cell(t.value(i, k)) for k in sweep.keys), cell(s.get(key)),
-            *(cell(s.get(c)) for c in _SHOW if c != key), ranking.note[e]]
+    nums = [results.numbers[c][i] for c in (key, *[c for c in _SHOW if c != key])]
+    return [rk, *grp, str(i), t.names[i], *(cell(t.value(i, k)) for k in sweep.keys),
+            *("" if x != x else repr(float(x)) for x in nums), ranking.note[e]]
 
 
 def write_ranking_csv(path, sweep, ranking: Ranking, results: Results) -> None:
@@ -606,8 +607,7 @@ def write_ranking_csv(path, sweep, ranking: Ranking, results: Results) -> None:
     with atomic_path(path) as tmp, open(tmp, "w", encoding="utf-8", newline="") as fh:
         w = csv.writer(fh, lineterminator="\n")
         w.writerow(ranking_columns(sweep))
-        for e in ranking.order:
-            w.writerow(ranking_cells(sweep, ranking, results, int(e)))
+        w.writerows(ranking_cells(sweep, ranking, results, int(e)) for e in ranking.order)
 
 
 # ----------------------------------------------------------------------------
@@ -929,8 +929,7 @@ def compare(sweep, out: Path, *, resume=False, force=False, workers=None, cluste
                 if written is not None:
                     written.extend(r)
                 fh.write("".join(_checked_line(row_cells(sweep, i, s)) for i, s in zip(r, res)))
-                for i, s in zip(r, res):
-                    results.put(i, s)
+                results.put_many(r, res)
                 fh.flush()
                 os.fsync(fh.fileno())
                 if progress:

@@ -173,8 +173,8 @@ class VariantTable:
         self.allow_implausible = allow_implausible
         self.move_keys = tuple(k for k in self.keys if k.startswith("moves."))
         self.other_keys = tuple(k for k in self.keys if not k.startswith("moves."))
-        self.group_ids, self._group_first = self._codes(self.other_keys)
-        self.move_ids, self._move_first = self._codes(self.move_keys)
+        self.group_ids, self._group_first = self.codes(self.other_keys, effective=False)
+        self.move_ids, self._move_first = self.codes(self.move_keys, effective=False)
         self._scenes: dict = {}        # scenes built and validated from their documents
         self._group_scenes: dict = {}  # group -> a validated scene with its values
         self._move_scenes: dict = {}   # move combination -> a validated scene with its moves
@@ -183,22 +183,66 @@ class VariantTable:
         #: (dotted move key, profile) -> number of variants where the key was left out.
         self.ignored: dict = {}
 
-    def _codes(self, keys):
-        """Distinct combinations of ``keys``: a code per row and the first row of each code."""
+    def effective(self, key: str) -> np.ndarray:
+        """Every variant's value of a compared key (the base scene's where a variant sets none).
+
+        Parameters
+        ----------
+        key : str
+            A compared dotted key.
+
+        Returns
+        -------
+        ndarray (n,)
+            Floats for a key whose values are all numbers (not booleans), objects otherwise.
+        """
+        col, given = self.columns[key], self.given[key]
+        if not given.all():
+            col = col.astype(object)
+            col[~given] = get_dotted(self.base.raw, key)
+        if col.dtype == object and _numeric(col.tolist()):
+            col = col.astype(float)
+        return col
+
+    def codes(self, keys, effective: bool = True):
+        """Number the distinct combinations of some compared keys, in order of first appearance.
+
+        The one implementation of "which variants share these values", for the
+        engine's groups and move combinations, the rankings and the report's plots.
+
+        Parameters
+        ----------
+        keys : sequence of str
+            Compared dotted keys (none: every variant in one combination).
+        effective : bool, optional
+            Compare the values variants have (a key left unset has the base scene's);
+            False tells a set key from an unset one too (the engine's groups, whose
+            documents differ).
+
+        Returns
+        -------
+        codes : ndarray of int (n,)
+            Each variant's combination, 0 for the first to appear.
+        first : ndarray of int
+            The first variant of each combination.
+        """
         if not keys or self.n == 0:
             return np.zeros(self.n, dtype=np.intp), np.zeros(min(self.n, 1), dtype=np.intp)
         parts = []
         for k in keys:
-            col = self.columns[k]
+            col = self.effective(k) if effective else self.columns[k]
             if col.dtype == object:
                 lookup: dict = {}
-                inv = np.array([lookup.setdefault(repr(x), len(lookup)) for x in col], dtype=np.intp)
+                inv = np.array([lookup.setdefault(repr(x), len(lookup)) for x in col.tolist()], dtype=np.intp)
             else:
                 _, inv = np.unique(col, return_inverse=True)
-            parts.append(np.where(self.given[k], inv.reshape(-1) + 1, 0))
-        codes = np.stack(parts, axis=1)
-        _, first, inv = np.unique(codes, axis=0, return_index=True, return_inverse=True)
-        return inv.reshape(-1).astype(np.intp), first.astype(np.intp)
+            inv = inv.reshape(-1) + 1
+            parts.append(inv if effective else np.where(self.given[k], inv, 0))
+        _, first, inv = np.unique(np.stack(parts, axis=1), axis=0, return_index=True, return_inverse=True)
+        order = np.argsort(first, kind="stable")
+        renum = np.empty_like(order)
+        renum[order] = np.arange(len(order))
+        return renum[inv.reshape(-1)].astype(np.intp), first[order].astype(np.intp)
 
     def values(self, i: int) -> dict:
         """The values variant ``i`` sets (dotted key -> value, as the sweep file gave it).
