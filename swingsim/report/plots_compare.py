@@ -244,7 +244,7 @@ def quantity_figure(table, results, key, keys) -> str:
         ax.set_xlabel(key)
         if not numeric:
             ax.set_xlim(-0.6, len(x_pos) - 0.4)
-        ylabel = _LABELS[what] + (f" (log)" if log else "")
+        ylabel = _LABELS[what] + (" (log)" if log else "")
         ax.set_ylabel(ylabel, fontsize=8.5)
         ax.grid(True, color="#e3e7ea")
         if not numeric:
@@ -367,7 +367,7 @@ def sensitivity_figure(sens) -> str:
         _log_axis(ax.yaxis)
     ax.axvline(0.0, color=GREY, lw=0.8)
     ax.set_xlabel("rope length error: actual / design - 1 [%]")
-    ax.set_ylabel("residual rope angle [deg]" + (f" (log)" if log else ""),
+    ax.set_ylabel("residual rope angle [deg]" + (" (log)" if log else ""),
                   fontsize=8.5)
     ax.grid(True, color="#e3e7ea")
     ax.legend(fontsize=8)

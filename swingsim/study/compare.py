@@ -11,20 +11,30 @@
     finished.  Rows are appended as chunks of variants finish, so an
     interrupted run keeps what it finished and ``--resume`` runs only the
     rest (a row whose field count, numbers or checksum do not hold runs
-    again); at the end the file is rewritten in variant order.
+    again); at the end the file is rewritten in variant order when the rows
+    came out of order (Dask, ``--resume``), and kept as written otherwise.
 ``ranking.csv``
     The variants in order of the sweep's objective (smallest first), ranked
-    only when within the objective's limits.
+    only when within the objective's limits; with ``robust_over`` one row per
+    combination of the other compared values, ranked by its worst case over
+    that key (with best, mean and where the worst occurs); with ``group_by``
+    ranked within each group (:func:`rank`).
 ``sensitivity.csv``
     Residual swing of the unshaped and shaped versions of the base scene's
     first travel move against rope-length error (-30% .. +30%).
 ``report.html``
-    A self-contained page: the caution, the ranking table, plots of residual
-    swing and move time against each varied quantity, the sensitivity plot.
+    A self-contained page: the caution, the objective and the ranking rule,
+    the ranking table(s), a heat map over two varied numbers, plots of residual
+    swing and move time against each varied quantity, the sensitivity plot
+    (:mod:`swingsim.report.html`).
+
+The summaries are held by column (:class:`Results`), never as one dict per
+variant, so a 100,000-variant study runs in bounded memory.
 
 Variants run in chunks on the batch engine (``swingsim.batch.engine``), in this
 process or on Dask (``--workers N`` starts a local cluster on this machine,
-``--cluster ADDRESS`` uses a running scheduler).  A chunk is the unit of work
+``--cluster ADDRESS`` uses a running scheduler; a chunk travels as the column
+slices of its rows, :meth:`~swingsim.study.variants.VariantTable.take`).  A chunk is the unit of work
 either way, and the engine's result for a variant does not depend on the
 other variants in its chunk, so every way of running gives the same numbers.
 The command line (arguments and printing) is :mod:`swingsim.cli.compare`.
