@@ -13,7 +13,7 @@ of variants:
   varied numbers with the most values (when both have at least
   :data:`HEATMAP_MIN_VALUES`);
 * residual swing on a log axis when its values span more than two decades
-  (shaped moves leave almost none), with the floor of the axis said in the label.
+  (shaped moves leave almost none), values below :data:`LOG_FLOOR_DEG` drawn at it.
 
 Legends name only the keys that differ between the lines, never a key a
 variant leaves unset.  Every figure carries the short caution.
