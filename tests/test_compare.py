@@ -82,13 +82,13 @@ def test_resume_runs_only_the_rest(tmp_path, monkeypatch):
     lines = want.splitlines(keepends=True)
     (part / "comparison.csv").write_text("".join(lines[:5]) + lines[5][:40])
     seen = []
-    real = batch.run_chunk
+    real = batch.run_table_chunk
 
-    def spy(scenes, **kw):
-        seen.append(len(scenes))
-        return real(scenes, **kw)
+    def spy(table, rows=None, **kw):
+        seen.append(table.n if rows is None else len(rows))
+        return real(table, rows, **kw)
 
-    monkeypatch.setattr(batch, "run_chunk", spy)
+    monkeypatch.setattr(batch, "run_table_chunk", spy)
     assert compare_cli.main(args(sw_path, part, resume=True, chunk=3)) == 0
     assert sum(seen) == 10 - 4  # the four finished variants were not run again
     assert (part / "comparison.csv").read_text() == want
@@ -162,3 +162,126 @@ def test_report_in_headless_chromium(example_run, tmp_path):
     assert r.returncode == 0 and shot.exists()
     im = mpimg.imread(shot)
     assert float(np.std(im[..., :3])) > 0.05
+
+
+# ---------------------------------------------------------------------------
+# worst-case and per-group rankings, number formatting, the columnar table on Dask, streaming
+
+
+def _mini_sweep(tmp_path, objective=""):
+    (tmp_path / "m.toml").write_text(
+        f'base = "{(ROOT / "scenes" / "yard_gantry_travel.toml").as_posix()}"\nsensitivity = false\n'
+        f'[objective]\nminimize = "residual_rope_angle_deg"\n{objective}\n'
+        '[vary]\n"rope.length_m" = [6.0, 9.0, 12.0]\n"moves.0.profile" = ["trapezoid", "zv"]\n'
+        '"moves.0.accel_m_s2" = [0.2, 0.35]\n')
+    return load_sweep(tmp_path / "m.toml")
+
+
+def test_robust_ranking_against_a_hand_computation(tmp_path):
+    sw = _mini_sweep(tmp_path, 'robust_over = "rope.length_m"\nmax = { peak_rope_angle_deg = 50.0 }')
+    rng = np.random.default_rng(3)
+    sums = [{"valid": True, "residual_rope_angle_deg": float(x), "peak_rope_angle_deg": 1.0}
+            for x in rng.uniform(0.0, 2.0, sw.table.n)]
+    sums[5]["peak_rope_angle_deg"] = 60.0  # outside the limit: its whole combination is not ranked
+    rk = compare.rank(sw, sums)
+    # by hand: group the variants by (profile, acceleration), worst = max over the rope lengths
+    combos = {}
+    for i in range(sw.table.n):
+        c = (sw.table.value(i, "moves.0.profile"), sw.table.value(i, "moves.0.accel_m_s2"))
+        combos.setdefault(c, []).append(i)
+    bad = next(c for c, rows in combos.items() if 5 in rows)
+    hand = sorted(((max(sums[i]["residual_rope_angle_deg"] for i in rows), c) for c, rows in combos.items()
+                   if c != bad))
+    got = []
+    for e in rk.ranked():
+        i = int(rk.first[e])
+        got.append((float(rk.worst[e]), (sw.table.value(i, "moves.0.profile"),
+                                          sw.table.value(i, "moves.0.accel_m_s2"))))
+    assert got == hand
+    assert [int(rk.rank[e]) for e in rk.ranked()] == [1, 2, 3]
+    for e in rk.ranked():  # the spread: best and mean over the rope lengths, and where the worst is
+        rows = [i for i in range(sw.table.n) if rk.entry[i] == e]
+        vals = [sums[i]["residual_rope_angle_deg"] for i in rows]
+        assert len(rows) == 3 and rk.best[e] == min(vals) and rk.mean[e] == pytest.approx(sum(vals) / 3, rel=1e-12)
+        assert sums[int(rk.worst_at[e])]["residual_rope_angle_deg"] == max(vals)
+    unranked = [e for e in rk.order if not rk.rank[e]]
+    assert len(unranked) == 1 and "peak_rope_angle_deg" in rk.note[unranked[0]]
+    assert "worst" in rk.rule and "rope.length_m" in rk.rule
+
+
+def test_per_group_ranking_restarts_in_each_group(tmp_path):
+    sw = _mini_sweep(tmp_path, 'group_by = "moves.0.profile"')
+    sums = [{"valid": True, "residual_rope_angle_deg": float(sw.table.n - i)} for i in range(sw.table.n)]
+    rk = compare.rank(sw, sums)
+    for prof in ("trapezoid", "zv"):
+        mine = [e for e in rk.order if sw.table.value(int(rk.first[e]), "moves.0.profile") == prof]
+        assert [int(rk.rank[e]) for e in mine] == [1, 2, 3, 4, 5, 6]
+        vals = [sums[int(rk.first[e])]["residual_rope_angle_deg"] for e in mine]
+        assert vals == sorted(vals)
+
+
+@pytest.mark.parametrize("x, key, text", [
+    (7.21e-06, "residual_rope_angle_deg", "< 0.01"),   # below what a plan resolves: never 7.21e-06
+    (0.0123, "residual_rope_angle_deg", "0.0123"),      # 3 significant digits
+    (12.345, "settled_at_s", "12.3"),
+    (0.5, "moves.0.accel_m_s2", "0.5"),                 # no trailing zeros
+    (2.5e7, "peak_rope_tension_kN", "25×10^6"),         # engineering notation: exponent a multiple of 3
+    (3.2e-5, "dynamic_factor", "32×10^-6"),             # (common practice)
+    (None, "settled_at_s", "–"),
+    (True, "valid", "yes"),
+])
+def test_report_number_formatting(x, key, text):
+    from swingsim.report.plots_compare import format_number
+
+    assert format_number(x, key) == text
+
+
+def test_dask_on_the_columnar_table_identical_to_in_process(tmp_path):
+    # column slices of the table go to the workers (an in-process Dask client, as the existing test's cluster)
+    distributed = pytest.importorskip("dask.distributed")
+    sw = _mini_sweep(tmp_path)
+    ranges = [list(r) for r in batch.chunks(sw.table.n, 5)]
+    here, there = {}, {}
+    compare.run_chunks(sw.table, ranges, on_result=lambda r, res: here.update(zip(r, res)))
+    with distributed.Client(processes=False, n_workers=1, threads_per_worker=2, dashboard_address=None) as c:
+        compare.run_chunks(sw.table, ranges, cluster=c, on_result=lambda r, res: there.update(zip(r, res)))
+    assert [there[i] for i in range(sw.table.n)] == [here[i] for i in range(sw.table.n)]
+    # and the slice a worker gets holds only its rows' values
+    part = sw.table.take(ranges[1])
+    assert part.n == len(ranges[1])
+    assert [part.value(j, "rope.length_m") for j in range(part.n)] == \
+        [sw.table.value(i, "rope.length_m") for i in ranges[1]]
+
+
+def test_table_is_written_as_chunks_finish(tmp_path, monkeypatch):
+    sw_path = tmp_path / "s.toml"
+    sw_path.write_text(f'base = "{(ROOT / "scenes" / "yard_gantry_travel.toml").as_posix()}"\n'
+                       'sensitivity = false\n[vary]\n"rope.length_m" = [6.0, 8.0, 10.0, 12.0]\n'
+                       '"moves.0.accel_m_s2" = [0.2, 0.35]\n')
+    out = tmp_path / "out"
+    seen_rows = []
+    real = batch.run_table_chunk
+
+    def spy(table, rows=None, **kw):
+        seen_rows.append(len((out / "comparison.csv").read_text().splitlines()) - 1)
+        return real(table, rows, **kw)
+
+    monkeypatch.setattr(batch, "run_table_chunk", spy)
+    assert compare_cli.main(args(sw_path, out, chunk=3)) == 0
+    assert seen_rows == [0, 3, 6]  # each chunk's rows are on disk before the next chunk runs
+    assert len(read_csv(out / "comparison.csv")) == 8
+
+
+def test_report_reads_at_size(tmp_path):
+    # the bundled mixed sweep: no None in legends or cells, no exponent notation, the rule at the top
+    out = tmp_path / "mixed"
+    assert compare_cli.main(args(ROOT / "scenes" / "yard_gantry_mixed_sweep.toml", out, no_sensitivity=True)) == 0
+    text = (out / "report.html").read_text()
+    body = re.sub(r'src="data:image/png;base64,[^"]+"', "", text)
+    assert "None" not in body
+    assert not re.search(r"<td>[^<]*\de[-+]\d", body)  # e.g. 7.21e-06 never printed in a cell
+    assert body.index('id="rule"') < body.index('id="ranking"')
+    assert "worst" in body and "rope.length_m" in body.split('id="rule"')[1][:400]
+    assert 'id="ignored"' in body and "jerk_m_s3" in body and "position:sticky" in body
+    rk = read_csv(out / "ranking.csv")
+    assert "worst_settled_at_s" in rk[0] and all(r["variants"] == "5" for r in rk)

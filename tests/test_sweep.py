@@ -72,7 +72,8 @@ name = "slow"
     ('base = "base.toml"\n[vary]\n"rope.length_m" = { from = 1.0, to = 2.0, count = 0 }\n',
      'vary."rope.length_m".count', ">= 1"),
     ('base = "base.toml"\n[vary]\n"rope.length_m" = 7.0\n', 'vary."rope.length_m"', "expected a list"),
-    ('base = "base.toml"\n[vary]\n"rope.length_m" = [5.0, -2.0]\n', "vary", "variant 1"),
+    # per column: the error names the column (the sweep key), the value and the first variant with it
+    ('base = "base.toml"\n[vary]\n"rope.length_m" = [5.0, -2.0]\n', 'vary."rope.length_m"', "variant 1"),
     ('base = "base.toml"\n[vary]\n"moves.0.profile" = ["trapezoid", "s-curve"]\n', "vary",
      "needs distance_m, speed_m_s, accel_m_s2, jerk_m_s3"),
     ('base = "base.toml"\n[objective]\nminimize = "settle_time"\n[vary]\n"rope.length_m" = [5.0]\n',
@@ -124,3 +125,85 @@ def test_implausible_variant_count_needs_override(tmp_path):
     assert 400 * 300 > PLAUSIBLE_VARIANTS
     with pytest.raises(InputError, match="--allow-implausible"):
         sweep_from_dict(data, file="big.toml", base_dir=root)
+
+
+# ---------------------------------------------------------------------------
+# the columnar variant table
+
+
+@pytest.mark.parametrize("vary, key, value_text", [
+    # each distinct value is checked once against its scene key (scene/schema.py bounds and choices)
+    ('"moves.0.accel_m_s2" = [0.5, 0.3, -0.1, 0.2]', 'vary."moves.0.accel_m_s2"', "-0.1"),
+    ('"moves.0.profile" = ["trapezoid", "zz"]', 'vary."moves.0.profile"', "'zz'"),
+    # a range 4, 0, -4: the first value outside "> 0" is 0.0, in variant 1
+    ('"rope.length_m" = { from = 4.0, to = -4.0, count = 3 }', 'vary."rope.length_m"', "= 0.0: "),
+])
+def test_per_column_errors_name_the_sweep_key_and_the_value(tmp_path, vary, key, value_text):
+    p = write(tmp_path, f'base = "base.toml"\n[vary]\n"rope.length_m" = [6.0, 7.0]\n{vary}\n'
+              if not vary.startswith('"rope') else f'base = "base.toml"\n[vary]\n{vary}\n')
+    with pytest.raises(InputError) as e:
+        load_sweep(p)
+    msg = str(e.value)
+    assert e.value.key == key and value_text in msg and "first in variant" in msg
+    assert "\n" not in msg
+
+
+def test_variant_table_is_columnar_and_builds_few_scenes(tmp_path):
+    # 8 rope lengths x 6 accelerations x 5 speeds = 240 variants, one array per varied key
+    p = write(tmp_path, 'base = "base.toml"\n[vary]\n"rope.length_m" = { from = 5.0, to = 12.0, count = 8 }\n'
+              '"moves.0.accel_m_s2" = [0.2, 0.3, 0.4, 0.5, 0.6, 0.7]\n'
+              '"moves.0.speed_m_s" = [0.6, 0.8, 1.0, 1.2, 1.4]\n')
+    sw = load_sweep(p)
+    t = sw.table
+    assert t.n == 240 and set(t.columns) == set(sw.keys)
+    assert all(c.shape == (240,) for c in t.columns.values())
+    # validation built one scene per rope length (group) and per move combination, not one per variant
+    assert len(t._scenes) <= 8 + 6 * 5
+    # the product order: first key slowest (as the sweep file reads)
+    assert t.value(0, "rope.length_m") == 5.0 and t.value(239, "rope.length_m") == 12.0
+    assert t.value(1, "moves.0.speed_m_s") == 0.8 and t.value(5, "moves.0.accel_m_s2") == 0.3
+    # a variant's scene, built on demand, carries its values
+    sc = sw.variants[137].scene
+    assert sc.rope.length_m == t.value(137, "rope.length_m")
+    assert sc.moves[0].accel == t.value(137, "moves.0.accel_m_s2")
+    assert sc.moves[0].speed == t.value(137, "moves.0.speed_m_s")
+
+
+def test_mixed_profile_sweep_leaves_out_keys_a_profile_does_not_use(tmp_path):
+    p = write(tmp_path, 'base = "base.toml"\n[vary]\n'
+              '"moves.0.profile" = ["trapezoid", "s-curve", "zv", "whole-period"]\n'
+              '"moves.0.jerk_m_s3" = [0.8]\n"moves.0.decel_m_s2" = [0.4]\n')
+    sw = load_sweep(p)
+    by = {v.scene.moves[0].profile: v.scene.moves[0] for v in sw.variants}
+    assert by["trapezoid"].jerk is None and by["trapezoid"].decel == 0.4
+    assert by["s-curve"].jerk == 0.8 and by["zv"].jerk == 0.8
+    assert by["whole-period"].decel is None  # whole-period takes no deceleration (motion/registry.py)
+    assert sw.table.ignored == {("moves.0.jerk_m_s3", "trapezoid"): 1, ("moves.0.decel_m_s2", "whole-period"): 1}
+
+
+def test_unused_key_still_refused_when_the_profile_is_not_varied(tmp_path):
+    # only a sweep that sets the profile may leave keys out; otherwise the scene's own error stands
+    p = write(tmp_path, 'base = "base.toml"\n[vary]\n"moves.0.jerk_m_s3" = [0.8]\n')
+    with pytest.raises(InputError) as e:
+        load_sweep(p)
+    assert "jerk_m_s3" in str(e.value) and "trapezoid" in str(e.value)
+
+
+@pytest.mark.parametrize("objective, key, words", [
+    ('robust_over = "rope.lenght_m"', "objective.robust_over", "rope.length_m"),
+    ('group_by = ["moves.0.speed_m_s"]', "objective.group_by", "compared key"),
+    ('robust_over = "rope.length_m"\ngroup_by = "rope.length_m"', "objective.group_by", "cannot also be"),
+])
+def test_ranking_rule_keys_are_checked(tmp_path, objective, key, words):
+    p = write(tmp_path, f'base = "base.toml"\n[objective]\n{objective}\n[vary]\n'
+              '"rope.length_m" = [5.0, 6.0]\n"moves.0.accel_m_s2" = [0.3, 0.5]\n')
+    with pytest.raises(InputError) as e:
+        load_sweep(p)
+    assert e.value.key == key and words in str(e.value) and "\n" not in str(e.value)
+
+
+def test_bundled_mixed_profile_sweep_loads():
+    sw = load_sweep(ROOT / "scenes" / "yard_gantry_mixed_sweep.toml")
+    assert sw.robust_over == "rope.length_m" and sw.table.n == 5 * 6 * 2
+    assert {sw.table.value(i, "moves.0.profile") for i in range(sw.table.n)} == \
+        {"trapezoid", "s-curve", "whole-period", "zv", "zvd", "ei"}

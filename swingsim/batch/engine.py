@@ -64,10 +64,11 @@ from swingsim.dynamics.wind import BatchWind, WindField
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize
 from swingsim.motion import profiles
-from swingsim.motion.kinematics import AXES
-from swingsim.simulation import prepare, simulate
+from swingsim.motion.kinematics import AXES, Motion
+from swingsim.motion.registry import build_profile, crane_boom, needs_swing_period
+from swingsim.simulation import simulate
 
-__all__ = ["run_batch", "run_chunk", "supported", "chunks", "chunk_size_for", "SUMMARY_KEYS",
+__all__ = ["run_batch", "run_chunk", "run_table_chunk", "SceneList", "supported", "chunks", "chunk_size_for", "SUMMARY_KEYS",
            "DEFAULT_STEPS_PER_PERIOD", "DEFAULT_SAMPLES_PER_STEP"]
 
 #: Fixed steps per shortest swing period (see the module docstring).
@@ -157,8 +158,7 @@ class _Variant:
     model: object
     cuts: np.ndarray        # segment boundaries, 0 .. duration
     coef: np.ndarray        # (nseg, 5, 4) cubic coefficients per axis about each segment start
-    grid: np.ndarray        # step end times
-    seg: np.ndarray         # segment index of each step
+    hmax: float             # longest step [s]
     y0: np.ndarray
     rest: np.ndarray
     period0: float
@@ -168,12 +168,38 @@ class _Variant:
     suspension_z: float = 0.0  # height of the suspension point (the batch keeps it level) [m]
 
 
-def _prepare(scene, steps_per_period) -> _Variant:
-    model, motion = prepare(scene, PointMassModel(scene))
-    T = scene.duration_s
-    # the wind's breakpoints (gust starts and ends) too
-    pts = {0.0, T} | {b for b in model.extra_breakpoints if 0.0 < b < T}
-    for _, prof in motion.moves:
+class _Cache:
+    """What a chunk's preparation builds once and reuses: models per group, profiles per distinct move."""
+
+    def __init__(self):
+        self.models = {}
+        self.profiles = {}
+        self.cuts = {}
+
+
+def _profiles_of(table, g, m, cache, model):
+    """The move profiles of move combination ``m`` in group ``g`` (built once per distinct move)."""
+    gs, ms = table.group_scene(g), table.move_scene(m)
+    period = float(model.mode_periods_s()[0]) if needs_swing_period(ms) else None
+    key = (m, period, gs.damping_ratio, gs.duration_s)
+    got = cache.profiles.get(key)
+    if got is None:
+        got = tuple((mv.axis, build_profile(mv, gs, period)) for mv in ms.moves)
+        cache.profiles[key] = got
+    return key, got
+
+
+def _cuts_and_coefficients(key, moves, T, cache, breakpoints=()):
+    """Segment boundaries of a run and each axis's cubic coefficients on them (once per distinct move).
+
+    ``breakpoints`` are the model's own (the wind's gust starts and ends) [s].
+    """
+    key = (key, tuple(breakpoints))
+    got = cache.cuts.get(key)
+    if got is not None:
+        return got
+    pts = {0.0, T} | {b for b in breakpoints if 0.0 < b < T}
+    for _, prof in moves:
         pts |= {b for b in _segment_times(prof) if 0.0 < b < T}
     cuts = np.array(sorted(pts))
     cuts = cuts[np.concatenate([[True], np.diff(cuts) > 1e-12])]
@@ -186,7 +212,7 @@ def _prepare(scene, steps_per_period) -> _Variant:
     t2 = a0 + 0.75 * (a1 - a0)
     d = tm - a0
     both = np.concatenate([tm, t2])
-    for ax, prof in motion.moves:
+    for ax, prof in moves:
         # each profile is one cubic on each segment: read it off at two interior points
         pp, vv, aa = prof.evaluate(both)
         p, v, a = pp[:nseg], vv[:nseg], aa[:nseg]
@@ -194,24 +220,103 @@ def _prepare(scene, steps_per_period) -> _Variant:
         c = np.stack([p - v * d + a * d**2 / 2 - j * d**3 / 6, v - a * d + j * d**2 / 2,
                       (a - j * d) / 2, j / 6], axis=-1)
         coef[:, AXES.index(ax)] += c
+    cache.cuts[key] = (cuts, coef)
+    return cuts, coef
+
+
+def _step_grids(variants):
+    """Every variant's step grid, for the whole chunk at once (padded with zero-length steps at the end).
+
+    Each segment ``[c_j, c_j+1]`` of a variant gets ``n_j = max(1, ceil((c_j+1 - c_j) / hmax))``
+    equal steps; step ``k`` of segment ``j`` ends at ``c_j + (c_j+1 - c_j) * (k / n_j)``, the same
+    arithmetic for every variant, so a variant's grid does not depend on the others of its chunk.
+
+    Returns
+    -------
+    tg : ndarray (B, N + 1)
+        Step start times (the last column and the padding: the run's end) [s].
+    sg : ndarray (B, N)
+        Segment of each step (the padding: the last segment).
+    """
+    B = len(variants)
+    S = max(len(v.cuts) - 1 for v in variants)
+    cuts = np.empty((B, S + 1))
+    nseg = np.empty(B, dtype=np.intp)
+    hmax = np.empty(B)
+    for i, v in enumerate(variants):
+        k = len(v.cuts)
+        cuts[i, :k] = v.cuts
+        cuts[i, k:] = v.cuts[-1]
+        nseg[i] = k - 1
+        hmax[i] = v.hmax
+    real = np.arange(S)[None, :] < nseg[:, None]
+    n = np.where(real, np.maximum(1, np.ceil(np.diff(cuts, axis=1) / hmax[:, None] - 1e-9)), 0).astype(np.intp)
+    total = n.sum(axis=1)
+    N = int(total.max())
+    cum = np.cumsum(n, axis=1)
+    k = np.arange(N)
+    seg = np.zeros((B, N), dtype=np.intp)
+    for j in range(S - 1):  # segment of each step: how many segment ends lie at or before it
+        seg += k[None, :] >= cum[:, j:j + 1]
+    inside = k[None, :] < total[:, None]
+    seg = np.where(inside, seg, nseg[:, None] - 1)
+    rows = np.arange(B)[:, None]
+    first = (cum - n)[rows, seg]
+    nn = n[rows, seg]
+    c0, c1 = cuts[rows, seg], cuts[rows, seg + 1]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = c0 + (c1 - c0) * ((k[None, :] - first) / nn)
+    end = cuts[np.arange(B), nseg][:, None]
+    tg = np.concatenate([np.where(inside, t, end), end], axis=1)
+    return tg, seg
+
+
+def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
+    """One variant of a columnar table, from its group's scene and its move combination's profiles."""
+    g, m = int(table.group_ids[i]), int(table.move_ids[i])
+    gs = table.group_scene(g)
+    model = cache.models.get(g)
+    if model is None:
+        model = cache.models[g] = PointMassModel(gs)
+    key, moves = _profiles_of(table, g, m, cache, model)
+    motion = Motion(tuple(gs.crane.suspension_m), gs.rope.length_m, moves,
+                    slew_center_m=tuple(gs.crane.slew_center_m), boom=crane_boom(gs.crane))
+    T = gs.duration_s
+    cuts, coef = _cuts_and_coefficients(key, moves, T, cache, model.extra_breakpoints)
     # shortest rope over the run -> shortest period -> step bound
-    if any(ax == "hoist" for ax, _ in motion.moves):
+    if any(ax == "hoist" for ax, _ in moves):
         Ls = motion.evaluate(np.union1d(cuts, np.linspace(0.0, T, 201)))["L"]
         Lmin = float(np.min(Ls))
         L_end = float(motion.evaluate(np.array([T]))["L"][0])
     else:
         Lmin = L_end = float(motion.rope_length_m)
-    hmax = min(_period(scene, Lmin) / steps_per_period, model.max_step_s)
-    n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
-    seg = np.repeat(np.arange(nseg), n)
-    first = np.repeat(np.cumsum(n) - n, n)
-    k = np.arange(len(seg)) - first
-    grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
-    y0 = np.asarray(model.initial_state(motion), dtype=float)
+    hmax = min(_period(gs, Lmin) / steps_per_period, model.max_step_s)
     rest = np.asarray(model.rest_direction(L_end))
-    return _Variant(scene, motion, model, cuts, coef, grid, seg, y0, rest,
+    # the suspension point's height sets the wind's height (only a varying wind needs it)
+    z0 = float(motion.evaluate(np.array([0.0]))["p"][0][2]) if model.wind is not None else 0.0
+    return _Variant(gs, motion, model, cuts, coef, hmax,
+                    np.asarray(model.initial_state(motion), dtype=float), rest,
                     float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
-                    L_end, motion.last_move_end_s, float(motion.evaluate(np.array([0.0]))["p"][0][2]))
+                    L_end, motion.last_move_end_s, z0)
+
+
+def _prepare(scene, steps_per_period) -> _Variant:
+    """One scene prepared for the batch (the data path of :func:`run_table_chunk`)."""
+    return _prepare_row(SceneList([scene]), 0, steps_per_period, _Cache())
+
+
+def _supported_row(table, i, verdicts) -> bool:
+    """:func:`supported` for a row of a columnar table (decided once per group and move combination)."""
+    key = (int(table.group_ids[i]), int(table.move_ids[i]))
+    got = verdicts.get(key)
+    if got is None:
+        gs, ms = table.group_scene(key[0]), table.move_scene(key[1])
+        if gs.crane.has_boom and any(mv.axis == "radius" for mv in ms.moves):
+            got = False
+        else:
+            got = supported(gs)
+        verdicts[key] = got
+    return got
 
 
 # ----------------------------------------------------------------------------
@@ -279,18 +384,12 @@ def _rhs(y, kin, par, t=None):
 
 def _integrate(variants) -> dense.IntegratedChunk:
     B = len(variants)
-    N = max(len(v.grid) - 1 for v in variants)
-    tg = np.empty((B, N + 1))
-    sg = np.zeros((B, N), dtype=np.intp)
+    tg, sg = _step_grids(variants)
+    N = sg.shape[1]
     nseg = max(len(v.cuts) - 1 for v in variants)
     coef = np.zeros((B, nseg, len(AXES), 4))
     t0s = np.zeros((B, nseg))
     for i, v in enumerate(variants):
-        n = len(v.grid)
-        tg[i, :n] = v.grid
-        tg[i, n:] = v.grid[-1]
-        sg[i, :n - 1] = v.seg
-        sg[i, n - 1:] = v.seg[-1]
         k = len(v.cuts) - 1
         coef[i, :k] = v.coef
         t0s[i, :k] = v.cuts[:-1]
@@ -362,8 +461,13 @@ def _chunk_batch(variants, samples_per_step):
 
 def _all_finite(summary: dict) -> bool:
     """True when every number of a summary is finite (None stands for "not measured" and passes)."""
-    return all(math.isfinite(v) for v in summary.values()
-               if isinstance(v, (float, np.floating)) and not isinstance(v, bool))
+    for v in summary.values():
+        if type(v) is float:
+            if v - v != 0.0:  # inf - inf and nan - nan are nan
+                return False
+        elif isinstance(v, (float, np.floating)) and not isinstance(v, bool) and not math.isfinite(v):
+            return False
+    return True
 
 
 def _single(scene) -> dict:
@@ -371,6 +475,48 @@ def _single(scene) -> dict:
     d = dict(summarize(simulate(scene)).data)
     d["engine"] = "single"
     return {k: d.get(k) for k in SUMMARY_KEYS}
+
+
+class SceneList:
+    """A list of scenes seen as a columnar table (each scene its own group and move combination).
+
+    The batch engine's data path reads a *variant table*: ``n`` rows,
+    ``group_ids`` and ``move_ids`` (int arrays numbering the distinct
+    combinations of the keys outside the moves and of the move keys),
+    ``group_scene(g)`` (a validated scene with group ``g``'s values: the model,
+    crane, rope, duration and limits are read from it), ``move_scene(m)`` (a
+    validated scene whose ``moves`` are combination ``m``'s) and ``scene(i)``
+    (the full scene of row ``i``, for the single-run solver).  A sweep's
+    :class:`swingsim.study.variants.VariantTable` is one; this class makes a
+    plain list of scenes one.
+
+    Parameters
+    ----------
+    scenes : sequence of Scene
+        Validated scenes.
+    """
+
+    def __init__(self, scenes):
+        self.scenes = list(scenes)
+        self.n = len(self.scenes)
+        self.group_ids = self.move_ids = np.arange(self.n)
+
+    def group_scene(self, g):
+        """The scene of row ``g``.
+
+        Parameters
+        ----------
+        g : int
+            Row.
+
+        Returns
+        -------
+        Scene
+            The scene.
+        """
+        return self.scenes[g]
+
+    move_scene = scene = group_scene
 
 
 def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
@@ -393,21 +539,57 @@ def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
     list of dict
         Keys :data:`SUMMARY_KEYS`; ``engine`` says which solver produced it.
     """
-    out: list = [None] * len(scenes)
+    return run_table_chunk(SceneList(scenes), steps_per_period=steps_per_period,
+                           samples_per_step=samples_per_step, engine=engine)
+
+
+def run_table_chunk(table, rows=None, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
+                    samples_per_step=DEFAULT_SAMPLES_PER_STEP, engine="batch") -> list[dict]:
+    """Summaries of rows of a columnar variant table (one chunk), in order.
+
+    The table is read by column (see :class:`SceneList` for what it provides):
+    a model is built once per group, the motion profiles and their cubic
+    coefficients once per distinct move, and a full scene only for a row that
+    goes to the single-run solver.
+
+    Parameters
+    ----------
+    table : VariantTable or SceneList
+        The variants.
+    rows : sequence of int, optional
+        Rows to run (default: every row).
+    steps_per_period : int
+        Fixed steps per shortest swing period of each variant.
+    samples_per_step : int
+        Dense samples per step for the summary.
+    engine : {"batch", "single"}
+        ``"single"`` solves every row with :func:`swingsim.simulation.simulate`.
+
+    Returns
+    -------
+    list of dict
+        One summary per row (keys :data:`SUMMARY_KEYS`; ``engine`` says which solver produced it).
+    """
+    rows = list(range(table.n)) if rows is None else [int(i) for i in rows]
+    out: list = [None] * len(rows)
     todo = []
     if engine == "batch":
-        for i, sc in enumerate(scenes):
-            if supported(sc):
-                todo.append(i)
+        verdicts: dict = {}
+        todo = [k for k, i in enumerate(rows) if _supported_row(table, i, verdicts)]
     if todo:
-        variants = [_prepare(scenes[i], steps_per_period) for i in todo]
+        cache = getattr(table, "engine_cache", None)
+        if not isinstance(cache, _Cache):
+            cache = _Cache()
+            if hasattr(table, "engine_cache"):
+                table.engine_cache = cache  # profiles and grids reused by the next chunk of the same table
+        variants = [_prepare_row(table, rows[k], steps_per_period, cache) for k in todo]
         sums, ok = _chunk_batch(variants, samples_per_step)
-        for i, s, good in zip(todo, sums, ok):
+        for k, s, good in zip(todo, sums, ok):
             if good:
-                out[i] = {k: s.get(k) for k in SUMMARY_KEYS}
-    for i, sc in enumerate(scenes):
-        if out[i] is None:
-            out[i] = _single(sc)
+                out[k] = {key: s.get(key) for key in SUMMARY_KEYS}
+    for k, i in enumerate(rows):
+        if out[k] is None:
+            out[k] = _single(table.scene(i))
     return out
 
 

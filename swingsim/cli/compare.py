@@ -13,6 +13,7 @@ from pathlib import Path
 from swingsim.cli.options import add_output_arguments, out_folder
 from swingsim.errors import InputError
 from swingsim.metrics import cautions
+from swingsim.report.plots_compare import format_number
 from swingsim.study.compare import cell, compare
 from swingsim.study.variants import PLAUSIBLE_VARIANTS, load_sweep
 
@@ -77,7 +78,7 @@ def main(args: argparse.Namespace) -> int:
     if not quiet and sys.stderr.isatty():
         from tqdm import tqdm
 
-        bar = tqdm(total=len(sweep.variants), unit="variant", desc="compare", file=sys.stderr)
+        bar = tqdm(total=sweep.table.n, unit="variant", desc="compare", file=sys.stderr)
     try:
         result = compare(sweep, out, resume=args.resume, force=args.force, workers=args.workers,
                          cluster=args.cluster, engine=args.engine, chunk_size=args.chunk,
@@ -87,14 +88,32 @@ def main(args: argparse.Namespace) -> int:
         if bar:
             bar.close()
     if not quiet:
-        print(f"{len(sweep.variants)} variants ({result.ran} run now"
+        n = sweep.table.n
+        print(f"{n} variants ({result.ran} run now"
               + (f", {result.reused} from the earlier run" if result.reused else "") + f") -> {out}/")
         key = sweep.minimize
-        ranked = [r for r in result.ranking if r["rank"] is not None]
-        print(f"best by smallest {key}:" if ranked else f"no variant has a {key} within the limits")
-        for r in ranked[:5]:
-            vals = ", ".join(f"{k} = {cell(v)}" for k, v in sweep.variants[r["index"]].values.items())
-            label = f" '{r['name']}'" if r["name"] else ""
-            print(f"  {r['rank']}. variant {r['index']}{label}: {key} = {r['summary'][key]:.3g} ({vals})")
+        rk = result.ranking
+        print(f"objective: smallest {key}; rule: {rk.rule}")
+        ranked = rk.ranked()
+        if not ranked:
+            print(f"no variant has a {key} within the limits")
+        groups = sorted({int(rk.group[e]) for e in ranked})
+        for g in groups:
+            top = [e for e in ranked if rk.group[e] == g][:5]
+            if sweep.group_by:
+                i = int(rk.first[top[0]])
+                print("  " + ", ".join(f"{k} = {cell(sweep.table.value(i, k))}" for k in sweep.group_by) + ":")
+            for e in top:
+                i = int(rk.first[e])
+                label = f" '{sweep.table.names[i]}'" if sweep.table.names[i] else ""
+                shown = [k for k in sweep.keys if k != sweep.robust_over and k not in sweep.group_by]
+                vals = ", ".join(f"{k} = {cell(sweep.table.value(i, k))}" for k in shown)
+                if sweep.robust_over:
+                    f = [format_number(float(x), key) for x in (rk.worst[e], rk.best[e], rk.mean[e])]
+                    print(f"  {rk.rank[e]}. {vals}: worst {key} = {f[0]} over {sweep.robust_over} "
+                          f"(best {f[1]}, mean {f[2]})")
+                else:
+                    print(f"  {rk.rank[e]}. variant {i}{label}: {key} = {format_number(float(rk.worst[e]), key)} "
+                          f"({vals})")
         print(cautions.CAUTION_SHORT)
     return 0

@@ -1,151 +1,134 @@
 """report.html of a comparison: one self-contained page (no external files or scripts).
 
-The page holds the caution, the ranking table, plots of residual swing and move
-time against each varied quantity, the shaper sensitivity to rope-length
-error, and how to read them.  Plots are PNG images embedded as base64 data
-URIs, drawn with matplotlib (Agg backend).
+The page holds the caution, the objective and the ranking rule, the ranking
+table(s) (one per ``group_by`` combination; scrolling inside their box with a
+sticky header, numbers by :func:`swingsim.report.plots_compare.format_number`),
+the keys a profile did not use, a heat map over the two varied numbers with the
+most values, plots of residual swing and move time against each varied quantity,
+the shaper sensitivity to rope-length error, and how to read them.  Plots
+(:mod:`swingsim.report.plots_compare`) are PNG images embedded as base64 data
+URIs, drawn with matplotlib (Agg backend), aggregated so that they draw fast at
+any number of variants.
 """
 
 from __future__ import annotations
 
-import base64
 import html
-import io
-import math
 
 from swingsim.metrics import cautions
-from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE, literal_text
-
-# one colour per category, our own palette
-_COLOURS = [ROPE, LOAD, "#4f7d3a", "#7a4fa0", "#b08a1e", "#2d8f8f", INK, "#a0507a"]
+from swingsim.report.plots_compare import (format_number, heatmap_figure, heatmap_keys, quantity_figure,
+                                           sensitivity_figure)
+from swingsim.report.style import literal_text
 
 _CSS = """
 body{font-family:system-ui,-apple-system,'Segoe UI',sans-serif;margin:1.5rem auto;max-width:72rem;
 color:#1d2731;padding:0 1rem;line-height:1.4}
 h1{font-size:1.5rem;margin-bottom:.2rem}h2{font-size:1.15rem;margin-top:2rem;border-bottom:1px solid #ccd;}
+h3{font-size:1rem;margin:1.2rem 0 .3rem}
 .caution{border:2px solid #8a1c1c;background:#fbeeee;padding:.6rem .9rem;color:#5a1010;font-weight:600}
-.wide{overflow-x:auto}table{border-collapse:collapse;font-size:.8rem;margin:.5rem 0}
-th,td{border:1px solid #ccd3da;padding:.25rem .5rem;text-align:right}
-th{background:#eef2f5}td.l,th.l{text-align:left}
+.rule{border-left:4px solid #0b6e99;background:#eef5f9;padding:.5rem .8rem}
+.wide{overflow:auto;max-height:28rem;max-width:100%;border:1px solid #ccd3da}
+table{border-collapse:separate;border-spacing:0;font-size:.8rem;width:max-content;min-width:100%}
+th,td{border-right:1px solid #e1e6ea;border-bottom:1px solid #e1e6ea;padding:.25rem .5rem;text-align:right;
+white-space:nowrap;font-variant-numeric:tabular-nums}
+thead th{background:#eef2f5;position:sticky;top:0;z-index:1;border-bottom:1px solid #ccd3da}
+td.l,th.l{text-align:left}
 tr.out td{color:#8c959f}
 .meta{color:#555;font-size:.9rem}
 figure{margin:1rem 0}figcaption{font-size:.85rem;color:#444}
 img{max-width:100%;height:auto;border:1px solid #e0e4e8}
 """
 
-
-def _fig():
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot as plt
-
-    return plt, plt.figure(figsize=(9.0, 4.2), dpi=100)
+_UNITS = (("_deg_s", "deg/s"), ("_deg", "deg"), ("_m_s", "m/s"), ("_kN", "kN"), ("_s", "s"),
+          ("_m", "m"), ("_kg", "kg"), ("_m_s2", "m/s²"))
 
 
-def _png(plt, fig) -> str:
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png")
-    plt.close(fig)
-    return base64.b64encode(buf.getvalue()).decode("ascii")
+def _head(key: str) -> str:
+    """A column heading: the key, with its unit on a second line when its name carries one."""
+    e = html.escape
+    for suffix, unit in sorted(_UNITS, key=lambda u: -len(u[0])):
+        if key.endswith(suffix):
+            return f"{e(key)}<br><small>[{e(unit)}]</small>"
+    return e(key)
 
 
-def _is_num(x) -> bool:
-    return isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x)
+def _fmt(x, key="", digits=3) -> str:
+    return html.escape(format_number(x, key, digits))
 
 
-def _fmt(x, nd=3) -> str:
-    if x is None or x == "":
-        return "&ndash;"
-    if isinstance(x, bool):
-        return "yes" if x else "no"
-    if isinstance(x, float):
-        return f"{x:.{nd}g}" if abs(x) >= 1e4 or (x != 0 and abs(x) < 1e-3) else f"{x:.{nd}f}".rstrip("0").rstrip(".")
-    return html.escape(str(x))
+_SHOW = ["last_move_end_s", "peak_rope_angle_deg", "residual_rope_angle_deg", "settled_at_s",
+         "peak_rope_tension_kN", "dynamic_factor"]
 
 
-def _quantity_figure(rows, key, others=()):
-    """Residual swing and move time of every variant against one varied key (PNG, base64).
-
-    One line per combination of the ``others`` keys' values (markers only when
-    there are many).
-    """
-    plt, fig = _fig()
-    ax1 = fig.add_subplot(1, 2, 1)
-    ax2 = fig.add_subplot(1, 2, 2)
-    xs = [r["values"].get(key) for r in rows]
-    numeric = all(_is_num(x) for x in xs if x is not None)
-    cats = []
-    if not numeric:
-        for x in xs:
-            if repr(x) not in cats:
-                cats.append(repr(x))
-    groups = {}
-    for r, x in zip(rows, xs):
-        if x is None:
-            continue
-        g = ", ".join(f"{k.split('.')[-1]} = {r['values'].get(k)!r}" for k in others)
-        groups.setdefault(g, []).append((x, r))
-    lines = numeric and len(groups) <= 12
-    for gi, (g, items) in enumerate(groups.items()):
-        col = _COLOURS[gi % len(_COLOURS)]
-        items.sort(key=lambda p: (p[0] if numeric else cats.index(repr(p[0]))))
-        X = [p[0] if numeric else cats.index(repr(p[0])) for p in items]
-        res = [p[1]["summary"].get("residual_rope_angle_deg") for p in items]
-        mt = [p[1]["summary"].get("last_move_end_s") for p in items]
-        label = g or None
-        style = dict(color=col, marker="o", ms=4, lw=1.2 if lines else 0)
-        ax1.plot(X, [math.nan if v is None else v for v in res], label=label, **style)
-        ax2.plot(X, [math.nan if v is None else v for v in mt], label=label, **style)
-    for ax, what in ((ax1, "residual rope angle [deg]"), (ax2, "move time: last move ends at [s]")):
-        ax.set_xlabel(key)
-        ax.set_ylabel(what)
-        ax.grid(True, color="#e3e7ea")
-        if not numeric:
-            ax.set_xticks(range(len(cats)))
-            ax.set_xticklabels([c.strip("'") for c in cats], rotation=20, fontsize=8)
-    if others and 1 < len(groups) <= 12:
-        ax2.legend(fontsize=6.5, loc="best")
-    fig.suptitle(f"Residual swing and move time against {key}", fontsize=10, color=INK)
-    fig.text(0.5, 0.005, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color=LIMIT)
-    fig.tight_layout(rect=(0, 0.04, 1, 0.95))
-    return _png(plt, fig)
+def _variant_table(sweep, results, ranking, entries, max_rows):
+    """The ranking table of plain (one variant per entry) rankings."""
+    e = html.escape
+    obj = sweep.minimize
+    t = sweep.table
+    cols = list(sweep.keys)
+    show = list(_SHOW)
+    if obj not in show:
+        show.insert(0, obj)
+    named = any(t.names)
+    parts = ['<div class="wide"><table><thead><tr><th>rank</th><th>variant</th>'
+             + ('<th class="l">name</th>' if named else "") + "".join(f"<th>{_head(c)}</th>" for c in cols)
+             + "".join(f"<th>{_head(c)}</th>" for c in show) + '<th class="l">not ranked because</th></tr>'
+             "</thead><tbody>"]
+    for en in entries[:max_rows]:
+        i = int(ranking.first[en])
+        s = results.summary(i)
+        rk = int(ranking.rank[en])
+        cls = "" if rk else ' class="out"'
+        parts.append(f"<tr{cls}><td>{rk if rk else '&ndash;'}</td><td>{i}</td>"
+                     + (f'<td class="l">{e(t.names[i])}</td>' if named else "")
+                     + "".join(f"<td>{_fmt(t.value(i, c), c, 4)}</td>" for c in cols)
+                     + "".join(f"<td>{_fmt(s.get(c), c)}</td>" for c in show)
+                     + f'<td class="l">{e(ranking.note[en])}</td></tr>')
+    parts.append("</tbody></table></div>")
+    return parts
 
 
-def _sensitivity_figure(sens):
-    """Residual swing against rope-length error for each profile (PNG, base64)."""
-    plt, fig = _fig()
-    ax = fig.add_subplot(1, 1, 1)
-    for i, (name, pts) in enumerate(sens["curves"].items()):
-        ax.plot([100 * e for e, _ in pts], [r for _, r in pts], marker="o", ms=3,
-                color=_COLOURS[i % len(_COLOURS)], label=name)
-    ax.axvline(0.0, color=GREY, lw=0.8)
-    ax.set_xlabel("rope length error: actual / design - 1 [%]")
-    ax.set_ylabel("residual rope angle [deg]")
-    ax.grid(True, color="#e3e7ea")
-    ax.legend(fontsize=8)
-    fig.suptitle(f"Sensitivity to rope length (design {sens['design_length_m']:g} m, "
-                 f"period {sens['design_period_s']:.2f} s)", fontsize=10, color=INK)
-    fig.text(0.5, 0.005, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color=LIMIT)
-    fig.tight_layout(rect=(0, 0.04, 1, 0.95))
-    return _png(plt, fig)
+def _robust_table(sweep, ranking, entries, max_rows):
+    """The ranking table of a worst-case ranking: one row per combination, with the spread."""
+    e = html.escape
+    obj = sweep.minimize
+    t = sweep.table
+    over = sweep.robust_over
+    others = [k for k in sweep.keys if k != over]
+    parts = ['<div class="wide"><table><thead><tr><th>rank</th><th>first variant</th>'
+             + "".join(f"<th>{_head(c)}</th>" for c in others)
+             + f"<th>worst {_head(obj)}</th><th>best</th><th>mean</th><th>worst at {_head(over)}</th>"
+             '<th>variants</th><th class="l">not ranked because</th></tr></thead><tbody>']
+    for en in entries[:max_rows]:
+        i = int(ranking.first[en])
+        rk = int(ranking.rank[en])
+        w = int(ranking.worst_at[en])
+        cls = "" if rk else ' class="out"'
+        parts.append(f"<tr{cls}><td>{rk if rk else '&ndash;'}</td><td>{i}</td>"
+                     + "".join(f"<td>{_fmt(t.value(i, c), c, 4)}</td>" for c in others)
+                     + f"<td>{_fmt(float(ranking.worst[en]), obj)}</td><td>{_fmt(float(ranking.best[en]), obj)}</td>"
+                     + f"<td>{_fmt(float(ranking.mean[en]), obj)}</td>"
+                     + f"<td>{_fmt(t.value(w, over), over) if w < t.n else '&ndash;'}</td>"
+                     + f"<td>{int(ranking.count[en])}</td><td class=\"l\">{e(ranking.note[en])}</td></tr>")
+    parts.append("</tbody></table></div>")
+    return parts
 
 
-def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str:
+def comparison_html(sweep, results, ranking, sensitivity=None, max_rows=100) -> str:
     """The comparison's report page: one self-contained HTML file (plots embedded, no scripts).
 
     Parameters
     ----------
     sweep : swingsim.study.variants.Sweep
-        The sweep (title, varied keys, objective, limits, base scene).
-    rows : list of dict
-        Per variant: ``index``, ``name``, ``values`` (dotted key -> value), ``summary``.
-    ranking : list of dict
-        Rows in rank order with ``rank`` (None when outside the limits or without a value).
+        The sweep (title, varied keys, objective and ranking rule, base scene, variant table).
+    results : swingsim.study.compare.Results
+        The variants' summaries by column.
+    ranking : swingsim.study.compare.Ranking
+        The ranking (entries, ranks, spreads, notes, order).
     sensitivity : dict, optional
         ``curves`` {profile: [(error, residual_deg), ...]}, ``design_length_m``, ``design_period_s``, ``move``.
     max_rows : int
-        Rows of the ranking table shown; every variant is in the CSV files.
+        Rows of each ranking table shown; every variant is in the CSV files.
 
     Returns
     -------
@@ -154,6 +137,7 @@ def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str
     """
     e = html.escape
     obj = sweep.minimize
+    t = sweep.table
     parts = [
         "<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
         f"<title>{e(sweep.title)} - swingsim comparison</title>",
@@ -161,58 +145,65 @@ def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str
         f"<style>{_CSS}</style></head><body>",
         f"<h1>{e(sweep.title)}</h1>",
         f'<p class="meta">Sweep file: {e(sweep.file.split("/")[-1])} &middot; base scene: '
-        f"{e(sweep.base.name)}.toml &middot; {len(rows)} variants &middot; ranked by the smallest "
-        f"<code>{e(obj)}</code>"
-        + ("".join(f" &middot; only with <code>{e(k)}</code> &le; {v:g}" for k, v in sweep.limits.items()))
-        + "</p>",
+        f"{e(sweep.base.name)}.toml &middot; {t.n:,} variants &middot; compared: "
+        + ", ".join(f"<code>{e(k)}</code>" for k in sweep.keys) + "</p>",
         f'<p class="caution" id="caution">{e(cautions.CAUTION)}</p>',
-        '<h2 id="ranking-title">Ranking</h2>',
+        f'<p class="rule" id="rule"><b>Objective:</b> smallest <code>{e(obj)}</code>. <b>Rule:</b> '
+        f"{e(ranking.rule)}.</p>",
     ]
-    cols = list(sweep.keys)
-    show = ["last_move_end_s", "peak_rope_angle_deg", "residual_rope_angle_deg", "settled_at_s",
-            "peak_rope_tension_kN", "dynamic_factor"]
-    if obj not in show:
-        show.insert(0, obj)
-    parts.append('<div class="wide"><table id="ranking"><thead><tr><th>rank</th><th>variant</th><th class="l">name</th>'
-                 + "".join(f"<th>{e(c)}</th>" for c in cols)
-                 + "".join(f"<th>{e(c)}</th>" for c in show) + "<th class=\"l\">not ranked because</th></tr></thead><tbody>")
-    for r in ranking[:max_rows]:
-        s = r["summary"]
-        cls = "" if r["rank"] is not None else ' class="out"'
-        parts.append(f"<tr{cls}><td>{r['rank'] if r['rank'] is not None else '&ndash;'}</td>"
-                     f"<td>{r['index']}</td><td class=\"l\">{e(r['name'])}</td>"
-                     + "".join(f"<td>{_fmt(r['values'].get(c, r['base_values'].get(c)))}</td>" for c in cols)
-                     + "".join(f"<td>{_fmt(s.get(c))}</td>" for c in show)
-                     + f"<td class=\"l\">{e(r.get('note', ''))}</td></tr>")
-    parts.append("</tbody></table></div>")
-    if len(ranking) > max_rows:
-        parts.append(f"<p class=\"meta\">The first {max_rows} of {len(ranking)} rows; every variant is in "
-                     "comparison.csv and ranking.csv.</p>")
+    if t.ignored:
+        said = "; ".join(f"<code>{e(k)}</code> with profile {e(p)} ({n:,} variants)"
+                         for (k, p), n in sorted(t.ignored.items()))
+        parts.append(f'<p class="meta" id="ignored">Keys a profile does not use were left out of those '
+                     f"variants: {said}.</p>")
+    parts.append('<h2 id="ranking-title">Ranking</h2>')
+    n_groups = int(ranking.group.max()) + 1 if len(ranking.group) else 0
+    for g in range(n_groups):
+        entries = [int(x) for x in ranking.order if ranking.group[x] == g]
+        if sweep.group_by:
+            i = int(ranking.first[entries[0]])
+            label = ", ".join(f"{k} = {format_number(t.value(i, k), k)}" for k in sweep.group_by)
+            parts.append(f"<h3>{e(label)}</h3>")
+        table = _robust_table(sweep, ranking, entries, max_rows) if sweep.robust_over else \
+            _variant_table(sweep, results, ranking, entries, max_rows)
+        if g == 0:
+            table[0] = table[0].replace("<table>", "<table id=\"ranking\">")
+        parts.extend(table)
+        if len(entries) > max_rows:
+            parts.append(f'<p class="meta">The first {max_rows} of {len(entries):,} rows; every variant is in '
+                         "comparison.csv and ranking.csv.</p>")
     parts.append("<p class=\"meta\">Grey rows are not ranked: outside the objective's limits, without a "
                  f"value of {e(obj)} (e.g. the load does not settle within the simulated time), or the run "
                  "stopped early. Move time is when the last move ends; settled at is when the swing stays "
-                 "below the scene's settle angle.</p>")
+                 "below the scene's settle angle. Angles below 0.01 deg print as &lt; 0.01.</p>")
 
-    parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
-    for k in cols:
-        others = [c for c in cols if c != k]
-        with literal_text():  # user text (names, keys) drawn as it is
-            img = _quantity_figure(rows, k, others)
-        parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
-                     f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
-                     f"move ends; right: when the last move ends; against <code>{e(k)}</code>"
-                     + (", one colour per combination of the other compared values" if others else "")
-                     + ".</figcaption></figure>")
-    if sensitivity:
-        with literal_text():
-            img = _sensitivity_figure(sensitivity)
-        parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
-        parts.append(f'<figure class="plot"><img alt="sensitivity of the residual swing to rope length" '
-                     f'src="data:image/png;base64,{img}"><figcaption>{e(sensitivity["move"])}: every profile '
-                     f"tuned to the base scene's rope of {sensitivity['design_length_m']:g} m, simulated "
-                     "(nonlinear model) with the rope from 30% shorter to 30% longer. A real rope length "
-                     "differs from the plan by the hook block, slings and rigging; shapers that are "
-                     "flat here tolerate that best.</figcaption></figure>")
+    with literal_text():  # user text (names, keys) drawn as it is
+        pair = heatmap_keys(t, sweep.keys)
+        if pair:
+            img = heatmap_figure(t, results, *pair)
+            parts.append("<h2>Residual swing and move time over two varied quantities</h2>")
+            parts.append(f'<figure class="plot"><img alt="heat maps over {e(pair[0])} and {e(pair[1])}" '
+                         f'src="data:image/png;base64,{img}"><figcaption>Each cell: the worst case over every '
+                         "other compared value. Left: largest rope angle after the last move ends; right: when "
+                         "the last move ends.</figcaption></figure>")
+        parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
+        for k in sweep.keys:
+            if len(t.codes([k])[1]) < 2:
+                continue  # one value only: nothing to draw against
+            img = quantity_figure(t, results, k, sweep.keys)
+            parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
+                         f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
+                         f"move ends; right: when the last move ends; against <code>{e(k)}</code>.</figcaption>"
+                         "</figure>")
+        if sensitivity:
+            img = sensitivity_figure(sensitivity)
+            parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
+            parts.append(f'<figure class="plot"><img alt="sensitivity of the residual swing to rope length" '
+                         f'src="data:image/png;base64,{img}"><figcaption>{e(sensitivity["move"])}: every profile '
+                         f"tuned to the base scene's rope of {sensitivity['design_length_m']:g} m, simulated "
+                         "(nonlinear model) with the rope from 30% shorter to 30% longer. A real rope length "
+                         "differs from the plan by the hook block, slings and rigging; shapers that are "
+                         "flat here tolerate that best.</figcaption></figure>")
     parts.append(f'<p class="caution">{e(cautions.CAUTION)}</p>')
     parts.append("</body></html>")
     return "\n".join(parts)

@@ -237,7 +237,15 @@ def sweep_schema(top: dict, objective_keys, default_minimize: str) -> dict:
                      "max": {"type": "object", "description": "Upper bounds a variant must keep to be ranked: "
                              "summary number = bound (in the number's unit).",
                              "propertyNames": {"enum": list(objective_keys)},
-                             "additionalProperties": {"type": "number"}}}}
+                             "additionalProperties": {"type": "number"}},
+                     "robust_over": {"type": "string", "minLength": 1,
+                                     "description": "A compared key: rank each other combination by its worst "
+                                     "case over this key's values (and show the spread)."},
+                     "group_by": {"anyOf": [{"type": "string", "minLength": 1},
+                                            {"type": "array", "items": {"type": "string", "minLength": 1},
+                                             "uniqueItems": True}],
+                                  "description": "A compared key or a list of them: rank within each of "
+                                  "their combinations."}}}
     vary = {"type": "object", "description": docs.get("vary", ""), **_dotted_keys("vary")}
     variant = {"type": "object", "description": "A hand-picked variant: its name and the scene keys it sets.",
                **_dotted_keys("value"), "required": ["name"]}
