@@ -238,6 +238,7 @@ def test_combined_hoist_and_travel_accepted_with_progress_bar(tmp_path):
     (dict(rate_hz=0.0), "--rate-hz"),
     (dict(rate_hz=float("nan")), "--rate-hz"),
     (dict(rate_hz=5000.0), "--rate-hz"),
+    (dict(rate_hz="2_0"), "--rate-hz"),
 ])
 def test_bad_requests(tmp_path, kw, key):
     scene = tmp_path / "s.toml"

@@ -26,6 +26,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from swingsim.batch import engine as batch
 from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
 from swingsim.errors import InputError
 from swingsim.io.files import locked_out_dir, reported_write_errors
@@ -44,6 +45,15 @@ def _parse_range(text: str):
     return lo, hi
 
 
+def _parse_rate(value) -> float:
+    """``--rate-hz`` as a float (20 when not given); InputError naming it for text that is not a plain number."""
+    if value is None:
+        return 20.0
+    if isinstance(value, str) and not PLAIN_NUMBER.fullmatch(value.strip()):
+        raise InputError("--rate-hz", "value", "expected a plain number of rows per second, e.g. 20", value)
+    return float(value)
+
+
 def add_arguments(p: argparse.ArgumentParser) -> None:
     """Options of ``swingsim plan-move``: the scene, which move, the swing bound, the rope lengths, the output.
 
@@ -57,8 +67,8 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--max-residual-deg", type=float, required=True, metavar="X",
                    help="largest residual swing allowed after the move [deg]")
     p.add_argument("--rope-range", required=True, metavar="LOW:HIGH",
-                   help="rope lengths the plan must cover [m], e.g. 8:20")
-    p.add_argument("--rate-hz", type=float, default=20.0, metavar="R",
+                   help="rope lengths at the move's start the plan must cover [m], e.g. 8:20")
+    p.add_argument("--rate-hz", default=None, metavar="R",
                    help="rows per second of the drive's speed reference [Hz] (default 20, at most 1000)")
     add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files",
                          short_flags=True)
@@ -92,13 +102,16 @@ def main(args: argparse.Namespace) -> int:
     check_limit("--rope-range", "rope.length_m", high, allow=getattr(args, "allow_implausible", False))
     bound_deg = float(args.max_residual_deg)
     planning.check_request(scene, args.move, bound_deg, low, high)
-    rate = float(getattr(args, "rate_hz", 20.0))
+    rate = _parse_rate(getattr(args, "rate_hz", None))
     planning.check_rate(rate)
     out = Path(out_folder(args, Path(args.scene).stem + "-plan"))
     bar = None
     if not args.quiet:
         from tqdm import tqdm
 
+        if not batch.supported(scene):
+            print("swingsim: note: the batch engine does not integrate this scene's model (or a luffing boom) "
+                  "yet; every run of the search uses the single-run solver and takes much longer", file=sys.stderr)
         bar = tqdm(total=0, unit="run", desc="plan-move", file=sys.stderr, mininterval=0.5)
     try:
         with locked_out_dir(out, args.force) as folder, reported_write_errors(folder):

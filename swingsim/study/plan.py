@@ -78,7 +78,7 @@ _EI_TOLERANCES = (0.05, 0.1, 0.2)
 #: nonlinear residual differs from the linear one by far less, and damping only lowers it.
 LINEAR_SCREEN = 2.0
 #: Variants (candidates x rope lengths) integrated together in one block of the best-first search.
-_BLOCK_RUNS = 360
+_BLOCK_RUNS = 120
 
 
 class MoveKeys(NamedTuple):
