@@ -860,16 +860,21 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                               "speed_reference_file": name_csv, "rate_hz": rate_hz, "plot_file": name_png,
                               "snippet_file": name_toml}
         # the candidates simulated, in the same words
-        table = ["description,move_time_s,worst_residual_deg,meets_bound"]
+        inner = bound * SEARCH_MARGIN
+        table = [f"# the search bound is {inner:.3g} deg ({100 * SEARCH_MARGIN:.0f} % of {bound:g} deg, for rope "
+                 "lengths between those simulated)",
+                 "description,move_time_s,worst_residual_deg,within_search_bound"]
         lines += ["", f"Candidates simulated ({len(search.candidates)}, quickest first; {search.skipped} slower "
                   f"ones not needed; {search.screened_out} left out because the linearised swing exceeds "
-                  f"{LINEAR_SCREEN:g} x the bound), residual swing at {len(search.rope_lengths_m)} rope lengths:"]
+                  f"{LINEAR_SCREEN:g} x the bound), worst residual swing at {len(search.rope_lengths_m)} rope "
+                  f"lengths against the search bound {inner:.3g} deg ({100 * SEARCH_MARGIN:.0f} % of {bound:g} deg):",
+                  f"  {'move':>8}  {'worst':>9}  verdict  what it is"]
         for i, c in enumerate(search.candidates):
-            ok = c.worst_residual_deg <= bound * SEARCH_MARGIN
+            ok = c.worst_residual_deg <= inner
             table.append(f"\"{words(c)}\",{c.duration_s:.2f},{_fmt_res(c.worst_residual_deg)},{'yes' if ok else 'no'}")
             if i < 12:
-                lines.append(f"  {c.duration_s:6.1f} s  worst {_fmt_res(c.worst_residual_deg):>7} deg  "
-                             f"{'meets' if ok else 'fails'}  {words(c)}")
+                lines.append(f"  {c.duration_s:6.1f} s  {_fmt_res(c.worst_residual_deg):>5} deg  "
+                             f"{'within ' if ok else 'over   '}  {words(c)}")
         if len(search.candidates) > 12:
             lines.append(f"  ... all {len(search.candidates)} in candidates.csv")
         atomic_write_text(staged / "candidates.csv", "# " + cautions.CAUTION + "\n" + "\n".join(table) + "\n")

@@ -37,6 +37,12 @@ def rope_for_period(period_s: float, g: float) -> float:
     return g * (period_s / (2.0 * math.pi)) ** 2
 
 
+def _a(number_text: str) -> str:
+    """The article before a number as read aloud: "an 8.0 m", "an 11.0 s", "a 9.4 s"."""
+    whole = number_text.split(".")[0]
+    return "an" if whole.startswith("8") or whole in ("11", "18") or (len(whole) in (5, 6) and whole[:2] in ("11", "18")) else "a"
+
+
 def _ramps(c) -> str:
     """"each 8.1 s long" or "8.1 s to speed up, 7.9 s to slow down"."""
     up, down = c.ramp_up_s, c.ramp_down_s
@@ -80,12 +86,13 @@ def describe(c, accel_limit: float, unit: str, g: float) -> str:
         n = max(1, round(c.ramp_up_s / T)) if c.base == "trapezoid" else None
         whole = f"{n} x {T:.1f} s" if n else f"whole multiples of {T:.1f} s"
         return (f"{c.base} speed ramps each lasting a whole number of swing periods ({whole}, "
-                f"the swing of a {ropes} rope), {_ramps(c)}; {acc}")
+                f"the swing of {_a(ropes)} {ropes} rope), {_ramps(c)}; {acc}")
     name = SHAPER_WORDS[c.shaper]
     if c.shaper == "ei":
         name = f"EI (extra-insensitive, {100.0 * c.tolerance:.0f} % swing tolerance)"
     if len(periods) == 1:
-        tuned = f"tuned to a {periods[0]:.1f} s swing period (the swing of a {ropes} rope)"
+        period = f"{periods[0]:.1f}"
+        tuned = f"tuned to {_a(period)} {period} s swing period (the swing of {_a(ropes)} {ropes} rope)"
         shaped = f"{name}-shaped"
     else:
         tuned = (f"tuned to {periods[0]:.1f} s and {periods[1]:.1f} s swing periods "
