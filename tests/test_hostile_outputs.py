@@ -270,10 +270,11 @@ def test_stopped_plan_leaves_no_unverified_table(tmp_path, monkeypatch):
     def stopped(*args, **kwargs):
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(planning, "verify_table", stopped)
+    monkeypatch.setattr(planning, "verify", stopped)
     a = Namespace(scene=str(scene), move=0, max_residual_deg=0.5, rope_range="8:12", out=str(out),
                   force=False, quiet=True)
     with pytest.raises(KeyboardInterrupt):
         plan_cli.main(a)
     assert not out.exists() or (list(out.iterdir()) == [])
     assert not (out / "move0-plan.csv").exists()
+    assert not (out / "move0-plan.toml").exists() and not (out / "move0-speed-reference.csv").exists()

@@ -1,28 +1,32 @@
-"""``swingsim plan-move SCENE --move N --max-residual-deg X --rope-range LOW:HIGH``.
+"""``swingsim plan-move SCENE --move N --max-residual-deg X --rope-range LOW:HIGH [--rate-hz R]``.
 
 Finds the shortest move (see :mod:`swingsim.study.plan`) whose residual swing
-stays under X degrees for every rope length from LOW to HIGH metres, writes it
-as a ``table`` profile the scene can use, verifies that table by simulating it
-with the single-run solver at rope lengths between and at the search lengths,
-and compares it with the move as the scene has it.  This module parses the
-arguments and prints; :func:`swingsim.study.plan.write_plan` does the rest.
+stays under X degrees for every rope length from LOW to HIGH metres at the
+move's start (the scene's other moves, a hoist included, kept as given),
+verifies it by simulation and compares it with the unshaped move.  A progress
+bar shows on stderr (not with ``--quiet``).  This module parses the arguments
+and prints; :func:`swingsim.study.plan.write_plan` does the rest.
 
 Writes into ``--out`` (default ``<scene>-plan``):
 
-``move<N>-plan.csv``
-    The profile: header ``t_s,position_m`` (``t_s,angle_deg`` for slew), time
-    from the move's start, displacement from its start.
 ``move<N>-plan.toml``
-    A ``[[moves]]`` snippet to paste into the scene in place of move N.
-``plan.txt``, ``plan.json``
-    The comparison with the scene's own move, the verification, the caution.
+    A ``[[moves]]`` snippet (the planned move as scene keys) to paste into the scene in place of move N.
+``move<N>-speed-reference.csv``
+    The drive's speed reference: ``t_s,position_m,speed_m_s,accel_m_s2`` (degrees for slew) at R rows
+    a second, rounded to 3 decimals; comment lines start with ``#``.
+``move<N>-plan.png``
+    The planned profile against the unshaped move, and the residual swing across the rope range.
+``plan.txt``, ``plan.json``, ``candidates.csv``
+    The plan in words, the verification, the candidates simulated, the caution.
 """
 
 from __future__ import annotations
 
 import argparse
+import sys
 from pathlib import Path
 
+from swingsim.batch import engine as batch
 from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
 from swingsim.errors import InputError
 from swingsim.io.files import locked_out_dir, reported_write_errors
@@ -41,6 +45,15 @@ def _parse_range(text: str):
     return lo, hi
 
 
+def _parse_rate(value) -> float:
+    """``--rate-hz`` as a float (20 when not given); InputError naming it for text that is not a plain number."""
+    if value is None:
+        return 20.0
+    if isinstance(value, str) and not PLAIN_NUMBER.fullmatch(value.strip()):
+        raise InputError("--rate-hz", "value", "expected a plain number of rows per second, e.g. 20", value)
+    return float(value)
+
+
 def add_arguments(p: argparse.ArgumentParser) -> None:
     """Options of ``swingsim plan-move``: the scene, which move, the swing bound, the rope lengths, the output.
 
@@ -54,8 +67,11 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--max-residual-deg", type=float, required=True, metavar="X",
                    help="largest residual swing allowed after the move [deg]")
     p.add_argument("--rope-range", required=True, metavar="LOW:HIGH",
-                   help="rope lengths the plan must cover [m], e.g. 8:20")
-    add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files")
+                   help="rope lengths at the move's start the plan must cover [m], e.g. 8:20")
+    p.add_argument("--rate-hz", default=None, metavar="R",
+                   help="rows per second of the drive's speed reference [Hz] (default 20, at most 1000)")
+    add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files",
+                         short_flags=True)
     add_allow_implausible(p, "a very long rope or heavy load")
 
 
@@ -66,8 +82,8 @@ def main(args: argparse.Namespace) -> int:
     ----------
     args : argparse.Namespace
         The parsed request of :func:`add_arguments`: ``scene`` (file), ``move`` (index),
-        ``max_residual_deg`` [deg], ``rope_range`` (``LOW:HIGH`` [m]), and ``out``,
-        ``force``, ``quiet``, ``allow_implausible``.
+        ``max_residual_deg`` [deg], ``rope_range`` (``LOW:HIGH`` [m]), ``rate_hz`` [Hz], and
+        ``out``, ``force``, ``quiet``, ``allow_implausible``.
 
     Returns
     -------
@@ -86,10 +102,27 @@ def main(args: argparse.Namespace) -> int:
     check_limit("--rope-range", "rope.length_m", high, allow=getattr(args, "allow_implausible", False))
     bound_deg = float(args.max_residual_deg)
     planning.check_request(scene, args.move, bound_deg, low, high)
+    rate = _parse_rate(getattr(args, "rate_hz", None))
+    planning.check_rate(rate)
     out = Path(out_folder(args, Path(args.scene).stem + "-plan"))
-    with locked_out_dir(out, args.force) as folder, reported_write_errors(folder):
-        report = planning.write_plan(scene, args.move, bound_deg, low, high, folder)
+    bar = None
+    if not args.quiet:
+        from tqdm import tqdm
+
+        if not batch.supported(scene):
+            print("swingsim: note: the batch engine does not integrate this scene's model (or a luffing boom) "
+                  "yet; every run of the search uses the single-run solver and takes much longer", file=sys.stderr)
+        bar = tqdm(total=0, unit="run", desc="plan-move", file=sys.stderr, mininterval=0.5)
+    try:
+        with locked_out_dir(out, args.force) as folder, reported_write_errors(folder):
+            report = planning.write_plan(scene, args.move, bound_deg, low, high, folder, rate_hz=rate,
+                                         progress=bar)
+    finally:
+        if bar is not None:
+            bar.close()
     if not args.quiet:
         print("\n".join(report.lines[2:]))
-        print(f"-> {out}/")
+        print(f"Files in {out}/:")
+        for name, what in zip(report.files, report.file_notes):
+            print(f"  {name:<32} {what}")
     return 0 if report.planned else 1

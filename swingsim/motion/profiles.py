@@ -155,9 +155,10 @@ class PiecewiseCubic(Profile):
     def local_poly(self, t0, t1):
         if t1 <= self.knots[0]:
             return (0.0, 0.0, 0.0, 0.0)
-        if t0 >= self.knots[-1]:
+        # t0 may sit a rounding error below a knot (a shaped copy's knots are shifted and shifted back)
+        if t0 + 1e-12 >= self.knots[-1]:
             return (float(self._final()[0]), 0.0, 0.0, 0.0)
-        k = int(np.searchsorted(self.knots, t0, side="right") - 1)
+        k = int(np.searchsorted(self.knots, t0 + 1e-12, side="right") - 1)
         if k < 0 or t1 > self.knots[k + 1] + 1e-12:
             return None
         d = t0 - self.knots[k]
