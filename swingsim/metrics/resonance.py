@@ -110,22 +110,50 @@ def response_directions(scene, motion) -> dict:
     return out
 
 
-def _label(lin, mode, modes) -> str:
-    """What a mode is, in words: the chain's top and bottom moving together or against."""
-    names = list(lin.points)
+#: What a reversal of lean between two neighbouring parts of the hanging chain is called.
+_REVERSALS = {("hoist rope", "sling leg"): "sling and load swing against the hook block",
+              ("sling leg", "load tilt"): "load rocks on its sling",
+              ("hoist rope", "load tilt"): "load rocks against the {upper}"}
+#: Share of a mode's largest lean below which a part counts as not leaning [-].
+_LEAN_FLOOR = 0.01
+
+
+def _lean(lin, body, shape) -> np.ndarray:
+    """Horizontal lean (2,) of a part's downward direction in a mode [rad per unit modal coordinate].
+
+    The rope and the leg lean by their direction charts ``(u, v)``; a rigid load's tilt
+    ``(a, b)``, :math:`R = R_x(a) R_y(b)`, turns its downward axis to :math:`(-b, a)`.
+    """
+    i, j = lin.angles[body]
+    if body == "load tilt":
+        return np.array([-shape[j], shape[i]])
+    return np.array([shape[i], shape[j]])
+
+
+def _label(lin, mode) -> str:
+    """What a mode is, in words: where down the hanging chain the lean reverses.
+
+    The parts of ``lin.angles`` (hoist rope, sling leg, load tilt), top first, lean in
+    the mode's plane; a mode with no reversal swings all together (the first mode of a
+    hanging chain), each reversal is named by the two parts it lies between.
+    """
     load = lin.points["load"][:2] @ mode.shape
     plane = "either direction" if mode.degenerate else ("along x" if abs(load[0]) >= abs(load[1]) else "along y")
-    if len(names) == 1:
+    parts = list(lin.angles)
+    if len(parts) == 1:
         return f"pendulum swing ({plane})"
-    top = lin.points[names[0]][:2] @ mode.shape
-    upper = "hook block" if names[0] == "hook block" else "rope"
-    if float(top @ load) >= 0.0:
-        what = f"{upper} and load swing together"
-    elif "load tilt" in lin.angles and upper == "rope":
-        what = "load rocks against the rope"
-    else:
-        what = f"load swings against the {upper}"
-    return f"{what} ({plane})"
+    leans = [_lean(lin, p, mode.shape) for p in parts]
+    ref = max(leans, key=lambda x: float(np.linalg.norm(x)))
+    ref = ref / (np.linalg.norm(ref) or 1.0)
+    along = [float(ref @ x) for x in leans]
+    floor = _LEAN_FLOOR * max(abs(x) for x in along)
+    kept = [(p, x) for p, x in zip(parts, along) if abs(x) > floor]
+    upper = "hook block" if "hook block" in lin.points else "rope"
+    reversals = [_REVERSALS[(kept[i][0], kept[i + 1][0])].format(upper=upper) for i in range(len(kept) - 1)
+                 if kept[i][1] * kept[i + 1][1] < 0.0]
+    if not reversals:
+        return f"{upper} and load swing together ({plane})"
+    return f"{'; '.join(reversals)} ({plane})"
 
 
 @dataclass(frozen=True)
@@ -225,10 +253,10 @@ def lift_response(model, scene, motion) -> LiftResponse:
     directions = response_directions(scene, motion)
     raw = response.response_columns(lin, periods, directions)
     cols = {"period_s": periods}
-    for (body, direction), values in sorted(raw.items(), key=lambda kv: (list(_BODY_COLUMNS).index(kv[0][0]),
+    for (body, direction), values in sorted(((k, v) for k, v in raw.items() if k[0] in _BODY_COLUMNS), key=lambda kv: (list(_BODY_COLUMNS).index(kv[0][0]),
                                                                           list(directions).index(kv[0][1]))):
         cols[column_name(body, direction)] = values
-    return LiftResponse(periods, cols, modes, [_label(lin, m, modes) for m in modes], directions, lin)
+    return LiftResponse(periods, cols, modes, [_label(lin, m) for m in modes], directions, lin)
 
 
 def resonance_band_s(mode) -> tuple:
@@ -326,7 +354,7 @@ def move_rhythms(scene, motion) -> list:
             continue
         out.append({"axis": axis, "direction": _AXIS_DIRECTION[axis], "moves": [m.name for m, _ in group],
                     "source": "recorded input" if recorded else "repeated moves",
-                    "from_s": t0, "to_s": t1, "rhythm_s": float(rhythm), "cycles": (t1 - t0) / rhythm})
+                    "from_s": t0, "to_s": t1, "rhythm_s": float(rhythm), "cycles": float((t1 - t0) / rhythm)})
     return out
 
 
