@@ -120,27 +120,29 @@ def test_double_pendulum_resonances_at_the_closed_form_periods():
 @pytest.mark.parametrize("with_hook", [False, True], ids=["point-mass", "hook-block"])
 def test_simulated_steady_state_agrees_with_the_curve(tmp_path, with_hook):
     # A long small sinusoidal trolley motion x = X (1 - cos w t), simulated with the full
-    # nonlinear equations (DOP853) until the start transient has decayed (e^-(zeta wn t) < 1e-3):
-    # the swing amplitude is the linear steady state (textbook: superposition of the
-    # steady state and a decaying free swing), to a few per cent.
-    L, zeta = 8.0, 0.1
-    extra = {"hook": {"mass_kg": 150.0}, "rigging": {"leg_length_m": 1.5}} if with_hook else {}
+    # nonlinear equations (DOP853) until the start transient has decayed: the swing is the
+    # linear steady state (textbook: the steady state plus a free swing decaying as
+    # exp(-zeta wn t)), to a few per cent.
+    L, zeta = 4.0, 0.15
+    extra = {"hook": {"mass_kg": 150.0}, "rigging": {"leg_length_m": 1.0}} if with_hook else {}
     base = {"rope": {"length_m": L}, "damping": {"ratio": zeta}, "load": {"mass_kg": 1000.0}}
     sc0 = make_scene({**base, **extra})
     Tn = prepare(sc0)[0].mode_periods_s()[0]
     Tf = 0.9 * Tn
     w = 2 * math.pi / Tf
-    A = 0.02  # acceleration amplitude [m/s^2]: about a degree of swing near resonance
+    A = 0.03  # acceleration amplitude [m/s^2]: under a degree of swing
     X = A / w**2
-    t = np.arange(0.0, 140.0 + 1e-9, 0.2)  # a cubic spline through it: error ~ (w h)^4 / 384 < 1e-5
+    t_end, t_from = 9.2 * Tf, 7 * Tf
+    # the free swing has decayed below 0.5 % of the start transient when the measurement starts
+    assert math.exp(-zeta * 2 * math.pi / Tn * t_from) < 5e-3
+    t = np.arange(0.0, t_end, 0.1)  # a cubic spline through it: error ~ (w h)^4 / 384 < 1e-6
     table = tmp_path / "sine.csv"
     table.write_text("t_s,position_m\n" + "".join(f"{a:.6f},{X * (1 - math.cos(w * a)):.12f}\n" for a in t))
-    sc = make_scene({**base, **extra}, duration_s=140.0,
+    sc = make_scene({**base, **extra}, duration_s=t_end,
                     moves=[{"axis": "x", "profile": "table", "start_s": 0.0, "table_file": str(table)}])
-    assert math.exp(-zeta * 2 * math.pi / Tn * 110.0) < 1e-3
     traj = simulate(sc)
     assert traj.valid
-    tt = np.linspace(110.0, 140.0, 6001)
+    tt = np.linspace(t_from, t[-1] - 0.2, 4001)  # clear of the clamped end of the table
     n = traj.sample(tt)["rope_dir"]
     swing_deg = np.degrees(np.arctan2(n[:, 0], -n[:, 2]))
     measured = 0.5 * (swing_deg.max() - swing_deg.min())
@@ -199,7 +201,7 @@ def test_recorded_input_rhythm_from_its_spectrum(tmp_path):
     table.write_text("t_s,position_m\n" + "".join(f"{a:.4f},{0.2 * (1 - math.cos(2 * math.pi * a / P)):.9f}\n"
                                                  for a in t))
     sc = make_scene(moves=[{"axis": "x", "profile": "table", "start_s": 1.0, "table_file": str(table)}],
-                    duration_s=40.0)
+                    duration_s=4 * P + 1.5)
     (r,) = resonance.move_rhythms(sc, prepare(sc)[1])
     assert r["source"] == "recorded input"
     assert r["rhythm_s"] == pytest.approx(P, rel=0.01)
