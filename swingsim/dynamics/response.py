@@ -46,8 +46,8 @@ import numpy as np
 
 #: Points of the log-spaced period grid over its whole span.
 GRID_POINTS = 400
-#: Points of the dense grid around each mode.
-MODE_GRID_POINTS = 241
+#: Points of the dense grid around each mode (even: the period itself is added apart).
+MODE_GRID_POINTS = 240
 #: The grid spans from this fraction of the shortest mode period ...
 GRID_SHORTEST = 0.2
 #: ... to this multiple of the longest [-].
@@ -157,7 +157,9 @@ def period_grid(periods_s, half_power_fractions=()) -> np.ndarray:
         The modes' natural periods [s].
     half_power_fractions : sequence of float or None
         Each mode's half-power fraction [-]: the dense grid spans at least eight half
-        bands so the peak and its half-power points are resolved.
+        bands so the peak and its half-power points are resolved.  A mode's own period
+        is on the grid unless its fraction is 0 (no damping: the response is infinite
+        there).
 
     Returns
     -------
@@ -172,7 +174,8 @@ def period_grid(periods_s, half_power_fractions=()) -> np.ndarray:
         # denser at the centre: a tanh-stretched grid in log period
         s = np.tanh(np.linspace(-2.5, 2.5, MODE_GRID_POINTS)) / math.tanh(2.5)
         grid.append(T * np.exp(s * math.log1p(half)))
-        grid.append(np.array([T]))
+        if f != 0.0:
+            grid.append(np.array([T]))
     return np.unique(np.concatenate(grid))
 
 

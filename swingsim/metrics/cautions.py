@@ -193,7 +193,7 @@ def hook_load_warnings(s: dict, scene) -> list[str]:
 
 
 #: What the crane axes' moves are called in the resonance caution.
-_AXIS_WORDS = {"x": "travel along x", "y": "travel along y", "slew": "slewing",
+_AXIS_WORDS = {"x": "x travel", "y": "y travel", "slew": "slewing",
                "radius": "radius (trolley or luffing)"}
 
 
@@ -224,9 +224,9 @@ def resonance_warnings(s: dict) -> list[str]:
                              for k in r["resonant_modes"])
         axis = _AXIS_WORDS.get(r["axis"], r["axis"])
         if r["source"] == "recorded input":
-            what = f"The recorded operator input ({axis}, {r['from_s']:.1f} to {r['to_s']:.1f} s) has"
+            what = f"the recorded operator input ({axis}, {r['from_s']:.1f} to {r['to_s']:.1f} s) has"
         else:
-            what = (f"The {len(r['moves'])} moves of {axis} ({r['from_s']:.1f} to {r['to_s']:.1f} s) "
+            what = (f"the {len(r['moves'])} {axis} moves ({r['from_s']:.1f} to {r['to_s']:.1f} s) "
                     "repeat with")
         amp = r.get("amplification_at_rhythm")
         steady = (f"; kept up, the swing would grow to about {amp:.0f} times the angle the same "

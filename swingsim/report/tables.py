@@ -193,7 +193,7 @@ def _resonance_lines(d: dict) -> list:
     for r in d.get("move_rhythms") or []:
         hit = ("IN RESONANCE with mode " + ", ".join(str(k) for k in r["resonant_modes"])
                if r["resonant_modes"] else "clear of every mode's band")
-        w.append(f"  Rhythm of the {r['axis']} {r['source']} ({r['from_s']:.1f} to {r['to_s']:.1f} s) "
+        w.append(f"  Rhythm of the {r['axis']} moves ({r['source']}, {r['from_s']:.1f} to {r['to_s']:.1f} s) "
                  f"{r['rhythm_s']:.2f} s: {hit}")
     return w
 
