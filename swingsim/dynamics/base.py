@@ -184,10 +184,12 @@ class SwingModel(Protocol):
     def linear_swing(self, rope_length_m: float | None = None) -> LinearSwing:
         """The swing's linearised equations about hanging rest (support fixed).
 
+        The frequency response (:mod:`swingsim.dynamics.response`) reads only this.
+
         Parameters
         ----------
         rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
+            The rope length to linearise at [m]; when omitted, the scene's initial length.
 
         Returns
         -------

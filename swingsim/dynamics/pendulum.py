@@ -334,25 +334,12 @@ class PointMassModel(ModelDefaults, SwingModel):
         return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
 
     def linear_swing(self, rope_length_m: float | None = None) -> LinearSwing:
-        """The point mass's swing linearised about hanging rest (support fixed).
-
-        :math:`M = m L^2 I`; stiffness, damping and the support acceleration's influence
-        are :math:`M` times the derivatives of :func:`accelerations` (central
-        differences at the plumb rope; gravity alone for the stiffness, the scene's
-        damping and the drag about the steady wind for the damping).  In the plane of
-        travel this is :math:`L\\ddot u + 2\\zeta\\omega L\\dot u + g u = -a_p`
-        (e.g. Thomson & Dahleh, *Theory of Vibration with Applications*, ch. 3).
-
-        Parameters
-        ----------
-        rope_length_m : float, optional
-            Rope length [m]; the scene's initial length by default.
-
-        Returns
-        -------
-        LinearSwing
-            Coordinates ``(u, v)``; the hoist rope's angles are both of them.
-        """
+        # M = m L^2 I; stiffness, damping and the support acceleration's influence are M times
+        # the derivatives of accelerations() (central differences at the plumb rope; gravity
+        # alone for the stiffness, the scene's damping and the drag about the steady wind for
+        # the damping).  In the plane of travel: L u'' + 2 zeta w L u' + g u = -a_p (e.g.
+        # Thomson & Dahleh, Theory of Vibration with Applications, ch. 3).  Coordinates (u, v),
+        # both the hoist rope's angles.
         L = self.scene.rope.length_m if rope_length_m is None else rope_length_m
         m = self.par["m"]
         still = dict(self.par, zeta=0.0, kd=0.0, kr=0.0, wx=0.0, wy=0.0)

@@ -127,6 +127,8 @@ def response_figure(traj, summary, cols=None):
     ax.set_xlim(T[0], T[-1])
     _plain_log_ticks(ax)
     label_axes(ax, "forcing period [s]", "swing amplitude [deg per m/s2]", "lower right")
+    band = 100 * d.get("resonance_band_fraction", 0.15)
+    lines.append(f"shaded: half-power band (dark), resonance band (light: at least +-{band:.0f}%, our rule)")
     ax.text(0.01, 0.98, "Swing modes\n" + "\n".join(lines), transform=ax.transAxes, fontsize=7.5, va="top",
             ha="left", color=INK, bbox={"facecolor": "white", "edgecolor": GREY, "alpha": 0.9, "pad": 3})
     if others:
@@ -141,6 +143,5 @@ def response_figure(traj, summary, cols=None):
         for m in d.get("response_modes", []):
             ax2.axvline(m["period_s"], color=INK, lw=0.8, ls="--")
         label_axes(ax2, "forcing period [s]", "[deg per m/s2]", "upper left")
-    title_and_caution(fig, f"{traj.scene.title}: frequency response (shaded: half-power band, "
-                      "resonance band)", summary)
+    title_and_caution(fig, f"{traj.scene.title}: frequency response", summary)
     return fig
