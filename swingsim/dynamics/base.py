@@ -14,6 +14,7 @@ signatures); ``tests/test_swing_model.py`` runs it on every registered model.
 
 from __future__ import annotations
 
+from dataclasses import dataclass, field
 from typing import Protocol, runtime_checkable
 
 import numpy as np
@@ -21,6 +22,50 @@ import numpy as np
 #: Output keys every model's :meth:`SwingModel.outputs` returns.
 REQUIRED_OUTPUTS = ("suspension", "suspension_vel", "rope_length", "load", "load_vel", "hook",
                     "rope_dir", "rope_tension_N", "energy_J", "static_rope_load_N")
+
+
+@dataclass(frozen=True)
+class LinearSwing:
+    """The swing's linearised equations about hanging rest, for forced response.
+
+    .. math:: M \\ddot q + C \\dot q + K q = F\\, a_p(t)
+
+    with ``q`` the swing coordinates (deviations from hanging rest, support fixed) and
+    :math:`a_p` the suspension point's acceleration.  Built by
+    :meth:`SwingModel.linear_swing`; :mod:`swingsim.dynamics.response` reads it.
+
+    Attributes
+    ----------
+    coordinates : tuple of str
+        Names of the swing coordinates (the model's ``state_names`` entries).
+    mass : ndarray
+        Mass matrix (n, n) [chart units: kg m^2 for angle-like coordinates].
+    stiffness : ndarray
+        Stiffness matrix (n, n), gravity's restoring effect [same units per s^2].
+    damping : ndarray
+        Damping matrix (n, n): the scene's swing damping and the air drag linearised
+        about the steady wind [same units per s].
+    base_influence : ndarray
+        Generalised force per unit suspension-point acceleration (n, 3), columns for
+        acceleration along x, y, z [N m per m/s^2 for angle-like coordinates].
+    angles : dict
+        Name -> pair of coordinate indices whose small deviations are the
+        projected angles of one body's direction [rad]: always ``"hoist rope"``,
+        and ``"sling leg"`` and ``"load tilt"`` where the model has them.
+    points : dict
+        Name -> Jacobian (3, n) of a point's position relative to the suspension
+        point per unit coordinate [m per chart unit], in order down the hanging
+        chain: ``"hook block"`` with a hook block (or ``"rope end"`` where a rigid load
+        hangs without one), then always ``"load"`` (its centre of gravity).
+    """
+
+    coordinates: tuple
+    mass: np.ndarray
+    stiffness: np.ndarray
+    damping: np.ndarray
+    base_influence: np.ndarray
+    angles: dict = field(default_factory=dict)
+    points: dict = field(default_factory=dict)
 
 
 @runtime_checkable
@@ -44,8 +89,8 @@ class SwingModel(Protocol):
     -----
     The solver calls :meth:`initial_state`, then for every piece between breakpoints
     :meth:`make_rhs` and :meth:`make_events`; metrics and tables call
-    :meth:`outputs`, :meth:`mode_periods_s`, :meth:`rest_direction` and
-    :meth:`bounce_period_s`.  :meth:`rest_direction`, :meth:`event_message`,
+    :meth:`outputs`, :meth:`mode_periods_s`, :meth:`linear_swing` (the frequency
+    response), :meth:`rest_direction` and :meth:`bounce_period_s`.  :meth:`rest_direction`, :meth:`event_message`,
     :meth:`bounce_period_s` and ``extra_breakpoints`` are optional: a model that
     subclasses :class:`ModelDefaults` gets neutral defaults for them.
     """
@@ -134,6 +179,23 @@ class SwingModel(Protocol):
         -------
         list of float
             Periods [s]; the first is the one input shaping is tuned to.
+        """
+
+    def linear_swing(self, rope_length_m: float | None = None) -> LinearSwing:
+        """The swing's linearised equations about hanging rest (support fixed).
+
+        The frequency response (:mod:`swingsim.dynamics.response`) reads only this.
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            The rope length to linearise at [m]; when omitted, the scene's initial length.
+
+        Returns
+        -------
+        LinearSwing
+            Mass, stiffness and damping matrices, the suspension point's acceleration's
+            influence, and which coordinates are which body's angles.
         """
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:

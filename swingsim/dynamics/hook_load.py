@@ -78,7 +78,7 @@ from dataclasses import replace
 import numpy as np
 
 from swingsim import constants
-from swingsim.dynamics.base import ModelDefaults, SwingModel
+from swingsim.dynamics.base import LinearSwing, ModelDefaults, SwingModel
 from swingsim.dynamics.pendulum import direction_from_projected, projected_angles, starts_in_steady_wind
 from swingsim.dynamics.wind import wind_field
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
@@ -1066,6 +1066,72 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Qm = self._eval(ym, kin_state, full=True, applied=False)["Q"]
             K[:, j] = -(Qp - Qm) / (2 * h)
         return M, 0.5 * (K + K.T)
+
+    def linear_swing(self, rope_length_m: float | None = None) -> LinearSwing:
+        """The swing linearised about hanging rest (support fixed), over the swing coordinates.
+
+        Mass and stiffness as for :meth:`swing_modes`; the damping matrix is
+        :math:`-\\partial Q / \\partial \\dot q` with the applied forces on (the scene's
+        swing damping, and the drag linearised about the steady wind), the support
+        acceleration's influence :math:`\\partial Q / \\partial a_p` (exactly linear), the
+        points' Jacobians from the positions of :meth:`_eval` (central differences).  The
+        elastic rope's stretch is left out: it does not couple with the swing at rest.
+
+        Parameters
+        ----------
+        rope_length_m : float, optional
+            Loaded rope length [m]; the scene's initial length by default.
+
+        Returns
+        -------
+        LinearSwing
+            Over :meth:`swing_coordinate_indices`; angles ``"hoist rope"``, ``"sling leg"``
+            (a leg below a hook block) and ``"load tilt"`` (a rigid load); points, top
+            first: ``"hook block"`` (with one) or ``"rope end"`` (a rigid load without
+            one), then ``"load"`` (its CG).
+        """
+        L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
+        M, K = self._linear_MK(L)
+        y0 = self.rest_state(L)
+        kin_state = np.asarray(self._hanging_support(L), float)
+        nq = self.n_coordinates
+        ev = self._eval
+        h = 1e-6
+        C = np.zeros((nq, nq))
+        JH, JG = np.zeros((3, nq)), np.zeros((3, nq))
+        for j in range(nq):
+            yp, ym = y0.copy(), y0.copy()
+            yp[nq + j] += h
+            ym[nq + j] -= h
+            C[:, j] = -(ev(yp, kin_state, full=True)["Q"] - ev(ym, kin_state, full=True)["Q"]) / (2 * h)
+            yp, ym = y0.copy(), y0.copy()
+            yp[j] += h
+            ym[j] -= h
+            op, om = ev(yp, kin_state, full=True, applied=False), ev(ym, kin_state, full=True, applied=False)
+            JH[:, j] = (op["H"] - om["H"]) / (2 * h)
+            JG[:, j] = (op["G"] - om["G"]) / (2 * h)
+        F = np.zeros((nq, 3))
+        for j in range(3):  # Q is exactly linear in the support's acceleration
+            kp, km = kin_state.copy(), kin_state.copy()
+            kp[6 + j] += 1.0
+            km[6 + j] -= 1.0
+            F[:, j] = (ev(y0, kp, full=True, applied=False)["Q"] - ev(y0, km, full=True, applied=False)["Q"]) / 2.0
+        keep = self.swing_coordinate_indices()
+        sub = np.ix_(keep, keep)
+        angles = {"hoist rope": (0, 1)}
+        if self.leg_below_hook:
+            angles["sling leg"] = (2, 3)
+        if self.rigid_load:
+            angles["load tilt"] = (self.tilt_index, self.tilt_index + 1)
+        points = {}
+        if self.has_hook_block:
+            points["hook block"] = JH[:, keep]
+        elif self.rigid_load:  # the rope's end, where the rigging hangs, moves apart from the CG
+            points["rope end"] = JH[:, keep]
+        points["load"] = JG[:, keep]
+        return LinearSwing(coordinates=tuple(self.state_names[i] for i in keep), mass=M[sub],
+                           stiffness=K[sub], damping=0.5 * (C[sub] + C[sub].T), base_influence=F[keep],
+                           angles=angles, points=points)
 
     def swing_modes(self, rope_length_m: float | None = None):
         """Normal modes of the swing about hanging rest (support fixed, small amplitude).

@@ -41,7 +41,7 @@ import math
 import numpy as np
 
 from swingsim import constants
-from swingsim.dynamics.base import ModelDefaults, SwingModel
+from swingsim.dynamics.base import LinearSwing, ModelDefaults, SwingModel
 from swingsim.dynamics.forces import drag_coefficient_per_mass
 from swingsim.dynamics.wind import wind_field
 
@@ -378,6 +378,39 @@ class PointMassModel(ModelDefaults, SwingModel):
     def mode_periods_s(self, rope_length_m: float | None = None) -> list[float]:
         L = self.scene.rope.length_m if rope_length_m is None else rope_length_m
         return [2.0 * math.pi * math.sqrt(L / self.par["g"])]
+
+    def linear_swing(self, rope_length_m: float | None = None) -> LinearSwing:
+        # M = m L^2 I; stiffness, damping and the support acceleration's influence are M times
+        # the derivatives of accelerations() (central differences at the plumb rope; gravity
+        # alone for the stiffness, the scene's damping and the drag about the steady wind for
+        # the damping).  In the plane of travel: L u'' + 2 zeta w L u' + g u = -a_p (e.g.
+        # Thomson & Dahleh, Theory of Vibration with Applications, ch. 3).  Coordinates (u, v),
+        # both the hoist rope's angles.
+        L = self.scene.rope.length_m if rope_length_m is None else rope_length_m
+        m = self.par["m"]
+        still = dict(self.par, zeta=0.0, kd=0.0, kr=0.0, wx=0.0, wy=0.0)
+
+        def qdd(q, qd, ap, par):
+            u, v = q
+            w = math.sqrt(1.0 - u * u - v * v)
+            f = specific_force(u, v, w, qd[0], qd[1], L, 0.0, 0.0, 0.0, 0.0, par)
+            return np.array(accelerations(u, v, qd[0], qd[1], L, 0.0, ap[0], ap[1], ap[2], *f))
+
+        zero2, zero3, h = np.zeros(2), np.zeros(3), 1e-6
+        mass = m * L * L * np.eye(2)
+        A, B, E = np.zeros((2, 2)), np.zeros((2, 2)), np.zeros((2, 3))
+        for j in range(2):
+            d = np.zeros(2)
+            d[j] = h
+            A[:, j] = (qdd(d, zero2, zero3, still) - qdd(-d, zero2, zero3, still)) / (2 * h)
+            B[:, j] = (qdd(zero2, d, zero3, self.par) - qdd(zero2, -d, zero3, self.par)) / (2 * h)
+        for j in range(3):
+            d = np.zeros(3)
+            d[j] = 1.0  # exactly linear in the support's acceleration
+            E[:, j] = (qdd(zero2, zero2, d, still) - qdd(zero2, zero2, -d, still)) / 2.0
+        load = np.array([[L, 0.0], [0.0, L], [0.0, 0.0]])
+        return LinearSwing(coordinates=("u", "v"), mass=mass, stiffness=-mass @ A, damping=-mass @ B,
+                           base_influence=mass @ E, angles={"hoist rope": (0, 1)}, points={"load": load})
 
     # -- the equations -------------------------------------------------------
 

@@ -199,3 +199,51 @@ def hook_load_warnings(s: dict, scene) -> list[str]:
                    f"{hook_wll:g} kN: the lift plan, the manufacturer's rating and the competent "
                    "person decide; do not lift on these numbers.")
     return out
+
+
+#: What the crane axes' moves are called in the resonance caution.
+_AXIS_WORDS = {"x": "x travel", "y": "y travel", "slew": "slewing",
+               "radius": "radius (trolley or luffing)"}
+
+
+def resonance_warnings(s: dict) -> list[str]:
+    """A caution for every repeated move or recorded input whose rhythm meets a swing mode.
+
+    The band is swingsim's rule (:mod:`swingsim.metrics.resonance`): the mode's
+    half-power band widened to at least +-15 % of its period.
+
+    Parameters
+    ----------
+    s : dict
+        The summary (``move_rhythms``, ``response_modes`` and
+        ``resonance_band_fraction`` of :func:`swingsim.metrics.resonance.resonance_metrics`).
+
+    Returns
+    -------
+    list of str
+        One sentence per rhythm in resonance; each contains the word "resonance".
+    """
+    out = []
+    modes = {m["mode"]: m for m in s.get("response_modes", [])}
+    band = 100 * s.get("resonance_band_fraction", 0.15)
+    for r in s.get("move_rhythms", []):
+        if not r.get("resonant_modes"):
+            continue
+        names = " and ".join(f"mode {k}: {modes[k]['label']}, period {modes[k]['period_s']:.2f} s"
+                             for k in r["resonant_modes"])
+        axis = _AXIS_WORDS.get(r["axis"], r["axis"])
+        if r["source"] == "recorded input":
+            what = f"the recorded operator input ({axis}, {r['from_s']:.1f} to {r['to_s']:.1f} s) has"
+        else:
+            what = (f"the {len(r['moves'])} {axis} moves ({r['from_s']:.1f} to {r['to_s']:.1f} s) "
+                    "repeat with")
+        amp = r.get("amplification_at_rhythm")
+        steady = (f"; kept up, the swing would grow to about {amp:.0f} times the angle the same "
+                  "acceleration gives when held steady" if amp is not None and amp >= 2.0 else "")
+        lo = min(modes[k]["resonance_band_s"][0] for k in r["resonant_modes"])
+        hi = max(modes[k]["resonance_band_s"][1] for k in r["resonant_modes"])
+        out.append(f"Swing resonance: {what} a rhythm of {r['rhythm_s']:.2f} s, in resonance with the "
+                   f"swing ({names}; our band {lo:.2f} to {hi:.2f} s, the half-power band widened to "
+                   f"+-{band:.0f}% of the period): each repetition adds swing{steady}. Break the rhythm: "
+                   "pause and let the swing settle, or make the move in one go.")
+    return out

@@ -22,6 +22,7 @@ from swingsim.metrics import cautions, definitions
 from swingsim.metrics.chart import chart_metrics, chart_warnings
 from swingsim.metrics.definitions import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_metrics, model_warnings
+from swingsim.metrics.resonance import resonance_metrics
 from swingsim.metrics.zones import zone_summaries
 from swingsim.metrics.wind import gust_metrics, gust_warnings
 from swingsim.scene.site import scene_wind_from_bearing_deg
@@ -257,9 +258,11 @@ def summarize(traj) -> Summary:
     data.update(chart_metrics(traj, t, s))
     # -- the wind at the load: peak gust against the in-service limit (metrics/wind.py) --
     data.update(gust_metrics(traj, t, s))
+    # -- frequency response, moves' rhythms and resonance (metrics/resonance.py) --
+    data.update(resonance_metrics(traj))
     data["cautions"] = ([cautions.CAUTION] + cautions.scenario_warnings(data, scene)
                         + model_warnings(data, scene) + chart_warnings(data, scene)
-                        + gust_warnings(data, scene))
+                        + gust_warnings(data, scene) + cautions.resonance_warnings(data))
     summary = Summary(data)
     final_check(traj, summary, s)
     return summary

@@ -6,6 +6,7 @@ from pathlib import Path
 
 from swingsim.io.files import atomic_write_text
 from swingsim.report.plots import write_plots
+from swingsim.report.plots_response import response_csv
 from swingsim.report.tables import summary_json, summary_text, timeseries_columns, timeseries_csv
 
 
@@ -28,7 +29,7 @@ def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Pat
     Returns
     -------
     list of pathlib.Path
-        summary.json, timeseries.csv, summary.txt, then the plots.
+        summary.json, timeseries.csv, summary.txt, response.csv, then the plots.
     """
     out = Path(out_dir)
     # compute everything that can fail before the first file appears
@@ -37,6 +38,7 @@ def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Pat
         "summary.json": summary_json(summary),
         "timeseries.csv": timeseries_csv(traj, cols),
         "summary.txt": summary_text(summary, traj.scene),
+        "response.csv": response_csv(traj),
     }
     written = [atomic_write_text(out / name, text) for name, text in texts.items()]
     if plots:

@@ -12,6 +12,7 @@ import numpy as np
 
 from swingsim.io.files import atomic_write_bytes
 from swingsim.report.plots_chart import chart_figure
+from swingsim.report.plots_response import response_figure
 from swingsim.report.plots_rigging import rigging_figure
 from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, literal_text, new_figure,
                                    shade_moves, title_and_caution)
@@ -215,7 +216,7 @@ def _crane_reach(ax, crane):
 #: (rigging.png, :func:`swingsim.report.plots_rigging.rigging_figure`, needs sling legs;
 #: chart.png, :func:`swingsim.report.plots_chart.chart_figure`, needs ``crane.chart_file``).
 FIGURES = {"swing.png": _swing_figure, "speed.png": _speed_figure, "plan.png": _plan_figure,
-           "rigging.png": rigging_figure, "chart.png": chart_figure}
+           "rigging.png": rigging_figure, "chart.png": chart_figure, "response.png": response_figure}
 
 
 def write_plots(traj, summary, out_dir, cols=None) -> list:

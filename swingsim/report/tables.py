@@ -179,6 +179,30 @@ def _chart_lines(d: dict) -> list:
     return w
 
 
+def _resonance_lines(d: dict) -> list:
+    """The "Resonance" section: each mode's sharpness and the moves' rhythms (response.csv, response.png)."""
+    modes = d.get("response_modes") or []
+    if not modes:
+        return []
+    w = ["", f"Resonance (steady swing per m/s2 of suspension-point acceleration: response.csv, response.png; "
+             f"band: half-power band widened to +-{100 * d['resonance_band_fraction']:.0f}%, our rule)"]
+    for m in modes:
+        amp = ("unbounded (no damping)" if m["peak_amplification"] is None
+               else f"peak {m['peak_amplification']:.0f} x static")
+        short, long_ = m["half_power_periods_s"]
+        band = (f"half-power {short:.2f} to {long_:.2f} s ({100 * m['half_power_fraction']:.1f}%)"
+                if short is not None and long_ is not None and m["half_power_fraction"] is not None
+                else "no half-power band")
+        w.append(f"  Mode {m['mode']} {m['period_s']:7.3f} s  {m['label']}: damping {100 * m['damping_ratio']:.2f}%, "
+                 f"{amp}, {band}")
+    for r in d.get("move_rhythms") or []:
+        hit = ("IN RESONANCE with mode " + ", ".join(str(k) for k in r["resonant_modes"])
+               if r["resonant_modes"] else "clear of every mode's band")
+        w.append(f"  Rhythm of the {r['axis']} moves ({r['source']}, {r['from_s']:.1f} to {r['to_s']:.1f} s) "
+                 f"{r['rhythm_s']:.2f} s: {hit}")
+    return w
+
+
 def summary_text(summary, scene) -> str:
     """summary.txt: a plain-text summary for a lift planner, caution first.
 
@@ -250,6 +274,8 @@ def summary_text(summary, scene) -> str:
             w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's', 3)} (elliptic integral)")
     # -- the wind at the load, gust statistics (swingsim/metrics/wind.py) --
     w.extend(gust_lines(d, scene))
+    # -- frequency response and the moves' rhythms (swingsim/metrics/resonance.py) --
+    w.extend(_resonance_lines(d))
     # -- rated capacity chart (swingsim/metrics/chart.py) --
     w.extend(_chart_lines(d))
     if d["zones"]:
