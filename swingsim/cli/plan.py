@@ -71,7 +71,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--rate-hz", default=None, metavar="R",
                    help="rows per second of the drive's speed reference [Hz] (default 20, at most 1000)")
     add_output_arguments(p, "output folder (default: <scene name>-plan)", "this command's files",
-                         short_flags=True)
+                         quiet_help="print nothing but errors (no progress bar either)")
     add_allow_implausible(p, "a very long rope or heavy load")
 
 
