@@ -56,13 +56,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from swingsim.batch import dense, rk8
-from swingsim.batch.kinematics import ChunkKinematics
+from swingsim.batch import dense, hook_engine, rk8
 from swingsim.batch.measure import VariantFacts, measure_block
+from swingsim.batch.segments import (A_NZ, B_NZ, chunk_kinematics, combine, motion_segments, pack_grids,
+                                     parameter_rows, rope_lengths, step_grid)
 from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize
-from swingsim.motion import profiles
 from swingsim.motion.kinematics import AXES
 from swingsim.simulation import prepare, simulate
 
@@ -84,26 +84,8 @@ SUMMARY_KEYS = (
     "peak_rope_tension_kN", "min_rope_tension_kN", "static_rope_tension_kN", "dynamic_factor",
     "peak_load_speed_m_s", "rope_length_start_m", "rope_length_end_m",
     "natural_period_s", "measured_period_s", "settle_time_s", "settled_at_s",
+    "peak_hook_load_kN", "peak_line_pull_kN",
 )
-
-# the non-zero weights of each stage, in a fixed order
-_A_NZ = [[(j, float(rk8.A[s, j])) for j in range(s) if rk8.A[s, j] != 0.0] for s in range(rk8.N_STAGES)]
-_B_NZ = [(j, float(rk8.B[j])) for j in range(rk8.N_STAGES) if rk8.B[j] != 0.0]
-
-
-def _combine(weights, K):
-    """sum_j w_j K[j], element by element in a fixed order.
-
-    Not ``tensordot`` (BLAS): a BLAS kernel may round an element differently
-    depending on where it sits in the array, and a variant's result must not
-    depend on the other variants of its chunk.
-    """
-    j, w = weights[0]
-    acc = w * K[j]
-    for j, w in weights[1:]:
-        acc += w * K[j]
-    return acc
-
 
 # ----------------------------------------------------------------------------
 # which variants the engine takes
@@ -120,29 +102,22 @@ def supported(scene) -> bool:
     Returns
     -------
     bool
-        True when the scene's model is the point-mass model and the suspension
-        point stays at its height; other models (and a model extension that cannot
-        be built), and a boom crane that luffs (its tip moves on an arc, which
-        the vectorised kinematics leave out), go to the single-run solver.
+        True when the suspension point stays at its height and the scene's model
+        is the point-mass model or the hook-and-load model (``hook_engine.py``,
+        unless its load rests for lift-off); other models (and a model extension
+        that cannot be built), and a boom crane that luffs (its tip moves on an
+        arc, which the vectorised kinematics leave out), go to the single-run solver.
     """
+    return _point_mass(scene) or hook_engine.supported(scene)
+
+
+def _point_mass(scene) -> bool:
     if scene.crane.has_boom and any(m.axis == "radius" for m in scene.moves):
         return False
     try:
         return type(select_model(scene)) is PointMassModel
     except Exception:  # a model extension that cannot build: leave it to simulate
         return False
-
-
-def _segment_times(prof) -> set:
-    """Instants where a profile stops being one cubic (breakpoints and spline knots)."""
-    if isinstance(prof, profiles.SumProfile):
-        out = set()
-        for _, s, p in prof.parts:
-            out |= {b + s for b in _segment_times(p)}
-        return out
-    if isinstance(prof, profiles.SplineProfile):
-        return {prof.start_s + float(x) for x in prof.spline.x}
-    return set(float(b) for b in prof.breakpoints)
 
 
 def _period(scene, L):
@@ -168,42 +143,10 @@ class _Variant:
 
 def _prepare(scene, steps_per_period) -> _Variant:
     model, motion = prepare(scene, PointMassModel(scene))
-    T = scene.duration_s
-    pts = {0.0, T}
-    for _, prof in motion.moves:
-        pts |= {b for b in _segment_times(prof) if 0.0 < b < T}
-    cuts = np.array(sorted(pts))
-    cuts = cuts[np.concatenate([[True], np.diff(cuts) > 1e-12])]
-    if cuts[-1] != T:
-        cuts[-1] = T
-    nseg = len(cuts) - 1
-    coef = np.zeros((nseg, len(AXES), 4))
-    a0, a1 = cuts[:-1], cuts[1:]
-    tm = 0.5 * (a0 + a1)
-    t2 = a0 + 0.75 * (a1 - a0)
-    d = tm - a0
-    both = np.concatenate([tm, t2])
-    for ax, prof in motion.moves:
-        # each profile is one cubic on each segment: read it off at two interior points
-        pp, vv, aa = prof.evaluate(both)
-        p, v, a = pp[:nseg], vv[:nseg], aa[:nseg]
-        j = (aa[nseg:] - a) / (t2 - tm)
-        c = np.stack([p - v * d + a * d**2 / 2 - j * d**3 / 6, v - a * d + j * d**2 / 2,
-                      (a - j * d) / 2, j / 6], axis=-1)
-        coef[:, AXES.index(ax)] += c
+    cuts, coef = motion_segments(motion, scene.duration_s)
     # shortest rope over the run -> shortest period -> step bound
-    if any(ax == "hoist" for ax, _ in motion.moves):
-        Ls = motion.evaluate(np.union1d(cuts, np.linspace(0.0, T, 201)))["L"]
-        Lmin = float(np.min(Ls))
-        L_end = float(motion.evaluate(np.array([T]))["L"][0])
-    else:
-        Lmin = L_end = float(motion.rope_length_m)
-    hmax = _period(scene, Lmin) / steps_per_period
-    n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
-    seg = np.repeat(np.arange(nseg), n)
-    first = np.repeat(np.cumsum(n) - n, n)
-    k = np.arange(len(seg)) - first
-    grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
+    Lmin, L_end = rope_lengths(motion, cuts)
+    grid, seg = step_grid(cuts, _period(scene, Lmin) / steps_per_period)
     rest = np.asarray(model.rest_direction(L_end))
     return _Variant(scene, motion, model, cuts, coef, grid, seg,
                     np.asarray(model.initial_state(motion), dtype=float), rest,
@@ -215,15 +158,6 @@ def _prepare(scene, steps_per_period) -> _Variant:
 # kinematics and right-hand side over a chunk
 
 
-def _kinematics(variants) -> ChunkKinematics:
-    used = np.zeros(len(AXES), dtype=bool)
-    for v in variants:
-        used |= np.any(v.coef != 0.0, axis=(0, 2))
-    # the polar coordinates are taken about each variant's slew centre (only rates are needed)
-    return ChunkKinematics([np.subtract(v.motion.origin_m, (*v.motion.slew_center_m, 0.0)) for v in variants],
-                           [v.motion.rope_length_m for v in variants], used)
-
-
 def _force_parameters(variants):
     keys = ("g", "zeta", "kd", "kr", "wx", "wy")
     out = {}
@@ -231,16 +165,6 @@ def _force_parameters(variants):
         a = np.array([v.model.par[k] for v in variants], dtype=float)
         # a scalar zero lets the force functions skip the term for the whole chunk
         out[k] = 0.0 if k != "g" and not np.any(a) else a
-    return out
-
-
-def _force_rows(par, sel, ndim):
-    out = {}
-    for k, a in par.items():
-        if isinstance(a, np.ndarray):
-            a = a[sel]
-            a = a.reshape(a.shape + (1,) * (ndim - 1))
-        out[k] = a
     return out
 
 
@@ -260,22 +184,9 @@ def _rhs(y, kin, par):
 
 def _integrate(variants) -> dense.IntegratedChunk:
     B = len(variants)
-    N = max(len(v.grid) - 1 for v in variants)
-    tg = np.empty((B, N + 1))
-    sg = np.zeros((B, N), dtype=np.intp)
-    nseg = max(len(v.cuts) - 1 for v in variants)
-    coef = np.zeros((B, nseg, len(AXES), 4))
-    t0s = np.zeros((B, nseg))
-    for i, v in enumerate(variants):
-        n = len(v.grid)
-        tg[i, :n] = v.grid
-        tg[i, n:] = v.grid[-1]
-        sg[i, :n - 1] = v.seg
-        sg[i, n - 1:] = v.seg[-1]
-        k = len(v.cuts) - 1
-        coef[i, :k] = v.coef
-        t0s[i, :k] = v.cuts[:-1]
-    kin = _kinematics(variants)
+    tg, sg, coef, t0s = pack_grids(variants)
+    N = tg.shape[1] - 1
+    kin = chunk_kinematics(variants)
     par = _force_parameters(variants)
     ar = np.arange(B)
     nst = rk8.N_STAGES
@@ -292,9 +203,9 @@ def _integrate(variants) -> dense.IntegratedChunk:
             c = coef[ar, sg[:, k]]
             tau0 = t0 - t0s[ar, sg[:, k]]
             for s in range(nst):
-                ys = y if s == 0 else y + h * _combine(_A_NZ[s], K)
+                ys = y if s == 0 else y + h * combine(A_NZ[s], K)
                 K[s] = _rhs(ys, kin(c, tau0 + rk8.C[s] * h), par)
-            y = y + h * _combine(_B_NZ, K)
+            y = y + h * combine(B_NZ, K)
             Y[k + 1] = y
             A0[k] = K[0, 2:]
             # accelerations at the step's end on the step's own segment (left limit)
@@ -316,6 +227,8 @@ def _facts(vs) -> VariantFacts:
         rest_direction=np.stack([x.rest for x in vs]),
         mass_kg=np.array([x.model.par["m"] for x in vs]),
         gravity_m_s2=np.array([x.model.par["g"] for x in vs]),
+        falls=np.array([x.scene.rope.falls for x in vs], dtype=float),
+        reeving_efficiency=np.array([x.scene.rope.reeving_efficiency for x in vs]),
     )
 
 
@@ -329,7 +242,7 @@ def _chunk_batch(variants, samples_per_step):
     for i in range(0, len(variants), _MEASURE_ROWS):
         sel = np.arange(i, min(i + _MEASURE_ROWS, len(variants)))
         block = measure_block(dense.sample(run, sel, samples_per_step), _facts([variants[j] for j in sel]),
-                              _force_rows(run.forces, sel, 2),
+                              parameter_rows(run.forces, sel, 2),
                               lambda t0, sel=sel: dense.refine_peak_sq(run, sel, t0))
         sums.extend(block.summaries)
         oks.append(block.ok)
@@ -375,11 +288,19 @@ def run_chunk(scenes, *, steps_per_period=DEFAULT_STEPS_PER_PERIOD,
         Keys :data:`SUMMARY_KEYS`; ``engine`` says which solver produced it.
     """
     out: list = [None] * len(scenes)
-    todo = []
+    todo, hook = [], []
     if engine == "batch":
         for i, sc in enumerate(scenes):
-            if supported(sc):
+            if _point_mass(sc):
                 todo.append(i)
+            elif hook_engine.supported(sc):
+                hook.append(i)
+    if hook:  # the hook-and-load model (hook_engine.py), grouped by structure there
+        sums, ok = hook_engine.run_variants([scenes[i] for i in hook], steps_per_period=steps_per_period,
+                                            samples_per_step=samples_per_step)
+        for i, s, good in zip(hook, sums, ok):
+            if good and _all_finite(s):
+                out[i] = {k: s.get(k) for k in SUMMARY_KEYS}
     if todo:
         variants = [_prepare(scenes[i], steps_per_period) for i in todo]
         sums, ok = _chunk_batch(variants, samples_per_step)

@@ -46,6 +46,10 @@ class VariantFacts:
         Load mass [kg].
     gravity_m_s2 : ndarray
         Gravitational acceleration [m/s^2].
+    falls : ndarray, optional
+        Falls of the reeving [-] (1 when not given).
+    reeving_efficiency : ndarray, optional
+        Overall efficiency of the reeving [-] (1 when not given).
     """
 
     move_end_s: np.ndarray
@@ -59,6 +63,8 @@ class VariantFacts:
     rest_direction: np.ndarray
     mass_kg: np.ndarray
     gravity_m_s2: np.ndarray
+    falls: np.ndarray | None = None
+    reeving_efficiency: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -303,6 +309,10 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
     t_max = _best_peak(t, runs.tension_N, None, kink)[2]
     t_min = np.min(runs.tension_N, axis=1)
     static = facts.mass_kg * facts.gravity_m_s2
+    # the hook load is the hoist rope's tension; the line pull its share per fall
+    falls = 1.0 if facts.falls is None else facts.falls
+    efficiency = 1.0 if facts.reeving_efficiency is None else facts.reeving_efficiency
+    line_pull = definitions.line_pull(t_max, falls, efficiency)
     with np.errstate(all="ignore"):
         speed = definitions.peak_speed_m_s(runs.load_vel_x, runs.load_vel_y, runs.load_vel_z)
     measured = definitions.measured_period(t, runs.offset_x, runs.offset_y, post,
@@ -313,7 +323,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
     deg = 180.0 / math.pi
     cols = {
         "pk": pk * deg, "pk_t": pk_t, "res": res * deg, "rsw": rsw * deg, "swe": sw_end * deg,
-        "exc": exc, "Tmax": t_max / 1e3, "Tmin": t_min / 1e3, "stat": static / 1e3,
+        "exc": exc, "Tmax": t_max / 1e3, "pull": line_pull / 1e3, "Tmin": t_min / 1e3, "stat": static / 1e3,
         "df": definitions.dynamic_factor(t_max, static), "speed": speed, "meas": measured.period_s,
         "set": settled_at, "me": move_end, "L0": facts.rope_length_start_m,
         "Le": facts.rope_length_end_m, "p0": facts.natural_period_s,
@@ -334,6 +344,8 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
             "swing_at_move_end_deg": cols["swe"][b] if ap[b] else None,
             "peak_excursion_m": cols["exc"][b],
             "peak_rope_tension_kN": cols["Tmax"][b],
+            "peak_hook_load_kN": cols["Tmax"][b],
+            "peak_line_pull_kN": cols["pull"][b],
             "min_rope_tension_kN": cols["Tmin"][b],
             "static_rope_tension_kN": cols["stat"][b],
             "dynamic_factor": cols["df"][b],

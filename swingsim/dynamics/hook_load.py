@@ -934,8 +934,18 @@ class HookLoadModel(ModelDefaults, SwingModel):
         om_s = kin_state[12] if len(kin_state) > 12 else 0.0
         kin = (kin_state[3], kin_state[4], kin_state[5], kin_state[6], kin_state[7], kin_state[8],
                kin_state[9], kin_state[10], kin_state[11], om_s)
-        wind = (self._wind_x_m_s, self._wind_y_m_s)  # the wind the equations see
-        return equations_of_motion(yl[:nq], yl[nq:], kin, self._par, self.elastic_rope, wind, self.structure)
+        return equations_of_motion(yl[:nq], yl[nq:], kin, self._par, self.elastic_rope,
+                                   self.wind_velocity_m_s(), self.structure)
+
+    def wind_velocity_m_s(self) -> tuple:
+        """The wind velocity the equations of motion see (the single run and the batch engine).
+
+        Returns
+        -------
+        tuple of float
+            ``(wx, wy)``: horizontal components [m/s] (the steady wind of the scene).
+        """
+        return self._wind_x_m_s, self._wind_y_m_s
 
     def _eval(self, y, kin_state, full=False, applied=True):
         """Accelerations (and, with ``full``, everything the outputs need) at one instant.
