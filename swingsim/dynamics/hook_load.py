@@ -152,51 +152,49 @@ class FloatArithmetic:
         return x if x > 0.0 else 0.0
 
     @staticmethod
-    def assemble(rows, forces, masses):
-        """Mass matrix and generalised forces from the stacked Jacobian.
+    def solve(rows, forces, masses, diagonal, generalised):
+        """Generalised accelerations from the stacked Jacobian: ``M qdd = Q``.
+
+        :math:`M = B^T \\operatorname{diag}(m) B + D`, :math:`Q = B^T f + g`.
 
         Parameters
         ----------
-        rows : list of list of float
+        rows : list of list
             Rows of the stacked point Jacobians (3 per point) [m per chart unit].
-        forces : list of float
+        forces : list
             Applied force less mass times bias acceleration, per row [N].
-        masses : list of float
+        masses : list
             Mass of each row's point [kg].
-
-        Returns
-        -------
-        tuple of ndarray
-            ``(M, Q)``: (n, n) [kg m^2 per chart unit^2] and (n,) [N m per chart unit].
-        """
-        B = np.array(rows)
-        mw = np.array(masses)
-        return B.T @ (mw[:, None] * B), B.T @ np.array(forces)
-
-    @staticmethod
-    def solve(M, Q):
-        """Generalised accelerations from ``M qdd = Q``.
-
-        Parameters
-        ----------
-        M : ndarray (n, n)
-            Mass matrix [kg m^2 per chart unit^2].
-        Q : ndarray (n,)
-            Generalised forces [N m per chart unit].
+        diagonal : dict
+            Additions to diagonal entries of ``M``, by index (a rigid load's rotation)
+            [kg m^2 per chart unit^2].
+        generalised : dict
+            Additions to entries of ``Q``, by index [N m per chart unit].
 
         Returns
         -------
         ndarray (n,)
             Accelerations [chart units / s^2].
         """
+        B = np.array(rows)
+        mw = np.array(masses)
+        M = B.T @ (mw[:, None] * B)
+        Q = B.T @ np.array(forces)
+        for i, x in diagonal.items():
+            M[i, i] += x
+        for i, x in generalised.items():
+            Q[i] += x
         return np.linalg.solve(M, Q)
 
 
 class ArrayArithmetic(FloatArithmetic):
     """Arithmetic of the equations on many states at once (every quantity an array or a float).
 
-    Element by element with a fixed order of sums (no BLAS), so the result for one
-    state does not depend on the other states of the array (see ``batch/engine.py``).
+    Element by element with a fixed order of sums (no BLAS, no LAPACK): ``M`` is
+    summed entry by entry, skipping the Jacobian's structural zeros, and factored
+    as :math:`L D L^T` (``M`` is symmetric positive definite), so the result for
+    one state does not depend on the other states of the array (see
+    ``batch/engine.py``).
     """
 
     sqrt = staticmethod(np.sqrt)
@@ -208,28 +206,56 @@ class ArrayArithmetic(FloatArithmetic):
         return np.maximum(x, 0.0)
 
     @staticmethod
-    def assemble(rows, forces, masses):
-        shape = np.broadcast_shapes(*(np.shape(x) for r in rows for x in r),
-                                    *(np.shape(x) for x in forces), *(np.shape(x) for x in masses))
+    def solve(rows, forces, masses, diagonal, generalised):
         n = len(rows[0])
-        J = np.zeros(shape + (len(rows), n))
-        for k, r in enumerate(rows):
-            for i, x in enumerate(r):
-                if _on(x):
-                    J[..., k, i] = x
-        f = np.empty(shape + (len(rows),))
-        mw = np.empty(shape + (len(rows),))
-        for k in range(len(rows)):
-            f[..., k] = forces[k]
-            mw[..., k] = masses[k]
-        # sums over the short axis of the points, in order (not matmul: no BLAS)
-        M = (J[..., :, :, None] * (mw[..., :, None, None] * J[..., :, None, :])).sum(axis=-3)
-        Q = (J * f[..., :, None]).sum(axis=-2)
-        return M, Q
-
-    @staticmethod
-    def solve(M, Q):
-        return np.linalg.solve(M, Q[..., None])[..., 0]
+        # every force holds a state, so together they have the states' full shape
+        shape = np.broadcast_shapes(*(np.shape(x) for x in forces))
+        weighted = [[m * x if _on(x) else 0.0 for x in r] for r, m in zip(rows, masses)]
+        M = [[0.0] * n for _ in range(n)]  # lower triangle
+        for i in range(n):
+            for j in range(i + 1):
+                acc = 0.0
+                for r, mr in zip(rows, weighted):
+                    if _on(mr[i]) and _on(r[j]):
+                        acc = acc + mr[i] * r[j]
+                M[i][j] = acc
+        Q = []
+        for i in range(n):
+            acc = 0.0
+            for r, f in zip(rows, forces):
+                if _on(r[i]):
+                    acc = acc + r[i] * f
+            Q.append(acc)
+        for i, x in diagonal.items():
+            M[i][i] = M[i][i] + x
+        for i, x in generalised.items():
+            Q[i] = Q[i] + x
+        # M = L D L^T (Golub & Van Loan, Matrix Computations, sec. 4.1), then two triangular solves
+        L = [[0.0] * n for _ in range(n)]
+        D = [0.0] * n
+        for j in range(n):
+            d = M[j][j]
+            for k in range(j):
+                if _on(L[j][k]):
+                    d = d - L[j][k] * L[j][k] * D[k]
+            D[j] = d
+            for i in range(j + 1, n):
+                s = M[i][j]
+                for k in range(j):
+                    if _on(L[i][k]) and _on(L[j][k]):
+                        s = s - L[i][k] * L[j][k] * D[k]
+                L[i][j] = s / d if _on(s) else 0.0
+        z = list(Q)
+        for i in range(n):
+            for k in range(i):
+                if _on(L[i][k]):
+                    z[i] = z[i] - L[i][k] * z[k]
+        x = [z[i] / D[i] for i in range(n)]
+        for i in reversed(range(n)):
+            for k in range(i + 1, n):
+                if _on(L[k][i]):
+                    x[i] = x[i] - L[k][i] * x[k]
+        return np.stack([np.broadcast_to(v, shape) for v in x], axis=-1)
 
 
 class Structure(NamedTuple):
@@ -440,7 +466,7 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         rows += [Gx_, Gy_, Gz_]
         fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
         masses += [m, m, m]
-    M, Q = ops.assemble(rows, fvec, masses)
+    diagonal, generalised = {}, {}
     if body:
         I0, I1, I2 = par["I0"], par["I1"], par["I2"]
         # body-frame angular velocity and its bias; Euler's equations about the CG
@@ -449,11 +475,9 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
         h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
         h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
-        M[..., ia, ia] += I0 * cb * cb + I2 * sb * sb
-        M[..., ia + 1, ia + 1] += I1
-        Q[..., ia] -= cb * h0 + sb * h2
-        Q[..., ia + 1] -= h1_
-    qdd = ops.solve(M, Q)
+        diagonal = {ia: I0 * cb * cb + I2 * sb * sb, ia + 1: I1}
+        generalised = {ia: -(cb * h0 + sb * h2), ia + 1: -h1_}
+    qdd = ops.solve(rows, fvec, masses, diagonal, generalised)
     if not details:
         return qdd
     # what is left of each point's momentum balance: the constraint forces (module Notes)
