@@ -52,14 +52,13 @@ blocks of 256 variants.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
-from swingsim.batch import dense, hook_engine, rk8
-from swingsim.batch.measure import VariantFacts, measure_block
-from swingsim.batch.segments import (A_NZ, B_NZ, chunk_kinematics, combine, motion_segments, pack_grids,
-                                     parameter_rows, rope_lengths, step_grid)
+from swingsim.batch import dense, hook_engine
+from swingsim.batch.measure import VariantFacts, measure_block, variant_facts
+from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments, pack_grids, parameter_rows,
+                                     rope_lengths, step_grid)
 from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize
@@ -124,34 +123,17 @@ def _period(scene, L):
     return 2.0 * math.pi * math.sqrt(L / scene.gravity_m_s2)
 
 
-@dataclass
-class _Variant:
-    scene: object
-    motion: object
-    model: object
-    cuts: np.ndarray        # segment boundaries, 0 .. duration
-    coef: np.ndarray        # (nseg, 5, 4) cubic coefficients per axis about each segment start
-    grid: np.ndarray        # step end times
-    seg: np.ndarray         # segment index of each step
-    y0: np.ndarray
-    rest: np.ndarray
-    period0: float
-    period_end: float
-    L_end: float
-    move_end: float
-
-
-def _prepare(scene, steps_per_period) -> _Variant:
+def _prepare(scene, steps_per_period) -> PreparedVariant:
     model, motion = prepare(scene, PointMassModel(scene))
     cuts, coef = motion_segments(motion, scene.duration_s)
     # shortest rope over the run -> shortest period -> step bound
     Lmin, L_end = rope_lengths(motion, cuts)
     grid, seg = step_grid(cuts, _period(scene, Lmin) / steps_per_period)
     rest = np.asarray(model.rest_direction(L_end))
-    return _Variant(scene, motion, model, cuts, coef, grid, seg,
-                    np.asarray(model.initial_state(motion), dtype=float), rest,
-                    float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
-                    L_end, motion.last_move_end_s)
+    return PreparedVariant(scene, motion, model, cuts, coef, grid, seg,
+                           np.asarray(model.initial_state(motion), dtype=float), rest,
+                           float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
+                           L_end, motion.last_move_end_s)
 
 
 # ----------------------------------------------------------------------------
@@ -183,53 +165,19 @@ def _rhs(y, kin, par):
 
 
 def _integrate(variants) -> dense.IntegratedChunk:
-    B = len(variants)
-    tg, sg, coef, t0s = pack_grids(variants)
-    N = tg.shape[1] - 1
+    grids = pack_grids(variants)
     kin = chunk_kinematics(variants)
     par = _force_parameters(variants)
-    ar = np.arange(B)
-    nst = rk8.N_STAGES
-    Y = np.empty((N + 1, 4, B))
-    A0 = np.empty((N, 2, B))
-    A1 = np.empty((N, 2, B))
-    y = np.stack([v.y0 for v in variants], axis=1)  # (4, B)
-    Y[0] = y
-    K = np.empty((nst, 4, B))
-    with np.errstate(all="ignore"):
-        for k in range(N):
-            t0 = tg[:, k]
-            h = tg[:, k + 1] - t0
-            c = coef[ar, sg[:, k]]
-            tau0 = t0 - t0s[ar, sg[:, k]]
-            for s in range(nst):
-                ys = y if s == 0 else y + h * combine(A_NZ[s], K)
-                K[s] = _rhs(ys, kin(c, tau0 + rk8.C[s] * h), par)
-            y = y + h * combine(B_NZ, K)
-            Y[k + 1] = y
-            A0[k] = K[0, 2:]
-            # accelerations at the step's end on the step's own segment (left limit)
-            A1[k] = _rhs(y, kin(c, tau0 + h), par)[2:]
+    y0 = np.stack([v.y0 for v in variants], axis=1)  # (4, B)
+    Y, A0, A1 = integrate_steps(y0, grids, kin, lambda y, k: _rhs(y, k, par))
+    tg, sg, coef, t0s = grids
     return dense.IntegratedChunk(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 
 def _facts(vs) -> VariantFacts:
     """What the summary needs to know of the variants ``vs``."""
-    return VariantFacts(
-        move_end_s=np.array([x.move_end for x in vs]),
-        run_end_s=np.array([x.scene.duration_s for x in vs]),
-        natural_period_s=np.array([x.period0 for x in vs]),
-        natural_period_end_s=np.array([x.period_end for x in vs]),
-        settle_threshold_rad=np.radians([x.scene.limits.settle_deg for x in vs]),
-        rope_length_start_m=np.array([x.scene.rope.length_m for x in vs]),
-        rope_length_end_m=np.array([x.L_end for x in vs]),
-        fixed_length=np.array([not bool(x.coef[:, AXES.index("hoist")].any()) for x in vs]),
-        rest_direction=np.stack([x.rest for x in vs]),
-        mass_kg=np.array([x.model.par["m"] for x in vs]),
-        gravity_m_s2=np.array([x.model.par["g"] for x in vs]),
-        falls=np.array([x.scene.rope.falls for x in vs], dtype=float),
-        reeving_efficiency=np.array([x.scene.rope.reeving_efficiency for x in vs]),
-    )
+    return variant_facts(vs, [x.model.par["m"] for x in vs], [x.model.par["g"] for x in vs],
+                         [not bool(x.coef[:, AXES.index("hoist")].any()) for x in vs])
 
 
 #: Rows of a chunk measured together (bounds the memory of the dense samples).

@@ -42,14 +42,13 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from swingsim import constants
-from swingsim.batch import dense, rk8
-from swingsim.batch.measure import SampledRuns, VariantFacts, summaries_from_samples
-from swingsim.batch.segments import (A_NZ, B_NZ, chunk_kinematics, combine, motion_segments, pack_grids,
-                                     parameter_rows, rope_lengths, step_grid)
+from swingsim.batch import dense
+from swingsim.batch.measure import VariantFacts, direction_runs, summaries_from_samples, variant_facts
+from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments, pack_grids, parameter_rows,
+                                     rope_lengths, step_grid)
 from swingsim.dynamics.hook_load import PARAMETER_NAMES, ArrayArithmetic, HookLoadModel, equations_of_motion
 from swingsim.dynamics.registry import select_model
 from swingsim.dynamics.rope import ElasticRope
-from swingsim.metrics import definitions
 from swingsim.simulation import prepare
 
 __all__ = ["supported", "run_variants"]
@@ -86,24 +85,7 @@ def supported(scene) -> bool:
     return isinstance(model, HookLoadModel) and not model.starts_resting
 
 
-@dataclass
-class _Variant:
-    scene: object
-    motion: object
-    model: HookLoadModel
-    cuts: np.ndarray
-    coef: np.ndarray
-    grid: np.ndarray
-    seg: np.ndarray
-    y0: np.ndarray
-    rest: np.ndarray
-    period0: float
-    period_end: float
-    L_end: float
-    move_end: float
-
-
-def _prepare(scene, steps_per_period) -> _Variant:
+def _prepare(scene, steps_per_period) -> PreparedVariant:
     model, motion = prepare(scene)
     cuts, coef = motion_segments(motion, scene.duration_s)
     Lmin, L_end = rope_lengths(motion, cuts)
@@ -115,7 +97,7 @@ def _prepare(scene, steps_per_period) -> _Variant:
     grid, seg = step_grid(cuts, shortest / steps_per_period)
     y0 = np.asarray(model.initial_state(motion), dtype=float)
     period_end = periods0[0] if L_end == L0 else model.mode_periods_s(L_end)[0]
-    return _Variant(scene, motion, model, cuts, coef, grid, seg, y0, np.asarray(model.rest_direction(L_end)),
+    return PreparedVariant(scene, motion, model, cuts, coef, grid, seg, y0, np.asarray(model.rest_direction(L_end)),
                     float(periods0[0]), float(period_end), L_end, motion.last_move_end_s)
 
 
@@ -187,34 +169,12 @@ class _Run:
 
 
 def _integrate(variants) -> _Run:
-    B = len(variants)
-    tg, sg, coef, t0s = pack_grids(variants)
-    N = tg.shape[1] - 1
+    grids = pack_grids(variants)
     kin = chunk_kinematics(variants)
     eq = _equations(variants)
-    nq = eq.structure.n_coordinates
-    ar = np.arange(B)
-    nst = rk8.N_STAGES
-    Y = np.empty((N + 1, 2 * nq, B))
-    A0 = np.empty((N, nq, B))
-    A1 = np.empty((N, nq, B))
-    y = np.stack([v.y0 for v in variants], axis=1)
-    Y[0] = y
-    K = np.empty((nst, 2 * nq, B))
-    with np.errstate(all="ignore"):
-        for k in range(N):
-            t0 = tg[:, k]
-            h = tg[:, k + 1] - t0
-            c = coef[ar, sg[:, k]]
-            tau0 = t0 - t0s[ar, sg[:, k]]
-            for s in range(nst):
-                ys = y if s == 0 else y + h * combine(A_NZ[s], K)
-                K[s] = _rhs(ys, kin(c, tau0 + rk8.C[s] * h), eq)
-            y = y + h * combine(B_NZ, K)
-            Y[k + 1] = y
-            A0[k] = K[0, nq:]
-            # accelerations at the step's end on the step's own segment (left limit)
-            A1[k] = _rhs(y, kin(c, tau0 + h), eq)[nq:]
+    Y, A0, A1 = integrate_steps(np.stack([v.y0 for v in variants], axis=1), grids, kin,
+                                lambda y, k: _rhs(y, k, eq))
+    tg, sg, coef, t0s = grids
     return _Run(tg, sg, coef, t0s, Y, A0, A1, kin, eq)
 
 
@@ -232,21 +192,9 @@ def _pair(run: _Run, sel, i, j) -> dense.IntegratedChunk:
 
 
 def _facts(vs) -> VariantFacts:
-    return VariantFacts(
-        move_end_s=np.array([x.move_end for x in vs]),
-        run_end_s=np.array([x.scene.duration_s for x in vs]),
-        natural_period_s=np.array([x.period0 for x in vs]),
-        natural_period_end_s=np.array([x.period_end for x in vs]),
-        settle_threshold_rad=np.radians([x.scene.limits.settle_deg for x in vs]),
-        rope_length_start_m=np.array([x.scene.rope.length_m for x in vs]),
-        rope_length_end_m=np.array([x.L_end for x in vs]),
-        fixed_length=np.zeros(len(vs), dtype=bool),  # the load's excursion is measured, not L |n_h|
-        rest_direction=np.stack([x.rest for x in vs]),
-        mass_kg=np.array([x.model.hanging_mass_kg for x in vs]),
-        gravity_m_s2=np.array([x.model.gravity_m_s2 for x in vs]),
-        falls=np.array([x.scene.rope.falls for x in vs], dtype=float),
-        reeving_efficiency=np.array([x.scene.rope.reeving_efficiency for x in vs]),
-    )
+    # the load's excursion is measured, not L |n_h|
+    return variant_facts(vs, [x.model.hanging_mass_kg for x in vs], [x.model.gravity_m_s2 for x in vs],
+                         np.zeros(len(vs), dtype=bool))
 
 
 def _details(eq: _Equations, q, qd, kin, sel):
@@ -305,19 +253,8 @@ def _measure(run: _Run, variants, sel, samples_per_step):
         if st.tilt_index is not None:
             ia = st.tilt_index
             ok &= np.all(np.cos(q[ia]) * np.cos(q[ia + 1]) > wlim, axis=1)
-    rest = facts.rest_direction
-    nz = -w1
-
-    def swing_at(rows, idx):
-        n = np.stack([u1[rows, idx], v1[rows, idx], nz[rows, idx]], axis=-1)
-        return definitions.angle_between(n, rest[rows])
-
-    runs = SampledRuns(
-        time_s=s01.time_s, horizontal_sq=r2, cos_swing=definitions.cos_swing(u1, v1, nz, rest),
-        swing_at=swing_at, offset_x=u1 - rest[:, None, 0], offset_y=v1 - rest[:, None, 1],
-        tension_N=d["T"], excursion_sq_m2=definitions.excursion_sq_m2(d["gx"], d["gy"]),
-        load_vel_x=d["gvx"], load_vel_y=d["gvy"], load_vel_z=d["gvz"],
-        segment_start=s01.segment_start, real=s01.real)
+    runs = direction_runs(s01, u1, v1, w1, facts.rest_direction, d["T"], d["gx"], d["gy"],
+                          (d["gvx"], d["gvy"], d["gvz"]))
     sums = summaries_from_samples(runs, facts, lambda t0: dense.refine_peak_sq(first, local, t0))
     for v, s in zip(vs, sums):
         s.update({"valid": True, "status": "ok", "model": v.model.name, "engine": "batch"})

@@ -11,6 +11,8 @@ acceleration.  :func:`combine` forms the stage sums of the order-8 tableau
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
 from swingsim.batch import rk8
@@ -19,7 +21,50 @@ from swingsim.motion import profiles
 from swingsim.motion.kinematics import AXES
 
 __all__ = ["segment_times", "motion_segments", "step_grid", "rope_lengths", "combine", "A_NZ", "B_NZ",
-           "chunk_kinematics", "pack_grids", "parameter_rows"]
+           "chunk_kinematics", "pack_grids", "parameter_rows", "integrate_steps", "PreparedVariant"]
+
+
+@dataclass
+class PreparedVariant:
+    """One variant made ready for a batch engine: its model, motion, segments and step grid.
+
+    Attributes
+    ----------
+    scene, motion, model : object
+        The validated scene, its Motion and its model.
+    cuts : ndarray
+        Segment boundaries, 0 .. duration [s].
+    coef : ndarray (nseg, 5, 4)
+        Cubic coefficients per axis about each segment start.
+    grid : ndarray
+        Step end times [s].
+    seg : ndarray
+        Segment index of each step.
+    y0 : ndarray
+        Initial state.
+    rest : ndarray (3,)
+        Unit rope direction at rest at the final rope length.
+    period0, period_end : float
+        First swing period at the start and at the final rope length [s].
+    L_end : float
+        Rope length at the end [m].
+    move_end : float
+        End of the last move [s].
+    """
+
+    scene: object
+    motion: object
+    model: object
+    cuts: np.ndarray
+    coef: np.ndarray
+    grid: np.ndarray
+    seg: np.ndarray
+    y0: np.ndarray
+    rest: np.ndarray
+    period0: float
+    period_end: float
+    L_end: float
+    move_end: float
 
 #: The non-zero weights of each stage of the tableau, in a fixed order.
 A_NZ = [[(j, float(rk8.A[s, j])) for j in range(s) if rk8.A[s, j] != 0.0] for s in range(rk8.N_STAGES)]
@@ -247,3 +292,54 @@ def parameter_rows(par: dict, sel, ndim: int) -> dict:
             a = a.reshape(a.shape + (1,) * (ndim - 1))
         out[k] = a
     return out
+
+
+def integrate_steps(y0, grids, kinematics, rhs):
+    """Fixed steps of the order-8 tableau over a chunk, each variant on its own grid.
+
+    Parameters
+    ----------
+    y0 : ndarray (2 n, B)
+        Initial states: n coordinates, then their rates [state units].
+    grids : tuple of ndarray
+        The chunk's :func:`pack_grids`.
+    kinematics : ChunkKinematics
+        The chunk's crane motion (:func:`chunk_kinematics`).
+    rhs : callable
+        ``rhs(y, kin) -> dy/dt`` for states (2 n, B) and the motion ``kin`` at the same
+        instants (SuspensionRates) [state units / s].
+
+    Returns
+    -------
+    tuple of ndarray
+        ``(states (N+1, 2 n, B), accel_start (N, n, B), accel_end (N, n, B))``: the
+        states at the step ends, the accelerations at each step's start (right limit)
+        and end (left limit, on the step's own segment) [state units, per s^2].
+    """
+    tg, sg, coef, t0s = grids
+    n2, B = y0.shape
+    nq = n2 // 2
+    N = tg.shape[1] - 1
+    ar = np.arange(B)
+    nst = rk8.N_STAGES
+    Y = np.empty((N + 1, n2, B))
+    A0 = np.empty((N, nq, B))
+    A1 = np.empty((N, nq, B))
+    y = y0
+    Y[0] = y
+    K = np.empty((nst, n2, B))
+    with np.errstate(all="ignore"):
+        for k in range(N):
+            t0 = tg[:, k]
+            h = tg[:, k + 1] - t0
+            c = coef[ar, sg[:, k]]
+            tau0 = t0 - t0s[ar, sg[:, k]]
+            for s in range(nst):
+                ys = y if s == 0 else y + h * combine(A_NZ[s], K)
+                K[s] = rhs(ys, kinematics(c, tau0 + rk8.C[s] * h))
+            y = y + h * combine(B_NZ, K)
+            Y[k + 1] = y
+            A0[k] = K[0, nq:]
+            # accelerations at the step's end on the step's own segment (left limit)
+            A1[k] = rhs(y, kinematics(c, tau0 + h))[nq:]
+    return Y, A0, A1
