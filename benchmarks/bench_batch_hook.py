@@ -110,6 +110,16 @@ def main() -> None:
     print(f"accuracy on the {len(sub)} looped variants: peak rope angle {d_pk:.2e} deg, residual {d_res:.2e} deg "
           f"(goal {GOAL_DEG} deg: {'met' if max(d_pk, d_res) <= GOAL_DEG else 'NOT met'}); "
           f"peak hook load {100 * d_T:.3f} %")
+    stats = pstats.Stats(prof)
+    phase = {}
+    for (path, _, name), (_, _, _, cum, _) in stats.stats.items():
+        if path.endswith("hook_engine.py") and name in ("_prepare", "_integrate", "_measure"):
+            phase[name] = phase.get(name, 0.0) + cum
+    print(f"phases: preparing the variants {phase.get('_prepare', 0.0):.1f} s (motion, swing modes, rest "
+          f"in the wind, one variant at a time), integrating {phase.get('_integrate', 0.0):.1f} s "
+          f"(the equations on arrays of variants), measuring {phase.get('_measure', 0.0):.1f} s; "
+          "the remaining limit is Python's cost per array operation (a few hundred per right-hand "
+          "side, whatever the number of variants) and the per-variant preparation")
     out = io.StringIO()
     pstats.Stats(prof, stream=out).sort_stats("tottime").print_stats(12)
     lines = [ln for ln in out.getvalue().splitlines() if ln.strip()]
