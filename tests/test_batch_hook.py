@@ -2,10 +2,12 @@
 
 Reference: swingsim.simulation.simulate -- scipy.integrate.solve_ivp, method DOP853, rtol 1e-10,
 atol 1e-12, restarted at every breakpoint, with its terminal events -- and
-swingsim.metrics.summarize on it.  Random variants of every structure the model has: a rigid load on a bridle under a hook block, a spreader, a single leg
-swinging below a hook block (with a rigid and with a point load), a rigid load on the rope's
-end, a point load on a sling leg without a hook block, and the elastic rope (alone and under a
-hook block with a bridle).
+swingsim.metrics.summarize on it.  Random variants of every structure the model has: a rigid
+load on a bridle under a hook block, a spreader, a single leg swinging below a hook block (with
+a rigid load, and with a point load in wind while hoisting), a rigid load on the rope's end, a
+point load on a sling leg without a hook block, and the elastic rope (alone while hoisting, and
+under a hook block with a bridle).  A hook block always has rigging below it (the scene reader
+refuses one without), so there is no "hook block with the load on it" structure of its own.
 """
 
 import math

@@ -57,8 +57,8 @@ import numpy as np
 
 from swingsim.batch import dense, hook_engine
 from swingsim.batch.measure import VariantFacts, measure_block, variant_facts
-from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments, pack_grids, parameter_rows,
-                                     rope_lengths, step_grid)
+from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments,
+                                     pack_grids, parameter_rows, rope_lengths, step_grid)
 from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize

@@ -44,8 +44,8 @@ import numpy as np
 from swingsim import constants
 from swingsim.batch import dense
 from swingsim.batch.measure import VariantFacts, direction_runs, summaries_from_samples, variant_facts
-from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments, pack_grids, parameter_rows,
-                                     rope_lengths, step_grid)
+from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments,
+                                     pack_grids, parameter_rows, rope_lengths, step_grid)
 from swingsim.dynamics.hook_load import PARAMETER_NAMES, ArrayArithmetic, HookLoadModel, equations_of_motion
 from swingsim.dynamics.registry import select_model
 from swingsim.dynamics.rope import ElasticRope
@@ -98,7 +98,7 @@ def _prepare(scene, steps_per_period) -> PreparedVariant:
     y0 = np.asarray(model.initial_state(motion), dtype=float)
     period_end = periods0[0] if L_end == L0 else model.mode_periods_s(L_end)[0]
     return PreparedVariant(scene, motion, model, cuts, coef, grid, seg, y0, np.asarray(model.rest_direction(L_end)),
-                    float(periods0[0]), float(period_end), L_end, motion.last_move_end_s)
+                           float(periods0[0]), float(period_end), L_end, motion.last_move_end_s)
 
 
 # ----------------------------------------------------------------------------
