@@ -27,6 +27,7 @@ def main(repeats: int = 3) -> None:
         ms = sim / scene.duration_s * 60.0  # per 60 s of simulated time
         print(f"{name}: {traj.model.name}, {scene.duration_s:g} s simulated, {traj.nfev} rhs calls; "
               f"simulate median {sim:.2f} s ({ms:.2f} s per 60 s), "
+              f"({1e6 * sim / traj.nfev:.0f} us per rhs call, solver included), "
               f"with summarize {tot:.2f} s; goal simulate < {GOAL_S:g} s per 60 s: "
               f"{'met' if ms < GOAL_S else 'NOT met'}")
 

@@ -56,14 +56,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from swingsim.batch import dense, rk8
-from swingsim.batch.kinematics import ChunkKinematics
-from swingsim.batch.measure import VariantFacts, measure_block
+from swingsim.batch import dense, hook_engine
+from swingsim.batch.measure import VariantFacts, measure_block, variant_facts
+from swingsim.batch.segments import chunk_kinematics, integrate_steps, parameter_rows, segment_times
 from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force, wind_terms
 from swingsim.dynamics.wind import BatchWind, WindField
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize
-from swingsim.motion import profiles
 from swingsim.motion.kinematics import AXES, Motion
 from swingsim.motion.registry import build_profile, crane_boom, needs_swing_period
 from swingsim.simulation import simulate
@@ -86,26 +85,8 @@ SUMMARY_KEYS = (
     "peak_rope_tension_kN", "min_rope_tension_kN", "static_rope_tension_kN", "dynamic_factor",
     "peak_load_speed_m_s", "rope_length_start_m", "rope_length_end_m",
     "natural_period_s", "measured_period_s", "settle_time_s", "settled_at_s",
+    "peak_hook_load_kN", "peak_line_pull_kN",
 )
-
-# the non-zero weights of each stage, in a fixed order
-_A_NZ = [[(j, float(rk8.A[s, j])) for j in range(s) if rk8.A[s, j] != 0.0] for s in range(rk8.N_STAGES)]
-_B_NZ = [(j, float(rk8.B[j])) for j in range(rk8.N_STAGES) if rk8.B[j] != 0.0]
-
-
-def _combine(weights, K):
-    """sum_j w_j K[j], element by element in a fixed order.
-
-    Not ``tensordot`` (BLAS): a BLAS kernel may round an element differently
-    depending on where it sits in the array, and a variant's result must not
-    depend on the other variants of its chunk.
-    """
-    j, w = weights[0]
-    acc = w * K[j]
-    for j, w in weights[1:]:
-        acc += w * K[j]
-    return acc
-
 
 # ----------------------------------------------------------------------------
 # which variants the engine takes
@@ -122,29 +103,24 @@ def supported(scene) -> bool:
     Returns
     -------
     bool
-        True when the scene's model is the point-mass model and the suspension
-        point stays at its height; other models (and a model extension that cannot
-        be built), and a boom crane that luffs (its tip moves on an arc, which
-        the vectorised kinematics leave out), go to the single-run solver.
+        True when the suspension point stays at its height and the scene's model
+        is the point-mass model or the hook-and-load model (``hook_engine.py``,
+        unless its load rests for lift-off or its wind varies); other models (and
+        a model extension that cannot be built), and a boom crane that luffs (its
+        tip moves on an arc, which the vectorised kinematics leave out), go to the
+        single-run solver.
     """
+    return _point_mass(scene) or hook_engine.supported(scene)
+
+
+def _point_mass(scene) -> bool:
+    """Whether the point-mass path of this module integrates the scene."""
     if scene.crane.has_boom and any(m.axis == "radius" for m in scene.moves):
         return False
     try:
         return type(select_model(scene)) is PointMassModel
     except Exception:  # a model extension that cannot build: leave it to simulate
         return False
-
-
-def _segment_times(prof) -> set:
-    """Instants where a profile stops being one cubic (breakpoints and spline knots)."""
-    if isinstance(prof, profiles.SumProfile):
-        out = set()
-        for _, s, p in prof.parts:
-            out |= {b + s for b in _segment_times(p)}
-        return out
-    if isinstance(prof, profiles.SplineProfile):
-        return {prof.start_s + float(x) for x in prof.spline.x}
-    return set(float(b) for b in prof.breakpoints)
 
 
 def _period(scene, L):
@@ -200,7 +176,7 @@ def _cuts_and_coefficients(key, moves, T, cache, breakpoints=()):
         return got
     pts = {0.0, T} | {b for b in breakpoints if 0.0 < b < T}
     for _, prof in moves:
-        pts |= {b for b in _segment_times(prof) if 0.0 < b < T}
+        pts |= {b for b in segment_times(prof) if 0.0 < b < T}
     cuts = np.array(sorted(pts))
     cuts = cuts[np.concatenate([[True], np.diff(cuts) > 1e-12])]
     if cuts[-1] != T:
@@ -314,22 +290,13 @@ def _supported_row(table, i, verdicts) -> bool:
         if gs.crane.has_boom and any(mv.axis == "radius" for mv in ms.moves):
             got = False
         else:
-            got = supported(gs)
+            got = _point_mass(gs)
         verdicts[key] = got
     return got
 
 
 # ----------------------------------------------------------------------------
 # kinematics and right-hand side over a chunk
-
-
-def _kinematics(variants) -> ChunkKinematics:
-    used = np.zeros(len(AXES), dtype=bool)
-    for v in variants:
-        used |= np.any(v.coef != 0.0, axis=(0, 2))
-    # the polar coordinates are taken about each variant's slew centre (only rates are needed)
-    return ChunkKinematics([np.subtract(v.motion.origin_m, (*v.motion.slew_center_m, 0.0)) for v in variants],
-                           [v.motion.rope_length_m for v in variants], used)
 
 
 def _force_parameters(variants):
@@ -352,19 +319,6 @@ def _wind(par, t, L, w, pz=None):
     if field is None:
         return None
     return wind_terms(field, t, par["pz"] if pz is None else pz, L, w)
-
-
-def _force_rows(par, sel, ndim):
-    out = {}
-    for k, a in par.items():
-        if isinstance(a, BatchWind):
-            out[k] = a.select(sel)
-            continue
-        if isinstance(a, np.ndarray):
-            a = a[sel]
-            a = a.reshape(a.shape + (1,) * (ndim - 1))
-        out[k] = a
-    return out
 
 
 def _rhs(y, kin, par, t=None):
@@ -393,48 +347,17 @@ def _integrate(variants) -> dense.IntegratedChunk:
         k = len(v.cuts) - 1
         coef[i, :k] = v.coef
         t0s[i, :k] = v.cuts[:-1]
-    kin = _kinematics(variants)
+    kin = chunk_kinematics(variants)
     par = _force_parameters(variants)
-    ar = np.arange(B)
-    nst = rk8.N_STAGES
-    Y = np.empty((N + 1, 4, B))
-    A0 = np.empty((N, 2, B))
-    A1 = np.empty((N, 2, B))
-    y = np.stack([v.y0 for v in variants], axis=1)  # (4, B)
-    Y[0] = y
-    K = np.empty((nst, 4, B))
-    with np.errstate(all="ignore"):
-        for k in range(N):
-            t0 = tg[:, k]
-            h = tg[:, k + 1] - t0
-            c = coef[ar, sg[:, k]]
-            tau0 = t0 - t0s[ar, sg[:, k]]
-            for s in range(nst):
-                ys = y if s == 0 else y + h * _combine(_A_NZ[s], K)
-                K[s] = _rhs(ys, kin(c, tau0 + rk8.C[s] * h), par, t0 + rk8.C[s] * h)
-            y = y + h * _combine(_B_NZ, K)
-            Y[k + 1] = y
-            A0[k] = K[0, 2:]
-            # accelerations at the step's end on the step's own segment (left limit)
-            A1[k] = _rhs(y, kin(c, tau0 + h), par, t0 + h)[2:]
+    y0 = np.stack([v.y0 for v in variants], axis=1)  # (4, B)
+    Y, A0, A1 = integrate_steps(y0, (tg, sg, coef, t0s), kin, lambda y, k, t: _rhs(y, k, par, t))
     return dense.IntegratedChunk(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 
 def _facts(vs) -> VariantFacts:
     """What the summary needs to know of the variants ``vs``."""
-    return VariantFacts(
-        move_end_s=np.array([x.move_end for x in vs]),
-        run_end_s=np.array([x.scene.duration_s for x in vs]),
-        natural_period_s=np.array([x.period0 for x in vs]),
-        natural_period_end_s=np.array([x.period_end for x in vs]),
-        settle_threshold_rad=np.radians([x.scene.limits.settle_deg for x in vs]),
-        rope_length_start_m=np.array([x.scene.rope.length_m for x in vs]),
-        rope_length_end_m=np.array([x.L_end for x in vs]),
-        fixed_length=np.array([not bool(x.coef[:, AXES.index("hoist")].any()) for x in vs]),
-        rest_direction=np.stack([x.rest for x in vs]),
-        mass_kg=np.array([x.model.par["m"] for x in vs]),
-        gravity_m_s2=np.array([x.model.par["g"] for x in vs]),
-    )
+    return variant_facts(vs, [x.model.par["m"] for x in vs], [x.model.par["g"] for x in vs],
+                         [not bool(x.coef[:, AXES.index("hoist")].any()) for x in vs])
 
 
 #: Rows of a chunk measured together (bounds the memory of the dense samples).
@@ -447,7 +370,7 @@ def _chunk_batch(variants, samples_per_step):
     for i in range(0, len(variants), _MEASURE_ROWS):
         sel = np.arange(i, min(i + _MEASURE_ROWS, len(variants)))
         block = measure_block(dense.sample(run, sel, samples_per_step), _facts([variants[j] for j in sel]),
-                              _force_rows(run.forces, sel, 2),
+                              parameter_rows(run.forces, sel, 2),
                               lambda t0, sel=sel: dense.refine_peak_sq(run, sel, t0))
         sums.extend(block.summaries)
         oks.append(block.ok)
@@ -587,6 +510,16 @@ def run_table_chunk(table, rows=None, *, steps_per_period=DEFAULT_STEPS_PER_PERI
         for k, s, good in zip(todo, sums, ok):
             if good:
                 out[k] = {key: s.get(key) for key in SUMMARY_KEYS}
+    if engine == "batch":
+        # the hook-and-load model (hook_engine.py, grouped by structure there), from full scenes
+        hook = [k for k, i in enumerate(rows) if out[k] is None and hook_engine.supported(table.scene(i))]
+        if hook:
+            sums, ok = hook_engine.run_variants([table.scene(rows[k]) for k in hook],
+                                                steps_per_period=steps_per_period,
+                                                samples_per_step=samples_per_step)
+            for k, s, good in zip(hook, sums, ok):
+                if good and _all_finite(s):
+                    out[k] = {key: s.get(key) for key in SUMMARY_KEYS}
     for k, i in enumerate(rows):
         if out[k] is None:
             out[k] = _single(table.scene(i))

@@ -46,6 +46,10 @@ class VariantFacts:
         Load mass [kg].
     gravity_m_s2 : ndarray
         Gravitational acceleration [m/s^2].
+    falls : ndarray, optional
+        Falls of the reeving [-] (1 when not given).
+    reeving_efficiency : ndarray, optional
+        Overall efficiency of the reeving [-] (1 when not given).
     """
 
     move_end_s: np.ndarray
@@ -59,6 +63,44 @@ class VariantFacts:
     rest_direction: np.ndarray
     mass_kg: np.ndarray
     gravity_m_s2: np.ndarray
+    falls: np.ndarray | None = None
+    reeving_efficiency: np.ndarray | None = None
+
+
+def variant_facts(vs, mass_kg, gravity_m_s2, fixed_length) -> VariantFacts:
+    """What the summary needs to know of prepared variants (``segments.PreparedVariant``).
+
+    Parameters
+    ----------
+    vs : list of PreparedVariant
+        The variants.
+    mass_kg : ndarray
+        Mass hanging on the hoist rope of each [kg].
+    gravity_m_s2 : ndarray
+        Gravitational acceleration of each [m/s^2].
+    fixed_length : ndarray of bool
+        Where the excursion is the rope length times :math:`|n_h|` (point mass, not hoisted).
+
+    Returns
+    -------
+    VariantFacts
+        Arrays (B,).
+    """
+    return VariantFacts(
+        move_end_s=np.array([x.move_end for x in vs]),
+        run_end_s=np.array([x.scene.duration_s for x in vs]),
+        natural_period_s=np.array([x.period0 for x in vs]),
+        natural_period_end_s=np.array([x.period_end for x in vs]),
+        settle_threshold_rad=np.radians([x.scene.limits.settle_deg for x in vs]),
+        rope_length_start_m=np.array([x.scene.rope.length_m for x in vs]),
+        rope_length_end_m=np.array([x.L_end for x in vs]),
+        fixed_length=np.asarray(fixed_length, dtype=bool),
+        rest_direction=np.stack([x.rest for x in vs]),
+        mass_kg=np.asarray(mass_kg, dtype=float),
+        gravity_m_s2=np.asarray(gravity_m_s2, dtype=float),
+        falls=np.array([x.scene.rope.falls for x in vs], dtype=float),
+        reeving_efficiency=np.array([x.scene.rope.reeving_efficiency for x in vs]),
+    )
 
 
 @dataclass(frozen=True)
@@ -153,20 +195,49 @@ def measure_block(samples: DenseSamples, facts: VariantFacts, forces: dict, refi
     # a run the model cannot carry on goes to the single-run solver (events, exact stop)
     ok = np.all(np.isfinite(r2) & np.isfinite(tpm), axis=1)
     ok &= np.all(tpm > 0.0, axis=1) & np.all(w > wlim, axis=1)
-    rest = facts.rest_direction
+    runs = direction_runs(samples, u, v, w, facts.rest_direction, facts.mass_kg[:, None] * tpm,
+                          L * u, L * v, (load_vel_x, load_vel_y, load_vel_z))
+    return MeasuredBlock(summaries_from_samples(runs, facts, refine_peak_sq), ok)
+
+
+def direction_runs(samples: DenseSamples, u, v, w, rest, tension_N, excursion_x, excursion_y,
+                   load_vel) -> SampledRuns:
+    """The sampled quantities of a block of runs from its hoist rope's direction.
+
+    Parameters
+    ----------
+    samples : DenseSamples
+        Dense samples of the block (times, segment starts, padding).
+    u, v, w : ndarray (B, M)
+        The unit rope direction :math:`n = (u, v, -w)` at the samples [-].
+    rest : ndarray (B, 3)
+        Unit rope direction at rest [-].
+    tension_N : ndarray (B, M)
+        Hoist rope tension [N].
+    excursion_x, excursion_y : ndarray (B, M)
+        The load's horizontal offset from the suspension point [m].
+    load_vel : tuple of ndarray
+        The load's velocity components (B, M) [m/s].
+
+    Returns
+    -------
+    SampledRuns
+        What :func:`summaries_from_samples` measures.
+    """
     nz = -w
 
     def swing_at(rows, idx):
         n = np.stack([u[rows, idx], v[rows, idx], nz[rows, idx]], axis=-1)
         return definitions.angle_between(n, rest[rows])
 
-    runs = SampledRuns(
-        time_s=samples.time_s, horizontal_sq=r2, cos_swing=definitions.cos_swing(u, v, nz, rest),
+    with np.errstate(all="ignore"):
+        horizontal_sq = u * u + v * v
+    return SampledRuns(
+        time_s=samples.time_s, horizontal_sq=horizontal_sq, cos_swing=definitions.cos_swing(u, v, nz, rest),
         swing_at=swing_at, offset_x=u - rest[:, None, 0], offset_y=v - rest[:, None, 1],
-        tension_N=facts.mass_kg[:, None] * tpm, excursion_sq_m2=definitions.excursion_sq_m2(L * u, L * v),
-        load_vel_x=load_vel_x, load_vel_y=load_vel_y, load_vel_z=load_vel_z,
+        tension_N=tension_N, excursion_sq_m2=definitions.excursion_sq_m2(excursion_x, excursion_y),
+        load_vel_x=load_vel[0], load_vel_y=load_vel[1], load_vel_z=load_vel[2],
         segment_start=samples.segment_start, real=samples.real)
-    return MeasuredBlock(summaries_from_samples(runs, facts, refine_peak_sq), ok)
 
 
 def _windows(t, x, kink=None):
@@ -305,6 +376,10 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
     t_max = _best_peak(t, runs.tension_N, None, kink)[2]
     t_min = np.min(runs.tension_N, axis=1)
     static = facts.mass_kg * facts.gravity_m_s2
+    # the hook load is the hoist rope's tension; the line pull its share per fall
+    falls = 1.0 if facts.falls is None else facts.falls
+    efficiency = 1.0 if facts.reeving_efficiency is None else facts.reeving_efficiency
+    line_pull = definitions.line_pull(t_max, falls, efficiency)
     with np.errstate(all="ignore"):
         speed = definitions.peak_speed_m_s(runs.load_vel_x, runs.load_vel_y, runs.load_vel_z)
     measured = definitions.measured_period(t, runs.offset_x, runs.offset_y, post,
@@ -315,7 +390,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
     deg = 180.0 / math.pi
     cols = {
         "pk": pk * deg, "pk_t": pk_t, "res": res * deg, "rsw": rsw * deg, "swe": sw_end * deg,
-        "exc": exc, "Tmax": t_max / 1e3, "Tmin": t_min / 1e3, "stat": static / 1e3,
+        "exc": exc, "Tmax": t_max / 1e3, "pull": line_pull / 1e3, "Tmin": t_min / 1e3, "stat": static / 1e3,
         "df": definitions.dynamic_factor(t_max, static), "speed": speed, "meas": measured.period_s,
         "set": settled_at, "me": move_end, "L0": facts.rope_length_start_m,
         "Le": facts.rope_length_end_m, "p0": facts.natural_period_s,
@@ -336,6 +411,8 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
             "swing_at_move_end_deg": cols["swe"][b] if ap[b] else None,
             "peak_excursion_m": cols["exc"][b],
             "peak_rope_tension_kN": cols["Tmax"][b],
+            "peak_hook_load_kN": cols["Tmax"][b],
+            "peak_line_pull_kN": cols["pull"][b],
             "min_rope_tension_kN": cols["Tmin"][b],
             "static_rope_tension_kN": cols["stat"][b],
             "dynamic_factor": cols["df"][b],

@@ -74,6 +74,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import replace
+from typing import NamedTuple
 
 import numpy as np
 
@@ -118,6 +119,391 @@ def model_name(scene) -> str | None:
     if scene.rigging is not None:
         return "sling-load"
     return None
+
+
+# -- the equations of motion, for one state (floats) or many (arrays) -------------------
+
+
+def _on(coefficient) -> bool:
+    """False only for a coefficient that is a plain zero (a term that is off everywhere)."""
+    return not (isinstance(coefficient, (int, float)) and coefficient == 0.0)
+
+
+class FloatArithmetic:
+    """Arithmetic of the equations on one state of plain floats (the single-run fast path)."""
+
+    sqrt = staticmethod(math.sqrt)
+    cos = staticmethod(math.cos)
+    sin = staticmethod(math.sin)
+
+    @staticmethod
+    def positive(x):
+        """The positive part of ``x``.
+
+        Parameters
+        ----------
+        x : float
+            A value [any unit].
+
+        Returns
+        -------
+        float
+            ``max(x, 0)`` [the unit of ``x``].
+        """
+        return x if x > 0.0 else 0.0
+
+    @staticmethod
+    def solve(rows, forces, masses, diagonal, generalised):
+        """Generalised accelerations from the stacked Jacobian: ``M qdd = Q``.
+
+        :math:`M = B^T \\operatorname{diag}(m) B + D`, :math:`Q = B^T f + g`.
+
+        Parameters
+        ----------
+        rows : list of list
+            Rows of the stacked point Jacobians (3 per point) [m per chart unit].
+        forces : list
+            Applied force less mass times bias acceleration, per row [N].
+        masses : list
+            Mass of each row's point [kg].
+        diagonal : dict
+            Additions to diagonal entries of ``M``, by index (a rigid load's rotation)
+            [kg m^2 per chart unit^2].
+        generalised : dict
+            Additions to entries of ``Q``, by index [N m per chart unit].
+
+        Returns
+        -------
+        ndarray (n,)
+            Accelerations [chart units / s^2].
+        """
+        B = np.array(rows)
+        mw = np.array(masses)
+        M = B.T @ (mw[:, None] * B)
+        Q = B.T @ np.array(forces)
+        for i, x in diagonal.items():
+            M[i, i] += x
+        for i, x in generalised.items():
+            Q[i] += x
+        return np.linalg.solve(M, Q)
+
+
+class ArrayArithmetic(FloatArithmetic):
+    """Arithmetic of the equations on many states at once (every quantity an array or a float).
+
+    Element by element with a fixed order of sums (no BLAS, no LAPACK): ``M`` is
+    summed entry by entry, skipping the Jacobian's structural zeros, and factored
+    as :math:`L D L^T` (``M`` is symmetric positive definite), so the result for
+    one state does not depend on the other states of the array (see
+    ``batch/engine.py``).
+    """
+
+    sqrt = staticmethod(np.sqrt)
+    cos = staticmethod(np.cos)
+    sin = staticmethod(np.sin)
+
+    @staticmethod
+    def positive(x):
+        return np.maximum(x, 0.0)
+
+    @staticmethod
+    def solve(rows, forces, masses, diagonal, generalised):
+        n = len(rows[0])
+        # every force holds a state, so together they have the states' full shape
+        shape = np.broadcast_shapes(*(np.shape(x) for x in forces))
+        weighted = [[m * x if _on(x) else 0.0 for x in r] for r, m in zip(rows, masses)]
+        M = [[0.0] * n for _ in range(n)]  # lower triangle
+        for i in range(n):
+            for j in range(i + 1):
+                acc = 0.0
+                for r, mr in zip(rows, weighted):
+                    if _on(mr[i]) and _on(r[j]):
+                        acc = acc + mr[i] * r[j]
+                M[i][j] = acc
+        Q = []
+        for i in range(n):
+            acc = 0.0
+            for r, f in zip(rows, forces):
+                if _on(r[i]):
+                    acc = acc + r[i] * f
+            Q.append(acc)
+        for i, x in diagonal.items():
+            M[i][i] = M[i][i] + x
+        for i, x in generalised.items():
+            Q[i] = Q[i] + x
+        # M = L D L^T (Golub & Van Loan, Matrix Computations, sec. 4.1), then two triangular solves
+        L = [[0.0] * n for _ in range(n)]
+        D = [0.0] * n
+        for j in range(n):
+            d = M[j][j]
+            for k in range(j):
+                if _on(L[j][k]):
+                    d = d - L[j][k] * L[j][k] * D[k]
+            D[j] = d
+            for i in range(j + 1, n):
+                s = M[i][j]
+                for k in range(j):
+                    if _on(L[i][k]) and _on(L[j][k]):
+                        s = s - L[i][k] * L[j][k] * D[k]
+                L[i][j] = s / d if _on(s) else 0.0
+        z = list(Q)
+        for i in range(n):
+            for k in range(i):
+                if _on(L[i][k]):
+                    z[i] = z[i] - L[i][k] * z[k]
+        x = [z[i] / D[i] for i in range(n)]
+        for i in reversed(range(n)):
+            for k in range(i + 1, n):
+                if _on(L[k][i]):
+                    x[i] = x[i] - L[k][i] * x[k]
+        return np.stack([np.broadcast_to(v, shape) for v in x], axis=-1)
+
+
+class Structure(NamedTuple):
+    """What fixes the coordinates and the terms of the equations (shared by a batch group).
+
+    Attributes
+    ----------
+    n_coordinates : int
+        Number of generalised coordinates.
+    tilt_index : int or None
+        Index of the tilt ``a`` of a rigid load (``b`` follows).
+    rope_length_index : int or None
+        Index of the elastic rope's stretched length.
+    leg_below_hook : bool
+        A single leg swinging on its own below the hook block.
+    rope_end_mass : bool
+        A mass at the rope's end (hook block, or the point load itself).
+    rope_end_is_hook : bool
+        That mass is a hook block (its drag uses the hook's coefficient).
+    """
+
+    n_coordinates: int
+    tilt_index: object
+    rope_length_index: object
+    leg_below_hook: bool
+    rope_end_mass: bool
+    rope_end_is_hook: bool
+
+
+#: Parameters of :func:`equations_of_motion` (see :meth:`HookLoadModel.equation_parameters`).
+PARAMETER_NAMES = ("g", "zeta", "rope_drag_k", "end_drag_k", "load_drag_k", "end_mass_kg", "load_mass_kg",
+                   "rope_end_leg_m", "leg_below_hook_m", "cg_below_rope_end_m", "c0", "c1", "c2",
+                   "I0", "I1", "I2")
+
+
+def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithmetic, details=False):
+    """Generalised accelerations of the hook-and-load model (module Notes), one state or many.
+
+    The single-run solver calls it with floats (:class:`FloatArithmetic`), the batch
+    engine with arrays of variants (:class:`ArrayArithmetic`): one set of equations.
+    Positions are taken relative to the suspension point (the equations only need
+    differences of positions).
+
+    Parameters
+    ----------
+    q, qd : sequence
+        Generalised coordinates and their rates (floats, or arrays of one shape)
+        [chart units, chart units/s].
+    kin : tuple
+        ``(vx, vy, vz, ax, ay, az, L, dL, ddL, slew_rate)``: suspension-point velocity
+        [m/s] and acceleration [m/s^2], rope length [m] and its rates [m/s, m/s^2], the
+        jib's slew rate [rad/s].
+    par : dict
+        The parameters :data:`PARAMETER_NAMES` (floats or arrays that broadcast with
+        the states): gravity [m/s^2], swing damping ratio [-], drag coefficients
+        ``0.5 rho Cd A`` [kg/m] (the rope's per metre [kg/m^2]), masses [kg], lengths [m],
+        the CG from its pivot in load axes [m], the principal inertias [kg m^2].
+    rope : ElasticRope or None
+        The elastic reeving (its fields floats or arrays); None for an inextensible rope.
+    wind : tuple
+        ``(wx, wy)``: the wind velocity the bodies and the rope see [m/s] (the one
+        place the wind enters the equations).
+    structure : Structure
+        Which coordinates and terms the model has.
+    ops : type
+        :class:`FloatArithmetic` or :class:`ArrayArithmetic`.
+    details : bool
+        Also return the hoist rope's tension, the leg's (below a hook block), the
+        load's position and velocity.
+
+    Returns
+    -------
+    ndarray or dict
+        The accelerations [chart units / s^2] (shape ``(n,)``, or the states' shape
+        plus ``(n,)``); with ``details`` a dict with ``qdd``, ``rope_tension_N`` (the
+        elastic rope's clamped at zero), ``rope_tension_raw_N`` (elastic: before the
+        clamp), ``leg_tension_N`` (leg below a hook block, else None), ``load_pos_m``
+        (relative to the suspension point) and ``load_vel_m_s`` (tuples of 3).
+    """
+    nq, ia, il, link2 = structure.n_coordinates, structure.tilt_index, structure.rope_length_index, \
+        structure.leg_below_hook
+    body = ia is not None
+    vx, vy, vz, ax, ay, az, L, dL, ddL, om_s = kin
+    g = par["g"]
+    sqrt = ops.sqrt
+    u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
+    w1 = sqrt(1.0 - u1 * u1 - v1 * v1)
+    s1 = u1 * du1 + v1 * dv1
+    n1z_d = s1 / w1
+    h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
+    T_raw = None
+    if il is not None:
+        ell, dell = q[il], qd[il]
+        T_raw = rope.tension(ell, dell, L, dL)
+        T = ops.positive(T_raw)
+        ddL_b = 0.0
+    else:
+        ell, dell = L, dL
+        T = 0.0
+        ddL_b = ddL
+    le = ell + par["rope_end_leg_m"]
+    Hx, Hy, Hz = le * u1, le * v1, -le * w1  # relative to the suspension point
+    Hdx = vx + dell * u1 + le * du1
+    Hdy = vy + dell * v1 + le * dv1
+    Hdz = vz - dell * w1 + le * n1z_d
+    z = [0.0] * nq
+    Jx, Jy, Jz = z[:], z[:], z[:]
+    Jx[0] = le
+    Jy[1] = le
+    Jz[0] = le * u1 / w1
+    Jz[1] = le * v1 / w1
+    if il is not None:
+        Jx[il], Jy[il], Jz[il] = u1, v1, -w1
+    bx = ax + ddL_b * u1 + 2 * dell * du1
+    by = ay + ddL_b * v1 + 2 * dell * dv1
+    bz = az - ddL_b * w1 + 2 * dell * n1z_d + le * h1
+    rfx, rfy, rfz = vx + dell * u1, vy + dell * v1, vz - dell * w1
+    Ld = ell + par["cg_below_rope_end_m"]
+    cdamp = 2.0 * par["zeta"] * sqrt(ops.positive(g / Ld))
+    if callable(wind):  # a wind varying in time or height: at the rope end's height
+        wx, wy, rope_factor, load_factor = wind(Hz)
+    else:
+        (wx, wy), rope_factor, load_factor = wind, 1.0, None
+    # forces at the rope's end
+    Fx = -T * u1
+    Fy = -T * v1
+    Fz = T * w1
+    k_rope = par["rope_drag_k"]
+    if _on(k_rope):
+        mx = 0.5 * (vx + Hdx) - rope_factor * wx
+        my = 0.5 * (vy + Hdy) - rope_factor * wy
+        mz = 0.5 * (vz + Hdz)
+        al = mx * u1 + my * v1 - mz * w1
+        nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
+        f = 0.5 * k_rope * ell * sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
+        Fx -= f * nx_
+        Fy -= f * ny_
+        Fz -= f * nz_
+    mH = par["end_mass_kg"]
+    if structure.rope_end_mass:
+        cm = cdamp * mH
+        Fx -= cm * (Hdx - rfx + om_s * Hy)
+        Fy -= cm * (Hdy - rfy - om_s * Hx)
+        Fz -= cm * (Hdz - rfz) + mH * g
+        kd = par["end_drag_k"]
+        if _on(kd):
+            rx, ry, rz = Hdx - wx, Hdy - wy, Hdz
+            sp = kd * sqrt(rx * rx + ry * ry + rz * rz)
+            Fx -= sp * rx
+            Fy -= sp * ry
+            Fz -= sp * rz
+    rows = [Jx, Jy, Jz]
+    fvec = [Fx - mH * bx, Fy - mH * by, Fz - mH * bz]
+    masses = [mH, mH, mH]
+    Gx, Gy, Gz, Gdx, Gdy, Gdz = Hx, Hy, Hz, Hdx, Hdy, Hdz
+    n2 = None
+    if body or link2:
+        Px, Py, Pz, Pdx, Pdy, Pdz = Hx, Hy, Hz, Hdx, Hdy, Hdz
+        Gx_, Gy_, Gz_ = Jx[:], Jy[:], Jz[:]
+        gbx, gby, gbz = bx, by, bz
+        if link2:
+            l2 = par["leg_below_hook_m"]
+            u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
+            w2 = sqrt(1.0 - u2 * u2 - v2 * v2)
+            s2 = u2 * du2 + v2 * dv2
+            n2 = (u2, v2, -w2)
+            Px, Py, Pz = Hx + l2 * u2, Hy + l2 * v2, Hz - l2 * w2
+            Pdx, Pdy, Pdz = Hdx + l2 * du2, Hdy + l2 * dv2, Hdz + l2 * s2 / w2
+            Gx_[2] = Gx_[2] + l2
+            Gy_[3] = Gy_[3] + l2
+            Gz_[2] = Gz_[2] + l2 * u2 / w2
+            Gz_[3] = Gz_[3] + l2 * v2 / w2
+            gbz = gbz + l2 * ((du2 * du2 + dv2 * dv2) / w2 + s2 * s2 / (w2 * w2 * w2))
+        if body:
+            a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
+            ca, sa, cb, sb = ops.cos(a), ops.sin(a), ops.cos(b), ops.sin(b)
+            c0, c1, c2 = par["c0"], par["c1"], par["c2"]
+            r0 = cb * c0 + sb * c2
+            r1 = sa * sb * c0 + ca * c1 - sa * cb * c2
+            r2 = -ca * sb * c0 + sa * c1 + ca * cb * c2
+            o0, o1, o2 = da, db * ca, db * sa  # world angular velocity
+            wr0, wr1, wr2 = o1 * r2 - o2 * r1, o2 * r0 - o0 * r2, o0 * r1 - o1 * r0
+            Gx, Gy, Gz = Px + r0, Py + r1, Pz + r2
+            Gdx, Gdy, Gdz = Pdx + wr0, Pdy + wr1, Pdz + wr2
+            # columns of a, b: ex x r, ey' x r
+            Gy_[ia] = Gy_[ia] - r2
+            Gz_[ia] = Gz_[ia] + r1
+            Gx_[ia + 1] = Gx_[ia + 1] + (ca * r2 - sa * r1)
+            Gy_[ia + 1] = Gy_[ia + 1] + sa * r0
+            Gz_[ia + 1] = Gz_[ia + 1] - ca * r0
+            # bias: bw x r + w x (w x r), bw = da db (0, -sa, ca)
+            k_ = da * db
+            bw1, bw2 = -k_ * sa, k_ * ca
+            gbx = gbx + (bw1 * r2 - bw2 * r1 + (o1 * wr2 - o2 * wr1))
+            gby = gby + (bw2 * r0 + (o2 * wr0 - o0 * wr2))
+            gbz = gbz + (-bw1 * r0 + (o0 * wr1 - o1 * wr0))
+        else:
+            Gx, Gy, Gz, Gdx, Gdy, Gdz = Px, Py, Pz, Pdx, Pdy, Pdz
+        m = par["load_mass_kg"]
+        cm = cdamp * m
+        FGx = -cm * (Gdx - rfx + om_s * Gy)
+        FGy = -cm * (Gdy - rfy - om_s * Gx)
+        FGz = -cm * (Gdz - rfz) - m * g
+        k_load = par["load_drag_k"]
+        if _on(k_load):
+            lwf = 1.0 if load_factor is None else load_factor(Gz)
+            rx, ry, rz = Gdx - lwf * wx, Gdy - lwf * wy, Gdz
+            sp = k_load * sqrt(rx * rx + ry * ry + rz * rz)
+            FGx = FGx - sp * rx
+            FGy = FGy - sp * ry
+            FGz = FGz - sp * rz
+        rows += [Gx_, Gy_, Gz_]
+        fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
+        masses += [m, m, m]
+    diagonal, generalised = {}, {}
+    if body:
+        I0, I1, I2 = par["I0"], par["I1"], par["I2"]
+        # body-frame angular velocity and its bias; Euler's equations about the CG
+        wb0, wb1, wb2 = da * cb, db, da * sb
+        ab0, ab2 = -da * db * sb, da * db * cb
+        h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
+        h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
+        h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
+        diagonal = {ia: I0 * cb * cb + I2 * sb * sb, ia + 1: I1}
+        generalised = {ia: -(cb * h0 + sb * h2), ia + 1: -h1_}
+    qdd = ops.solve(rows, fvec, masses, diagonal, generalised)
+    if not details:
+        return qdd
+    # what is left of each point's momentum balance: the constraint forces (module Notes)
+    acc = [qdd[..., i] for i in range(nq)]
+    rest = []
+    for r, f, mr in zip(rows, fvec, masses):
+        s = f
+        for i, x in enumerate(r):
+            if _on(x):
+                s = s - mr * x * acc[i]
+        rest.append(s)
+    if il is not None:
+        rope_T = T
+    else:  # massless rope: T n1 = sum over the bodies of (F - m a)
+        tot = [sum(rest[c::3]) for c in range(3)]
+        rope_T = u1 * tot[0] + v1 * tot[1] - w1 * tot[2]
+    leg_T = None
+    if link2:  # the leg pulls the load along -n2: T2 = n2 . (F_G - m a_G)
+        leg_T = n2[0] * rest[3] + n2[1] * rest[4] + n2[2] * rest[5]
+    return {"qdd": qdd, "rope_tension_N": rope_T, "rope_tension_raw_N": T_raw, "leg_tension_N": leg_T,
+            "load_pos_m": (Gx, Gy, Gz), "load_vel_m_s": (Gdx, Gdy, Gdz)}
 
 
 class HookLoadModel(ModelDefaults, SwingModel):
@@ -306,6 +692,12 @@ class HookLoadModel(ModelDefaults, SwingModel):
         self.name = model_name(scene)
         self._out_cache = []
         self._hanging_cache = None
+        #: the coordinates and terms of the equations (a batch group shares them)
+        self.structure = Structure(self.n_coordinates, self.tilt_index, self.rope_length_index,
+                                   self.leg_below_hook, self.hook_mass_kg + (
+                                       0.0 if (self.rigid_load or self.leg_below_hook) else self.load_mass_kg) > 0.0,
+                                   self.has_hook_block)
+        self._par = self.equation_parameters()
 
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
@@ -567,161 +959,73 @@ class HookLoadModel(ModelDefaults, SwingModel):
             z, z_ref = z + z0, z_ref + z0
         return float(self.wind.profile_factor(z)) / float(self.wind.profile_factor(z_ref))
 
+    def equation_parameters(self) -> dict:
+        """The parameters the equations read (:data:`PARAMETER_NAMES`), as floats.
+
+        Returns
+        -------
+        dict
+            Gravity [m/s^2], swing damping ratio [-], drag coefficients ``0.5 rho Cd A``
+            [kg/m] (the rope's per metre of rope [kg/m^2]), the rope end's and the
+            load's masses [kg], the leg lengths and the CG's hanging distance below the
+            rope's end [m], the CG from its pivot in load axes ``c0, c1, c2`` [m] and the
+            principal inertias ``I0, I1, I2`` [kg m^2] (zeros for a point load).
+        """
+        body_or_leg = self.rigid_load or self.leg_below_hook
+        c = self.cg_from_pivot_b
+        inertia = self.inertia_b if self.inertia_b is not None else (0.0, 0.0, 0.0)
+        return {
+            "g": self.gravity_m_s2, "zeta": self._swing_damping_ratio, "rope_drag_k": self._rope_drag_k,
+            "end_drag_k": self._hook_drag_k if self.has_hook_block else self._load_drag_k,
+            "load_drag_k": self._load_drag_k,
+            "end_mass_kg": self.hook_mass_kg + (0.0 if body_or_leg else self.load_mass_kg),
+            "load_mass_kg": self.load_mass_kg, "rope_end_leg_m": self.rope_end_leg_m,
+            "leg_below_hook_m": self.leg_below_hook_m, "cg_below_rope_end_m": self._cg_below_rope_end_m,
+            "c0": float(c[0]), "c1": float(c[1]), "c2": float(c[2]),
+            "I0": float(inertia[0]), "I1": float(inertia[1]), "I2": float(inertia[2]),
+        }
+
     def _qdd(self, y, kin_state, t=0.0):
         """Generalised accelerations only: the solver's fast path (same equations as :meth:`_eval`).
 
-        Plain float arithmetic and one stacked Jacobian; the load's rotation in its own
-        axes, where the angular velocity is :math:`\\omega_b = (\\dot a \\cos b, \\dot b,
-        \\dot a \\sin b)` and the inertia is diagonal.  Checked against :meth:`_eval` and
-        the sympy derivation in the tests.
+        :func:`equations_of_motion` on plain floats (the batch engine calls the same
+        function on arrays); the load's rotation in its own axes, where the angular
+        velocity is :math:`\\omega_b = (\\dot a \\cos b, \\dot b, \\dot a \\sin b)` and the
+        inertia is diagonal.  Checked against :meth:`_eval` and the sympy derivation
+        in the tests.
         """
         nq = self.n_coordinates
         yl = y.tolist()
-        q, qd = yl[:nq], yl[nq:]
-        px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL = kin_state[:12]
         om_s = kin_state[12] if len(kin_state) > 12 else 0.0
-        g = self.gravity_m_s2
-        sqrt = math.sqrt
-        u1, v1, du1, dv1 = q[0], q[1], qd[0], qd[1]
-        w1 = sqrt(1.0 - u1 * u1 - v1 * v1)
-        s1 = u1 * du1 + v1 * dv1
-        n1z_d = s1 / w1
-        h1 = (du1 * du1 + dv1 * dv1) / w1 + s1 * s1 / (w1 * w1 * w1)
-        il = self.rope_length_index
-        if self.rope_is_elastic:
-            ell, dell = q[il], qd[il]
-            T = self.elastic_rope.tension(ell, dell, L, dL)
-            T = T if T > 0.0 else 0.0
-            ddL_b = 0.0
-        else:
-            ell, dell = L, dL
-            T = 0.0
-            ddL_b = ddL
-        le = ell + self.rope_end_leg_m
-        Hx, Hy, Hz = px + le * u1, py + le * v1, pz - le * w1
-        Hdx = vx + dell * u1 + le * du1
-        Hdy = vy + dell * v1 + le * dv1
-        Hdz = vz - dell * w1 + le * n1z_d
-        z = [0.0] * nq
-        Jx, Jy, Jz = z[:], z[:], z[:]
-        Jx[0] = le
-        Jy[1] = le
-        Jz[0] = le * u1 / w1
-        Jz[1] = le * v1 / w1
-        if il is not None:
-            Jx[il], Jy[il], Jz[il] = u1, v1, -w1
-        bx = ax + ddL_b * u1 + 2 * dell * du1
-        by = ay + ddL_b * v1 + 2 * dell * dv1
-        bz = az - ddL_b * w1 + 2 * dell * n1z_d + le * h1
-        rfx, rfy, rfz = vx + dell * u1, vy + dell * v1, vz - dell * w1
-        Ld = ell + self._cg_below_rope_end_m
-        cdamp = 2.0 * self._swing_damping_ratio * sqrt(g / Ld) if Ld > 0.0 else 0.0
-        wx, wy, rwf = self._wind_terms(t, pz, Hz)
-        # forces at the rope's end
-        Fx = -T * u1
-        Fy = -T * v1
-        Fz = T * w1
-        if self._rope_drag_k:
-            mx = 0.5 * (vx + Hdx) - rwf * wx
-            my = 0.5 * (vy + Hdy) - rwf * wy
-            mz = 0.5 * (vz + Hdz)
-            al = mx * u1 + my * v1 - mz * w1
-            nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
-            f = 0.5 * self._rope_drag_k * ell * sqrt(nx_ * nx_ + ny_ * ny_ + nz_ * nz_)
-            Fx -= f * nx_
-            Fy -= f * ny_
-            Fz -= f * nz_
-        body, link2 = self.rigid_load, self.leg_below_hook
-        mH = self.hook_mass_kg + (0.0 if (body or link2) else self.load_mass_kg)
-        if mH > 0.0:
-            cm = cdamp * mH
-            Fx -= cm * (Hdx - rfx + om_s * (Hy - py))
-            Fy -= cm * (Hdy - rfy - om_s * (Hx - px))
-            Fz -= cm * (Hdz - rfz) + mH * g
-            kd = self._hook_drag_k if self.has_hook_block else self._load_drag_k
-            if kd:
-                rx, ry, rz = Hdx - wx, Hdy - wy, Hdz
-                sp = kd * sqrt(rx * rx + ry * ry + rz * rz)
-                Fx -= sp * rx
-                Fy -= sp * ry
-                Fz -= sp * rz
-        rows = [Jx, Jy, Jz]
-        fvec = [Fx - mH * bx, Fy - mH * by, Fz - mH * bz]
-        masses = [mH, mH, mH]
-        if body or link2:
-            Px, Py, Pz, Pdx, Pdy, Pdz = Hx, Hy, Hz, Hdx, Hdy, Hdz
-            Gx_, Gy_, Gz_ = Jx[:], Jy[:], Jz[:]
-            gbx, gby, gbz = bx, by, bz
-            if link2:
-                l2 = self.leg_below_hook_m
-                u2, v2, du2, dv2 = q[2], q[3], qd[2], qd[3]
-                w2 = sqrt(1.0 - u2 * u2 - v2 * v2)
-                s2 = u2 * du2 + v2 * dv2
-                Px, Py, Pz = Hx + l2 * u2, Hy + l2 * v2, Hz - l2 * w2
-                Pdx, Pdy, Pdz = Hdx + l2 * du2, Hdy + l2 * dv2, Hdz + l2 * s2 / w2
-                Gx_[2] += l2
-                Gy_[3] += l2
-                Gz_[2] += l2 * u2 / w2
-                Gz_[3] += l2 * v2 / w2
-                gbz += l2 * ((du2 * du2 + dv2 * dv2) / w2 + s2 * s2 / (w2 * w2 * w2))
-            if body:
-                ia = self.tilt_index
-                a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
-                ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
-                c0, c1, c2 = self.cg_from_pivot_b
-                r0 = cb * c0 + sb * c2
-                r1 = sa * sb * c0 + ca * c1 - sa * cb * c2
-                r2 = -ca * sb * c0 + sa * c1 + ca * cb * c2
-                o0, o1, o2 = da, db * ca, db * sa  # world angular velocity
-                wr0, wr1, wr2 = o1 * r2 - o2 * r1, o2 * r0 - o0 * r2, o0 * r1 - o1 * r0
-                Gx, Gy, Gz = Px + r0, Py + r1, Pz + r2
-                Gdx, Gdy, Gdz = Pdx + wr0, Pdy + wr1, Pdz + wr2
-                # columns of a, b: ex x r, ey' x r
-                Gy_[ia] -= r2
-                Gz_[ia] += r1
-                Gx_[ia + 1] += ca * r2 - sa * r1
-                Gy_[ia + 1] += sa * r0
-                Gz_[ia + 1] -= ca * r0
-                # bias: bw x r + w x (w x r), bw = da db (0, -sa, ca)
-                k_ = da * db
-                bw1, bw2 = -k_ * sa, k_ * ca
-                gbx += bw1 * r2 - bw2 * r1 + (o1 * wr2 - o2 * wr1)
-                gby += bw2 * r0 + (o2 * wr0 - o0 * wr2)
-                gbz += -bw1 * r0 + (o0 * wr1 - o1 * wr0)
-            else:
-                Gx, Gy, Gz, Gdx, Gdy, Gdz = Px, Py, Pz, Pdx, Pdy, Pdz
-            m = self.load_mass_kg
-            cm = cdamp * m
-            FGx = -cm * (Gdx - rfx + om_s * (Gy - py))
-            FGy = -cm * (Gdy - rfy - om_s * (Gx - px))
-            FGz = -cm * (Gdz - rfz) - m * g
-            if self._load_drag_k:
-                lwf = self._height_factor(Gz, Hz, t)
-                rx, ry, rz = Gdx - lwf * wx, Gdy - lwf * wy, Gdz
-                sp = self._load_drag_k * sqrt(rx * rx + ry * ry + rz * rz)
-                FGx -= sp * rx
-                FGy -= sp * ry
-                FGz -= sp * rz
-            rows += [Gx_, Gy_, Gz_]
-            fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
-            masses += [m, m, m]
-        B = np.array(rows)
-        mw = np.array(masses)
-        M = B.T @ (mw[:, None] * B)
-        Q = B.T @ np.array(fvec)
-        if body:
-            I0, I1, I2 = self.inertia_b
-            # body-frame angular velocity and its bias; Euler's equations about the CG
-            wb0, wb1, wb2 = da * cb, db, da * sb
-            ab0, ab2 = -da * db * sb, da * db * cb
-            h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
-            h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
-            h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
-            M[ia, ia] += I0 * cb * cb + I2 * sb * sb
-            M[ia + 1, ia + 1] += I1
-            Q[ia] -= cb * h0 + sb * h2
-            Q[ia + 1] -= h1_
-        return np.linalg.solve(M, Q)
+        kin = (kin_state[3], kin_state[4], kin_state[5], kin_state[6], kin_state[7], kin_state[8],
+               kin_state[9], kin_state[10], kin_state[11], om_s)
+        return equations_of_motion(yl[:nq], yl[nq:], kin, self._par, self.elastic_rope,
+                                   self.wind_velocity_m_s() if self.wind is None
+                                   else self._varying_wind(t, float(kin_state[2])), self.structure)
+
+    def _varying_wind(self, t, pz):
+        """The wind for :func:`equations_of_motion` when it varies: a function of the rope end's height.
+
+        ``t`` is the time [s] (None: at rest in the mean wind), ``pz`` the suspension
+        point's height [m]; heights inside the equations are relative to it.
+        """
+        def at(hz):
+            end_z = pz + hz
+            wx, wy, rope_factor = self._wind_terms(t, pz, end_z)
+            return wx, wy, rope_factor, lambda gz: self._height_factor(pz + gz, end_z, t)
+
+        return at
+
+    def wind_velocity_m_s(self) -> tuple:
+        """The steady wind velocity the equations of motion see (the single run and the batch engine).
+
+        Returns
+        -------
+        tuple of float
+            ``(wx, wy)``: horizontal components [m/s] (the scene's mean wind; a wind that
+            varies in time or with height, :attr:`wind`, is passed as a function instead).
+        """
+        return self._wind_x_m_s, self._wind_y_m_s
 
     def _eval(self, y, kin_state, full=False, applied=True, t=0.0):
         """Accelerations (and, with ``full``, everything the outputs need) at one instant.

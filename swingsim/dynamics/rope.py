@@ -203,7 +203,7 @@ class ElasticRope:
             Tension [N]; negative means slack.
         """
         lam, k = self._spring(L)
-        c = 2.0 * self.damping_ratio * math.sqrt(k * self.mass_kg)
+        c = 2.0 * self.damping_ratio * (k * self.mass_kg) ** 0.5  # floats or arrays (batch engine)
         return k * (ell - lam) + c * (dell - dL)
 
     def energy(self, ell, L):
