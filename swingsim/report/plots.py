@@ -195,8 +195,66 @@ FIGURES = {"swing.png": _swing_figure, "speed.png": _speed_figure, "plan.png": _
            "rigging.png": rigging_figure, "chart.png": chart_figure}
 
 
-def write_plots(traj, summary, out_dir, cols=None) -> list:
-    """Draw every figure of :data:`FIGURES` that the run's model has, and save each as a PNG atomically.
+#: The plot formats ``--plots`` offers: raster for screens and slides, vector for print.
+PLOT_FORMATS = ("png", "svg")
+
+#: Resolution of the PNG plots [dots per inch]: sharp on a projector and in print.
+PNG_DPI = 150
+
+
+def draw_figures(traj, summary, cols=None) -> dict:
+    """Draw every figure of :data:`FIGURES` the run's model has (titles and names as literal text).
+
+    Parameters
+    ----------
+    traj, summary
+        The run and its measures, as for :func:`write_plots`.
+    cols : dict, optional
+        The run's time-series columns, sampled once for all plots.
+
+    Returns
+    -------
+    dict
+        Base name (``"swing"``, ``"plan"``, ...) -> matplotlib figure; the caller closes them.
+    """
+    figures = {}
+    for name, fn in FIGURES.items():
+        with literal_text():  # titles, move and zone names are user text: no maths parsing
+            fig = fn(traj, summary, cols)
+        if fig is not None:  # None: a figure the run's model has nothing for
+            figures[name.rsplit(".", 1)[0]] = fig
+    return figures
+
+
+def figure_bytes(fig, fmt: str) -> bytes:
+    """A figure as PNG or SVG bytes, with no time stamp or software tag (same run, same bytes).
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+        The figure.
+    fmt : {"png", "svg"}
+        The format; PNG at :data:`PNG_DPI`, SVG with text kept as text.
+
+    Returns
+    -------
+    bytes
+        The file's content.
+    """
+    buf = io.BytesIO()
+    with literal_text():
+        if fmt == "svg":
+            import matplotlib
+
+            with matplotlib.rc_context({"svg.fonttype": "none", "svg.hashsalt": "swingsim"}):
+                fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
+        else:
+            fig.savefig(buf, format="png", dpi=PNG_DPI, metadata={"Software": None})
+    return buf.getvalue()
+
+
+def write_plots(traj, summary, out_dir, cols=None, formats=("png",)) -> list:
+    """Draw every figure of :data:`FIGURES` that the run's model has, and save each atomically.
 
     Parameters
     ----------
@@ -205,27 +263,24 @@ def write_plots(traj, summary, out_dir, cols=None) -> list:
         :func:`swingsim.report.outputs.write_run_outputs`, which calls this.
     cols : dict, optional
         The run's time-series columns, sampled once for all plots.
+    formats : tuple of str
+        Formats of :data:`PLOT_FORMATS` to write (``("png",)``, ``("svg",)`` or both).
 
     Returns
     -------
     list of pathlib.Path
-        The PNGs written.
+        The files written.
     """
     from pathlib import Path
 
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
 
     paths = []
-    for name, fn in FIGURES.items():
-        with literal_text():  # titles, move and zone names are user text: no maths parsing
-            fig = fn(traj, summary, cols)
-            if fig is None:  # a figure the run's model has nothing for
-                continue
-            buf = io.BytesIO()
-            fig.savefig(buf, format="png", metadata={"Software": None})
+    for stem, fig in draw_figures(traj, summary, cols).items():
+        try:
+            contents = {fmt: figure_bytes(fig, fmt) for fmt in formats}
+        finally:
             plt.close(fig)
-        paths.append(atomic_write_bytes(Path(out_dir) / name, buf.getvalue()))
+        for fmt, data in contents.items():
+            paths.append(atomic_write_bytes(Path(out_dir) / f"{stem}.{fmt}", data))
     return paths

@@ -34,7 +34,7 @@ def literal_text():
 
 
 def new_figure(width_in: float = 10.0, height_in: float = 5.6):
-    """A matplotlib figure on the Agg backend (no display needed), 110 dpi.
+    """A matplotlib figure on the Agg backend (no display needed); saved at :data:`swingsim.report.plots.PNG_DPI`.
 
     Parameters
     ----------
