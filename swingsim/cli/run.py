@@ -19,6 +19,7 @@ from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.errors import InputError
 from swingsim.io.files import check_out_dir, output_run
+from swingsim.metrics.cautions import force_text
 from swingsim.metrics.single import summarize
 from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_frames, check_plausible
@@ -33,7 +34,13 @@ def _add_output_arguments(p, scene=True):
     if scene:
         add_scene_argument(p)
     add_output_arguments(p, "output folder (default: <scene name>-results)", "this run's files")
-    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    p.add_argument("--no-plots", action="store_true", help="skip the plot files (the briefing keeps its plots)")
+    p.add_argument("--plots", choices=("png", "svg", "both"), default="png",
+                   help="plot files as PNG (for screens and slides), SVG (vector, for print) or both (default: png)")
+    p.add_argument("--paper", choices=("a4", "letter"), default="a4",
+                   help="paper size of briefing.pdf: ISO A4 or US Letter (default: a4)")
+    p.add_argument("--no-briefing", action="store_true",
+                   help="skip briefing.pdf, the printable briefing sheet (a faster run)")
     add_allow_implausible(p, "e.g. very long runs")
 
 
@@ -80,7 +87,8 @@ def _headline(summary) -> str:
         f"peak excursion {d['peak_excursion_m']:.2f} m",
         f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.2f} deg; "
         + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
-        f"  peak hook load {d['peak_hook_load_kN']:.1f} kN, line pull {d['peak_line_pull_kN']:.1f} kN (dynamic factor {d['dynamic_factor']:.3f})",
+        f"  peak hook load {force_text(d['peak_hook_load_kN'])}, line pull {force_text(d['peak_line_pull_kN'])} "
+        f"(dynamic factor {d['dynamic_factor']:.2f})",
     ]
     for c in d["cautions"]:
         lines.append("  ! " + c)
@@ -130,11 +138,19 @@ def _do_run(args, scene_path, default_out) -> int:
     with output_run(out, args.force) as stage:
         traj = simulate(scene)
         summary = summarize(traj)
-        written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots)
+        formats = ("png", "svg") if args.plots == "both" else (args.plots,)
+        written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots, plot_formats=formats)
+        stills = []
         if want_video and traj.valid:
             from swingsim.render import render_scene
 
-            written += render_scene(traj, summary, stage.path, **_video_options(args, scene))
+            rendered = render_scene(traj, summary, stage.path, **_video_options(args, scene))
+            written += rendered
+            stills = [p for p in rendered[1:] if p.suffix == ".png" and p.is_file()]
+        if not args.no_briefing:  # after the video, so the sheet shows its stills
+            from swingsim.report.briefing import write_briefing
+
+            written += write_briefing(traj, summary, stage.path, paper=args.paper, stills=stills)
         if export is not None:
             from swingsim.export.write import write_export
 

@@ -46,7 +46,7 @@ def _swing_figure(traj, summary, cols=None):
     ax.set_ylim(min(ax.get_ylim()[0], -1.0), max(ax.get_ylim()[1], 1.0) * 1.15)
     shade_moves(ax, scene, traj.motion)
     ax.plot([d["peak_rope_angle_time_s"]], [d["peak_rope_angle_deg"]], "v", color=LOAD, ms=8,
-            label=f"peak {d['peak_rope_angle_deg']:.2f} deg")
+            label=f"peak {d['peak_rope_angle_deg']:.1f} deg")
     if d["settled_at_s"] is not None and d["moves"]:
         ax.axvline(d["settled_at_s"], color=INK, lw=1, ls=":")
         ax.text(d["settled_at_s"], ax.get_ylim()[0], f" settled < {lim.settle_deg:g} deg", fontsize=8,

@@ -49,7 +49,8 @@ def rigging_figure(traj, summary, cols=None):
     d = summary.data
     t = c["t_s"]
     plt, fig = new_figure(10.0, 7.0)
-    # legends in a column of their own at the right, beyond the tonnes axis: they never cover a curve
+    # legends in a column of their own at the right, beyond the tonnes axis (anchored to their axes,
+    # so they move with them): they never cover a curve
     ax = fig.add_axes([0.08, 0.47, 0.64, 0.43])
     for j, k in enumerate(legs):
         ax.plot(t, c[k], color=LEG_COLOURS[j % len(LEG_COLOURS)], lw=1.4, label=f"leg {j + 1}")
@@ -76,8 +77,7 @@ def rigging_figure(traj, summary, cols=None):
     tonnes = ax.secondary_yaxis("right", functions=(_kN_to_t, _t_to_kN))
     tonnes.set_ylabel("tension [t]")
     shade_moves(ax, traj.scene, traj.motion)
-    ax.legend(loc="upper left", bbox_to_anchor=(0.81, 0.90), bbox_transform=fig.transFigure, fontsize=8,
-              framealpha=0.9, borderaxespad=0.0)
+    ax.legend(loc="upper left", bbox_to_anchor=(1.14, 1.0), fontsize=8, framealpha=0.9, borderaxespad=0.0)
     ax.grid(alpha=0.3)
     ax.tick_params(labelbottom=False)
     ax2 = fig.add_axes([0.08, 0.10, 0.64, 0.33], sharex=ax)
@@ -101,7 +101,6 @@ def rigging_figure(traj, summary, cols=None):
     ax2.set_xlabel("time [s]")
     ax2.grid(alpha=0.3)
     if ax2.lines:
-        ax2.legend(loc="upper left", bbox_to_anchor=(0.81, 0.43), bbox_transform=fig.transFigure, fontsize=8,
-                   framealpha=0.9, borderaxespad=0.0)
+        ax2.legend(loc="upper left", bbox_to_anchor=(1.14, 1.0), fontsize=8, framealpha=0.9, borderaxespad=0.0)
     title_and_caution(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
     return fig
