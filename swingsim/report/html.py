@@ -13,6 +13,7 @@ import html
 import io
 import math
 
+from swingsim.constants import newton_to_tonnes_force
 from swingsim.metrics import cautions
 from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE, literal_text
 
@@ -62,6 +63,16 @@ def _fmt(x, nd=3) -> str:
     if isinstance(x, float):
         return f"{x:.{nd}g}" if abs(x) >= 1e4 or (x != 0 and abs(x) < 1e-3) else f"{x:.{nd}f}".rstrip("0").rstrip(".")
     return html.escape(str(x))
+
+
+def _tonnes_column(key: str) -> str:
+    """The header of the tonnes-force column beside a ``..._kN`` column, e.g. ``peak_rope_tension_t``."""
+    return key[: -len("_kN")] + "_t"
+
+
+def _tonnes(force_kN):
+    """A force [kN] in tonnes-force [t] (None stays None)."""
+    return None if not _is_num(force_kN) else newton_to_tonnes_force(1e3 * force_kN)
 
 
 def _quantity_figure(rows, key, others=()):
@@ -175,19 +186,23 @@ def comparison_html(sweep, rows, ranking, sensitivity=None, max_rows=100) -> str
         show.insert(0, obj)
     parts.append('<div class="wide"><table id="ranking"><thead><tr><th>rank</th><th>variant</th><th class="l">name</th>'
                  + "".join(f"<th>{e(c)}</th>" for c in cols)
-                 + "".join(f"<th>{e(c)}</th>" for c in show) + "<th class=\"l\">not ranked because</th></tr></thead><tbody>")
+                 + "".join(f"<th>{e(c)}</th>" + (f"<th>{e(_tonnes_column(c))}</th>" if c.endswith("_kN") else "")
+                           for c in show)
+                 + "<th class=\"l\">not ranked because</th></tr></thead><tbody>")
     for r in ranking[:max_rows]:
         s = r["summary"]
         cls = "" if r["rank"] is not None else ' class="out"'
         parts.append(f"<tr{cls}><td>{r['rank'] if r['rank'] is not None else '&ndash;'}</td>"
                      f"<td>{r['index']}</td><td class=\"l\">{e(r['name'])}</td>"
                      + "".join(f"<td>{_fmt(r['values'].get(c, r['base_values'].get(c)))}</td>" for c in cols)
-                     + "".join(f"<td>{_fmt(s.get(c))}</td>" for c in show)
+                     + "".join(f"<td>{_fmt(s.get(c))}</td>" + (f"<td>{_fmt(_tonnes(s.get(c)), 2)}</td>"
+                                                               if c.endswith("_kN") else "") for c in show)
                      + f"<td class=\"l\">{e(r.get('note', ''))}</td></tr>")
     parts.append("</tbody></table></div>")
     if len(ranking) > max_rows:
         parts.append(f"<p class=\"meta\">The first {max_rows} of {len(ranking)} rows; every variant is in "
                      "comparison.csv and ranking.csv.</p>")
+    parts.append(f"<p class=\"meta\">{e(cautions.TONNE_FORCE_NOTE)}</p>")
     parts.append("<p class=\"meta\">Grey rows are not ranked: outside the objective's limits, without a "
                  f"value of {e(obj)} (e.g. the load does not settle within the simulated time), or the run "
                  "stopped early. Move time is when the last move ends; settled at is when the swing stays "
