@@ -1,4 +1,4 @@
-"""PNG plots of one run: swing over time, speeds, plan view of the load path.
+"""Plots of one run (PNG or SVG): swing over time, speeds, plan view of the load path, sling legs, the chart.
 
 Each function draws and returns the figure; :func:`write_plots` saves them
 atomically.  Every figure carries the caution line.
