@@ -83,9 +83,9 @@ def _headline(summary) -> str:
     st = d["settle_time_s"]
     lines = [
         f"{d['title']}",
-        f"  peak rope angle {d['peak_rope_angle_deg']:.2f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
+        f"  peak rope angle {d['peak_rope_angle_deg']:.1f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
         f"peak excursion {d['peak_excursion_m']:.2f} m",
-        f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.2f} deg; "
+        f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.1f} deg; "
         + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
         f"  peak hook load {force_text(d['peak_hook_load_kN'])}, line pull {force_text(d['peak_line_pull_kN'])} "
         f"(dynamic factor {d['dynamic_factor']:.2f})",

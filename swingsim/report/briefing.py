@@ -469,9 +469,9 @@ def briefing_pdf(traj, summary, *, paper: str = "a4", cols=None, stills=()) -> b
     Parameters
     ----------
     traj : swingsim.simulation.Trajectory
-        The run.
+        The simulated lift (its scene, model and motion).
     summary : swingsim.metrics.Summary
-        Its measures.
+        The numbers summary.json holds.
     paper : {"a4", "letter"}
         Paper size: ISO A4 (595 x 842 pt) or US Letter (612 x 792 pt).
     cols : dict, optional

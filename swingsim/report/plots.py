@@ -112,7 +112,7 @@ def _plan_figure(traj, summary, cols=None):
                                 fill=False, edgecolor=col, ls="--", lw=0.8))
         # the summary's own verdict, word for word
         state = ("ENTERED by " + ", ".join(verdict["entered_by"]) if entered
-                 else "within margin" if verdict["within_margin"] else "clear")
+                 else "inside margin" if verdict["within_margin"] else "clear")
         ax1.text(z.min_m[0], z.max_m[1], f"{z.name} [{state}]", fontsize=7.5, va="bottom", color=col,
                  fontweight="bold" if entered else "normal")
     _crane_reach(ax1, scene.crane)
