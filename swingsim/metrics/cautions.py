@@ -167,8 +167,8 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                            f"takes {_f(st)} s to settle below {lim.settle_deg:g} deg.")
     ex = s.get("peak_excursion_m")
     if lim.clearance_m is not None and ex is not None and ex > lim.clearance_m:
-        out.append(f"The load strays {ex:.3f} m from the plumb line, beyond the declared clearance "
-                   f"of {lim.clearance_m:.3f} m.")
+        out.append(f"The load strays {ex:.2f} m from the plumb line, beyond the declared clearance "
+                   f"of {lim.clearance_m:.2f} m.")
     for z in s.get("zones", []):
         if z["inside"]:
             who = ", ".join(z.get("entered_by") or ["load"])
