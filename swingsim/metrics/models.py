@@ -364,7 +364,7 @@ def model_summary_lines(d: dict) -> list[str]:
                  "(yaw held fixed)")
     if d.get("rope_elastic"):
         w.append(f"  Elastic rope: {d['rope_stiffness_kN_per_m']:.0f} kN/m ({d['rope_stiffness_from']}); "
-                 f"bounce period {d['bounce_period_s']:.2f} s; peak stretch {1000 * d['peak_rope_stretch_m']:.1f} mm "
+                 f"bounce period {d['bounce_period_s']:.3f} s; peak stretch {1000 * d['peak_rope_stretch_m']:.1f} mm "
                  f"(static {1000 * d['static_rope_stretch_m']:.1f} mm)")
     if "lift_off_s" in d:
         w.append("  Lift-off: " + ("the hoist never pulls the weight into the rope" if d["lift_off_s"] is None
@@ -372,10 +372,10 @@ def model_summary_lines(d: dict) -> list[str]:
     mm = d.get("measured_mode_periods_s")
     if mm and any(x is not None for x in mm):
         w.append("  Measured mode periods after the moves: "
-                 + ", ".join("n/a" if x is None else f"{x:.2f} s" for x in mm))
+                 + ", ".join("n/a" if x is None else f"{x:.3f} s" for x in mm))
         for period, x, why in zip(d["mode_periods_s"], mm, d.get("mode_measurement_notes") or []):
             if x is None and why:
-                w.append(f"    mode {period:.2f} s not measured: {why}")
+                w.append(f"    mode {period:.3f} s not measured: {why}")
     elif mm:
         why = next((x for x in d.get("mode_measurement_notes") or [] if x), None)
         w.append("  Measured mode periods after the moves: n/a" + (f" ({why})" if why else ""))

@@ -179,7 +179,7 @@ def summary_text(summary, scene, mode_names=None) -> str:
     """summary.txt: a plain-text summary for a lift planner, caution first.
 
     Fixed decimals throughout: angles 0.1 deg, distances 0.01 m, forces 0.1 kN
-    and 0.01 t, times 0.1 s, periods 0.01 s, ratios 0.01, percentages 0.1%.
+    and 0.01 t, times 0.1 s, periods 0.001 s, ratios 0.01, percentages 0.1%.
 
     Parameters
     ----------
@@ -240,20 +240,20 @@ def summary_text(summary, scene, mode_names=None) -> str:
     w.append("Swing period")
     mp = d["mode_periods_s"]
     label = "Small-angle (2 pi sqrt(L/g))" if d["model"] == "point-mass" else "Longest mode (small angle)"
-    w.append(f"  {label:<33}{_fmt(d['natural_period_s'], 's')}"
-             + (f"; at the final rope length {_fmt(d['natural_period_end_s'], 's')}" if abs(d['natural_period_end_s'] - d['natural_period_s']) > 1e-9 else ""))
+    w.append(f"  {label:<33}{_fmt(d['natural_period_s'], 's', 3)}"
+             + (f"; at the final rope length {_fmt(d['natural_period_end_s'], 's', 3)}" if abs(d['natural_period_end_s'] - d['natural_period_s']) > 1e-9 else ""))
     if len(mp) > 1 or mode_names:
         w.append("  Modes (small amplitude)")
         names = list(mode_names or [])
         for k, period in enumerate(mp):
-            w.append(f"    {k + 1}. {period:6.2f} s  " + (names[k] if k < len(names) else ""))
+            w.append(f"    {k + 1}. {period:7.3f} s  " + (names[k] if k < len(names) else ""))
     if d["measured_period_s"] is None:
         w.append("  Measured from the simulation     n/a (too little swing after the last move to measure)")
     else:
-        w.append(f"  Measured from the simulation     {_fmt(d['measured_period_s'], 's')} at {d['measured_amplitude_deg']:.1f} deg amplitude: "
+        w.append(f"  Measured from the simulation     {_fmt(d['measured_period_s'], 's', 3)} at {d['measured_amplitude_deg']:.1f} deg amplitude: "
                  f"{d['period_difference_pct']:+.2f}% against small-angle")
         if d.get("period_exact_at_amplitude_s"):
-            w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's')} (elliptic integral)")
+            w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's', 3)} (elliptic integral)")
     # -- rated capacity chart (swingsim/metrics/chart.py) --
     w.extend(_chart_lines(d))
     if d["zones"]:
