@@ -73,7 +73,7 @@ def rigging_figure(traj, summary, cols=None):
     ax.set_ylabel("tension [kN]")
     lo, hi = ax.get_ylim()
     lo = min(lo, 0.0) if np.min([c[k].min() for k in legs]) < 0 else lo
-    ax.set_ylim(lo, hi + 0.08 * (hi - lo))  # headroom for the move names above the top line
+    ax.set_ylim(lo, hi)  # shade_moves adds the headroom for the move names
     tonnes = ax.secondary_yaxis("right", functions=(_kN_to_t, _t_to_kN))
     tonnes.set_ylabel("tension [t]")
     shade_moves(ax, traj.scene, traj.motion)

@@ -242,7 +242,9 @@ def summary_text(summary, scene, mode_names=None) -> str:
     label = "Small-angle (2 pi sqrt(L/g))" if d["model"] == "point-mass" else "Longest mode (small angle)"
     w.append(f"  {label:<33}{_fmt(d['natural_period_s'], 's', 3)}"
              + (f"; at the final rope length {_fmt(d['natural_period_end_s'], 's', 3)}" if abs(d['natural_period_end_s'] - d['natural_period_s']) > 1e-9 else ""))
-    if len(mp) > 1 or mode_names:
+    if len(mp) == 1 and mode_names:  # one mode: named on the period's own line
+        w[-1] += f": {mode_names[0]}"
+    elif len(mp) > 1:
         w.append("  Modes (small amplitude)")
         names = list(mode_names or [])
         for k, period in enumerate(mp):
