@@ -92,6 +92,7 @@ def test_every_page_has_the_paper_size_asked_for(run, paper, request):
     for w, h in sizes:  # text pages portrait, plot pages landscape: the same sheet turned
         assert sorted((w, h)) == pytest.approx(PAPER_PT[paper], abs=0.5)
     assert (sizes[0][0] < sizes[0][1])  # the first page (title, caution, key numbers) is portrait
+    assert "CreationDate" not in info  # no time stamp: the same run gives the same file
 
 
 def test_every_page_renders_non_blank(demo_run, tmp_path):
