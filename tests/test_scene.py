@@ -134,8 +134,10 @@ def test_every_key_documented():
         for name, key in t.items():
             assert len(key.doc) > 10, name
             # dimensionless quantities say so in their name (ratio, coefficient, factor) and [-] in the doc
-            # tolerance: EI shaper; efficiency: the reeving's and a sheave's
-            dimensionless = name.endswith(("ratio", "coefficient", "factor", "tolerance", "efficiency"))
+            # tolerance: EI shaper; efficiency: the reeving's and a sheave's; exponent, intensity: the
+            # wind profile's shear exponent and the turbulence intensity (names fixed by issue #13)
+            dimensionless = name.endswith(("ratio", "coefficient", "factor", "tolerance", "efficiency",
+                                           "exponent", "intensity"))
             if dimensionless and key.kind == "float":
                 assert "[-]" in key.doc, name
             if key.kind in ("float", "vec2", "vec3", "floats", "floats_or_float") and not dimensionless \

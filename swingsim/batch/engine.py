@@ -59,7 +59,8 @@ import numpy as np
 from swingsim.batch import dense, rk8
 from swingsim.batch.kinematics import ChunkKinematics
 from swingsim.batch.measure import VariantFacts, measure_block
-from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force
+from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force, wind_terms
+from swingsim.dynamics.wind import BatchWind, WindField
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics.single import summarize
 from swingsim.motion import profiles
@@ -164,12 +165,14 @@ class _Variant:
     period_end: float
     L_end: float
     move_end: float
+    suspension_z: float = 0.0  # height of the suspension point (the batch keeps it level) [m]
 
 
 def _prepare(scene, steps_per_period) -> _Variant:
     model, motion = prepare(scene, PointMassModel(scene))
     T = scene.duration_s
-    pts = {0.0, T}
+    # the wind's breakpoints (gust starts and ends) too
+    pts = {0.0, T} | {b for b in model.extra_breakpoints if 0.0 < b < T}
     for _, prof in motion.moves:
         pts |= {b for b in _segment_times(prof) if 0.0 < b < T}
     cuts = np.array(sorted(pts))
@@ -198,17 +201,17 @@ def _prepare(scene, steps_per_period) -> _Variant:
         L_end = float(motion.evaluate(np.array([T]))["L"][0])
     else:
         Lmin = L_end = float(motion.rope_length_m)
-    hmax = _period(scene, Lmin) / steps_per_period
+    hmax = min(_period(scene, Lmin) / steps_per_period, model.max_step_s)
     n = np.maximum(1, np.ceil(np.diff(cuts) / hmax - 1e-9)).astype(int)
     seg = np.repeat(np.arange(nseg), n)
     first = np.repeat(np.cumsum(n) - n, n)
     k = np.arange(len(seg)) - first
     grid = np.append(cuts[seg] + (cuts[seg + 1] - cuts[seg]) * (k / n[seg]), T)
+    y0 = np.asarray(model.initial_state(motion), dtype=float)
     rest = np.asarray(model.rest_direction(L_end))
-    return _Variant(scene, motion, model, cuts, coef, grid, seg,
-                    np.asarray(model.initial_state(motion), dtype=float), rest,
+    return _Variant(scene, motion, model, cuts, coef, grid, seg, y0, rest,
                     float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
-                    L_end, motion.last_move_end_s)
+                    L_end, motion.last_move_end_s, float(motion.evaluate(np.array([0.0]))["p"][0][2]))
 
 
 # ----------------------------------------------------------------------------
@@ -231,12 +234,27 @@ def _force_parameters(variants):
         a = np.array([v.model.par[k] for v in variants], dtype=float)
         # a scalar zero lets the force functions skip the term for the whole chunk
         out[k] = 0.0 if k != "g" and not np.any(a) else a
+    if any(v.model.wind is not None for v in variants):
+        # gusts, turbulence or a profile: every variant's wind field (steady ones included)
+        out["wind"] = BatchWind([v.model.wind or WindField(v.scene.wind, v.scene.duration_s) for v in variants])
+        out["pz"] = np.array([v.suspension_z for v in variants])
     return out
+
+
+def _wind(par, t, L, w, pz=None):
+    """The wind terms of specific_force for the chunk (None for a steady uniform wind)."""
+    field = par.get("wind")
+    if field is None:
+        return None
+    return wind_terms(field, t, par["pz"] if pz is None else pz, L, w)
 
 
 def _force_rows(par, sel, ndim):
     out = {}
     for k, a in par.items():
+        if isinstance(a, BatchWind):
+            out[k] = a.select(sel)
+            continue
         if isinstance(a, np.ndarray):
             a = a[sel]
             a = a.reshape(a.shape + (1,) * (ndim - 1))
@@ -244,12 +262,13 @@ def _force_rows(par, sel, ndim):
     return out
 
 
-def _rhs(y, kin, par):
-    """Derivatives of the chunk's states y (4, B) with the crane's motion ``kin`` (SuspensionRates)."""
+def _rhs(y, kin, par, t=None):
+    """Derivatives of the chunk's states y (4, B) with the crane's motion ``kin`` (SuspensionRates) at times t (B,)."""
     u, v, du, dv = y
     w = np.sqrt(1.0 - u * u - v * v)
+    wind = _wind(par, t, kin.rope_length, w)
     fx, fy, fz = specific_force(u, v, w, du, dv, kin.rope_length, kin.rope_rate, kin.vx, kin.vy, 0.0,
-                                par, kin.slew_rate)
+                                par, kin.slew_rate, wind)
     ddu, ddv = accelerations(u, v, du, dv, kin.rope_length, kin.rope_rate, kin.ax, kin.ay, 0.0, fx, fy, fz)
     return du, dv, ddu, ddv
 
@@ -293,12 +312,12 @@ def _integrate(variants) -> dense.IntegratedChunk:
             tau0 = t0 - t0s[ar, sg[:, k]]
             for s in range(nst):
                 ys = y if s == 0 else y + h * _combine(_A_NZ[s], K)
-                K[s] = _rhs(ys, kin(c, tau0 + rk8.C[s] * h), par)
+                K[s] = _rhs(ys, kin(c, tau0 + rk8.C[s] * h), par, t0 + rk8.C[s] * h)
             y = y + h * _combine(_B_NZ, K)
             Y[k + 1] = y
             A0[k] = K[0, 2:]
             # accelerations at the step's end on the step's own segment (left limit)
-            A1[k] = _rhs(y, kin(c, tau0 + h), par)[2:]
+            A1[k] = _rhs(y, kin(c, tau0 + h), par, t0 + h)[2:]
     return dense.IntegratedChunk(tg, sg, coef, t0s, Y, A0, A1, kin, par)
 
 

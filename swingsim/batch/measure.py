@@ -18,7 +18,7 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.batch.dense import DenseSamples
-from swingsim.dynamics.pendulum import specific_force, tension_per_mass
+from swingsim.dynamics.pendulum import specific_force, tension_per_mass, wind_terms
 from swingsim.metrics import definitions
 
 
@@ -141,7 +141,9 @@ def measure_block(samples: DenseSamples, facts: VariantFacts, forces: dict, refi
     with np.errstate(all="ignore"):
         r2 = u * u + v * v
         w = np.sqrt(np.clip(1.0 - r2, 0.0, None))
-        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, kin.vx, kin.vy, 0.0, forces, kin.slew_rate)
+        wind = (wind_terms(forces["wind"], samples.time_s, forces["pz"], L, w) if "wind" in forces
+                else None)  # gusts, turbulence or a profile
+        fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, kin.vx, kin.vy, 0.0, forces, kin.slew_rate, wind)
         tpm = tension_per_mass(u, v, du, dv, L, kin.rope_accel, kin.ax, kin.ay, 0.0, fx, fy, fz)
         ndz = (u * du + v * dv) / w
         load_vel_x = kin.vx + dL * u + L * du

@@ -12,7 +12,7 @@ from pathlib import Path
 
 from swingsim.export.write import FORMATS, check_export_options, write_export
 from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument,
-                                  finish_written, out_folder)
+                                  add_time_window_arguments, finish_written, out_folder, time_window)
 from swingsim.errors import InputError, SimulationError
 from swingsim.io.files import check_out_dir, output_run
 
@@ -28,14 +28,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         The subcommand's parser, filled in place.
     """
     add_scene_argument(parser, "SCENE")
-    add_output_arguments(parser, "output folder (default: <scene name>-export)", "this export's files",
-                         short_flags=True)
+    add_output_arguments(parser, "output folder (default: <scene name>-export)", "this export's files")
     parser.add_argument("--fps", type=float, default=30.0,
                         help="animation keys per second of simulated time (default 30)")
-    parser.add_argument("--from", dest="t_from", type=float, default=None, metavar="SECONDS",
-                        help="start of the exported time window [s] (default: the run's start)")
-    parser.add_argument("--to", dest="t_to", type=float, default=None, metavar="SECONDS",
-                        help="end of the exported time window [s] (default: the run's end)")
+    add_time_window_arguments(parser, "exported time window")
     parser.add_argument("--format", dest="fmt", choices=FORMATS, default="glb",
                         help="glb (one binary file, default) or gltf (JSON text and a .bin)")
     add_allow_implausible(parser, "very long runs or many keys")
@@ -83,6 +79,7 @@ def main(args) -> int:
     try:
         scene = load_scene(args.scene)
         check_plausible(scene, allow=args.allow_implausible)
+        time_window(args, scene, "export")  # --to past the run's end: refused, not cut
         t0, t1 = check_export_options(scene, fps=args.fps, t_from=args.t_from, t_to=args.t_to, fmt=args.fmt,
                                       allow=args.allow_implausible)
         out = check_out_dir(out_folder(args, f"{Path(args.scene).stem}-export"), args.force)

@@ -1,6 +1,6 @@
 """The ``swingsim`` command line: the parser, the dispatch to one module per command, ``main``.
 
-``run``, ``demo`` and ``check`` are in :mod:`swingsim.cli.run`; the other
+``run`` and ``demo`` are in :mod:`swingsim.cli.run`; the other
 commands (:data:`COMMANDS`) each have a module with ``add_arguments(parser)``
 and ``main(args) -> int``.  No physics here.
 
@@ -19,8 +19,7 @@ import signal
 import sys
 
 from swingsim._version import __version__
-from swingsim.cli import run
-from swingsim.cli.options import add_scene_argument
+from swingsim.cli import check, run
 from swingsim.errors import InputError, SimulationError, escape_text
 from swingsim.io.failures import is_user_fixable, os_error_input
 from swingsim.io.files import WRITTEN
@@ -35,6 +34,8 @@ COMMANDS: dict[str, tuple[str, str]] = {
                "self-contained viewer.html"),
     "plan-move": ("swingsim.cli.plan", "find the fastest move whose residual swing stays "
                   "under a bound over a range of rope lengths"),
+    "schema": ("swingsim.cli.schema", "write the JSON Schemas (Draft 7) of the scene and sweep files, for "
+               "editors that check TOML against a schema"),
 }
 
 
@@ -61,7 +62,8 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     run.add_run_arguments(sub.add_parser("run", help="simulate a scene and write summary, time series and plots"))
     run.add_demo_arguments(sub.add_parser("demo", help="run the bundled demo scene"))
-    add_scene_argument(sub.add_parser("check", help="validate a scene file without running it"))
+    check.add_arguments(sub.add_parser("check", help="validate a scene file without running it: the model, "
+                                       "the moves and the warnings seen before simulating"))
     for name, (module_name, help_) in COMMANDS.items():
         try:
             module = importlib.import_module(module_name)
@@ -101,7 +103,7 @@ def main(argv=None) -> int:
     try:
         if hasattr(args, "_module"):
             return int(args._module.main(args) or 0)
-        return {"run": run.run, "demo": run.demo, "check": run.check}[args.command](args)
+        return {"run": run.run, "demo": run.demo, "check": check.check}[args.command](args)
     except InputError as exc:
         sys.stderr.write(f"swingsim: error: {exc.one_line()}\n")
         return 2

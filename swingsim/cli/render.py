@@ -10,9 +10,8 @@ import argparse
 import sys
 from pathlib import Path
 
-from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument, finish_written,
-                                  out_folder)
-from swingsim.render.views import VIEWS
+from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument, add_video_arguments,
+                                  finish_written, out_folder, time_window, video_view)
 
 HELP = "render a 3D video (MP4/GIF/PNG frames) and stills of a scene"
 
@@ -31,25 +30,9 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
     if scene:
         add_scene_argument(parser, metavar="SCENE")
         add_output_arguments(parser, "folder for the video and stills (default: <scene name>-video)",
-                             "this render's files", quiet_help="no progress bar, no list of files", short_flags=True)
+                             "this render's files", quiet_help="no progress bar, no list of files")
         add_allow_implausible(parser, "very long runs or videos")
-    g = parser.add_argument_group("video")
-    g.add_argument("--size", metavar="WxH", default="1280x720", help="frame size in pixels (default 1280x720)")
-    g.add_argument("--fps", type=float, default=30.0, help="frames per second (default 30)")
-    g.add_argument("--format", dest="fmt", choices=("mp4", "gif", "png"), default="mp4",
-                   help="mp4 (H.264), gif, or png (a folder of numbered frames); default mp4")
-    g.add_argument("--view", default="oblique", metavar="VIEW",
-                   help="camera: " + ", ".join(VIEWS) + " (custom: the scene's [view]); default oblique")
-    g.add_argument("--split", metavar="VIEW1,VIEW2", default=None,
-                   help="two views side by side, e.g. side,plan")
-    g.add_argument("--speed", type=float, default=1.0,
-                   help="playback speed: 0.5 slow motion, 2 time-lapse (default 1)")
-    g.add_argument("--from", dest="t_from", type=float, default=None, metavar="SECONDS",
-                   help="start of the time window shown [s]")
-    g.add_argument("--to", dest="t_to", type=float, default=None, metavar="SECONDS",
-                   help="end of the time window shown [s]")
-    g.add_argument("--no-stills", dest="stills", action="store_false",
-                   help="do not write the PNG stills")
+    add_video_arguments(parser)
 
 
 def parse_size(text: str):
@@ -82,7 +65,7 @@ def options(args, scene) -> dict:
     args : argparse.Namespace
         The parsed video options of :func:`add_arguments`.
     scene : Scene
-        The scene (its duration ends an open ``--from`` window).
+        The scene (its duration ends an open ``--from`` window; ``--to`` past it is refused).
 
     Returns
     -------
@@ -90,12 +73,10 @@ def options(args, scene) -> dict:
         ``size``, ``fps`` [1/s], ``fmt``, ``view``, ``speed`` [-], ``window``
         (start and end [s], or None), ``split`` and ``stills``.
     """
-    window = None
-    if args.t_from is not None or args.t_to is not None:
-        window = (args.t_from if args.t_from is not None else 0.0,
-                  args.t_to if args.t_to is not None else scene.duration_s)
-    split = tuple(v.strip() for v in args.split.split(",")) if args.split else None
-    return dict(size=parse_size(args.size), fps=args.fps, fmt=args.fmt, view=args.view, speed=args.speed,
+    source = getattr(args, "command", None) or "render"
+    window = time_window(args, scene, source)
+    view, split = video_view(args, source)
+    return dict(size=parse_size(args.size), fps=args.fps, fmt=args.fmt, view=view, speed=args.speed,
                 window=window, split=split, stills=getattr(args, "stills", True))
 
 

@@ -1,10 +1,8 @@
-"""``swingsim run``, ``swingsim demo`` and ``swingsim check``: their arguments, and what they print.
+"""``swingsim run`` and ``swingsim demo``: their arguments, and what they print.
 
 ``run`` and ``demo`` simulate a scene and write the run's outputs
 (:func:`swingsim.report.outputs.write_run_outputs`, and the video with
-``--video``); ``check`` (its one argument is the scene,
-:func:`swingsim.cli.options.add_scene_argument`) validates a scene and lists its
-plausibility notes.
+``--video``).  ``check`` is :mod:`swingsim.cli.check`.
 """
 
 from __future__ import annotations
@@ -14,26 +12,30 @@ import sys
 from pathlib import Path
 
 from swingsim.cli.export import load_mesh_of
-from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
+from swingsim.cli.options import (add_allow_implausible, add_output_arguments, add_scene_argument, out_folder,
+                                  time_window)
 from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.errors import InputError
 from swingsim.io.files import check_out_dir, output_run
 from swingsim.metrics.cautions import force_text
-from swingsim.metrics.single import summarize
 from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_frames, check_plausible
-from swingsim.simulation import simulate
+from swingsim.study.realisations import run_scene
 
 #: The bundled demo scene.
 DEMO_SCENE = Path(__file__).parent.parent / "data" / "demo.toml"
+#: The folder ``swingsim demo`` writes when ``--out`` is not given (in the current folder).
+DEMO_OUT = "swingsim-demo"
 
 
 def _add_output_arguments(p, scene=True):
-    """Options shared by ``run`` and ``demo``."""
+    """Options shared by ``run`` and ``demo``: the scene (run), -o/-f/-q, the plots, the limits."""
     if scene:
         add_scene_argument(p)
-    add_output_arguments(p, "output folder (default: <scene name>-results)", "this run's files")
+    add_output_arguments(p, "output folder (default: <scene name>-results, in the current folder)" if scene
+                         else f"output folder (default: {DEMO_OUT}, in the current folder)", "this run's files",
+                         quiet_help="print nothing but errors (no headline, no list of files)")
     p.add_argument("--no-plots", action="store_true", help="skip the plot files (the briefing keeps its plots)")
     p.add_argument("--plots", choices=("png", "svg", "both"), default="png",
                    help="plot files as PNG (for screens and slides), SVG (vector, for print) or both (default: png)")
@@ -95,27 +97,6 @@ def _headline(summary) -> str:
     return "\n".join(lines)
 
 
-def check(args: argparse.Namespace) -> int:
-    """Run ``swingsim check``: validate the scene, print ``ok`` and its plausibility notes.
-
-    Parameters
-    ----------
-    args : argparse.Namespace
-        The parsed options (``scene``).
-
-    Returns
-    -------
-    int
-        The exit code: 0 (a bad scene raises :class:`~swingsim.errors.SceneError` instead).
-    """
-    scene = load_scene(args.scene)
-    notes = check_plausible(scene, allow=True)
-    print(f"{args.scene}: ok ({len(scene.moves)} moves, {scene.duration_s:g} s)")
-    for n in notes:
-        print(f"  note: {n}")
-    return 0
-
-
 def _do_run(args, scene_path, default_out) -> int:
     """Simulate a scene and write its outputs (and video); shared by ``run`` and ``demo``."""
     from swingsim.report.outputs import write_run_outputs  # matplotlib, only when a run writes plots
@@ -136,8 +117,7 @@ def _do_run(args, scene_path, default_out) -> int:
         load_mesh_of(scene)  # a file that is not a mesh: refused before anything is written
     export = _export_options(args, scene)
     with output_run(out, args.force) as stage:
-        traj = simulate(scene)
-        summary = summarize(traj)
+        traj, summary = run_scene(scene)  # with wind.realisations: the worst one and the statistics
         formats = ("png", "svg") if args.plots == "both" else (args.plots,)
         written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots, plot_formats=formats)
         stills = []
@@ -189,6 +169,7 @@ def _export_options(args, scene):
     if getattr(args, "command", "") == "demo":
         fps, t_from, t_to = 30.0, None, None
     elif getattr(args, "export", False):
+        time_window(args, scene, "run")  # --to past the run's end: refused, not cut
         fps, t_from, t_to = args.fps, args.t_from, args.t_to
     else:
         return None
@@ -255,4 +236,4 @@ def demo(args: argparse.Namespace) -> int:
             args.video = True
         except RenderUnavailableError as exc:  # the demo goes on without its video, and says why
             sys.stderr.write(f"swingsim: note: no demo video: {exc}\n")
-    return _do_run(args, DEMO_SCENE, "swingsim-demo")
+    return _do_run(args, DEMO_SCENE, DEMO_OUT)

@@ -191,6 +191,8 @@ class ModelDefaults:
 
     #: No instants where the equations change besides the motion's breakpoints.
     extra_breakpoints: tuple = ()
+    #: No bound on the solver's step besides its error control [s] (a turbulent wind sets one).
+    max_step_s: float = float("inf")
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
         """Default of :meth:`SwingModel.rest_direction`: the rope hangs plumb.

@@ -80,6 +80,7 @@ import numpy as np
 from swingsim import constants
 from swingsim.dynamics.base import ModelDefaults, SwingModel
 from swingsim.dynamics.pendulum import direction_from_projected, projected_angles, starts_in_steady_wind
+from swingsim.dynamics.wind import wind_field
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from swingsim.dynamics.rope import elastic_rope
 
@@ -234,6 +235,10 @@ class HookLoadModel(ModelDefaults, SwingModel):
         self._swing_damping_ratio = scene.damping_ratio
         d = math.radians(wind.direction_deg)
         self._wind_x_m_s, self._wind_y_m_s = wind.speed_m_s * math.cos(d), wind.speed_m_s * math.sin(d)
+        #: the wind when it changes in time or with height (None: the steady, uniform wind above)
+        self.wind = wind_field(scene)
+        if self.wind is not None:
+            self.max_step_s = self.wind.max_step_s
         rho = wind.air_density_kg_m3
         self.load_mass_kg = load.mass_kg
         self._load_drag_k = 0.5 * rho * load.drag_coefficient * load.wind_area_m2 if load.wind_area_m2 else 0.0
@@ -267,7 +272,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         #: instant the load lifts off [s] (rope_preload = lift-off); set by initial_state
         self.lift_off_time_s = None
         #: instants where the solver must restart (read by swingsim.simulation.simulate)
-        self.extra_breakpoints = ()
+        self.extra_breakpoints = self.wind.breakpoints if self.wind is not None else ()
         #: the reeving as it hangs with the load lifted (its unstretched length at the scene's
         #: rope length is the loaded one's); the same as elastic_rope unless resting for lift-off
         self.hanging_rope = self.elastic_rope
@@ -305,7 +310,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
         sw = self.scene.start
-        L0 = float(motion.evaluate(np.array([0.0]))["L"][0])
+        e0 = motion.evaluate(np.array([0.0]))
+        L0 = float(e0["L"][0])
+        self._rest_support_z = float(e0["p"][0][2])  # where the rest in the mean wind hangs from
         # lift-off: the load rests on its support, plumb below the suspension point, until the
         # rope lifts it; the wind then takes it as it leaves the ground
         in_wind = starts_in_steady_wind(self.scene) and not self.starts_resting
@@ -368,7 +375,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
         if self.starts_resting:
             self.lift_off_time_s = self._find_lift_off_time(motion)
             # the solver restarts there: the equations change at lift-off
-            self.extra_breakpoints = (self.lift_off_time_s,) if math.isfinite(self.lift_off_time_s) else ()
+            self.extra_breakpoints = tuple(sorted(set(self.extra_breakpoints) | (
+                {self.lift_off_time_s} if math.isfinite(self.lift_off_time_s) else set())))
         return np.array(q + qd, dtype=float)
 
     def _find_lift_off_time(self, motion) -> float:
@@ -466,7 +474,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         zeros = np.zeros(nq)
 
         def residual(q):
-            return self._qdd(np.concatenate([q, zeros]), kin_state)
+            return self._qdd(np.concatenate([q, zeros]), kin_state, None)
 
         solution = root(residual, np.array(guess), method="hybr", options={"xtol": 1e-15})
         q = solution.x if np.max(np.abs(residual(solution.x))) <= np.max(np.abs(residual(np.array(guess)))) \
@@ -530,7 +538,36 @@ class HookLoadModel(ModelDefaults, SwingModel):
         return self.hanging_rope.stiffness(self.hanging_rope.unstretched(L))
 
     # -- the equations -------------------------------------------------------------
-    def _qdd(self, y, kin_state):
+    def _wind_terms(self, t, pz, Hz):
+        """The wind the equations take at one instant: the one place they read a wind field.
+
+        Returns ``(wx, wy, rope_factor)``: the wind at the rope's end (height ``Hz``) [m/s]
+        and the wind at the rope's mid-height over it [-].  ``t = None`` is the steady mean
+        wind at the reference height (the rest the run starts from).
+        """
+        if self.wind is None:
+            return self._wind_x_m_s, self._wind_y_m_s, 1.0
+        if t is None:  # at rest in the mean wind, below the support of t = 0 (pz = 0 in the rest's frame)
+            z0 = getattr(self, "_rest_support_z", None)
+            if z0 is None or not self.wind.sheared:
+                return self._wind_x_m_s, self._wind_y_m_s, 1.0
+            wx, wy = self.wind.mean_velocity_at(z0 + Hz)
+            return wx, wy, self._height_factor(z0 + 0.5 * (pz + Hz), z0 + Hz)
+        return self.wind.terms(t, Hz, 0.5 * (pz + Hz))
+
+    def _height_factor(self, z, z_ref, t=0.0):
+        """Wind at height ``z`` over the wind at ``z_ref`` (1 without a profile) [-]; at rest (``t = None``)
+        both heights are below the support of t = 0."""
+        if self.wind is None or not self.wind.sheared:
+            return 1.0
+        if t is None:
+            z0 = getattr(self, "_rest_support_z", None)
+            if z0 is None:
+                return 1.0
+            z, z_ref = z + z0, z_ref + z0
+        return float(self.wind.profile_factor(z)) / float(self.wind.profile_factor(z_ref))
+
+    def _qdd(self, y, kin_state, t=0.0):
         """Generalised accelerations only: the solver's fast path (same equations as :meth:`_eval`).
 
         Plain float arithmetic and one stacked Jacobian; the load's rotation in its own
@@ -579,14 +616,14 @@ class HookLoadModel(ModelDefaults, SwingModel):
         rfx, rfy, rfz = vx + dell * u1, vy + dell * v1, vz - dell * w1
         Ld = ell + self._cg_below_rope_end_m
         cdamp = 2.0 * self._swing_damping_ratio * sqrt(g / Ld) if Ld > 0.0 else 0.0
-        wx, wy = self._wind_x_m_s, self._wind_y_m_s
+        wx, wy, rwf = self._wind_terms(t, pz, Hz)
         # forces at the rope's end
         Fx = -T * u1
         Fy = -T * v1
         Fz = T * w1
         if self._rope_drag_k:
-            mx = 0.5 * (vx + Hdx) - wx
-            my = 0.5 * (vy + Hdy) - wy
+            mx = 0.5 * (vx + Hdx) - rwf * wx
+            my = 0.5 * (vy + Hdy) - rwf * wy
             mz = 0.5 * (vz + Hdz)
             al = mx * u1 + my * v1 - mz * w1
             nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
@@ -659,7 +696,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
             FGy = -cm * (Gdy - rfy - om_s * (Gx - px))
             FGz = -cm * (Gdz - rfz) - m * g
             if self._load_drag_k:
-                rx, ry, rz = Gdx - wx, Gdy - wy, Gdz
+                lwf = self._height_factor(Gz, Hz, t)
+                rx, ry, rz = Gdx - lwf * wx, Gdy - lwf * wy, Gdz
                 sp = self._load_drag_k * sqrt(rx * rx + ry * ry + rz * rz)
                 FGx -= sp * rx
                 FGy -= sp * ry
@@ -685,7 +723,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Q[ia + 1] -= h1_
         return np.linalg.solve(M, Q)
 
-    def _eval(self, y, kin_state, full=False, applied=True):
+    def _eval(self, y, kin_state, full=False, applied=True, t=0.0):
         """Accelerations (and, with ``full``, everything the outputs need) at one instant.
 
         ``kin_state`` is a :class:`~swingsim.motion.kinematics.SuspensionState` (or its
@@ -728,14 +766,14 @@ class HookLoadModel(ModelDefaults, SwingModel):
         ref = (vx + dell * u1, vy + dell * v1, vz - dell * w1)
         Ld = ell + self._cg_below_rope_end_m
         cdamp = 2.0 * self._swing_damping_ratio * math.sqrt(g / Ld) if (applied and Ld > 0.0) else 0.0
-        wx, wy = (self._wind_x_m_s, self._wind_y_m_s) if applied else (0.0, 0.0)
+        wx, wy, rwf = self._wind_terms(t, pz, H[2]) if applied else (0.0, 0.0, 1.0)
 
         pts_m, pts_J, pts_b, pts_F = [], [], [], []
         # forces at the rope's end: rope drag (half the rope's), elastic tension
         FH = np.zeros(3)
         if applied and self._rope_drag_k:
-            mx = 0.5 * (vx + Hd[0]) - wx
-            my = 0.5 * (vy + Hd[1]) - wy
+            mx = 0.5 * (vx + Hd[0]) - rwf * wx
+            my = 0.5 * (vy + Hd[1]) - rwf * wy
             mz = 0.5 * (vz + Hd[2])
             al = mx * u1 + my * v1 - mz * w1
             nx_, ny_, nz_ = mx - al * u1, my - al * v1, mz + al * w1
@@ -805,7 +843,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
             FG = np.array([0.0, 0.0, -m * g])
             FG -= cdamp * m * (Gd - ref + om_s * np.array([G[1] - py, px - G[0], 0.0]))
             if applied and self._load_drag_k:
-                rel = Gd - (wx, wy, 0.0)
+                lwf = self._height_factor(G[2], H[2], t)
+                rel = Gd - (lwf * wx, lwf * wy, 0.0)
                 FG -= self._load_drag_k * math.sqrt(rel @ rel) * rel
             pts_m.append(m)
             pts_J.append(JG)
@@ -928,7 +967,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         kin_state = motion_or_kin(t) if callable(motion_or_kin) else motion_or_kin
         y = np.asarray(y, float)
         if applied:
-            return self._qdd(y, kin_state)
+            return self._qdd(y, kin_state, t)
         return self._eval(y, kin_state, applied=False)
 
     def make_rhs(self, kin):
@@ -943,7 +982,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             if t_lift is not None and t < t_lift:
                 out[nq:] = 0.0  # resting, supported: nothing moves until lift-off
                 return out
-            out[nq:] = fast(y, kin(t))
+            out[nq:] = fast(y, kin(t), t)
             return out
 
         return rhs
@@ -966,7 +1005,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             if self.rope_is_elastic:  # the spring law alone, no dynamics needed
                 k = kin(t)
                 return rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
-            return ev(y, kin(t), full=True)["rope_T"]
+            return ev(y, kin(t), full=True, t=t)["rope_T"]
 
         slack.terminal = True
         slack.direction = -1
@@ -977,7 +1016,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             def leg_slack(t, y):
                 if t_lift is not None and t <= t_lift:
                     return 1.0
-                return float(ev(y, kin(t), full=True)["legs_T"][0]) + leg_eps
+                return float(ev(y, kin(t), full=True, t=t)["legs_T"][0]) + leg_eps
 
             leg_slack.terminal = True
             leg_slack.direction = -1
@@ -1097,7 +1136,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         for i in range(N):
             kin_state = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
                 float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]), float(e["slew_rate"][i]))
-            evaluation = self._eval(Y[i], kin_state, full=True)
+            evaluation = self._eval(Y[i], kin_state, full=True, t=float(t[i]))
             if self.starts_resting and t[i] < self.lift_off_time_s:
                 self._resting_tensions(evaluation)
             for n in res:
@@ -1125,6 +1164,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
             "static_leg_tension_N": self.static_leg_tension_N(),
             "hanging_leg_tension_N": self.hanging_leg_tension_N(),
         }
+        out["wind_at_load"] = (self.wind.velocities(t, res["G"][:, 2]) if self.wind is not None
+                               else np.tile([self._wind_x_m_s, self._wind_y_m_s], (N, 1)))
         columns = {}
         if tilt is not None:
             columns["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))

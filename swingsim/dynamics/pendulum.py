@@ -43,6 +43,7 @@ import numpy as np
 from swingsim import constants
 from swingsim.dynamics.base import ModelDefaults, SwingModel
 from swingsim.dynamics.forces import drag_coefficient_per_mass
+from swingsim.dynamics.wind import wind_field
 
 
 def _zero(x) -> bool:
@@ -50,7 +51,7 @@ def _zero(x) -> bool:
     return isinstance(x, (int, float)) and x == 0.0
 
 
-def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
+def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0, wind=None):
     r"""Applied force per unit mass on the load, gravity included.
 
     Every argument may be a float or a numpy array (broadcastable): the single run
@@ -77,6 +78,11 @@ def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
         swing relative to the crane (sheave and rope friction turn with the jib),
         i.e. on :math:`L(\dot n - \Omega \hat z \times n)`, so that steady
         slewing has the undamped steady angle.
+    wind : tuple, optional
+        ``(wx, wy, rope_factor)``: the wind velocity at the load [m/s] and the wind at
+        the rope's mid-height over the wind at the load [-], from the run's
+        :class:`~swingsim.dynamics.wind.WindField` (:func:`wind_terms`); the steady
+        ``par["wx"]``, ``par["wy"]`` at every height when None.
 
     Returns
     -------
@@ -103,7 +109,12 @@ def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
     kr = par["kr"]
     if _zero(kd) and _zero(kr):
         return fx, fy, fz
-    wx, wy = par["wx"], par["wy"]
+    if wind is None:
+        wx, wy = par["wx"], par["wy"]
+        rwx, rwy = wx, wy
+    else:
+        wx, wy, rf = wind
+        rwx, rwy = wx * rf, wy * rf
     # velocity of the load
     rvx = vpx + dL * u + L * du
     rvy = vpy + dL * v + L * dv
@@ -116,8 +127,8 @@ def specific_force(u, v, w, du, dv, L, dL, vpx, vpy, vpz, par, slew_rate=0.0):
     fz = fz - kd * sp * rvz
     # rope: drag of the cross-flow at the rope's mid-point velocity; half the
     # total acts at the load (the distributed force's moment about the top).
-    mx = 0.5 * (vpx + rvx) - wx
-    my = 0.5 * (vpy + rvy) - wy
+    mx = 0.5 * (vpx + rvx) - rwx
+    my = 0.5 * (vpy + rvy) - rwy
     mz = 0.5 * (vpz + rvz)
     along = mx * u + my * v - mz * w
     nx_ = mx - along * u
@@ -233,6 +244,32 @@ def projected_angles(direction) -> tuple[float, float]:
     return math.atan2(ux, -uz), math.atan2(uy, -uz)
 
 
+def wind_terms(field, t, pz, L, w):
+    """The wind the point-mass equations take at one instant: the one place they read a wind field.
+
+    Parameters
+    ----------
+    field : WindField or BatchWind
+        The run's wind (:mod:`swingsim.dynamics.wind`); a :class:`BatchWind` takes arrays.
+    t : float or ndarray
+        Time [s].
+    pz : float or ndarray
+        Height of the suspension point above the ground [m].
+    L : float or ndarray
+        Rope length [m].
+    w : float or ndarray
+        Downward component of the unit rope direction [-].
+
+    Returns
+    -------
+    tuple
+        ``(wx, wy, rope_factor)``: wind velocity at the load [m/s] and the wind at the
+        rope's mid-height over the wind at the load [-] (the ``wind`` argument of
+        :func:`specific_force`).
+    """
+    return field.terms(t, pz - L * w, pz - 0.5 * L * w)
+
+
 def starts_in_steady_wind(scene) -> bool:
     """Whether a run starts hanging at rest in the steady wind (``wind.onset = "steady"``).
 
@@ -315,6 +352,13 @@ class PointMassModel(ModelDefaults, SwingModel):
     def __init__(self, scene):
         self.scene = scene
         self.par = model_params(scene)
+        #: the wind when it changes in time or with height (None: steady and uniform, par's wx, wy)
+        self.wind = wind_field(scene)
+        if self.wind is not None:
+            self.extra_breakpoints = self.wind.breakpoints
+            self.max_step_s = self.wind.max_step_s
+        #: height of the suspension point at t = 0 [m] (set by initial_state; for the rest lean)
+        self._suspension_height_m = None
         self.angle_limit_rad = math.radians(constants.MODEL_ANGLE_LIMIT_DEG)
         self._wlim = math.cos(self.angle_limit_rad)
 
@@ -322,8 +366,10 @@ class PointMassModel(ModelDefaults, SwingModel):
     def initial_state(self, motion) -> np.ndarray:
         sw = self.scene.start
         lean = (0.0, 0.0)
+        e0 = motion.evaluate(np.array([0.0]))
+        self._suspension_height_m = float(e0["p"][0][2])
         if starts_in_steady_wind(self.scene):
-            L0 = float(motion.evaluate(np.array([0.0]))["L"][0])
+            L0 = float(e0["L"][0])
             lean = projected_angles(self.rest_direction(L0))
         return np.array(direction_from_projected(
             lean[0] + math.radians(sw.swing_deg[0]), lean[1] + math.radians(sw.swing_deg[1]),
@@ -338,12 +384,14 @@ class PointMassModel(ModelDefaults, SwingModel):
     def make_rhs(self, kin):
         par = self.par
         sf, acc = specific_force, accelerations
+        field = self.wind
 
         def rhs(t, y):
             u, v, du, dv = y
             px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL, om = kin(t)
             w = (1.0 - u * u - v * v) ** 0.5
-            fx, fy, fz = sf(u, v, w, du, dv, L, dL, vx, vy, vz, par, om)
+            wind = None if field is None else wind_terms(field, t, pz, L, w)
+            fx, fy, fz = sf(u, v, w, du, dv, L, dL, vx, vy, vz, par, om, wind)
             ddu, ddv = acc(u, v, du, dv, L, dL, ax, ay, az, fx, fy, fz)
             return [du, dv, ddu, ddv]
 
@@ -352,12 +400,14 @@ class PointMassModel(ModelDefaults, SwingModel):
     def make_events(self, kin):
         par = self.par
         wlim = self._wlim
+        field = self.wind
 
         def slack(t, y):
             u, v, du, dv = y
             px, py, pz, vx, vy, vz, ax, ay, az, L, dL, ddL, om = kin(t)
             w = max(1.0 - u * u - v * v, 1e-300) ** 0.5
-            fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, vz, par, om)
+            wind = None if field is None else wind_terms(field, t, pz, L, w)
+            fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, vx, vy, vz, par, om, wind)
             return tension_per_mass(u, v, du, dv, L, ddL, ax, ay, az, fx, fy, fz)
 
         slack.terminal = True
@@ -372,7 +422,21 @@ class PointMassModel(ModelDefaults, SwingModel):
         return {"slack": slack, "overswing": overswing}
 
     def rest_direction(self, rope_length_m: float) -> np.ndarray:
-        return rest_direction(self.par, rope_length_m)
+        z0 = self._suspension_height_m
+        if self.wind is None or not self.wind.sheared or z0 is None:
+            return rest_direction(self.par, rope_length_m)
+        # the mean wind at the load's and the rope's heights as they hang, leaning, below the
+        # start's suspension point (the heights depend on the lean: a few passes settle it)
+        f, L = self.wind, rope_length_m
+        n = np.array([0.0, 0.0, -1.0])
+        for _ in range(8):
+            z_load, z_mid = z0 + L * n[2], z0 + 0.5 * L * n[2]
+            wx, wy = f.mean_velocity_at(z_load)
+            new = rest_direction(self.par, L, wind=(wx, wy, float(f.profile_factor(z_mid) / f.profile_factor(z_load))))
+            if np.max(np.abs(new - n)) < 1e-15:
+                return new
+            n = new
+        return n
 
     # -- outputs ---------------------------------------------------------------
     def outputs(self, t, Y, motion) -> dict:
@@ -385,20 +449,53 @@ class PointMassModel(ModelDefaults, SwingModel):
         nd = np.stack([du, dv, (u * du + v * dv) / w], axis=-1)
         load = p + L[:, None] * n
         load_vel = dp + dL[:, None] * n + L[:, None] * nd
+        wind = None if self.wind is None else self.wind_at_load(t, p, L, w)
         fx, fy, fz = specific_force(u, v, w, du, dv, L, dL, dp[:, 0], dp[:, 1], dp[:, 2], self.par,
-                                    e["slew_rate"])
+                                    e["slew_rate"], wind)
         tpm = tension_per_mass(u, v, du, dv, L, ddL, ddp[:, 0], ddp[:, 1], ddp[:, 2], fx, fy, fz)
         m, g = self.par["m"], self.par["g"]
         energy = 0.5 * m * np.sum(load_vel**2, axis=1) + m * g * load[:, 2]
+        wind_xy = self._wind_columns(t, load[:, 2], wind)
         return {
-            "suspension": p, "suspension_vel": dp, "rope_length": L,
+            "suspension": p, "suspension_vel": dp, "rope_length": L, "wind_at_load": wind_xy,
             "load": load, "load_vel": load_vel, "hook": None,
             "rope_dir": n, "rope_tension_N": m * tpm, "energy_J": energy,
             "static_rope_load_N": m * g,
         }
 
 
-def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
+    def wind_at_load(self, t, p, L, w) -> tuple:
+        """The wind terms of :func:`specific_force` at many samples (arrays).
+
+        Parameters
+        ----------
+        t : ndarray
+            Times (N,) [s].
+        p : ndarray
+            Suspension points (N, 3) [m].
+        L : ndarray
+            Rope lengths (N,) [m].
+        w : ndarray
+            Downward components of the rope direction (N,) [-].
+
+        Returns
+        -------
+        tuple of ndarray
+            ``(wx, wy, rope_factor)`` [m/s, m/s, -].
+        """
+        z_load, z_mid = p[:, 2] - L * w, p[:, 2] - 0.5 * L * w
+        v = self.wind.velocities(t, z_load)
+        rf = self.wind.profile_factor(z_mid) / self.wind.profile_factor(z_load)
+        return v[:, 0], v[:, 1], rf
+
+    def _wind_columns(self, t, z_load, wind) -> np.ndarray:
+        """Wind velocity at the load (N, 2) [m/s], for the outputs."""
+        if wind is not None:
+            return np.stack([wind[0], wind[1]], axis=-1)
+        return np.tile([self.par["wx"], self.par["wy"]], (len(t), 1))
+
+
+def rest_direction(par: dict, L: float, iterations: int = 60, wind=None) -> np.ndarray:
     """Unit rope direction of the load hanging at rest in the steady wind.
 
     At rest relative to a still suspension point the rope lies along the
@@ -414,6 +511,9 @@ def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
         Rope length [m].
     iterations : int
         Most fixed-point iterations.
+    wind : tuple, optional
+        The mean wind as :func:`specific_force` takes it (``(wx, wy, rope_factor)`` [m/s, m/s, -]);
+        ``par``'s steady wind when None.
 
     Returns
     -------
@@ -423,7 +523,7 @@ def rest_direction(par: dict, L: float, iterations: int = 60) -> np.ndarray:
     u = v = 0.0
     for _ in range(iterations):
         w = max(1.0 - u * u - v * v, 1e-12) ** 0.5
-        fx, fy, fz = specific_force(u, v, w, 0.0, 0.0, L, 0.0, 0.0, 0.0, 0.0, par)
+        fx, fy, fz = specific_force(u, v, w, 0.0, 0.0, L, 0.0, 0.0, 0.0, 0.0, par, 0.0, wind)
         n = math.sqrt(fx * fx + fy * fy + fz * fz)
         u_new, v_new = fx / n, fy / n
         if abs(u_new - u) + abs(v_new - v) < 1e-15:

@@ -94,8 +94,17 @@ def model_limits(scene) -> list[str]:
     if scene.rigging is not None:
         out.append("Slings do not stretch (rigid rigging); a leg going slack is reported, and the "
                    "results do not hold beyond it.")
-    out.append("The wind is steady: no gusts or turbulence, and one speed at every height; on a "
-               "real site it varies with height and time.")
+    w = scene.wind
+    if w.turbulence_intensity > 0.0:
+        out.append("The turbulence is one random realisation of the named spectrum at one point, the "
+                   "same over the whole rope and load; another seed gives another answer (run "
+                   "wind.realisations for the spread).")
+    elif w.gusts:
+        out.append("The wind is steady apart from the discrete gusts given; real wind is turbulent.")
+    else:
+        out.append("The wind is steady: no gusts or turbulence"
+                   + ("" if w.profile != "uniform" else ", and one speed at every height")
+                   + "; on a real site it varies with height and time.")
     out.append("The crane structure is rigid: no boom, jib or mast deflection, no slew or travel "
                "drive flexibility; the crane moves exactly as the moves prescribe.")
     if scene.start.rope_preload == "lift-off":

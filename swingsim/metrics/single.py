@@ -23,6 +23,7 @@ from swingsim.metrics.chart import chart_metrics, chart_warnings
 from swingsim.metrics.definitions import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_metrics, model_warnings
 from swingsim.metrics.zones import zone_summaries
+from swingsim.metrics.wind import gust_metrics, gust_warnings
 from swingsim.scene.site import scene_wind_from_bearing_deg
 
 __all__ = ["Summary", "summarize", "final_check", "metric_times", "rope_angle_rad", "angle_between"]
@@ -254,8 +255,11 @@ def summarize(traj) -> Summary:
     data.update(model_metrics(traj, t, s))
     # -- rated capacity chart: utilisation, side and out-load at the tip (metrics/chart.py; empty without a chart) --
     data.update(chart_metrics(traj, t, s))
+    # -- the wind at the load: peak gust against the in-service limit (metrics/wind.py) --
+    data.update(gust_metrics(traj, t, s))
     data["cautions"] = ([cautions.CAUTION] + cautions.scenario_warnings(data, scene)
-                        + model_warnings(data, scene) + chart_warnings(data, scene))
+                        + model_warnings(data, scene) + chart_warnings(data, scene)
+                        + gust_warnings(data, scene))
     summary = Summary(data)
     final_check(traj, summary, s)
     return summary

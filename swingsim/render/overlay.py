@@ -107,9 +107,11 @@ def clock_text(t_s: float, speed: float) -> str:
 
 
 def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_m: float,
-                  chart_pct: float | None = None) -> str:
+                  chart_pct: float | None = None, wind_m_s: float | None = None) -> str:
     rows = [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
             ("hook load", f"{hook_load_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
+    if wind_m_s is not None:  # the wind at the load, as the run has it at this instant (gusts, turbulence)
+        rows.append(("wind", f"{wind_m_s:6.1f}", "m/s"))
     if chart_pct is not None:
         rows.append(("of chart", f"{chart_pct:6.1f}" if math.isfinite(chart_pct) else "   off", "%"))
     return "\n".join(f"{a:<12}{b:>7} {c:<3}" for a, b, c in rows)
@@ -208,7 +210,9 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     ten = float(row["rope_tension_N"]) / 1000.0
     return FrameText(
         clock=clock_text(t_s, speed),
-        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct),
+        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct,
+                              None if row.get("wind_at_load") is None or not np.any(row["wind_at_load"])
+                              else float(np.hypot(*np.asarray(row["wind_at_load"], dtype=float)[:2]))),
         event=event_text(t_s, events),
         zone=zone_text(zone_states),
         caution=caution_line(line_chars),

@@ -21,7 +21,7 @@ from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
 from swingsim.render.palette import LABEL_STYLE, PALETTE, STYLE, darker, envelope_image, ground_image, rgb
-from swingsim.scene.site import wind_words
+from swingsim.scene.site import wind_from_bearing_deg, wind_words
 from swingsim.scene3d.meshes import arrow
 from swingsim.scene3d.poses import SAMPLE_KEYS
 from swingsim.scene3d.transforms import is_shown
@@ -73,6 +73,8 @@ class Stage:
     def __init__(self, traj, facts, *, size=(1280, 720), views=("oblique",), load_mesh=None,
                  speed=1.0, video_len_s=0.0):
         self.traj, self.facts, self.size = traj, facts, tuple(int(s) for s in size)
+        w = traj.scene.wind
+        self._wind_varies = bool(w.gusts or w.turbulence_intensity > 0.0 or w.profile != "uniform")
         self.views = tuple(views)
         self.speed, self.video_len_s = speed, video_len_s
         # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
@@ -195,7 +197,8 @@ class Stage:
         self.beam_span = self.scene3d.spreader_span_m
 
     def _label(self, pos, text, *, size, colour, bold=False):
-        """A 3D-anchored label that always faces the camera."""
+        """A 3D-anchored label that always faces the camera (one actor per view, returned)."""
+        made = []
         for ren in self.renderers:
             a = vtk.vtkBillboardTextActor3D()
             a.SetInput(text)
@@ -206,6 +209,8 @@ class Stage:
             tp.SetBold(bold)
             tp.SetJustificationToCentered()
             ren.AddActor(a)
+            made.append(a)
+        return made
 
     def _site_arrows(self, axis_mesh):
         """A north arrow and, with wind, an arrow the way the wind blows, on the ground beside the +x/+y arrows.
@@ -225,15 +230,41 @@ class Stage:
                   lighting=False)
         self._label(centre + 0.65 * length * d, "N", size=LABEL_STYLE["axis_x"][1], colour=PALETTE["north"],
                     bold=True)
-        if scene.wind.speed_m_s > 0.0:
+        if scene.wind.speed_m_s > 0.0 or scene.wind.gusts:
             toward = math.radians(scene.wind.direction_deg)
-            w = np.array([math.cos(toward), math.sin(toward), 0.0])
             at = centre + np.array([-0.2 * length, -1.6 * length, 0.0])
-            self._add(_polydata(arrow(at - 0.5 * length * w, w, length, tip_radius=0.12, shaft_radius=0.05),
-                                "faces"), PALETTE["wind"], lighting=False)
-            self._label(at + np.array([0.0, -0.75 * length, 0.0]),
-                        f"wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}",
-                        size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True)
+            # built along +x about its middle, turned and scaled each frame to the wind at the load
+            actor = self._add(_polydata(arrow(np.array([-0.5 * length, 0.0, 0.0]), np.array([1.0, 0.0, 0.0]),
+                                              length, tip_radius=0.12, shaft_radius=0.05), "faces"),
+                              PALETTE["wind"], lighting=False)
+            labels = self._label(at + np.array([0.0, -1.2 * length, 0.0]),
+                                 f"wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}",
+                                 size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True)
+            self._wind_arrow = (actor, labels, at, max(scene.wind.speed_m_s, 1.0))
+            self._set_wind_arrow(toward, scene.wind.speed_m_s, None)
+
+    def _set_wind_arrow(self, toward_rad: float, speed_m_s: float, text: str | None) -> None:
+        """Turn the wind arrow toward ``toward_rad``, its length with the speed, and relabel it."""
+        actor, labels, at, ref = self._wind_arrow
+        k = min(max(speed_m_s / ref, 0.25), 1.8)
+        c, s_ = math.cos(toward_rad), math.sin(toward_rad)
+        m = np.array([[c * k, -s_ * k, 0.0, at[0]], [s_ * k, c * k, 0.0, at[1]], [0.0, 0.0, k, at[2]],
+                      [0.0, 0.0, 0.0, 1.0]])
+        actor.user_matrix = m
+        if text is not None:
+            for a in labels:
+                a.SetInput(text)
+
+    def _update_wind(self, row) -> None:
+        """The wind arrow and its label from the run's wind at the load at this instant (gusts, turbulence)."""
+        wxy = row.get("wind_at_load")
+        if getattr(self, "_wind_arrow", None) is None or wxy is None or not self._wind_varies:
+            return
+        wx, wy = float(wxy[0]), float(wxy[1])
+        speed = math.hypot(wx, wy)
+        toward = math.atan2(wy, wx) if speed > 0.0 else math.radians(self.traj.scene.wind.direction_deg)
+        bearing = wind_from_bearing_deg(math.degrees(toward), self.traj.scene.site.north_deg)
+        self._set_wind_arrow(toward, speed, f"wind at load {speed:.1f} m/s from {bearing:.0f} deg")
 
     def _place_cameras(self):
         w, h = self.size
@@ -413,6 +444,7 @@ class Stage:
         p = np.asarray(row["suspension"], dtype=float)
         load = np.asarray(row["load"], dtype=float)
         self._update_trail(t, load)
+        self._update_wind(row)
         states = self._update_zones(row)
         for ren, cam in zip(self.renderers, self.cams):
             if cam is None:

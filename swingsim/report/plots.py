@@ -16,6 +16,9 @@ from swingsim.report.plots_rigging import rigging_figure
 from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, literal_text, new_figure,
                                    shade_moves, title_and_caution)
 from swingsim.report.tables import timeseries_columns
+
+#: Colour of the wind on the time plots (apart from the rope's blue).
+WIND = "#4d8f2a"
 from swingsim.scene.site import wind_words
 
 
@@ -52,8 +55,28 @@ def _swing_figure(traj, summary, cols=None):
         ax.text(d["settled_at_s"], ax.get_ylim()[0], f" settled < {lim.settle_deg:g} deg", fontsize=8,
                 va="bottom", color=INK)
     label_axes(ax, "time [s]", "angle [deg]", "lower right")
+    _wind_axis(ax, c, d)
     title_and_caution(fig, f"{scene.title}: swing angle (shaded: moves)", summary)
     return fig
+
+
+def _wind_axis(ax, c, d) -> None:
+    """The wind speed at the load on a right-hand axis, with the in-service limit, when the wind varies."""
+    if not d.get("wind_varies"):
+        return
+    fig = ax.figure
+    pos = ax.get_position()
+    ax.set_position([pos.x0, pos.y0, pos.width - 0.04, pos.height])
+    wax = ax.twinx()
+    wax.plot(c["t_s"], c["wind_speed_m_s"], color=WIND, lw=0.9, alpha=0.85)
+    wax.axhline(d["wind_limit_m_s"], color=WIND, lw=1, ls="--")
+    top = max(float(np.max(c["wind_speed_m_s"])), d["wind_limit_m_s"]) * 1.1
+    wax.set_ylim(0.0, top)
+    wax.text(c["t_s"][0], d["wind_limit_m_s"], f" in-service wind limit {d['wind_limit_m_s']:g} m/s",
+             color=WIND, fontsize=8, va="bottom")
+    wax.set_ylabel("wind speed at the load [m/s]", color=WIND)
+    wax.tick_params(axis="y", colors=WIND)
+    fig.sca(ax)
 
 
 def _speed_figure(traj, summary, cols=None):

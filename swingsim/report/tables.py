@@ -18,6 +18,7 @@ from swingsim.metrics.chart import chart_series
 from swingsim.metrics.definitions import line_pull
 from swingsim.metrics.single import angle_between, rope_angle_rad
 from swingsim.metrics.models import model_summary_lines
+from swingsim.metrics.wind import gust_lines, wind_series
 from swingsim.scene.site import wind_words
 
 
@@ -109,6 +110,10 @@ def timeseries_columns(traj, t=None) -> dict:
         cols["chart_static_utilisation_pct"] = chart["static_utilisation_pct"]
         cols["tip_side_load_kN"] = chart["side_N"] / 1e3
         cols["tip_out_load_kN"] = chart["out_N"] / 1e3
+    # -- the wind at the load (swingsim/metrics/wind.py) --
+    wind = wind_series(traj.scene, s)
+    cols["wind_speed_m_s"] = wind["speed_m_s"]
+    cols["wind_from_bearing_deg"] = wind["from_bearing_deg"]
     return cols
 
 
@@ -210,7 +215,8 @@ def summary_text(summary, scene, mode_names=None) -> str:
              + (f" (rope ends at {d['rope_length_end_m']:.2f} m)" if abs(d['rope_length_end_m'] - scene.rope.length_m) > 1e-9 else "")
              + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.1f} s; simulated {d['simulated_until_s']:.1f} s.")
     if scene.wind.speed_m_s:
-        w.append(f"Wind {scene.wind.speed_m_s:.1f} m/s {wind_words(scene)}, site north at "
+        at = "" if scene.wind.profile == "uniform" else f" at {scene.wind.reference_height_m:.1f} m"
+        w.append(f"Wind {scene.wind.speed_m_s:.1f} m/s{at} {wind_words(scene)}, site north at "
                  f"{scene.site.north_deg:.1f} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.1f} deg "
                  "downwind; " + _wind_start(d, scene))
     w.append(cautions.TONNE_FORCE_NOTE)
@@ -256,6 +262,8 @@ def summary_text(summary, scene, mode_names=None) -> str:
                  f"{d['period_difference_pct']:+.2f}% against small-angle")
         if d.get("period_exact_at_amplitude_s"):
             w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's', 3)} (elliptic integral)")
+    # -- the wind at the load, gust statistics (swingsim/metrics/wind.py) --
+    w.extend(gust_lines(d, scene))
     # -- rated capacity chart (swingsim/metrics/chart.py) --
     w.extend(_chart_lines(d))
     if d["zones"]:

@@ -16,7 +16,7 @@ import numpy as np
 
 from swingsim.motion.limits import RAIL_KINDS, SLEWING_KINDS
 
-__all__ = ["RatedChart", "Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Limits",
+__all__ = ["RatedChart", "Crane", "Rope", "Load", "View", "Start", "Hook", "Rigging", "Wind", "Gust", "Limits",
            "MoveTable", "Move", "Zone", "Site", "Scene", "models_rigid_load", "slew_centre"]
 
 
@@ -208,6 +208,32 @@ class Wind:
     air_density_kg_m3: float
     # -- wind onset --
     onset: str = "steady"
+    # -- gusts, turbulence, profile (swingsim/dynamics/wind.py) --
+    profile: str = "uniform"
+    reference_height_m: float = 10.0
+    shear_exponent: float = 1.0 / 7.0
+    roughness_length_m: float = 0.05
+    turbulence_intensity: float = 0.0
+    spectrum: str = "kaimal"
+    length_scale_m: float | None = None
+    lateral_intensity_ratio: float = 0.8
+    seed: int = 0
+    realisations: int = 1
+    gusts: tuple = ()
+
+
+@dataclass(frozen=True)
+class Gust:
+    """One discrete 1 - cosine gust (``[[wind.gusts]]``).
+
+    ``direction_deg`` is where it blows toward, from +x toward +y (converted from
+    ``from_bearing_deg`` on reading); None blows with the mean wind.
+    """
+
+    start_s: float
+    peak_m_s: float
+    duration_s: float
+    direction_deg: float | None = None
 
 
 @dataclass(frozen=True)

@@ -313,9 +313,7 @@ class KeyReader:
             if problem:
                 raise self.err(where, problem, v[:80])
             if key.choices and v not in key.choices:
-                near = difflib.get_close_matches(v, key.choices, n=1, cutoff=0.6)
-                hint = f" (did you mean '{near[0]}'?)" if near else ""
-                raise self.err(where, f"expected {key.allowed()}{hint}", v)
+                raise self.err(where, f"expected {key.allowed()}{key.did_you_mean(v)}", v)
             return v
         if k == "bool":
             if not isinstance(v, bool):
@@ -366,9 +364,7 @@ class KeyReader:
                 raise bad()
             for x in v:
                 if key.choices and x not in key.choices:
-                    near = difflib.get_close_matches(x, key.choices, n=1, cutoff=0.6)
-                    hint = f" (did you mean '{near[0]}'?)" if near else ""
-                    raise self.err(where, f"expected {key.allowed()}{hint}; '{x}' is not one", v)
+                    raise self.err(where, f"expected {key.allowed()}{key.did_you_mean(x)}; '{x}' is not one", v)
             return tuple(v)
         if k == "path":
             if not isinstance(v, str) or not v or "\x00" in v:

@@ -8,7 +8,9 @@ quantity's unit is in its key name.
 
 from __future__ import annotations
 
+import difflib
 import math
+import re
 from dataclasses import dataclass
 from typing import Any
 
@@ -24,6 +26,8 @@ class Key:
     ``vec3s`` (list of [x, y, z] points), ``path`` (a file relative to the scene),
     ``strs`` (a list of distinct strings, each one of ``choices``).
     ``gt``/``ge``/``le``/``lt`` bound numbers (and each component of vectors).
+    ``synonyms``: trade words for a choice, ``((words, choice, why), ...)``, for the
+    did-you-mean of :meth:`did_you_mean` (e.g. ``"trolley"`` for the axis ``"radius"``).
     """
 
     kind: str
@@ -35,6 +39,34 @@ class Key:
     lt: float | None = None
     le: float | None = None
     choices: tuple | None = None
+    synonyms: tuple = ()
+
+    def did_you_mean(self, value) -> str:
+        """The hint for a value that is not one of ``choices``: a trade synonym, a spelling, a typo.
+
+        Parameters
+        ----------
+        value : object
+            The value as written in the scene.
+
+        Returns
+        -------
+        str
+            ``" (did you mean 'radius'? <why>)"`` for a trade word of :attr:`synonyms`,
+            ``" (did you mean 's-curve'?)"`` for another spelling (case, ``_`` or spaces for
+            ``-``) or a near miss (difflib), ``""`` when nothing is near.
+        """
+        if not self.choices:
+            return ""
+        text = str(value)
+        spelled = _spelling(text)
+        if spelled in self.choices:
+            return f" (did you mean '{spelled}'?)"
+        for words, choice, why in self.synonyms:
+            if spelled in words or spelled.replace("-", "") in words:
+                return f" (did you mean '{choice}'? {why})"
+        near = difflib.get_close_matches(text, self.choices, n=1, cutoff=0.6)
+        return f" (did you mean '{near[0]}'?)" if near else ""
 
     def allowed(self) -> str:
         """Human-readable statement of the allowed values, as errors and the key reference say it.
@@ -97,6 +129,94 @@ class Key:
         return True
 
 
+def _spelling(text: str) -> str:
+    """A name as the choices spell it: lower case, runs of spaces, ``_`` and ``-`` as one ``-``."""
+    return re.sub(r"[\s_\-]+", "-", text.strip().lower())
+
+
+def synonyms(*entries) -> tuple:
+    """Trade words for choices, as :class:`Key` takes them, with the words in :func:`_spelling`'s form.
+
+    Parameters
+    ----------
+    *entries : tuple
+        ``(words, choice, why)``: the trade words (str, space separated words allowed),
+        the choice they mean, and one short clause saying why.
+
+    Returns
+    -------
+    tuple
+        ``((frozenset of words, choice, why), ...)``.
+    """
+    return tuple((frozenset(_spelling(w) for w in words) | frozenset(_spelling(w).replace("-", "") for w in words),
+                  choice, why) for words, choice, why in entries)
+
+
+#: Trade words for the axes (common practice on sites).
+AXIS_SYNONYMS = synonyms(
+    (("trolley", "trolleying", "trolley travel", "trolley in", "trolley out", "trolley-in", "trolley-out"),
+     "radius", 'a tower crane\'s trolley runs along the jib: axis = "radius"; a gantry or bridge crane\'s '
+     'trolley crosses the span: axis = "y"'),
+    (("luff", "luffing", "luff in", "luff out", "boom", "boom up", "boom down", "derrick", "derricking",
+      "reach", "jib"), "radius", 'luffing the boom or jib changes the radius: axis = "radius"'),
+    (("swing", "rotate", "rotation", "turn", "slewing", "slue", "swivel", "yaw"), "slew",
+     'turning the crane about its slew axis: axis = "slew"'),
+    (("hoisting", "lift", "lifting", "raise", "lower", "lowering", "hook", "winch", "up", "down", "z",
+      "vertical"), "hoist", 'raising or lowering the hook: axis = "hoist" (a positive distance_m raises)'),
+    (("travel", "long travel", "gantry", "gantry travel", "bridge", "bridge travel", "long", "rail"), "x",
+     'travel along the rails: axis = "x"'),
+    (("cross travel", "cross", "traverse", "cross traverse", "across"), "y",
+     'travel across the span (a gantry or bridge crane\'s trolley): axis = "y"'),
+)
+
+#: Trade words for the motion profiles.
+PROFILE_SYNONYMS = synonyms(
+    (("scurve", "s shaped", "s shape", "jerk limited", "jerk", "smooth", "s", "soft start"), "s-curve",
+     "a jerk-limited move is profile = \"s-curve\""),
+    (("trapezoidal", "trapezium", "trapeze", "trap", "ramp", "linear ramp", "bang coast bang",
+      "constant acceleration"), "trapezoid", "a constant-acceleration ramp is profile = \"trapezoid\""),
+    (("recorded", "record", "recording", "csv", "spline", "operator record", "measured", "file", "log"),
+     "table", "a recorded move from a CSV file is profile = \"table\""),
+    (("zero vibration", "input shaped", "input shaping", "shaped", "shaper", "anti sway", "antisway",
+      "sway control"), "zv", "input-shaped moves are profile = \"zv\", \"zvd\" or \"ei\""),
+    (("zero vibration derivative",), "zvd", "profile = \"zvd\""),
+    (("extra insensitive",), "ei", "profile = \"ei\""),
+    (("period", "full period", "whole periods", "whole swing period", "multiple period"), "whole-period",
+     "acceleration phases of whole swing periods are profile = \"whole-period\""),
+)
+
+#: Trade words for the crane kinds.
+CRANE_KIND_SYNONYMS = synonyms(
+    (("overhead", "overhead crane", "eot", "overhead travelling", "bridge crane", "workshop crane"), "bridge",
+     "an overhead travelling crane is kind = \"bridge\""),
+    (("goliath", "portal", "semi gantry", "gantry crane", "rmg", "rtg"), "gantry",
+     "a crane on legs running on ground rails is kind = \"gantry\""),
+    (("crawler", "truck", "all terrain", "rough terrain", "mobile crane", "telescopic", "lattice boom",
+      "boom truck"), "mobile", "a crane with a boom on a carrier is kind = \"mobile\""),
+    (("luffer", "luffing jib", "luffing tower", "luffing crane"), "luffing",
+     "a tower crane with a luffing jib is kind = \"luffing\""),
+    (("hammerhead", "flat top", "flattop", "saddle jib", "topless", "tower crane", "self erecting"), "tower",
+     "a tower crane with a trolley jib is kind = \"tower\""),
+)
+
+#: Trade words for the rigging kinds.
+RIGGING_KIND_SYNONYMS = synonyms(
+    (("leg", "single leg", "one leg", "1 leg", "sling", "choker", "eye"), "single",
+     "one leg from the hook is kind = \"single\""),
+    (("two leg", "2 leg", "three leg", "3 leg", "four leg", "4 leg", "multi leg", "chain sling", "legs",
+      "two leg bridle", "four leg bridle"), "bridle", "two or more legs from the hook are kind = \"bridle\""),
+    (("lifting beam", "beam", "spreader beam", "spreader bar", "bar"), "spreader",
+     "a lifting beam on top slings is kind = \"spreader\""),
+)
+
+#: Trade words for the zone kinds.
+ZONE_KIND_SYNONYMS = synonyms(
+    (("no go", "nogo", "exclusion zone", "keep out", "keepout", "restricted", "people", "danger", "drop zone",
+      "barrier", "barricade"), "exclusion", "an area to keep the load out of is kind = \"exclusion\""),
+    (("structure", "building", "obstruction", "wall", "scaffold", "solid", "hut"), "obstacle",
+     "a structure the load must not touch is kind = \"obstacle\""),
+)
+
 TOP = {
     "title": Key("str", "Title of the lift, shown on every output.", required=True),
     "duration_s": Key("float", "Simulated time from t = 0 [s].", required=True, gt=0.0),
@@ -112,7 +232,8 @@ TABLES: dict[str, dict[str, Key]] = {
         "kind": Key("str", "Crane type, for drawing, wording and geometry: tower (mast, jib with a "
                     "trolley, counter-jib), luffing (tower crane with a luffing jib: boom_length_m "
                     "and boom_foot_m needed), gantry or bridge (beam on rails), mobile (boom).",
-                    default="tower", choices=("tower", "gantry", "bridge", "mobile", "luffing")),
+                    default="tower", choices=("tower", "gantry", "bridge", "mobile", "luffing"),
+                    synonyms=CRANE_KIND_SYNONYMS),
         "wind_limit_m_s": Key("float", "In-service wind speed limit of this crane [m/s]; "
                               f"default {constants.IN_SERVICE_WIND_LIMIT_M_S:g} m/s is a rule of thumb only: "
                               "take the real value from the crane manufacturer.",
@@ -221,7 +342,11 @@ TABLES: dict[str, dict[str, Key]] = {
         "shape": Key("str", "Shape of the load: box (size_m), or cylinder: its axis is the side of "
                      "size_m that differs when the other two are equal, else the longest side; its "
                      "diameter the larger of the other two. Drawing, and the inertia of a rigid load "
-                     "(uniform solid).", default="box", choices=("box", "cylinder")),
+                     "(uniform solid).", default="box", choices=("box", "cylinder"), synonyms=synonyms(
+                         (("drum", "pipe", "tube", "coil", "cylindrical", "round", "spool", "tank"), "cylinder",
+                          "a round load is shape = \"cylinder\""),
+                         (("crate", "container", "block", "rectangular", "cuboid", "panel", "skip", "cube"), "box",
+                          "a load with flat sides is shape = \"box\""))),
         "mesh_file": Key("path", "Surface mesh drawn as the load instead of the box (STL, OBJ or PLY; "
                          "metres, origin at the load's centre of gravity, z up). Drawing only."),
         "cg_offset_m": Key("vec3", "Centre of gravity relative to the centre of the size_m box, load "
@@ -247,7 +372,7 @@ TABLES: dict[str, dict[str, Key]] = {
                     "about it; bridle: two or more legs from the hook, legs and load one rigid body "
                     "pinned at the hook; spreader: a lifting beam on two top slings with vertical "
                     "drop legs to the load, all one rigid body pinned at the hook.",
-                    default="single", choices=("single", "bridle", "spreader")),
+                    default="single", choices=("single", "bridle", "spreader"), synonyms=RIGGING_KIND_SYNONYMS),
         "leg_length_m": Key("floats_or_float", "Length of each leg, pin to pin [m]: one value for all "
                             "legs or one per leg (drop legs for a spreader).", required=True, ge=0.0),
         "attach_m": Key("vec3s", "Attachment points on the load [[x, y, z], ...], load axes, from its "
@@ -270,7 +395,11 @@ TABLES: dict[str, dict[str, Key]] = {
                             "t = 0, a suddenly applied load) or lift-off (hook, rigging and load rest "
                             "supported, the rope slack by rope_slack_m, until the hoist has pulled "
                             "their weight into the rope).", default="static",
-                            choices=("static", "none", "lift-off")),
+                            choices=("static", "none", "lift-off"), synonyms=synonyms(
+                                (("slack", "liftoff", "pick", "pick up", "from ground", "ground"), "lift-off",
+                                 "a load picked off its support is rope_preload = \"lift-off\""),
+                                (("snatch", "sudden", "unstretched", "drop"), "none",
+                                 "weight coming suddenly onto an unstretched rope is rope_preload = \"none\""))),
         "rope_slack_m": Key("float", "rope_preload = lift-off only: slack rope the hoist takes up "
                             "before the rope starts to stretch [m].", default=0.0, ge=0.0),
     },
@@ -294,7 +423,41 @@ TABLES: dict[str, dict[str, Key]] = {
                      "lean it gives them, solved exactly), so the run swings only from what the crane "
                      "does; step: they start plumb and the wind arrives at t = 0 as a sudden step, for "
                      "studying a gust. start.swing_deg is measured from the start the onset gives.",
-                     default="steady", choices=("steady", "step")),
+                     default="steady", choices=("steady", "step"), synonyms=synonyms(
+                         (("gust", "gusty", "sudden", "squall"), "step", "a wind arriving suddenly at t = 0 is "
+                          "onset = \"step\"; gusts during the run are [[wind.gusts]]"),
+                         (("constant", "static", "mean", "already blowing"), "steady",
+                          "a wind already blowing at the start is onset = \"steady\""))),
+        # -- gusts, turbulence, profile (swingsim/dynamics/wind.py) --
+        "profile": Key("str", "How the wind grows with height: uniform (speed_m_s at every height), "
+                       "power (power law, shear_exponent) or log (logarithmic law, roughness_length_m); "
+                       "speed_m_s, the turbulence and the gusts are then given at reference_height_m "
+                       "and every body sees the wind at its own height.",
+                       default="uniform", choices=("uniform", "power", "log")),
+        "reference_height_m": Key("float", "Height above the ground the wind speeds are given at "
+                                  "(an anemometer's height) [m]; 10 m as in wind codes (common practice).",
+                                  default=10.0, gt=0.0, le=500.0),
+        "shear_exponent": Key("float", "Power-law exponent of the profile [-]; default 1/7, the classic "
+                              "open-terrain value (from memory).", default=1.0 / 7.0, ge=0.0, le=1.0),
+        "roughness_length_m": Key("float", "Roughness length of the log-law profile [m]; default 0.05, "
+                                  "EN 1991-1-4 terrain category II (from memory).",
+                                  default=0.05, gt=0.0, le=2.0),
+        "turbulence_intensity": Key("float", "Turbulence intensity: standard deviation of the along-wind "
+                                    "speed over the mean speed_m_s [-]; 0 for no turbulence. Needs "
+                                    "speed_m_s > 0.", default=0.0, ge=0.0, le=1.0),
+        "spectrum": Key("str", "Turbulence spectrum: kaimal (IEC 61400-1 ed. 3), von-karman (IEC 61400-1 "
+                        "ed. 2 form) or davenport (Davenport 1961), each with its published length scale "
+                        "(docs/models.md).", default="kaimal", choices=("kaimal", "von-karman", "davenport")),
+        "length_scale_m": Key("float", "Along-wind length scale of the spectrum [m], instead of its "
+                              "published default.", gt=0.0, le=10000.0),
+        "lateral_intensity_ratio": Key("float", "Across-wind over along-wind turbulence standard "
+                                       "deviation [-]; 0.8 as IEC 61400-1 ed. 3 (from memory); 0 for "
+                                       "along-wind turbulence only.", default=0.8, ge=0.0, le=1.5),
+        "seed": Key("int", "Seed of the turbulence's random phases [-]: the same seed gives the same "
+                    "wind.", default=0, ge=0),
+        "realisations": Key("int", "Number of independent turbulence realisations (seeds seed, seed+1, "
+                            "...) to run; above 1 the summary gives their statistics (gust_statistics) "
+                            "and the worst one's time series.", default=1, ge=1, le=10000),
     },
     "output": {
         "sample_hz": Key("float", "Sample rate of timeseries.csv [Hz].", default=constants.SAMPLE_HZ, ge=1.0, le=1000.0),
@@ -336,13 +499,19 @@ TABLES: dict[str, dict[str, Key]] = {
     },
 }
 
+#: Tables every scene must have (``scene/validate.py`` reads them with ``required=True``).
+REQUIRED_TABLES = ("crane", "rope", "load")
+
 MOVE = {
-    "axis": Key("str", "Axis that moves.", required=True, choices=("x", "y", "slew", "radius", "hoist")),
+    "axis": Key("str", "Axis that moves: x and y travel (along the rails and across the span of a gantry or "
+                "bridge crane), slew, radius (trolley travel along a jib, or luffing), hoist.", required=True,
+                choices=("x", "y", "slew", "radius", "hoist"), synonyms=AXIS_SYNONYMS),
     "profile": Key("str", "Motion profile: trapezoid, s-curve, table, or an input-shaped move: zv, zvd, ei "
                    "(the trapezoid or s-curve convolved with a zero-vibration, zero-vibration-derivative or "
                    "extra-insensitive shaper tuned to the swing) or whole-period (acceleration phases "
                    "lasting whole swing periods); see docs/compare.md.", required=True,
-                   choices=("trapezoid", "s-curve", "table", "zv", "zvd", "ei", "whole-period")),
+                   choices=("trapezoid", "s-curve", "table", "zv", "zvd", "ei", "whole-period"),
+                   synonyms=PROFILE_SYNONYMS),
     "start_s": Key("float", "Start time of the move [s].", default=0.0, ge=0.0),
     "distance_m": Key("float", "Signed travel of a linear axis (x, y, radius, hoist) [m]; "
                       "a positive hoist raises the load."),
@@ -361,7 +530,8 @@ MOVE = {
     "label": Key("str", "Name of the move on plots and in the summary.", default=""),
     # -- input shaping (profiles zv, zvd, ei, whole-period; swingsim/motion/shaping.py) --
     "shaper_base": Key("str", "Command that a zv / zvd / ei shaper is applied to; default s-curve when "
-                       "the move gives a jerk limit, trapezoid otherwise.", choices=("trapezoid", "s-curve")),
+                       "the move gives a jerk limit, trapezoid otherwise.", choices=("trapezoid", "s-curve"),
+                       synonyms=PROFILE_SYNONYMS[:2]),
     "shaper_period_s": Key("float", "Undamped swing period a shaped or whole-period move is tuned to [s]; "
                            "default the scene's own first swing mode at the initial rope length.", gt=0.0),
     "shaper_second_period_s": Key("float", "Second swing period [s]: the zv / zvd / ei shaper is convolved "
@@ -377,14 +547,30 @@ ZONE = {
     "name": Key("str", "Name of the obstacle or zone.", required=True),
     "kind": Key("str", "obstacle (a structure the load must not touch) or exclusion (an area to keep "
                 "the load out of, e.g. where people work).", default="obstacle",
-                choices=("obstacle", "exclusion")),
+                choices=("obstacle", "exclusion"), synonyms=ZONE_KIND_SYNONYMS),
     "min_m": Key("vec3", "Lower corner of the zone's box [x, y, z] [m].", required=True),
     "max_m": Key("vec3", "Upper corner of the zone's box [x, y, z] [m].", required=True),
     "margin_m": Key("float", "Distance from the zone within which a caution is raised [m].",
                     default=1.0, ge=0.0),
 }
 
+#: One discrete gust (``[[wind.gusts]]``, an array inside ``[wind]``).
+GUST = {
+    "start_s": Key("float", "When the gust starts [s].", required=True, ge=0.0),
+    "peak_m_s": Key("float", "Speed the gust adds at its peak [m/s], with the 1 - cosine shape of "
+                    "gust-load practice (at reference_height_m with a profile).", required=True, gt=0.0,
+                    le=60.0),
+    "duration_s": Key("float", "Length of the gust from start to end [s].", required=True, gt=0.0),
+    "from_bearing_deg": Key("float", "Compass bearing the gust comes from [deg]; the mean wind's by "
+                            "default.", ge=0.0, le=360.0),
+    "direction_deg": Key("float", "Mathematical alternative to from_bearing_deg: where the gust blows "
+                         "toward, from +x toward +y [deg]; the mean wind's by default."),
+}
+
 ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
+
+#: Arrays of tables inside a table: (table, key) -> the entry's keys.
+NESTED_ARRAYS: dict[tuple[str, str], dict[str, Key]] = {("wind", "gusts"): GUST}
 
 
 def reference_markdown() -> str:
@@ -412,6 +598,8 @@ def reference_markdown() -> str:
         table(f"[{name}]", keys)
     for name, keys in ARRAYS.items():
         table(f"[[{name}]]", keys)
+    for (owner, name), keys in NESTED_ARRAYS.items():
+        table(f"[[{owner}.{name}]]", keys)
     return "\n".join(out)
 
 

@@ -24,8 +24,8 @@ from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
 from swingsim.scene.geometry import check_crane
-from swingsim.scene.model import (Crane, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start, View,
-                                  Wind, Zone, models_rigid_load, slew_centre)
+from swingsim.scene.model import (Crane, Gust, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start,
+                                  View, Wind, Zone, models_rigid_load, slew_centre)
 from swingsim.scene.read import KeyReader, line_of_key, read_chart, read_document, read_table, suggest
 from swingsim.scene.site import wind_toward_deg
 
@@ -174,7 +174,23 @@ MESH_SUFFIXES = (".stl", ".obj", ".ply")
 
 def _read_wind(r: KeyReader, data: dict, site: Site) -> Wind:
     """The ``[wind]`` table, its direction given as a compass bearing or as a mathematical angle, not both."""
-    wind = r.table(data, "wind", schema.TABLES["wind"])
+    raw = data.get("wind", {})
+    raw_gusts = raw.pop("gusts", []) if isinstance(raw, dict) else []
+    try:
+        wind = r.table(data, "wind", schema.TABLES["wind"])
+    finally:
+        if raw_gusts:
+            raw["gusts"] = raw_gusts
+    wind["gusts"] = _read_gusts(r, raw_gusts, site)
+    if wind["turbulence_intensity"] > 0.0 and wind["speed_m_s"] == 0.0:
+        raise r.err("wind.turbulence_intensity", "needs a mean wind (wind.speed_m_s > 0): turbulence "
+                    "is given relative to it", wind["turbulence_intensity"])
+    if wind["profile"] == "log" and wind["roughness_length_m"] >= wind["reference_height_m"]:
+        raise r.err("wind.roughness_length_m", "must be below wind.reference_height_m "
+                    f"({wind['reference_height_m']:g} m) for the log law", wind["roughness_length_m"])
+    if wind["realisations"] > 1 and wind["turbulence_intensity"] == 0.0:
+        raise r.err("wind.realisations", "needs turbulence (wind.turbulence_intensity > 0): without it "
+                    "every realisation is the same", wind["realisations"])
     bearing = wind.pop("from_bearing_deg")
     if bearing is not None:
         if "direction_deg" in data.get("wind", {}):
@@ -183,6 +199,25 @@ def _read_wind(r: KeyReader, data: dict, site: Site) -> Wind:
                         "toward +y), not both", wind["direction_deg"])
         wind["direction_deg"] = wind_toward_deg(bearing, site.north_deg)
     return Wind(**wind)
+
+
+def _read_gusts(r: KeyReader, raw_gusts, site: Site) -> tuple:
+    """The ``[[wind.gusts]]`` array: each gust's keys, its direction as a bearing or an angle."""
+    if not isinstance(raw_gusts, list) or any(not isinstance(g, dict) for g in raw_gusts):
+        raise r.err("wind.gusts", "expected an array of tables [[wind.gusts]]", raw_gusts)
+    gusts = []
+    for i, g in enumerate(raw_gusts):
+        where = f"wind.gusts[{i}]."
+        r.check_unknown(g, schema.GUST, where)
+        v = {k: r.value(g, k, key, where + k) for k, key in schema.GUST.items()}
+        bearing = v.pop("from_bearing_deg")
+        if bearing is not None:
+            if v["direction_deg"] is not None:
+                raise r.err(where + "direction_deg", "give either from_bearing_deg or direction_deg, "
+                            "not both", v["direction_deg"])
+            v["direction_deg"] = wind_toward_deg(bearing, site.north_deg)
+        gusts.append(Gust(**v))
+    return tuple(gusts)
 
 
 def _read_reeving(r: KeyReader, data: dict, rope: dict) -> None:

@@ -85,7 +85,7 @@ def simulate(scene, *, rtol: float = constants.RTOL, atol: float = constants.ATO
                 return traj
         with np.errstate(all="ignore"):
             res = solve_ivp(rhs, (t0, t1), y, method="DOP853", rtol=rtol, atol=atol,
-                            dense_output=True, events=[events[n] for n in names])
+                            max_step=model.max_step_s, dense_output=True, events=[events[n] for n in names])
         traj.nfev += res.nfev
         if res.status == -1 or not np.all(np.isfinite(res.y)):
             traj.status = "nonfinite" if not np.all(np.isfinite(res.y)) else "solver"
