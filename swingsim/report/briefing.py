@@ -36,7 +36,8 @@ MARGIN_IN, TOP_IN, FOOTER_IN = 0.65, 0.6, 0.75
 #: One line of a plot page's caption per plot (the same words as the README's list of plots).
 PLOT_CAPTIONS = {
     "swing": "Rope angle from vertical over time, with its projections on x-z and y-z, the caution "
-             "angle, the peak and when the swing settles; moves shaded.",
+             "angle, the peak and when the swing settles; moves shaded; in a varying wind, the wind "
+             "speed at the load against the in-service limit (right-hand axis).",
     "speed": "Horizontal speed of the suspension point, the load's speed and the hoist speed over time.",
     "plan": "Plan view of the suspension point's and the load's paths with the swing envelope, zones "
             "and margins; right: the load's offset from the plumb line against the clearance.",
