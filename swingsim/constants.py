@@ -6,6 +6,27 @@ Everything that a scene can override is a default here, never a hard limit.
 #: Standard gravity [m/s^2]; exact by definition (3rd CGPM 1901; ISO 80000-3).
 STANDARD_GRAVITY = 9.80665
 
+#: The same, named with its unit: the one factor between kilonewtons and tonnes-force
+#: (1 t = 9.80665 kN, the weight of 1000 kg under standard gravity).
+STANDARD_GRAVITY_M_S2 = STANDARD_GRAVITY
+
+
+def newton_to_tonnes_force(force_N):
+    """A force in tonnes-force, the unit crews speak in (1 t = 9.80665 kN, standard gravity, CGPM 1901).
+
+    Parameters
+    ----------
+    force_N : float or numpy.ndarray
+        Force [N].
+
+    Returns
+    -------
+    float or ndarray
+        The same force [t] (tonnes-force: the weight of that many tonnes under
+        :data:`STANDARD_GRAVITY_M_S2`).
+    """
+    return force_N / (1000.0 * STANDARD_GRAVITY_M_S2)
+
 #: Sea-level air density [kg/m^3] of the ISO 2533:1975 standard atmosphere (15 degC).
 AIR_DENSITY_SEA_LEVEL = 1.225
 

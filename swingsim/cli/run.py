@@ -18,6 +18,7 @@ from swingsim.cli.render import add_arguments as add_render_arguments
 from swingsim.cli.render import options as render_options
 from swingsim.errors import InputError
 from swingsim.io.files import check_out_dir, output_run
+from swingsim.metrics.cautions import force_text
 from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_frames, check_plausible
 from swingsim.study.realisations import run_scene
@@ -35,7 +36,13 @@ def _add_output_arguments(p, scene=True):
     add_output_arguments(p, "output folder (default: <scene name>-results, in the current folder)" if scene
                          else f"output folder (default: {DEMO_OUT}, in the current folder)", "this run's files",
                          quiet_help="print nothing but errors (no headline, no list of files)")
-    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    p.add_argument("--no-plots", action="store_true", help="skip the plot files (the briefing keeps its plots)")
+    p.add_argument("--plots", choices=("png", "svg", "both"), default="png",
+                   help="plot files as PNG (for screens and slides), SVG (vector, for print) or both (default: png)")
+    p.add_argument("--paper", choices=("a4", "letter"), default="a4",
+                   help="paper size of briefing.pdf: ISO A4 or US Letter (default: a4)")
+    p.add_argument("--no-briefing", action="store_true",
+                   help="skip briefing.pdf, the printable briefing sheet (a faster run)")
     add_allow_implausible(p, "e.g. very long runs")
 
 
@@ -78,11 +85,12 @@ def _headline(summary) -> str:
     st = d["settle_time_s"]
     lines = [
         f"{d['title']}",
-        f"  peak rope angle {d['peak_rope_angle_deg']:.2f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
+        f"  peak rope angle {d['peak_rope_angle_deg']:.1f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
         f"peak excursion {d['peak_excursion_m']:.2f} m",
-        f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.2f} deg; "
+        f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.1f} deg; "
         + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
-        f"  peak hook load {d['peak_hook_load_kN']:.1f} kN, line pull {d['peak_line_pull_kN']:.1f} kN (dynamic factor {d['dynamic_factor']:.3f})",
+        f"  peak hook load {force_text(d['peak_hook_load_kN'])}, line pull {force_text(d['peak_line_pull_kN'])} "
+        f"(dynamic factor {d['dynamic_factor']:.2f})",
     ]
     for c in d["cautions"]:
         lines.append("  ! " + c)
@@ -110,11 +118,19 @@ def _do_run(args, scene_path, default_out) -> int:
     export = _export_options(args, scene)
     with output_run(out, args.force) as stage:
         traj, summary = run_scene(scene)  # with wind.realisations: the worst one and the statistics
-        written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots)
+        formats = ("png", "svg") if args.plots == "both" else (args.plots,)
+        written = write_run_outputs(traj, summary, stage.path, plots=not args.no_plots, plot_formats=formats)
+        stills = []
         if want_video and traj.valid:
             from swingsim.render import render_scene
 
-            written += render_scene(traj, summary, stage.path, **_video_options(args, scene))
+            rendered = render_scene(traj, summary, stage.path, **_video_options(args, scene))
+            written += rendered
+            stills = [p for p in rendered[1:] if p.suffix == ".png" and p.is_file()]
+        if not args.no_briefing:  # after the video, so the sheet shows its stills
+            from swingsim.report.briefing import write_briefing
+
+            written += write_briefing(traj, summary, stage.path, paper=args.paper, stills=stills)
         if export is not None:
             from swingsim.export.write import write_export
 

@@ -8,6 +8,32 @@ that a scene can override (see ``constants.py``).
 
 from __future__ import annotations
 
+from swingsim.constants import STANDARD_GRAVITY_M_S2, newton_to_tonnes_force
+
+#: How the text outputs state the tonne once (summary.txt, the briefing).
+TONNE_FORCE_NOTE = (f"Forces are given in kN and in tonnes-force (t): 1 t = {STANDARD_GRAVITY_M_S2:g} kN, "
+                    "the weight of 1000 kg under standard gravity (CGPM 1901).")
+
+
+def force_text(force_kN: float | None, decimals: int = 1) -> str:
+    """A force as the text outputs write it: kilonewtons, then tonnes-force in brackets.
+
+    Parameters
+    ----------
+    force_kN : float or None
+        The force [kN]; None gives ``"n/a"``.
+    decimals : int
+        Decimals of the kN figure [-]; the tonnes get one more (0.1 kN is about 0.01 t).
+
+    Returns
+    -------
+    str
+        E.g. ``"31.7 kN (3.23 t)"``.
+    """
+    if force_kN is None:
+        return "n/a"
+    return f"{force_kN:.{decimals}f} kN ({newton_to_tonnes_force(force_kN * 1e3):.{decimals + 1}f} t)"
+
 CAUTION = (
     "CAUTION: planning and training preview only. These results do not replace the lift plan, "
     "the crane manufacturer's load charts and wind limits, or the judgement of the competent "
@@ -91,6 +117,11 @@ def model_limits(scene) -> list[str]:
     return out
 
 
+def _tonnes(force_kN: float) -> str:
+    """A force in tonnes-force, two decimals, e.g. ``"1.20 t"``."""
+    return f"{newton_to_tonnes_force(force_kN * 1e3):.2f} t"
+
+
 def _f(x, nd=1):
     return f"{x:.{nd}f}"
 
@@ -145,8 +176,8 @@ def scenario_warnings(s: dict, scene) -> list[str]:
                            f"takes {_f(st)} s to settle below {lim.settle_deg:g} deg.")
     ex = s.get("peak_excursion_m")
     if lim.clearance_m is not None and ex is not None and ex > lim.clearance_m:
-        out.append(f"The load strays {ex:.3f} m from the plumb line, beyond the declared clearance "
-                   f"of {lim.clearance_m:.3f} m.")
+        out.append(f"The load strays {ex:.2f} m from the plumb line, beyond the declared clearance "
+                   f"of {lim.clearance_m:.2f} m.")
     for z in s.get("zones", []):
         if z["inside"]:
             who = ", ".join(z.get("entered_by") or ["load"])
@@ -189,14 +220,16 @@ def hook_load_warnings(s: dict, scene) -> list[str]:
         out.append(f"Peak line pull {_f(pull, 2)} kN (hook load over {scene.rope.falls} fall(s)"
                    + (f" at reeving efficiency {scene.rope.reeving_efficiency:.3f}"
                       if scene.rope.reeving_efficiency != 1.0 else "")
-                   + f") exceeds the line's declared working load limit of {line_wll:g} kN: the lift "
+                   + f") exceeds the line's declared working load limit of {line_wll:g} kN "
+                   f"({_tonnes(pull)} against {_tonnes(line_wll)}): the lift "
                    "plan, the crane manufacturer's reeving data and the competent person decide; do "
                    "not lift on these numbers.")
     hook_wll = scene.hook.wll_kN if scene.hook is not None else None
     load = s.get("peak_hook_load_kN")
     if hook_wll is not None and load is not None and load > hook_wll:
         out.append(f"Peak hook load {_f(load, 2)} kN exceeds the hook block's declared rating of "
-                   f"{hook_wll:g} kN: the lift plan, the manufacturer's rating and the competent "
+                   f"{hook_wll:g} kN ({_tonnes(load)} against {_tonnes(hook_wll)}): the lift plan, "
+                   "the manufacturer's rating and the competent "
                    "person decide; do not lift on these numbers.")
     return out
 

@@ -32,6 +32,8 @@ from typing import NamedTuple
 
 import numpy as np
 
+from swingsim.metrics.cautions import force_text
+
 #: Leg angle from vertical above which a caution is raised [deg].  Common practice: slings
 #: at less than 30 deg from horizontal (60 deg from vertical) are not to be used, and legs
 #: beyond 45 deg from vertical carry markedly more than their share (rule of thumb).
@@ -276,13 +278,13 @@ def model_warnings(s: dict, scene) -> list[str]:
     for r in rows:
         name = f"Sling leg {r['leg']}" if many else "The sling leg"
         if r["wll_kN"] is not None and r["peak_kN"] > r["wll_kN"]:
-            out.append(f"{name}: peak dynamic tension {r['peak_kN']:.2f} kN at t = {r['peak_time_s']:.1f} s "
-                       f"exceeds its declared working load limit of {r['wll_kN']:g} kN: the rigging "
+            out.append(f"{name}: peak dynamic tension {force_text(r['peak_kN'], 2)} at t = {r['peak_time_s']:.1f} s "
+                       f"exceeds its declared working load limit of {force_text(r['wll_kN'], 2)}: the rigging "
                        "plan, the sling selection and the competent person decide; do not lift on "
                        "these numbers.")
         elif r["wll_kN"] is not None and r["peak_kN"] > 0.9 * r["wll_kN"]:
-            out.append(f"{name}: peak dynamic tension {r['peak_kN']:.2f} kN is within 10% of its declared "
-                       f"working load limit of {r['wll_kN']:g} kN: little margin; check the rigging plan.")
+            out.append(f"{name}: peak dynamic tension {force_text(r['peak_kN'], 2)} is within 10% of its declared "
+                       f"working load limit of {force_text(r['wll_kN'], 2)}: little margin; check the rigging plan.")
         if r["min_kN"] < 0.0:
             out.append(f"{name} would go slack (its tension falls below zero at t = {r['min_time_s']:.1f} s): "
                        "the load would shift in the rigging and snatch it; the rigid-rigging model "
@@ -303,11 +305,11 @@ def model_warnings(s: dict, scene) -> list[str]:
     if s.get("top_sling_peak_tension_kN") and s.get("top_sling_wll_kN"):
         for j, pk in enumerate(s["top_sling_peak_tension_kN"]):
             if pk > s["top_sling_wll_kN"]:
-                out.append(f"Spreader top sling {j + 1}: peak tension {pk:.2f} kN exceeds its declared "
-                           f"working load limit of {s['top_sling_wll_kN']:g} kN: check the rigging plan.")
+                out.append(f"Spreader top sling {j + 1}: peak tension {force_text(pk, 2)} exceeds its declared "
+                           f"working load limit of {force_text(s['top_sling_wll_kN'], 2)}: check the rigging plan.")
             elif pk > 0.9 * s["top_sling_wll_kN"]:
-                out.append(f"Spreader top sling {j + 1}: peak tension {pk:.2f} kN is within 10% of its "
-                           f"declared working load limit of {s['top_sling_wll_kN']:g} kN: little margin; "
+                out.append(f"Spreader top sling {j + 1}: peak tension {force_text(pk, 2)} is within 10% of its "
+                           f"declared working load limit of {force_text(s['top_sling_wll_kN'], 2)}: little margin; "
                            "check the rigging plan.")
     rt = s.get("rest_tilt_deg")
     if rt is not None and rt > REST_TILT_CAUTION_DEG:
@@ -347,18 +349,18 @@ def model_summary_lines(d: dict) -> list[str]:
     w.append(f"  Load as a {d['load_modelled_as']}"
              + (f" on a {d['rigging_kind']} rig" if d.get("rigging_kind") else ""))
     for r in d["leg_tensions"]:
-        line = (f"  Leg {r['leg']}: peak {r['peak_kN']:.2f} kN at t = {r['peak_time_s']:.1f} s; "
-                f"hanging {r['hanging_kN']:.2f} kN (rule {r['static_rule_kN']:.2f} kN)")
+        line = (f"  Leg {r['leg']}: peak {force_text(r['peak_kN'])} at t = {r['peak_time_s']:.1f} s; "
+                f"hanging {force_text(r['hanging_kN'])} (rule {force_text(r['static_rule_kN'])})")
         if r["dynamic_factor"] is not None:
-            line += f"; dynamic factor {r['dynamic_factor']:.3f}"
+            line += f"; dynamic factor {r['dynamic_factor']:.2f}"
         if r["wll_kN"] is not None:
-            line += f"; WLL {r['wll_kN']:g} kN ({100 * r['peak_over_wll']:.0f}%)"
+            line += f"; WLL {force_text(r['wll_kN'])} ({100 * r['peak_over_wll']:.1f}%)"
         w.append(line)
     if d.get("top_sling_peak_tension_kN"):
-        w.append("  Spreader top slings: peak " + ", ".join(f"{x:.2f} kN" for x in d["top_sling_peak_tension_kN"]))
+        w.append("  Spreader top slings: peak " + ", ".join(force_text(x) for x in d["top_sling_peak_tension_kN"]))
     if d.get("peak_tilt_deg") is not None:
-        w.append(f"  Load tilt: {d['rest_tilt_deg']:.2f} deg at rest; peak {d['peak_tilt_deg']:.2f} deg "
-                 f"from level, {d['peak_tilt_from_rest_deg']:.2f} deg from its hanging attitude "
+        w.append(f"  Load tilt: {d['rest_tilt_deg']:.1f} deg at rest; peak {d['peak_tilt_deg']:.1f} deg "
+                 f"from level, {d['peak_tilt_from_rest_deg']:.1f} deg from its hanging attitude "
                  "(yaw held fixed)")
     if d.get("rope_elastic"):
         w.append(f"  Elastic rope: {d['rope_stiffness_kN_per_m']:.0f} kN/m ({d['rope_stiffness_from']}); "

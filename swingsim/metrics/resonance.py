@@ -45,6 +45,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from swingsim.dynamics import response
+from swingsim.metrics.modes import mode_name
 
 #: The resonance band's least half-width [fraction of the mode's period]: our rule (module Definitions).
 RESONANCE_BAND = 0.15
@@ -108,52 +109,6 @@ def response_directions(scene, motion) -> dict:
         out["tangential"] = np.array([-s, c, 0.0])
         out["radial"] = np.array([c, s, 0.0])
     return out
-
-
-#: What a reversal of lean between two neighbouring parts of the hanging chain is called.
-_REVERSALS = {("hoist rope", "sling leg"): "sling and load swing against the hook block",
-              ("sling leg", "load tilt"): "load rocks on its sling",
-              ("hoist rope", "load tilt"): "load rocks against the {upper}"}
-#: Share of a mode's largest lean below which a part counts as not leaning [-].
-_LEAN_FLOOR = 0.01
-
-
-def _lean(lin, body, shape) -> np.ndarray:
-    """Horizontal lean (2,) of a part's downward direction in a mode [rad per unit modal coordinate].
-
-    The rope and the leg lean by their direction charts ``(u, v)``; a rigid load's tilt
-    ``(a, b)``, :math:`R = R_x(a) R_y(b)`, turns its downward axis to :math:`(-b, a)`.
-    """
-    i, j = lin.angles[body]
-    if body == "load tilt":
-        return np.array([-shape[j], shape[i]])
-    return np.array([shape[i], shape[j]])
-
-
-def _label(lin, mode) -> str:
-    """What a mode is, in words: where down the hanging chain the lean reverses.
-
-    The parts of ``lin.angles`` (hoist rope, sling leg, load tilt), top first, lean in
-    the mode's plane; a mode with no reversal swings all together (the first mode of a
-    hanging chain), each reversal is named by the two parts it lies between.
-    """
-    load = lin.points["load"][:2] @ mode.shape
-    plane = "either direction" if mode.degenerate else ("along x" if abs(load[0]) >= abs(load[1]) else "along y")
-    parts = list(lin.angles)
-    if len(parts) == 1:
-        return f"pendulum swing ({plane})"
-    leans = [_lean(lin, p, mode.shape) for p in parts]
-    ref = max(leans, key=lambda x: float(np.linalg.norm(x)))
-    ref = ref / (np.linalg.norm(ref) or 1.0)
-    along = [float(ref @ x) for x in leans]
-    floor = _LEAN_FLOOR * max(abs(x) for x in along)
-    kept = [(p, x) for p, x in zip(parts, along) if abs(x) > floor]
-    upper = "hook block" if "hook block" in lin.points else "rope"
-    reversals = [_REVERSALS[(kept[i][0], kept[i + 1][0])].format(upper=upper) for i in range(len(kept) - 1)
-                 if kept[i][1] * kept[i + 1][1] < 0.0]
-    if not reversals:
-        return f"{upper} and load swing together ({plane})"
-    return f"{'; '.join(reversals)} ({plane})"
 
 
 @dataclass(frozen=True)
@@ -256,7 +211,7 @@ def lift_response(model, scene, motion) -> LiftResponse:
     for (body, direction), values in sorted(((k, v) for k, v in raw.items() if k[0] in _BODY_COLUMNS), key=lambda kv: (list(_BODY_COLUMNS).index(kv[0][0]),
                                                                           list(directions).index(kv[0][1]))):
         cols[column_name(body, direction)] = values
-    return LiftResponse(periods, cols, modes, [_label(lin, m) for m in modes], directions, lin)
+    return LiftResponse(periods, cols, modes, [mode_name(model, m.period_s) for m in modes], directions, lin)
 
 
 def resonance_band_s(mode) -> tuple:

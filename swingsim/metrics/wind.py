@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from swingsim.constants import newton_to_tonnes_force
 from swingsim.scene.site import wind_from_bearing_deg
 
 
@@ -144,7 +145,11 @@ def gust_lines(data: dict, scene) -> list[str]:
         for key, label, unit in _STAT_LINES:
             s = stats.get(key)
             if s is not None:
-                out.append(f"    {label:<31}{s['mean']:8.2f} / {s['p95']:8.2f} / {s['max']:8.2f} {unit}")
+                line = f"    {label:<31}{s['mean']:8.2f} / {s['p95']:8.2f} / {s['max']:8.2f} {unit}"
+                if unit == "kN":  # forces also in tonnes-force (1 t = 9.80665 kN)
+                    line += " (" + " / ".join(f"{newton_to_tonnes_force(1e3 * s[k]):.2f}"
+                                              for k in ("mean", "p95", "max")) + " t)"
+                out.append(line)
         for name, s in stats.get("zone_clearance_m", {}).items():
             out.append(f"    {'clearance to ' + name:<31}{s['mean']:8.2f} / {s['p5']:8.2f} (5th pct) / "
                        f"{s['min']:8.2f} (least) m")

@@ -14,7 +14,9 @@ any number of variants.
 from __future__ import annotations
 
 import html
+import math
 
+from swingsim.constants import newton_to_tonnes_force
 from swingsim.metrics import cautions
 from swingsim.report.plots_compare import (format_number, heatmap_figure, heatmap_keys, quantity_figure,
                                            sensitivity_figure)
@@ -40,7 +42,7 @@ img{max-width:100%;height:auto;border:1px solid #e0e4e8}
 """
 
 _UNITS = (("_deg_s", "deg/s"), ("_deg", "deg"), ("_m_s", "m/s"), ("_kN", "kN"), ("_s", "s"),
-          ("_m", "m"), ("_kg", "kg"), ("_m_s2", "m/s²"))
+          ("_m", "m"), ("_kg", "kg"), ("_m_s2", "m/s²"), ("_t", "t"))
 
 
 def _head(key: str) -> str:
@@ -57,7 +59,27 @@ def _fmt(x, key="", digits=3) -> str:
 
 
 _SHOW = ["last_move_end_s", "peak_rope_angle_deg", "residual_rope_angle_deg", "settled_at_s",
-         "peak_rope_tension_kN", "dynamic_factor"]
+         "peak_rope_tension_kN", "peak_hook_load_kN", "dynamic_factor"]
+
+
+def _tonnes_column(key: str) -> str:
+    """The header of the tonnes-force column beside a ``..._kN`` column, e.g. ``peak_rope_tension_t``."""
+    return key[: -len("_kN")] + "_t"
+
+
+def _force_cells(key: str, value) -> str:
+    """The cell of a summary number, and beside a force [kN] its tonnes-force [t]."""
+    cell = f"<td>{_fmt(value, key)}</td>"
+    if not key.endswith("_kN"):
+        return cell
+    ok = isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+    t = newton_to_tonnes_force(1e3 * value) if ok else None
+    return cell + f"<td>{html.escape(format_number(t, _tonnes_column(key), 3))}</td>"
+
+
+def _force_heads(key: str) -> str:
+    """The heading of a summary number, and beside a force its tonnes-force column's."""
+    return f"<th>{_head(key)}</th>" + (f"<th>{_head(_tonnes_column(key))}</th>" if key.endswith("_kN") else "")
 
 
 def _variant_table(sweep, results, ranking, entries, max_rows):
@@ -72,7 +94,7 @@ def _variant_table(sweep, results, ranking, entries, max_rows):
     named = any(t.names)
     parts = ['<div class="wide"><table><thead><tr><th>rank</th><th>variant</th>'
              + ('<th class="l">name</th>' if named else "") + "".join(f"<th>{_head(c)}</th>" for c in cols)
-             + "".join(f"<th>{_head(c)}</th>" for c in show) + '<th class="l">not ranked because</th></tr>'
+             + "".join(_force_heads(c) for c in show) + '<th class="l">not ranked because</th></tr>'
              "</thead><tbody>"]
     for en in entries[:max_rows]:
         i = int(ranking.first[en])
@@ -82,7 +104,7 @@ def _variant_table(sweep, results, ranking, entries, max_rows):
         parts.append(f"<tr{cls}><td>{rk if rk else '&ndash;'}</td><td>{i}</td>"
                      + (f'<td class="l">{e(t.names[i])}</td>' if named else "")
                      + "".join(f"<td>{_fmt(t.value(i, c), c, 4)}</td>" for c in cols)
-                     + "".join(f"<td>{_fmt(s.get(c), c)}</td>" for c in show)
+                     + "".join(_force_cells(c, s.get(c)) for c in show)
                      + f'<td class="l">{e(ranking.note[en])}</td></tr>')
     parts.append("</tbody></table></div>")
     return parts
@@ -176,6 +198,7 @@ def comparison_html(sweep, results, ranking, sensitivity=None, max_rows=100) -> 
                  f"value of {e(obj)} (e.g. the load does not settle within the simulated time), or the run "
                  "stopped early. Move time is when the last move ends; settled at is when the swing stays "
                  "below the scene's settle angle. Angles below 0.01 deg print as &lt; 0.01.</p>")
+    parts.append(f"<p class=\"meta\">{e(cautions.TONNE_FORCE_NOTE)}</p>")
 
     with literal_text():  # user text (names, keys) drawn as it is
         pair = heatmap_keys(t, sweep.keys)

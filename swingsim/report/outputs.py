@@ -5,12 +5,13 @@ from __future__ import annotations
 from pathlib import Path
 
 from swingsim.io.files import atomic_write_text
+from swingsim.metrics.modes import mode_names
 from swingsim.report.plots import write_plots
 from swingsim.report.plots_response import response_csv
 from swingsim.report.tables import summary_json, summary_text, timeseries_columns, timeseries_csv
 
 
-def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Path]:
+def write_run_outputs(traj, summary, out_dir, *, plots: bool = True, plot_formats=("png",)) -> list[Path]:
     """Write every output file of one run into a folder, each file atomically.
 
     Everything that can fail is computed before the first file appears.
@@ -24,7 +25,9 @@ def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Pat
     out_dir : str or pathlib.Path
         The folder.
     plots : bool
-        Also write the PNG plots.
+        Also write the plots.
+    plot_formats : tuple of str
+        The plots' formats: ``"png"``, ``"svg"`` or both.
 
     Returns
     -------
@@ -37,10 +40,10 @@ def write_run_outputs(traj, summary, out_dir, *, plots: bool = True) -> list[Pat
     texts = {
         "summary.json": summary_json(summary),
         "timeseries.csv": timeseries_csv(traj, cols),
-        "summary.txt": summary_text(summary, traj.scene),
+        "summary.txt": summary_text(summary, traj.scene, mode_names(traj.model)),
         "response.csv": response_csv(traj),
     }
     written = [atomic_write_text(out / name, text) for name, text in texts.items()]
     if plots:
-        written += write_plots(traj, summary, out, cols)
+        written += write_plots(traj, summary, out, cols, formats=plot_formats)
     return written

@@ -1,4 +1,4 @@
-"""PNG plots of one run: swing over time, speeds, plan view of the load path.
+"""Plots of one run (PNG or SVG): swing over time, speeds, plan view of the load path, sling legs, the chart.
 
 Each function draws and returns the figure; :func:`write_plots` saves them
 atomically.  Every figure carries the caution line.
@@ -50,7 +50,7 @@ def _swing_figure(traj, summary, cols=None):
     ax.set_ylim(min(ax.get_ylim()[0], -1.0), max(ax.get_ylim()[1], 1.0) * 1.15)
     shade_moves(ax, scene, traj.motion)
     ax.plot([d["peak_rope_angle_time_s"]], [d["peak_rope_angle_deg"]], "v", color=LOAD, ms=8,
-            label=f"peak {d['peak_rope_angle_deg']:.2f} deg")
+            label=f"peak {d['peak_rope_angle_deg']:.1f} deg")
     if d["settled_at_s"] is not None and d["moves"]:
         ax.axvline(d["settled_at_s"], color=INK, lw=1, ls=":")
         ax.text(d["settled_at_s"], ax.get_ylim()[0], f" settled < {lim.settle_deg:g} deg", fontsize=8,
@@ -136,7 +136,7 @@ def _plan_figure(traj, summary, cols=None):
                                 fill=False, edgecolor=col, ls="--", lw=0.8))
         # the summary's own verdict, word for word
         state = ("ENTERED by " + ", ".join(verdict["entered_by"]) if entered
-                 else "within margin" if verdict["within_margin"] else "clear")
+                 else "inside margin" if verdict["within_margin"] else "clear")
         ax1.text(z.min_m[0], z.max_m[1], f"{z.name} [{state}]", fontsize=7.5, va="bottom", color=col,
                  fontweight="bold" if entered else "normal")
     _crane_reach(ax1, scene.crane)
@@ -219,8 +219,66 @@ FIGURES = {"swing.png": _swing_figure, "speed.png": _speed_figure, "plan.png": _
            "rigging.png": rigging_figure, "chart.png": chart_figure, "response.png": response_figure}
 
 
-def write_plots(traj, summary, out_dir, cols=None) -> list:
-    """Draw every figure of :data:`FIGURES` that the run's model has, and save each as a PNG atomically.
+#: The plot formats ``--plots`` offers: raster for screens and slides, vector for print.
+PLOT_FORMATS = ("png", "svg")
+
+#: Resolution of the PNG plots [dots per inch]: sharp on a projector and in print.
+PNG_DPI = 150
+
+
+def draw_figures(traj, summary, cols=None) -> dict:
+    """Draw every figure of :data:`FIGURES` the run's model has (titles and names as literal text).
+
+    Parameters
+    ----------
+    traj, summary
+        The run and its measures, as for :func:`write_plots`.
+    cols : dict, optional
+        The run's time-series columns, sampled once for all plots.
+
+    Returns
+    -------
+    dict
+        Base name (``"swing"``, ``"plan"``, ...) -> matplotlib figure; the caller closes them.
+    """
+    figures = {}
+    for name, fn in FIGURES.items():
+        with literal_text():  # titles, move and zone names are user text: no maths parsing
+            fig = fn(traj, summary, cols)
+        if fig is not None:  # None: a figure the run's model has nothing for
+            figures[name.rsplit(".", 1)[0]] = fig
+    return figures
+
+
+def figure_bytes(fig, fmt: str) -> bytes:
+    """A figure as PNG or SVG bytes, with no time stamp or software tag (same run, same bytes).
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+        The figure.
+    fmt : {"png", "svg"}
+        The format; PNG at :data:`PNG_DPI`, SVG with text kept as text.
+
+    Returns
+    -------
+    bytes
+        The file's content.
+    """
+    buf = io.BytesIO()
+    with literal_text():
+        if fmt == "svg":
+            import matplotlib
+
+            with matplotlib.rc_context({"svg.fonttype": "none", "svg.hashsalt": "swingsim"}):
+                fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
+        else:
+            fig.savefig(buf, format="png", dpi=PNG_DPI, metadata={"Software": None})
+    return buf.getvalue()
+
+
+def write_plots(traj, summary, out_dir, cols=None, formats=("png",)) -> list:
+    """Draw every figure of :data:`FIGURES` that the run's model has, and save each atomically.
 
     Parameters
     ----------
@@ -229,27 +287,24 @@ def write_plots(traj, summary, out_dir, cols=None) -> list:
         :func:`swingsim.report.outputs.write_run_outputs`, which calls this.
     cols : dict, optional
         The run's time-series columns, sampled once for all plots.
+    formats : tuple of str
+        Formats of :data:`PLOT_FORMATS` to write (``("png",)``, ``("svg",)`` or both).
 
     Returns
     -------
     list of pathlib.Path
-        The PNGs written.
+        The files written.
     """
     from pathlib import Path
 
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
 
     paths = []
-    for name, fn in FIGURES.items():
-        with literal_text():  # titles, move and zone names are user text: no maths parsing
-            fig = fn(traj, summary, cols)
-            if fig is None:  # a figure the run's model has nothing for
-                continue
-            buf = io.BytesIO()
-            fig.savefig(buf, format="png", metadata={"Software": None})
+    for stem, fig in draw_figures(traj, summary, cols).items():
+        try:
+            contents = {fmt: figure_bytes(fig, fmt) for fmt in formats}
+        finally:
             plt.close(fig)
-        paths.append(atomic_write_bytes(Path(out_dir) / name, buf.getvalue()))
+        for fmt, data in contents.items():
+            paths.append(atomic_write_bytes(Path(out_dir) / f"{stem}.{fmt}", data))
     return paths

@@ -7,10 +7,21 @@ from __future__ import annotations
 
 import numpy as np
 
+from swingsim.constants import STANDARD_GRAVITY_M_S2, newton_to_tonnes_force
 from swingsim.report.style import GREY, INK, LIMIT, LOAD, ROPE, new_figure, shade_moves, title_and_caution
 from swingsim.report.tables import timeseries_columns
 
 LEG_COLOURS = ["#0b6e99", "#c8553d", "#4f7d3a", "#7a4f9a", "#b8860b", "#2f4f4f"]
+
+
+def _kN_to_t(force_kN):
+    """The tonnes axis of a kN axis (tonnes-force, standard gravity)."""
+    return newton_to_tonnes_force(1e3 * np.asarray(force_kN, dtype=float))
+
+
+def _t_to_kN(force_t):
+    """The kN axis of a tonnes axis."""
+    return np.asarray(force_t, dtype=float) * STANDARD_GRAVITY_M_S2
 
 
 def rigging_figure(traj, summary, cols=None):
@@ -38,7 +49,9 @@ def rigging_figure(traj, summary, cols=None):
     d = summary.data
     t = c["t_s"]
     plt, fig = new_figure(10.0, 7.0)
-    ax = fig.add_axes([0.08, 0.46, 0.88, 0.44])
+    # legends in a column of their own at the right, beyond the tonnes axis (anchored to their axes,
+    # so they move with them): they never cover a curve
+    ax = fig.add_axes([0.08, 0.47, 0.64, 0.43])
     for j, k in enumerate(legs):
         ax.plot(t, c[k], color=LEG_COLOURS[j % len(LEG_COLOURS)], lw=1.4, label=f"leg {j + 1}")
     for j, k in enumerate(x for x in c if x.startswith("top_sling_")):
@@ -59,16 +72,19 @@ def rigging_figure(traj, summary, cols=None):
         ax.plot([], [], color=GREY, lw=1.2, ls="-.", label="declared top sling WLL")
     ax.set_ylabel("tension [kN]")
     lo, hi = ax.get_ylim()
-    ax.set_ylim(min(lo, 0.0) if np.min([c[k].min() for k in legs]) < 0 else lo, hi)
+    lo = min(lo, 0.0) if np.min([c[k].min() for k in legs]) < 0 else lo
+    ax.set_ylim(lo, hi)  # shade_moves adds the headroom for the move names
+    tonnes = ax.secondary_yaxis("right", functions=(_kN_to_t, _t_to_kN))
+    tonnes.set_ylabel("tension [t]")
     shade_moves(ax, traj.scene, traj.motion)
-    ax.legend(loc="lower right", fontsize=8, framealpha=0.9)
+    ax.legend(loc="upper left", bbox_to_anchor=(1.14, 1.0), fontsize=8, framealpha=0.9, borderaxespad=0.0)
     ax.grid(alpha=0.3)
     ax.tick_params(labelbottom=False)
-    ax2 = fig.add_axes([0.08, 0.10, 0.88, 0.32], sharex=ax)
+    ax2 = fig.add_axes([0.08, 0.10, 0.64, 0.33], sharex=ax)
     if "load_tilt_deg" in c:
         ax2.plot(t, c["load_tilt_x_deg"], color=ROPE, lw=1.3, label="tilt about x")
         ax2.plot(t, c["load_tilt_y_deg"], color=LOAD, lw=1.3, label="tilt about y")
-        ax2.plot(t, c["load_tilt_deg"], color=INK, lw=0.9, ls=":", label="out of level (either way)")
+        ax2.plot(t, c["load_tilt_deg"], color=INK, lw=0.9, ls=":", label="out of level")
         ax2.set_ylabel("tilt [deg]")
     else:
         s = traj.sample(t)
@@ -85,6 +101,6 @@ def rigging_figure(traj, summary, cols=None):
     ax2.set_xlabel("time [s]")
     ax2.grid(alpha=0.3)
     if ax2.lines:
-        ax2.legend(loc="upper right", fontsize=8, framealpha=0.9)
+        ax2.legend(loc="upper left", bbox_to_anchor=(1.14, 1.0), fontsize=8, framealpha=0.9, borderaxespad=0.0)
     title_and_caution(fig, f"{traj.scene.title}: sling legs and load attitude", summary)
     return fig

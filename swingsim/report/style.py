@@ -34,7 +34,7 @@ def literal_text():
 
 
 def new_figure(width_in: float = 10.0, height_in: float = 5.6):
-    """A matplotlib figure on the Agg backend (no display needed), 110 dpi.
+    """A matplotlib figure on the Agg backend (no display needed); saved at :data:`swingsim.report.plots.PNG_DPI`.
 
     Parameters
     ----------
@@ -105,12 +105,18 @@ def shade_moves(ax, scene, motion) -> None:
     motion : swingsim.motion.Motion
         The motion (each move's start and end [s]).
     """
-    ymax = ax.get_ylim()[1]
+    ymin, ymax = ax.get_ylim()
     x0, x1 = ax.get_xlim()
     starts = []  # label starts so far, one per text row: a name that would run into one goes a row lower
-    for (_axis, prof), m in zip(motion.moves, scene.moves):
-        ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
+    rows = []
+    for (_axis, prof), _move in zip(motion.moves, scene.moves):
         row = next((i for i, s in enumerate(starts) if prof.start_s - s > 0.2 * (x1 - x0)), len(starts))
         starts[row:row + 1] = [prof.start_s]
+        rows.append(row)
+    if rows:  # room above the data for the rows of names, so no name sits on a curve
+        ymax += (ymax - ymin) * 0.07 * (max(rows) + 1)
+        ax.set_ylim(ymin, ymax)
+    for ((_axis, prof), m), row in zip(zip(motion.moves, scene.moves), rows):
+        ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
         ax.annotate(" " + m.name, (prof.start_s, ymax), xytext=(0, -10 * row), textcoords="offset points",
                     fontsize=7.5, va="top", ha="left", color=INK, annotation_clip=True)

@@ -13,6 +13,7 @@ import math
 import numpy as np
 
 from swingsim.metrics import cautions
+from swingsim.metrics.cautions import force_text
 from swingsim.metrics.chart import chart_series
 from swingsim.metrics.definitions import line_pull
 from swingsim.metrics.single import angle_between, rope_angle_rad
@@ -158,8 +159,8 @@ def _chart_lines(d: dict) -> list:
          f"  Static (load hanging plumb)     {d['static_utilisation_pct']:.1f}% of the chart at radius "
          f"{d['static_utilisation_radius_m']:.2f} m",
          f"  Peak while swinging             {d['peak_utilisation_pct']:.1f}% at t = {d['peak_utilisation_time_s']:.1f} s: "
-         f"hook load {d['peak_counted_hook_load_kN']:.2f} kN (as "
-         f"{d['chart_capacity_at_peak_kg'] - d['chart_margin_kg']:.0f} kg) against "
+         f"hook load {force_text(d['peak_counted_hook_load_kN'])}, as "
+         f"{d['chart_capacity_at_peak_kg'] - d['chart_margin_kg']:.0f} kg, against "
          f"{d['chart_capacity_at_peak_kg']:.0f} kg at the {d['chart_radius_at_peak_of']}'s radius "
          f"{d['chart_radius_at_peak_m']:.2f} m",
          f"  Margin to the chart at the peak {d['chart_margin_kg']:.0f} kg ({d['chart_margin_pct']:.1f}% of the chart)",
@@ -168,11 +169,11 @@ def _chart_lines(d: dict) -> list:
     if d["off_chart_from_s"] is not None:
         w.append(f"  OFF THE CHART                   the swinging load leaves the chart's radii from t = "
                  f"{d['off_chart_from_s']:.1f} s (largest load radius {d['largest_load_radius_m']:.2f} m)")
-    w += [f"  Side load on the tip (peak)     {d['peak_side_load_kN']:.2f} kN at t = {d['peak_side_load_time_s']:.1f} s "
-          f"(rope {d['peak_side_angle_deg']:.2f} deg off vertical across the jib)",
-          f"  Out-load on the tip (peak)      {d['peak_out_load_kN']:.2f} kN outward at t = "
-          f"{d['peak_out_load_time_s']:.1f} s, {d['peak_in_load_kN']:.2f} kN inward at t = "
-          f"{d['peak_in_load_time_s']:.1f} s (rope up to {d['peak_out_angle_deg']:.2f} deg out)",
+    w += [f"  Side load on the tip (peak)     {force_text(d['peak_side_load_kN'])} at t = "
+          f"{d['peak_side_load_time_s']:.1f} s (rope {d['peak_side_angle_deg']:.1f} deg off vertical across the jib)",
+          f"  Out-load on the tip (peak)      {force_text(d['peak_out_load_kN'])} outward at t = "
+          f"{d['peak_out_load_time_s']:.1f} s, {force_text(d['peak_in_load_kN'])} inward at t = "
+          f"{d['peak_in_load_time_s']:.1f} s (rope up to {d['peak_out_angle_deg']:.1f} deg out)",
           "  Compare the side and out-load with the manufacturer's allowable off-vertical for this crane.",
           "  The manufacturer's chart and its notes, the lift plan, local rules and the competent person",
           "  decide whether the lift may go ahead; these figures are for planning only."]
@@ -203,8 +204,11 @@ def _resonance_lines(d: dict) -> list:
     return w
 
 
-def summary_text(summary, scene) -> str:
+def summary_text(summary, scene, mode_names=None) -> str:
     """summary.txt: a plain-text summary for a lift planner, caution first.
+
+    Fixed decimals throughout: angles 0.1 deg, distances 0.01 m, forces 0.1 kN
+    and 0.01 t, times 0.1 s, periods 0.001 s, ratios 0.01, percentages 0.1%.
 
     Parameters
     ----------
@@ -212,6 +216,9 @@ def summary_text(summary, scene) -> str:
         The run's measures.
     scene : swingsim.scene.Scene
         The scene (load, rope, wind).
+    mode_names : list of str, optional
+        What each swing mode is (:func:`swingsim.metrics.modes.mode_names`), in the
+        order of ``mode_periods_s``; the modes are listed by period only when None.
 
     Returns
     -------
@@ -228,27 +235,29 @@ def summary_text(summary, scene) -> str:
     if not d["valid"]:
         w.append("!! RESULT INVALID: " + d.get("invalid_reason", ""))
         w.append("")
-    w.append(f"Model: {d['model']}; load {scene.load.mass_kg:g} kg on {scene.rope.length_m:g} m of rope"
+    w.append(f"Model: {d['model']}; load {scene.load.mass_kg:.0f} kg on {scene.rope.length_m:.2f} m of rope"
              + (f" (rope ends at {d['rope_length_end_m']:.2f} m)" if abs(d['rope_length_end_m'] - scene.rope.length_m) > 1e-9 else "")
-             + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.2f} s; simulated {d['simulated_until_s']:.1f} s.")
+             + f"; {d['moves']} move(s), last ending at {d['last_move_end_s']:.1f} s; simulated {d['simulated_until_s']:.1f} s.")
     if scene.wind.speed_m_s:
-        at = "" if scene.wind.profile == "uniform" else f" at {scene.wind.reference_height_m:g} m"
-        w.append(f"Wind {scene.wind.speed_m_s:g} m/s{at} {wind_words(scene)}, site north at "
-                 f"{scene.site.north_deg:g} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.2f} deg "
+        at = "" if scene.wind.profile == "uniform" else f" at {scene.wind.reference_height_m:.1f} m"
+        w.append(f"Wind {scene.wind.speed_m_s:.1f} m/s{at} {wind_words(scene)}, site north at "
+                 f"{scene.site.north_deg:.1f} deg from +x; rope at rest leans {d['rest_rope_angle_deg']:.1f} deg "
                  "downwind; " + _wind_start(d, scene))
+    w.append(cautions.TONNE_FORCE_NOTE)
     if d.get("move_list"):
         w.append("")
         w.append("Moves")
         for m in d["move_list"]:
             u = m["unit"]
+            nd = 1 if u.startswith("deg") else 2
             w.append(f"  {m['name']:<28} {m['axis']:<6} {m['profile']:<10} {m['start_s']:6.1f} -> {m['end_s']:6.1f} s"
-                     f"  {m['distance']:+8.2f} {u}, peak {m['peak_speed']:.2f} {u}/s")
+                     f"  {m['distance']:+8.{nd}f} {u}, peak {m['peak_speed']:.2f} {u}/s")
     w.append("")
     w.append("Swing")
-    w.append(f"  Peak rope angle from vertical    {_fmt(d['peak_rope_angle_deg'], 'deg')}  at t = {_fmt(d['peak_rope_angle_time_s'], 's', 1)}")
+    w.append(f"  Peak rope angle from vertical    {_fmt(d['peak_rope_angle_deg'], 'deg', 1)}  at t = {_fmt(d['peak_rope_angle_time_s'], 's', 1)}")
     w.append(f"  Peak excursion from plumb line   {_fmt(d['peak_excursion_m'], 'm')}")
-    w.append(f"  Swing when the last move ends    {_fmt(d['swing_at_move_end_deg'], 'deg')}")
-    w.append(f"  Residual rope angle after moves  {_fmt(d['residual_rope_angle_deg'], 'deg')}")
+    w.append(f"  Swing when the last move ends    {_fmt(d['swing_at_move_end_deg'], 'deg', 1)}")
+    w.append(f"  Residual rope angle after moves  {_fmt(d['residual_rope_angle_deg'], 'deg', 1)}")
     if d["settle_time_s"] is None:
         w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}not within the simulated time")
     else:
@@ -263,12 +272,17 @@ def summary_text(summary, scene) -> str:
     label = "Small-angle (2 pi sqrt(L/g))" if d["model"] == "point-mass" else "Longest mode (small angle)"
     w.append(f"  {label:<33}{_fmt(d['natural_period_s'], 's', 3)}"
              + (f"; at the final rope length {_fmt(d['natural_period_end_s'], 's', 3)}" if abs(d['natural_period_end_s'] - d['natural_period_s']) > 1e-9 else ""))
-    if len(mp) > 1:
-        w.append("  Modes (small amplitude)          " + ", ".join(f"{p:.3f} s" for p in mp))
+    if len(mp) == 1 and mode_names:  # one mode: named on the period's own line
+        w[-1] += f": {mode_names[0]}"
+    elif len(mp) > 1:
+        w.append("  Modes (small amplitude)")
+        names = list(mode_names or [])
+        for k, period in enumerate(mp):
+            w.append(f"    {k + 1}. {period:7.3f} s  " + (names[k] if k < len(names) else ""))
     if d["measured_period_s"] is None:
         w.append("  Measured from the simulation     n/a (too little swing after the last move to measure)")
     else:
-        w.append(f"  Measured from the simulation     {_fmt(d['measured_period_s'], 's', 3)} at {d['measured_amplitude_deg']:.2f} deg amplitude: "
+        w.append(f"  Measured from the simulation     {_fmt(d['measured_period_s'], 's', 3)} at {d['measured_amplitude_deg']:.1f} deg amplitude: "
                  f"{d['period_difference_pct']:+.2f}% against small-angle")
         if d.get("period_exact_at_amplitude_s"):
             w.append(f"  Exact plane swing at that amplitude {_fmt(d['period_exact_at_amplitude_s'], 's', 3)} (elliptic integral)")
@@ -341,13 +355,13 @@ def _hook_load_lines(d, scene) -> list:
     """The hook load and line pull block of summary.txt."""
     rope = scene.rope
     w = ["Hook load and line pull"]
-    w.append(f"  Static hook load                 {_fmt(d['static_rope_tension_kN'], 'kN')}")
-    w.append(f"  Peak hook load                   {_fmt(d['peak_hook_load_kN'], 'kN')}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}"
-             + (f"; hook block rated {scene.hook.wll_kN:g} kN"
+    w.append(f"  Static hook load                 {force_text(d['static_rope_tension_kN'])}")
+    w.append(f"  Peak hook load                   {force_text(d['peak_hook_load_kN'])}  at t = {_fmt(d['peak_rope_tension_time_s'], 's', 1)}"
+             + (f"; hook block rated {force_text(scene.hook.wll_kN)}"
                 if scene.hook is not None and scene.hook.wll_kN is not None else ""))
     reeving = f"{rope.falls} fall(s)" + (f", reeving efficiency {rope.reeving_efficiency:.3f}"
                                          if rope.reeving_efficiency != 1.0 else ", no sheave friction")
-    w.append(f"  Peak line pull                   {_fmt(d['peak_line_pull_kN'], 'kN')}  ({reeving})"
-             + (f"; line WLL {rope.wll_kN:g} kN" if rope.wll_kN is not None else ""))
-    w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 3)}")
+    w.append(f"  Peak line pull                   {force_text(d['peak_line_pull_kN'])}  ({reeving})"
+             + (f"; line WLL {force_text(rope.wll_kN)}" if rope.wll_kN is not None else ""))
+    w.append(f"  Dynamic factor (peak / static)   {_fmt(d['dynamic_factor'], '', 2)}")
     return w
