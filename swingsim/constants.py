@@ -6,6 +6,22 @@ Everything that a scene can override is a default here, never a hard limit.
 #: Standard gravity [m/s^2]; exact by definition (3rd CGPM 1901; ISO 80000-3).
 STANDARD_GRAVITY = 9.80665
 
+
+def newton_to_tonnes_force(force_N):
+    """A force in tonnes-force, the unit crews use: 1 t = 1000 kg x standard gravity = 9.80665 kN.
+
+    Parameters
+    ----------
+    force_N : float or numpy.ndarray
+        Force [N].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        The same force [t] (tonnes-force, with :data:`STANDARD_GRAVITY`).
+    """
+    return force_N / (1000.0 * STANDARD_GRAVITY)
+
 #: Sea-level air density [kg/m^3] of the ISO 2533:1975 standard atmosphere (15 degC).
 AIR_DENSITY_SEA_LEVEL = 1.225
 

@@ -18,10 +18,12 @@ from vtkmodules.util.numpy_support import vtk_to_numpy
 from swingsim import scene3d
 from swingsim.metrics.chart import chart_series
 from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
+from swingsim.render import layout as layout_mod
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
-from swingsim.render.palette import LABEL_STYLE, PALETTE, STYLE, darker, envelope_image, ground_image, rgb
-from swingsim.scene.site import wind_words
+from swingsim.render.palette import (LABEL_STYLE, NOGO_STRIPE_MAX_M, NOGO_STRIPE_MIN_M, NOGO_STRIPE_SHARE, PALETTE,
+                                     STYLE, envelope_image, ground_image, nogo_image, rgb)
+from swingsim.scene.site import compass_point, scene_wind_from_bearing_deg
 from swingsim.scene3d.meshes import arrow
 from swingsim.scene3d.poses import SAMPLE_KEYS
 from swingsim.scene3d.transforms import is_shown
@@ -29,6 +31,12 @@ from swingsim.scene3d.transforms import is_shown
 READOUT_HZ = 10.0  # refreshes of the numbers panel per second of video
 TRAIL_S = 6.0  # simulated seconds of trail behind the load
 TRAIL_N = 61
+#: Pixels drawn per output pixel along each side, by ``quality``.
+SUPERSAMPLE = {"standard": 1, "high": 2}
+#: The legend of the side panel: palette key (its swatch) and words.
+LEGEND = (("exclusion", "no-go zone"), ("obstacle", "obstacle"), ("envelope", "swing envelope"),
+          ("trail", "load path, last 6 s"))
+LEGEND_ROWS = len(LEGEND)
 
 
 def _polydata(mesh, part: str) -> pv.PolyData:
@@ -68,28 +76,43 @@ class Stage:
         Playback speed, for the clock's words [-].
     video_len_s : float
         Length of the video, for the caution banner's timing [s].
+    quality : {"standard", "high"}
+        ``high`` draws every frame at twice the width and height and averages each
+        2x2 block of pixels (supersampling): smooth edges for the final cut, about
+        four times the drawing work.
     """
 
     def __init__(self, traj, facts, *, size=(1280, 720), views=("oblique",), load_mesh=None,
-                 speed=1.0, video_len_s=0.0):
+                 speed=1.0, video_len_s=0.0, quality="standard"):
         self.traj, self.facts, self.size = traj, facts, tuple(int(s) for s in size)
         self.views = tuple(views)
         self.speed, self.video_len_s = speed, video_len_s
+        self.ss = SUPERSAMPLE[quality]
+        self.render_size = (self.size[0] * self.ss, self.size[1] * self.ss)
+        scene = traj.scene
+        self.has_wind = scene.wind.speed_m_s > 0.0
+        rows = overlay.readout_rows(scene.crane.kind, self.has_wind, scene.crane.chart is not None)
+        self.layout = layout_mod.compute_layout(self.size, len(self.views), overlay.caution_banner_text(),
+                                                rows, LEGEND_ROWS, overlay.clock_text(9999.99, speed))
         # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
         # which would cost software OpenGL several times a frame's rendering time.
         theme = pv.themes.Theme()
         theme.multi_samples = 0
         theme.anti_aliasing = None
-        self.pl = pv.Plotter(off_screen=True, window_size=list(self.size), theme=theme,
+        self.pl = pv.Plotter(off_screen=True, window_size=list(self.render_size), theme=theme,
                              shape=(1, len(self.views)), border=False, lighting=None)
         self.renderers = [self.pl.renderers[i] for i in range(len(self.views))]
+        for ren, box in zip(self.renderers, self.layout.views):
+            ren.SetViewport(*box.viewport(self.size))
         self.scene3d = scene3d.build(traj, load_mesh=load_mesh)
         self.lay = self.scene3d.layout
+        self._label_layer()
         self._build()
         self._place_cameras()
         self._overlay()
         self._pixels = vtk.vtkUnsignedCharArray()
         self._readout_slot = None
+        self._slew0 = float(traj.motion.pose(np.array([0.0])).jib_angle_rad[0])
         try:
             self.pl.show(auto_close=False)
         except Exception as exc:  # noqa: BLE001 - VTK raises bare RuntimeErrors without a context
@@ -109,7 +132,7 @@ class Stage:
                     kw = dict(color=colour, opacity=opacity, ambient=ambient, diffuse=diffuse,
                               specular=specular, smooth_shading=False, lighting=lighting, show_scalar_bar=False)
                     if line_width:
-                        kw["line_width"] = line_width
+                        kw["line_width"] = line_width * self.ss
                 actor = self.pl.add_mesh(mesh, reset_camera=False, **kw)
             else:
                 ren.add_actor(actor, reset_camera=False)
@@ -158,8 +181,8 @@ class Stage:
             self.actors[name] = self._add_body(body)
             for label in labels_after.get(name, ()):
                 colour, size, bold = LABEL_STYLE[label.role]
-                colour = PALETTE[colour] if label.role in ("grid", "axis_x", "axis_y") else darker(PALETTE[colour])
-                self._label(label.position_m, label.text, size=size, colour=colour, bold=bold)
+                colour = PALETTE[colour]
+                self._label(label.position_m, label.text, size=size, colour=colour, bold=bold, role=label.role)
             if name == "axis_y":
                 self._site_arrows(body.mesh)
             if name == "envelope":  # the trail: the load's last TRAIL_S seconds
@@ -176,6 +199,8 @@ class Stage:
                     [np.full(n_legs, 2), np.arange(0, 2 * n_legs, 2), np.arange(1, 2 * n_legs, 2)]).ravel())
                 self._add(self.sling_lines, PALETTE["sling"], line_width=2, lighting=False)
         self.trail_t, self.trail_xyz = self.scene3d.path_t_s, self.scene3d.path_load_m
+        rank = {"obstacle": 0, "exclusion": 0, "axis": 1, "axis_x": 1, "axis_y": 1}
+        self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][4], 2))
         # moving bodies, each with its actors (a spreader has its beam and its centre line)
         self.moving = {name: [a for a in self.actors[name] if a is not None]
                        for name, body in bodies.items() if body.moves}
@@ -184,6 +209,9 @@ class Stage:
         for z in scene.zones:
             solid, edges = self.actors[f"zone_{z.name}"]
             self.zones.append((z, solid, edges, PALETTE[z.kind]))
+            if z.kind == "exclusion":
+                self._nogo_stripes(z)
+            self._zone_look(z, solid, edges, "clear")
         self._zone_state = ["clear"] * len(self.zones)
         self.rope = self.actors["rope"][0]
         self.slings = [self.actors[f"sling_{i + 1}"][0] for i in range(self.scene3d.rigging.sling_count)]
@@ -194,18 +222,88 @@ class Stage:
         self.beam_actors = tuple(self.moving.get("spreader", ()))
         self.beam_span = self.scene3d.spreader_span_m
 
-    def _label(self, pos, text, *, size, colour, bold=False):
-        """A 3D-anchored label that always faces the camera."""
-        for ren in self.renderers:
+    def _nogo_stripes(self, zone):
+        """A no-go zone's box in translucent red and white diagonal stripes (our own barrier look)."""
+        lo, hi = np.asarray(zone.min_m, dtype=float), np.asarray(zone.max_m, dtype=float)
+        box = pv.Box(bounds=(lo[0], hi[0], lo[1], hi[1], lo[2], max(hi[2], lo[2] + 0.05)), quads=True)
+        period = float(np.clip(NOGO_STRIPE_SHARE * np.max(hi - lo), NOGO_STRIPE_MIN_M, NOGO_STRIPE_MAX_M))
+        pts = np.asarray(box.points)
+        u = (pts[:, 0] + pts[:, 1] + pts[:, 2]) / period
+        box.active_texture_coordinates = np.column_stack([u, np.full(len(u), 0.5)])
+        tex = pv.Texture(nogo_image())
+        tex.SetInterpolate(False)
+        tex.SetRepeat(True)
+        self._add(box.triangulate(), None, texture=tex)
+
+    def _label_layer(self):
+        """One renderer per view on the top layer, sharing the view's camera: labels drawn there
+        are never hidden behind the crane or the boom."""
+        rw = self.pl.ren_win
+        rw.SetNumberOfLayers(2)
+        self.label_renderers = []
+        for ren, box in zip(self.renderers, self.layout.views):
+            lr = vtk.vtkRenderer()
+            lr.SetLayer(1)
+            lr.SetViewport(*box.viewport(self.size))
+            lr.InteractiveOff()
+            lr.SetActiveCamera(ren.GetActiveCamera())
+            rw.AddRenderer(lr)
+            self.label_renderers.append(lr)
+        self.labels = []  # (world position, font px, text, [actor per view], role)
+
+    def _label(self, pos, text, *, size, colour, bold=False, role="grid"):
+        """A 3D-anchored label that always faces the camera, dark on a light panel, on the top layer."""
+        font = max(self.layout.fonts["label"], int(round(size * self.size[1])))
+        actors = []
+        for lr in self.label_renderers:
             a = vtk.vtkBillboardTextActor3D()
             a.SetInput(text)
             a.SetPosition(*pos)
             tp = a.GetTextProperty()
-            tp.SetFontSize(max(10, int(size * self.size[1])))
+            tp.SetFontSize(font * self.ss)
             tp.SetColor(*rgb(colour))
             tp.SetBold(bold)
+            tp.SetFontFamilyToArial()
+            tp.SetBackgroundColor(*rgb(PALETTE["label_bg"]))
+            tp.SetBackgroundOpacity(0.85)
             tp.SetJustificationToCentered()
-            ren.AddActor(a)
+            tp.SetVerticalJustificationToCentered()
+            lr.AddActor(a)
+            actors.append(a)
+        self.labels.append((np.asarray(pos, dtype=float), font, text, actors, role))
+
+    def _fit_labels(self, view_index: int, load_xyz=None):
+        """Show a view's labels only where they fit wholly inside the view, cover neither the load
+        nor a label shown before them (zone labels first, then the arrows', then the grid's)."""
+        if not self.labels:
+            return
+        box = self.layout.views[view_index]
+        pts = np.array([lab[0] for lab in self.labels])
+        px = self.project(np.vstack([pts, load_xyz[None]]) if load_xyz is not None else pts, view_index)
+        load_px = px[-1] if load_xyz is not None else None
+        taken = []
+        for k in self._label_order:
+            pos, font, text, actors, role = self.labels[k]
+            c, r = px[k]
+            half_w = 0.5 * layout_mod.text_width_px(text, font, "bold") + 3
+            half_h = 0.5 * font * layout_mod.LINE_EM + 2
+            ok = bool(np.isfinite(c) and np.isfinite(r)) and 2 * half_w <= box.width and 2 * half_h <= box.height
+            dx = dy = 0.0
+            if ok and role in ("obstacle", "exclusion"):
+                # a zone's name is moved into the view rather than lost at its edge
+                dx = min(0.0, box.x1 - (c + half_w)) + max(0.0, box.x0 - (c - half_w))
+                dy = min(0.0, box.y1 - (r + half_h)) + max(0.0, box.y0 - (r - half_h))
+            c, r = c + dx, r + dy
+            lb = layout_mod.Box(c - half_w, r - half_h, c + half_w, r + half_h)
+            ok = ok and lb.inside(box)
+            actors[view_index].SetDisplayOffset(int(round(dx * self.ss)), int(round(-dy * self.ss)))
+            if ok and load_px is not None:
+                ok = not lb.contains(*load_px)
+            if ok:
+                ok = not any(lb.intersects(o) for o in taken)
+            if ok:
+                taken.append(lb)
+            actors[view_index].SetVisibility(bool(ok))
 
     def _site_arrows(self, axis_mesh):
         """A north arrow and, with wind, an arrow the way the wind blows, on the ground beside the +x/+y arrows.
@@ -224,7 +322,7 @@ class Stage:
         self._add(_polydata(arrow(centre - 0.5 * length * d, d, length), "faces"), PALETTE["north"],
                   lighting=False)
         self._label(centre + 0.65 * length * d, "N", size=LABEL_STYLE["axis_x"][1], colour=PALETTE["north"],
-                    bold=True)
+                    bold=True, role="axis")
         if scene.wind.speed_m_s > 0.0:
             toward = math.radians(scene.wind.direction_deg)
             w = np.array([math.cos(toward), math.sin(toward), 0.0])
@@ -232,12 +330,12 @@ class Stage:
             self._add(_polydata(arrow(at - 0.5 * length * w, w, length, tip_radius=0.12, shaft_radius=0.05),
                                 "faces"), PALETTE["wind"], lighting=False)
             self._label(at + np.array([0.0, -0.75 * length, 0.0]),
-                        f"wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}",
-                        size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True)
+                        f"wind {scene.wind.speed_m_s:g} m/s from {compass_point(scene_wind_from_bearing_deg(scene))}",
+                        size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True, role="axis")
 
     def _place_cameras(self):
-        w, h = self.size
-        aspect = (w / len(self.views)) / h
+        box = self.layout.views[0]
+        aspect = box.width / box.height
         self.aspect = aspect
         pts = self.scene3d.interest_points()
         self.cams = []
@@ -276,82 +374,134 @@ class Stage:
         ren.ResetCameraClippingRange()
     # ------------------------------------------------------------------ overlay
     def _overlay(self):
-        """A top layer, as large as the window, that holds all the 2D text."""
+        """The top layer over the whole window: the bands around the views, the legend and all 2D words.
+
+        Every box comes from :mod:`swingsim.render.layout`: nothing here is drawn over a view.
+        """
         rw = self.pl.ren_win
-        rw.SetNumberOfLayers(2)
         ren = vtk.vtkRenderer()
         ren.SetLayer(1)
         ren.SetViewport(0, 0, 1, 1)
         ren.InteractiveOff()
         rw.AddRenderer(ren)
         self.over = ren
-        h = self.size[1]
-        fs = lambda k: max(9, int(round(k * h)))  # noqa: E731
+        L = self.layout
+        f = L.fonts
+        pad = L.text_boxes["pad"]
+        rects = [(L.title, PALETTE["bar"]), (L.clock, PALETTE["bar"]), (L.panel, PALETTE["panel"]),
+                 (L.notes, PALETTE["panel"]), (L.legend, PALETTE["panel"])]
+        rects += [(b, PALETTE["bar_light"]) for b in L.tags] + [(b, PALETTE["bar"]) for b in L.dividers]
+        # the side panel's rule between readout, notes and legend
+        rule = max(1, int(round(0.002 * self.size[1])))
+        rects += [(layout_mod.Box(L.panel.x0, L.panel.y0, L.panel.x0 + rule, L.caution.y0), PALETTE["bar"])]
+        rects += [(layout_mod.Box(L.notes.x0, L.notes.y0, L.notes.x1, L.notes.y0 + rule), PALETTE["rule"]),
+                  (layout_mod.Box(L.legend.x0, L.legend.y0, L.legend.x1, L.legend.y0 + rule), PALETTE["rule"])]
+        self._caution_rect = len(rects)
+        rects.append((L.caution, PALETTE["caution_band"]))
+        rects += self._legend_swatches()
+        self._rects = self._rect_actor(rects)
+        ren.AddActor(self._rects)
+        scene = self.traj.scene
         self.txt = {}
-        self.txt["title"] = self._text(self.traj.scene.title, (0.012, 0.985), fs(0.036), "tl", bold=True)
-        self.txt["clock"] = self._text("", (0.012, 0.925), fs(0.032), "tl", mono=True)
-        self.txt["readout"] = self._text("", (0.988, 0.985), fs(0.027), "tr", mono=True)
-        self.txt["event"] = self._text("", (0.012, 0.86), fs(0.03), "tl", bold=True,
-                                       colour="#7a0000")
-        self.txt["zone"] = self._text("", (0.012, 0.70), fs(0.03), "tl", bold=True, colour=PALETTE["warn"])
-        self.txt["stopped"] = self._text("", (0.5, 0.55), fs(0.034), "cc", bold=True, colour=PALETTE["warn"],
-                                         opacity=0.9, frame=True)
-        # characters a line holds at a font size (Arial averages about 0.55 em a character)
-        self.line_chars = max(20, int(self.size[0] * 0.97 / (0.55 * fs(0.024))))
-        self.banner_chars = max(20, min(72, int(self.size[0] * 0.9 / (0.58 * fs(0.032)))))
-        self.txt["caution"] = self._text(overlay.caution_line(self.line_chars), (0.5, 0.012), fs(0.024), "bc")
-        self.txt["banner"] = self._text("", (0.5, 0.075), fs(0.032), "bc", bold=True,
-                                        background=PALETTE["banner"], opacity=0.92, frame=True)
-        if len(self.views) > 1:
-            for i, v in enumerate(self.views):
-                self._text(f"{v} view", ((i + 0.5) / len(self.views), 0.06), fs(0.026), "bc",
-                           bold=True, colour="#333333")
-            sep = vtk.vtkActor2D()
-            pts = vtk.vtkPoints()
-            pts.InsertNextPoint(0.5, 0.0, 0)
-            pts.InsertNextPoint(0.5, 1.0, 0)
-            lines = vtk.vtkCellArray()
-            lines.InsertNextCell(2)
-            lines.InsertCellPoint(0)
-            lines.InsertCellPoint(1)
-            poly = vtk.vtkPolyData()
-            poly.SetPoints(pts)
-            poly.SetLines(lines)
-            coord = vtk.vtkCoordinate()
-            coord.SetCoordinateSystemToNormalizedViewport()
-            mapper = vtk.vtkPolyDataMapper2D()
-            mapper.SetInputData(poly)
-            mapper.SetTransformCoordinate(coord)
-            sep.SetMapper(mapper)
-            sep.GetProperty().SetColor(*rgb("#222222"))
-            sep.GetProperty().SetLineWidth(3)
-            ren.AddActor(sep)
+        self.txt["title"] = self._text(layout_mod.fit_title(scene.title, L), L.title, pad, f["title"], "l",
+                                       bold=True, colour=PALETTE["bar_text"])
+        self.txt["clock"] = self._text("", L.clock, pad, f["clock"], "r", mono=True, colour=PALETTE["bar_text"])
+        self.txt["readout"] = self._text("", L.panel, pad, f["panel"], "tl", mono=True)
+        self.txt["notes"] = self._text("", L.notes, pad, f["notes"], "tl")
+        self.notes_chars = layout_mod.chars_per_line(L.notes.width - 2 * pad, f["notes"])
+        self.caution_chars = layout_mod.chars_per_line(L.caution.width - 2 * pad, f["caution"])
+        self.txt["caution"] = self._text("", L.caution, pad, f["caution"], "c")
+        lg = L.legend
+        row_h = f["legend"] * layout_mod.LINE_EM
+        sw = int(round(1.6 * f["legend"]))
+        for i, (_key, words) in enumerate(LEGEND):
+            y = lg.y0 + pad + i * row_h
+            self._text(words, layout_mod.Box(lg.x0 + 2 * pad + sw, y, lg.x1, y + row_h), 0, f["legend"], "l")
+        for box, v in zip(L.tags, self.views):
+            self._text(f"{v} view", box, pad, f["tag"], "c", bold=True, colour=PALETTE["text"])
+        # lines a line of the notes holds, and how many
+        self.line_chars = self.caution_chars
+        self.banner_chars = self.caution_chars
 
-    def _text(self, text, pos, size, anchor, *, bold=False, mono=False, colour=None, background=None,
-              opacity=0.8, frame=False):
+    def _legend_swatches(self) -> list:
+        """Small swatches of the legend: the no-go zone in red and white stripes, the others plain."""
+        L = self.layout
+        pad = L.text_boxes["pad"]
+        f = L.fonts["legend"]
+        row_h = f * layout_mod.LINE_EM
+        sw = int(round(1.6 * f))
+        out = []
+        for i, (key, _words) in enumerate(LEGEND):
+            y0 = L.legend.y0 + pad + i * row_h + 0.15 * row_h
+            y1 = y0 + 0.7 * row_h
+            x0 = L.legend.x0 + pad
+            if key == "exclusion":
+                n = 4
+                for k in range(n):
+                    out.append((layout_mod.Box(x0 + k * sw / n, y0, x0 + (k + 1) * sw / n, y1),
+                                PALETTE["nogo_red"] if k % 2 == 0 else PALETTE["nogo_white"]))
+            else:
+                out.append((layout_mod.Box(x0, y0, x0 + sw, y1), PALETTE[key]))
+        return out
+
+    def _rect_actor(self, rects):
+        """Filled rectangles in frame pixels (rows from the top), each in its own colour, as one 2D actor."""
+        h = self.render_size[1]
+        k = self.ss
+        pts = vtk.vtkPoints()
+        cells = vtk.vtkCellArray()
+        colours = vtk.vtkUnsignedCharArray()
+        colours.SetNumberOfComponents(3)
+        for i, (b, colour) in enumerate(rects):
+            x0, x1 = b.x0 * k, b.x1 * k
+            y0, y1 = h - b.y1 * k, h - b.y0 * k
+            for x, y in ((x0, y0), (x1, y0), (x1, y1), (x0, y1)):
+                pts.InsertNextPoint(x, y, 0)
+            cells.InsertNextCell(4)
+            for j in range(4):
+                cells.InsertCellPoint(4 * i + j)
+            colours.InsertNextTuple3(*(255 * np.asarray(rgb(colour))))
+        poly = vtk.vtkPolyData()
+        poly.SetPoints(pts)
+        poly.SetPolys(cells)
+        poly.GetCellData().SetScalars(colours)
+        self._rect_colours = colours
+        mapper = vtk.vtkPolyDataMapper2D()
+        mapper.SetInputData(poly)
+        mapper.SetScalarModeToUseCellData()
+        mapper.SetColorModeToDirectScalars()
+        actor = vtk.vtkActor2D()
+        actor.SetMapper(mapper)
+        self._rect_poly = poly
+        return actor
+
+    def _set_rect_colour(self, index: int, colour: str):
+        self._rect_colours.SetTuple3(index, *(255 * np.asarray(rgb(colour))))
+        self._rect_colours.Modified()
+        self._rect_poly.Modified()
+
+    def _text(self, text, box, pad, size, anchor, *, bold=False, mono=False, colour=None):
+        """A 2D text inside a layout box, anchored at one of its sides ("l", "r", "c", "tl")."""
         a = vtk.vtkTextActor()
         a.SetInput(text)
-        a.GetPositionCoordinate().SetCoordinateSystemToNormalizedViewport()
-        a.GetPositionCoordinate().SetValue(*pos)
+        k = self.ss
+        h = self.render_size[1]
+        x = {"l": box.x0 + pad, "r": box.x1 - pad, "c": 0.5 * (box.x0 + box.x1), "tl": box.x0 + pad}[anchor]
+        y = box.y0 + pad if anchor == "tl" else 0.5 * (box.y0 + box.y1)
+        a.SetPosition(x * k, h - y * k)
         tp = a.GetTextProperty()
-        tp.SetFontSize(size)
+        tp.SetFontSize(int(size * k))
         tp.SetBold(bold)
-        if mono:
-            tp.SetFontFamilyToCourier()
-        else:
-            tp.SetFontFamilyToArial()
+        tp.SetFontFamilyToCourier() if mono else tp.SetFontFamilyToArial()
         tp.SetColor(*rgb(colour or PALETTE["text"]))
-        tp.SetBackgroundColor(*rgb(background or PALETTE["panel"]))
-        tp.SetBackgroundOpacity(opacity)
-        if frame:
-            tp.SetFrame(True)
-            tp.SetFrameColor(*rgb("#7a5c00"))
-            tp.SetFrameWidth(3)
-        v, hz = anchor[0], anchor[1]
-        {"t": tp.SetVerticalJustificationToTop, "b": tp.SetVerticalJustificationToBottom,
-         "c": tp.SetVerticalJustificationToCentered}[v]()
-        {"l": tp.SetJustificationToLeft, "r": tp.SetJustificationToRight,
-         "c": tp.SetJustificationToCentered}[hz]()
+        tp.SetLineSpacing(1.0)
+        if anchor == "tl":
+            tp.SetVerticalJustificationToTop()
+            tp.SetJustificationToLeft()
+        else:
+            tp.SetVerticalJustificationToCentered()
+            {"l": tp.SetJustificationToLeft, "r": tp.SetJustificationToRight,
+             "c": tp.SetJustificationToCentered}[anchor]()
         self.over.AddActor(a)
         return a
 
@@ -414,30 +564,65 @@ class Stage:
         load = np.asarray(row["load"], dtype=float)
         self._update_trail(t, load)
         states = self._update_zones(row)
-        for ren, cam in zip(self.renderers, self.cams):
-            if cam is None:
-                # aim a little above the load: the swing in the middle, clear of the banner
+        for i, (ren, cam) in enumerate(zip(self.renderers, self.cams)):
+            follow = cam is None
+            if follow:
+                # aim a little above the load: the swing in the middle of the view
                 focus = (0.3 * p[0] + 0.7 * load[0], 0.3 * p[1] + 0.7 * load[1], load[2] + 0.3 * (p[2] - load[2]))
                 cam = views.follow(focus, self.follow_span, self.aspect)
             self._apply_camera(ren, cam)
+            self._fit_labels(i, load)
+        crane = self._crane_numbers(t, row)
         ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
-                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row))
+                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row), crane)
         # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
         # display (readable, and text is costly to rasterise); the clock and the picture
         # show every frame's own time.
         slot = None if video_t is None else int(math.floor(video_t * READOUT_HZ + 1e-9))
-        keys = ["clock", "event", "zone", "banner", "stopped"]
         if slot is None or slot != self._readout_slot:
-            keys.append("readout")
+            self._set("readout", ft.readout)
             self._readout_slot = slot
             self.shown_readout = ft.readout
-        for key in keys:
-            self.txt[key].SetInput(getattr(ft, key))
-            self.txt[key].SetVisibility(bool(getattr(ft, key)))
+        self._set("clock", ft.clock)
+        notes = "\n".join(x for x in (ft.stopped, ft.zone, ft.event) if x)
+        self._set("notes", layout_mod.fit_lines(notes, self.notes_chars, self.layout.notes_lines))
+        # the caution band: the full caution over the first and last seconds and on stills
+        # (highlighted in the video), the short one in between
+        full = bool(ft.banner) or video_t is None
+        text = overlay.caution_banner_text() if full else ft.caution
+        self._set("caution", layout_mod.wrap(" ".join(text.split()), self.caution_chars))
+        band = "banner" if ft.banner else "caution_band"
+        if band != getattr(self, "_band", None):
+            self._set_rect_colour(self._caution_rect, PALETTE[band])
+            self._band = band
         self.last_text = ft
         self.zone_states = states
         self.near_zones = [name for name, _state, _bodies in states]
         return ft
+
+    def _set(self, key: str, text: str):
+        """Change a kept text actor only when its words change (text is costly to rasterise)."""
+        a = self.txt[key]
+        if a.GetInput() != text:
+            a.SetInput(text)
+
+    def _crane_numbers(self, t: float, row: dict) -> dict:
+        """Radius and slew (slewing cranes), hook height, and the wind at the load, for the readout."""
+        scene = self.traj.scene
+        out = {}
+        if scene.crane.kind in overlay.SLEWING_KINDS:
+            pose = self.traj.motion.pose(np.array([t]))
+            out["radius_m"] = float(pose.radius_m[0])
+            out["slew_deg"] = math.degrees(float(pose.jib_angle_rad[0]) - self._slew0)
+        hook = row.get("hook")
+        if hook is not None and np.ndim(hook) == 1:
+            out["hook_height_m"], out["height_label"] = float(hook[2]), "hook height"
+        else:
+            out["hook_height_m"], out["height_label"] = float(np.asarray(row["load"])[2]), "load height"
+        if self.has_wind or row.get("wind_speed_m_s") is not None:
+            out["wind_m_s"] = overlay.wind_at_load_m_s(row, scene)
+            out["wind_from"] = compass_point(scene_wind_from_bearing_deg(scene))
+        return out
 
     def _update_trail(self, t, load):
         """The trail: the last TRAIL_S seconds, sampled every 0.1 s, ending at the load now."""
@@ -466,17 +651,36 @@ class Stage:
         """
         shown = []
         verdicts = zone_verdicts_at(row, self.traj.scene) if self.zones else []
+        t = float(row["t"]) if row.get("t") is not None and np.ndim(row["t"]) == 0 else None
         for j, ((z, solid, edges, colour), (state, bodies)) in enumerate(zip(self.zones, verdicts)):
+            if state != ENTERED and t is not None and self.facts.zone_entered_at(j, t):
+                # the summary, sampled finer than the frames, counts this instant inside an entry:
+                # the video says the same (never "near" while the summary says entered)
+                state = ENTERED
+                bodies = bodies or ["load"]
             if state in (ENTERED, NEAR):
                 shown.append((z.name, state, bodies))
             if state != self._zone_state[j]:
-                warn = state in (ENTERED, NEAR)
-                c = rgb(PALETTE["warn"] if warn else colour)
-                solid.GetProperty().SetColor(*c)
-                edges.GetProperty().SetColor(*c)
-                solid.GetProperty().SetOpacity(0.6 if state == ENTERED else 0.45 if warn else STYLE[z.kind]["opacity"])
+                self._zone_look(z, solid, edges, state)
                 self._zone_state[j] = state
         return shown
+
+    def _zone_look(self, zone, solid, edges, state):
+        """A zone's colours for its state: amber within the margin, red when entered; a clear
+        no-go zone shows only its red and white stripes and its red rim."""
+        sp, ep = solid.GetProperty(), edges.GetProperty()
+        if state == ENTERED:
+            colour, opacity, width = PALETTE["warn"], 0.6, 4
+        elif state == NEAR:
+            colour, opacity, width = PALETTE["near"], 0.45, 4
+        else:
+            colour, opacity, width = PALETTE[zone.kind], STYLE[zone.kind]["opacity"], STYLE[zone.kind]["line_width"]
+        sp.SetColor(*rgb(colour))
+        sp.SetOpacity(opacity)
+        ep.SetColor(*rgb(PALETTE["nogo_red"] if zone.kind == "exclusion" and state not in (ENTERED, NEAR)
+                         else colour))
+        ep.SetLineWidth(width * self.ss)
+        solid.SetVisibility(not (zone.kind == "exclusion" and state not in (ENTERED, NEAR)))
 
     # ------------------------------------------------------------------ output
     def grab(self) -> np.ndarray:
@@ -489,9 +693,14 @@ class Stage:
         """
         rw = self.pl.ren_win
         rw.Render()
-        w, h = self.size
+        w, h = self.render_size
         rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
-        return vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1]
+        img = vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1]
+        if self.ss == 1:
+            return img
+        k = self.ss  # supersampled: the mean of each k x k block (a box filter), rounded
+        blocks = img.reshape(h // k, k, w // k, k, 3).astype(np.uint16).sum(axis=(1, 3))
+        return ((blocks + (k * k) // 2) // (k * k)).astype(np.uint8)
 
     def project(self, points, view_index: int = 0) -> np.ndarray:
         """Where world points appear in one view's picture.
