@@ -50,6 +50,9 @@ def add_arguments(parser: argparse.ArgumentParser, *, scene: bool = True) -> Non
                    help="end of the time window shown [s]")
     g.add_argument("--no-stills", dest="stills", action="store_false",
                    help="do not write the PNG stills")
+    g.add_argument("--quality", choices=("standard", "high"), default="standard",
+                   help="standard (fast, for checking) or high (smooth edges for the final cut, "
+                        "about four times slower); default standard")
 
 
 def parse_size(text: str):
@@ -88,7 +91,7 @@ def options(args, scene) -> dict:
     -------
     dict
         ``size``, ``fps`` [1/s], ``fmt``, ``view``, ``speed`` [-], ``window``
-        (start and end [s], or None), ``split`` and ``stills``.
+        (start and end [s], or None), ``split``, ``stills`` and ``quality``.
     """
     window = None
     if args.t_from is not None or args.t_to is not None:
@@ -96,7 +99,8 @@ def options(args, scene) -> dict:
                   args.t_to if args.t_to is not None else scene.duration_s)
     split = tuple(v.strip() for v in args.split.split(",")) if args.split else None
     return dict(size=parse_size(args.size), fps=args.fps, fmt=args.fmt, view=args.view, speed=args.speed,
-                window=window, split=split, stills=getattr(args, "stills", True))
+                window=window, split=split, stills=getattr(args, "stills", True),
+                quality=getattr(args, "quality", "standard"))
 
 
 def main(args) -> int:

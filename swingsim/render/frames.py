@@ -65,7 +65,7 @@ def read_load_mesh(scene) -> Mesh | None:
     return Mesh(np.array(mesh.points, dtype=float), np.asarray(mesh.regular_faces, dtype=np.int64))
 
 
-def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s):
+def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s, quality="standard"):
     """The stage of a run, built once (``pyvista`` loads here).
 
     Parameters
@@ -84,6 +84,8 @@ def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s):
         Playback speed [-].
     video_len_s : float
         Length of the video [s].
+    quality : {"standard", "high"}
+        ``high`` supersamples (see :class:`swingsim.render.stage.Stage`).
 
     Returns
     -------
@@ -92,7 +94,8 @@ def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s):
     """
     from swingsim.render.stage import Stage
 
-    return Stage(traj, facts, size=size, views=views, load_mesh=load_mesh, speed=speed, video_len_s=video_len_s)
+    return Stage(traj, facts, size=size, views=views, load_mesh=load_mesh, speed=speed, video_len_s=video_len_s,
+                 quality=quality)
 
 
 def progress_bar(total: int, quiet: bool, desc: str):
