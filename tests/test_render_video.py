@@ -138,6 +138,33 @@ def test_gif_and_stills(tmp_path):
     assert np.abs(stills[0].astype(int) - stills[2].astype(int)).mean() > 0.5
 
 
+@pytest.mark.parametrize("fps", [15, 12, 30])
+def test_gif_frame_delays_average_to_the_frame_rate(tmp_path, fps):
+    """GIF stores each frame's delay in hundredths of a second (GIF89a, Graphic Control Extension):
+    at 15 fps the delays must alternate (7, 7, 6 cs...) so the clip plays at 15 fps on average."""
+    from PIL import Image
+
+    from swingsim.render.writers import GifWriter
+
+    frames = [np.full((16, 16, 3), (5 * i) % 250, np.uint8) for i in range(3 * fps)]
+    w = GifWriter(tmp_path / "t.gif", (16, 16), fps, frames[:4])
+    for f in frames:
+        w.write(f)
+    w.close()
+    with Image.open(tmp_path / "t.gif") as im:
+        delays = []
+        for i in range(im.n_frames):
+            im.seek(i)
+            delays.append(im.info["duration"])  # Pillow reports milliseconds (centiseconds x 10)
+    assert len(delays) == len(frames)
+    # each delay is one of the two whole centiseconds around 100/fps...
+    lo = 10 * int(100 // fps)
+    assert set(delays) <= {lo, lo + 10}
+    # ...and the total is within one centisecond of the clip's length, so the mean is 1/fps
+    assert abs(sum(delays) - 1000 * len(frames) / fps) <= 10
+    assert np.mean(delays) == pytest.approx(1000 / fps, abs=10 / len(frames))
+
+
 def _layout(traj, views, size=SIZE):
     """The frame layout a render of ``traj`` uses (from a stage built the same way)."""
     from swingsim.render.facts import collect
