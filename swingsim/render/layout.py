@@ -310,7 +310,7 @@ def compute_layout(size, n_views: int, caution_text: str, readout_rows: int, leg
     # title bar
     bar_h = int(round(max(f["title"], f["clock"]) * LINE_EM + 2 * pad))
     clock_w = text_width_px(clock_sample, f["clock"], "mono") + 2 * pad
-    clock_w = min(clock_w, 0.45 * w)
+    clock_w = int(round(min(clock_w, 0.45 * w)))
     title_box = Box(0, 0, w - clock_w, bar_h)
     clock_box = Box(w - clock_w, 0, w, bar_h)
     # caution band: as many lines as the longest caution needs at its size

@@ -18,6 +18,7 @@ from vtkmodules.util.numpy_support import vtk_to_numpy
 from swingsim import scene3d
 from swingsim.metrics.chart import chart_series
 from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
+from swingsim.render import chrome as chrome_mod
 from swingsim.render import layout as layout_mod
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
@@ -106,11 +107,13 @@ class Stage:
             ren.SetViewport(*box.viewport(self.size))
         self.scene3d = scene3d.build(traj, load_mesh=load_mesh)
         self.lay = self.scene3d.layout
-        self._label_layer()
+        self.labels = []  # 3D-anchored labels: (world position [m], RGBA image, role)
         self._build()
         self._place_cameras()
         self._overlay()
         self._pixels = vtk.vtkUnsignedCharArray()
+        self.texts = {}
+        self._warm = False
         self._readout_slot = None
         self._slew0 = float(traj.motion.pose(np.array([0.0])).jib_angle_rad[0])
         try:
@@ -200,7 +203,7 @@ class Stage:
                 self._add(self.sling_lines, PALETTE["sling"], line_width=2, lighting=False)
         self.trail_t, self.trail_xyz = self.scene3d.path_t_s, self.scene3d.path_load_m
         rank = {"obstacle": 0, "exclusion": 0, "axis": 1, "axis_x": 1, "axis_y": 1}
-        self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][4], 2))
+        self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][2], 2))
         # moving bodies, each with its actors (a spreader has its beam and its centre line)
         self.moving = {name: [a for a in self.actors[name] if a is not None]
                        for name, body in bodies.items() if body.moves}
@@ -235,75 +238,48 @@ class Stage:
         tex.SetRepeat(True)
         self._add(box.triangulate(), None, texture=tex)
 
-    def _label_layer(self):
-        """One renderer per view on the top layer, sharing the view's camera: labels drawn there
-        are never hidden behind the crane or the boom."""
-        rw = self.pl.ren_win
-        rw.SetNumberOfLayers(2)
-        self.label_renderers = []
-        for ren, box in zip(self.renderers, self.layout.views):
-            lr = vtk.vtkRenderer()
-            lr.SetLayer(1)
-            lr.SetViewport(*box.viewport(self.size))
-            lr.InteractiveOff()
-            lr.SetActiveCamera(ren.GetActiveCamera())
-            rw.AddRenderer(lr)
-            self.label_renderers.append(lr)
-        self.labels = []  # (world position, font px, text, [actor per view], role)
-
     def _label(self, pos, text, *, size, colour, bold=False, role="grid"):
-        """A 3D-anchored label that always faces the camera, dark on a light panel, on the top layer."""
+        """A label anchored at a 3D point: dark words on a light panel, composited over the view
+        (so never hidden behind the crane or the boom) where :meth:`_place_labels` finds room."""
         font = max(self.layout.fonts["label"], int(round(size * self.size[1])))
-        actors = []
-        for lr in self.label_renderers:
-            a = vtk.vtkBillboardTextActor3D()
-            a.SetInput(text)
-            a.SetPosition(*pos)
-            tp = a.GetTextProperty()
-            tp.SetFontSize(font * self.ss)
-            tp.SetColor(*rgb(colour))
-            tp.SetBold(bold)
-            tp.SetFontFamilyToArial()
-            tp.SetBackgroundColor(*rgb(PALETTE["label_bg"]))
-            tp.SetBackgroundOpacity(0.85)
-            tp.SetJustificationToCentered()
-            tp.SetVerticalJustificationToCentered()
-            lr.AddActor(a)
-            actors.append(a)
-        self.labels.append((np.asarray(pos, dtype=float), font, text, actors, role))
+        img = chrome_mod.rasterise(text, font * self.ss, colour, bold=bold, background=PALETTE["label_bg"],
+                                   background_opacity=0.85)
+        self.labels.append((np.asarray(pos, dtype=float), img, role, text))
 
-    def _fit_labels(self, view_index: int, load_xyz=None):
-        """Show a view's labels only where they fit wholly inside the view, cover neither the load
-        nor a label shown before them (zone labels first, then the arrows', then the grid's)."""
+    def _place_labels(self, view_index: int, load_xyz=None) -> list:
+        """Where a view's labels go this frame: wholly inside the view, over neither the load nor a
+        label placed before them (zone labels first, then the arrows', then the grid's); a zone's
+        name is moved into the view rather than lost at its edge.
+
+        Returns
+        -------
+        list of tuple
+            (label index, layout.Box [output px]) of the labels shown.
+        """
         if not self.labels:
-            return
+            return []
         box = self.layout.views[view_index]
         pts = np.array([lab[0] for lab in self.labels])
         px = self.project(np.vstack([pts, load_xyz[None]]) if load_xyz is not None else pts, view_index)
         load_px = px[-1] if load_xyz is not None else None
-        taken = []
+        taken, shown = [], []
         for k in self._label_order:
-            pos, font, text, actors, role = self.labels[k]
+            _pos, img, role, _text = self.labels[k]
             c, r = px[k]
-            half_w = 0.5 * layout_mod.text_width_px(text, font, "bold") + 3
-            half_h = 0.5 * font * layout_mod.LINE_EM + 2
-            ok = bool(np.isfinite(c) and np.isfinite(r)) and 2 * half_w <= box.width and 2 * half_h <= box.height
-            dx = dy = 0.0
-            if ok and role in ("obstacle", "exclusion"):
-                # a zone's name is moved into the view rather than lost at its edge
-                dx = min(0.0, box.x1 - (c + half_w)) + max(0.0, box.x0 - (c - half_w))
-                dy = min(0.0, box.y1 - (r + half_h)) + max(0.0, box.y0 - (r - half_h))
-            c, r = c + dx, r + dy
+            half_w, half_h = 0.5 * img.shape[1] / self.ss, 0.5 * img.shape[0] / self.ss
+            if not (np.isfinite(c) and np.isfinite(r)) or 2 * half_w > box.width or 2 * half_h > box.height:
+                continue
+            if role in ("obstacle", "exclusion"):
+                c += min(0.0, box.x1 - (c + half_w)) + max(0.0, box.x0 - (c - half_w))
+                r += min(0.0, box.y1 - (r + half_h)) + max(0.0, box.y0 - (r - half_h))
             lb = layout_mod.Box(c - half_w, r - half_h, c + half_w, r + half_h)
-            ok = ok and lb.inside(box)
-            actors[view_index].SetDisplayOffset(int(round(dx * self.ss)), int(round(-dy * self.ss)))
-            if ok and load_px is not None:
-                ok = not lb.contains(*load_px)
-            if ok:
-                ok = not any(lb.intersects(o) for o in taken)
-            if ok:
-                taken.append(lb)
-            actors[view_index].SetVisibility(bool(ok))
+            if not lb.inside(box) or (load_px is not None and lb.contains(*load_px)):
+                continue
+            if any(lb.intersects(o) for o in taken):
+                continue
+            taken.append(lb)
+            shown.append((k, lb))
+        return shown
 
     def _site_arrows(self, axis_mesh):
         """A north arrow and, with wind, an arrow the way the wind blows, on the ground beside the +x/+y arrows.
@@ -374,54 +350,46 @@ class Stage:
         ren.ResetCameraClippingRange()
     # ------------------------------------------------------------------ overlay
     def _overlay(self):
-        """The top layer over the whole window: the bands around the views, the legend and all 2D words.
-
-        Every box comes from :mod:`swingsim.render.layout`: nothing here is drawn over a view.
-        """
-        rw = self.pl.ren_win
-        ren = vtk.vtkRenderer()
-        ren.SetLayer(1)
-        ren.SetViewport(0, 0, 1, 1)
-        ren.InteractiveOff()
-        rw.AddRenderer(ren)
-        self.over = ren
+        """The 2D layer (:class:`swingsim.render.chrome.Chrome`): the bands around the views, the
+        legend and all words, from :mod:`swingsim.render.layout`; nothing is drawn over a view."""
         L = self.layout
         f = L.fonts
         pad = L.text_boxes["pad"]
+        ch = self.chrome = chrome_mod.Chrome(L, self.ss)
+        k = self.ss
         rects = [(L.title, PALETTE["bar"]), (L.clock, PALETTE["bar"]), (L.panel, PALETTE["panel"]),
-                 (L.notes, PALETTE["panel"]), (L.legend, PALETTE["panel"])]
+                 (L.notes, PALETTE["panel"]), (L.legend, PALETTE["panel"]), (L.caution, PALETTE["caution_band"])]
         rects += [(b, PALETTE["bar_light"]) for b in L.tags] + [(b, PALETTE["bar"]) for b in L.dividers]
-        # the side panel's rule between readout, notes and legend
+        # the side panel's rules: along its left edge, and between readout, notes and legend
         rule = max(1, int(round(0.002 * self.size[1])))
-        rects += [(layout_mod.Box(L.panel.x0, L.panel.y0, L.panel.x0 + rule, L.caution.y0), PALETTE["bar"])]
-        rects += [(layout_mod.Box(L.notes.x0, L.notes.y0, L.notes.x1, L.notes.y0 + rule), PALETTE["rule"]),
+        rects += [(layout_mod.Box(L.panel.x0, L.panel.y0, L.panel.x0 + rule, L.caution.y0), PALETTE["bar"]),
+                  (layout_mod.Box(L.notes.x0, L.notes.y0, L.notes.x1, L.notes.y0 + rule), PALETTE["rule"]),
                   (layout_mod.Box(L.legend.x0, L.legend.y0, L.legend.x1, L.legend.y0 + rule), PALETTE["rule"])]
-        self._caution_rect = len(rects)
-        rects.append((L.caution, PALETTE["caution_band"]))
         rects += self._legend_swatches()
-        self._rects = self._rect_actor(rects)
-        ren.AddActor(self._rects)
+        for box, colour in rects:
+            chrome_mod.fill(ch.picture, box, colour, k)
+        for box in [L.title, L.clock, L.panel, L.notes, L.legend, L.caution, *L.tags, *L.dividers]:
+            ch.keep(box)
         scene = self.traj.scene
-        self.txt = {}
-        self.txt["title"] = self._text(layout_mod.fit_title(scene.title, L), L.title, pad, f["title"], "l",
-                                       bold=True, colour=PALETTE["bar_text"])
-        self.txt["clock"] = self._text("", L.clock, pad, f["clock"], "r", mono=True, colour=PALETTE["bar_text"])
-        self.txt["readout"] = self._text("", L.panel, pad, f["panel"], "tl", mono=True)
-        self.txt["notes"] = self._text("", L.notes, pad, f["notes"], "tl")
-        self.notes_chars = layout_mod.chars_per_line(L.notes.width - 2 * pad, f["notes"])
-        self.caution_chars = layout_mod.chars_per_line(L.caution.width - 2 * pad, f["caution"])
-        self.txt["caution"] = self._text("", L.caution, pad, f["caution"], "c")
+        ch.text("title", layout_mod.fit_title(scene.title, L), L.title, "l", f["title"], PALETTE["bar_text"],
+                bold=True, pad=pad)
         lg = L.legend
         row_h = f["legend"] * layout_mod.LINE_EM
         sw = int(round(1.6 * f["legend"]))
         for i, (_key, words) in enumerate(LEGEND):
             y = lg.y0 + pad + i * row_h
-            self._text(words, layout_mod.Box(lg.x0 + 2 * pad + sw, y, lg.x1, y + row_h), 0, f["legend"], "l")
-        for box, v in zip(L.tags, self.views):
-            self._text(f"{v} view", box, pad, f["tag"], "c", bold=True, colour=PALETTE["text"])
-        # lines a line of the notes holds, and how many
-        self.line_chars = self.caution_chars
-        self.banner_chars = self.caution_chars
+            ch.text(f"legend_{i}", words, layout_mod.Box(lg.x0 + 2 * pad + sw, y, lg.x1, y + row_h), "l",
+                    f["legend"], PALETTE["text"])
+        for i, (box, v) in enumerate(zip(L.tags, self.views)):
+            ch.text(f"tag_{i + 1}", f"{v} view", box, "c", f["tag"], PALETTE["text"], bold=True)
+        ch.changing("clock", L.clock, "r", f["clock"], PALETTE["bar_text"], mono=True, pad=pad)
+        ch.changing("readout", L.panel, "tl", f["panel"], PALETTE["text"], mono=True, pad=pad)
+        ch.changing("notes", L.notes, "tl", f["notes"], PALETTE["text"], pad=pad)
+        ch.changing("caution", L.caution, "c", f["caution"], PALETTE["text"], pad=pad)
+        self.notes_chars = layout_mod.chars_per_line(L.notes.width - 2 * pad, f["notes"])
+        self.caution_chars = layout_mod.chars_per_line(L.caution.width - 2 * pad, f["caution"])
+        self.line_chars = self.banner_chars = self.caution_chars
+        self._shown_labels = [[] for _ in self.views]
 
     def _legend_swatches(self) -> list:
         """Small swatches of the legend: the no-go zone in red and white stripes, the others plain."""
@@ -443,67 +411,6 @@ class Stage:
             else:
                 out.append((layout_mod.Box(x0, y0, x0 + sw, y1), PALETTE[key]))
         return out
-
-    def _rect_actor(self, rects):
-        """Filled rectangles in frame pixels (rows from the top), each in its own colour, as one 2D actor."""
-        h = self.render_size[1]
-        k = self.ss
-        pts = vtk.vtkPoints()
-        cells = vtk.vtkCellArray()
-        colours = vtk.vtkUnsignedCharArray()
-        colours.SetNumberOfComponents(3)
-        for i, (b, colour) in enumerate(rects):
-            x0, x1 = b.x0 * k, b.x1 * k
-            y0, y1 = h - b.y1 * k, h - b.y0 * k
-            for x, y in ((x0, y0), (x1, y0), (x1, y1), (x0, y1)):
-                pts.InsertNextPoint(x, y, 0)
-            cells.InsertNextCell(4)
-            for j in range(4):
-                cells.InsertCellPoint(4 * i + j)
-            colours.InsertNextTuple3(*(255 * np.asarray(rgb(colour))))
-        poly = vtk.vtkPolyData()
-        poly.SetPoints(pts)
-        poly.SetPolys(cells)
-        poly.GetCellData().SetScalars(colours)
-        self._rect_colours = colours
-        mapper = vtk.vtkPolyDataMapper2D()
-        mapper.SetInputData(poly)
-        mapper.SetScalarModeToUseCellData()
-        mapper.SetColorModeToDirectScalars()
-        actor = vtk.vtkActor2D()
-        actor.SetMapper(mapper)
-        self._rect_poly = poly
-        return actor
-
-    def _set_rect_colour(self, index: int, colour: str):
-        self._rect_colours.SetTuple3(index, *(255 * np.asarray(rgb(colour))))
-        self._rect_colours.Modified()
-        self._rect_poly.Modified()
-
-    def _text(self, text, box, pad, size, anchor, *, bold=False, mono=False, colour=None):
-        """A 2D text inside a layout box, anchored at one of its sides ("l", "r", "c", "tl")."""
-        a = vtk.vtkTextActor()
-        a.SetInput(text)
-        k = self.ss
-        h = self.render_size[1]
-        x = {"l": box.x0 + pad, "r": box.x1 - pad, "c": 0.5 * (box.x0 + box.x1), "tl": box.x0 + pad}[anchor]
-        y = box.y0 + pad if anchor == "tl" else 0.5 * (box.y0 + box.y1)
-        a.SetPosition(x * k, h - y * k)
-        tp = a.GetTextProperty()
-        tp.SetFontSize(int(size * k))
-        tp.SetBold(bold)
-        tp.SetFontFamilyToCourier() if mono else tp.SetFontFamilyToArial()
-        tp.SetColor(*rgb(colour or PALETTE["text"]))
-        tp.SetLineSpacing(1.0)
-        if anchor == "tl":
-            tp.SetVerticalJustificationToTop()
-            tp.SetJustificationToLeft()
-        else:
-            tp.SetVerticalJustificationToCentered()
-            {"l": tp.SetJustificationToLeft, "r": tp.SetJustificationToRight,
-             "c": tp.SetJustificationToCentered}[anchor]()
-        self.over.AddActor(a)
-        return a
 
     # ------------------------------------------------------------------ posing
     def pose(self, t: float, row: dict, crane: tuple, video_t: float | None = 0.0):
@@ -571,7 +478,7 @@ class Stage:
                 focus = (0.3 * p[0] + 0.7 * load[0], 0.3 * p[1] + 0.7 * load[1], load[2] + 0.3 * (p[2] - load[2]))
                 cam = views.follow(focus, self.follow_span, self.aspect)
             self._apply_camera(ren, cam)
-            self._fit_labels(i, load)
+            self._shown_labels[i] = self._place_labels(i, load)
         crane = self._crane_numbers(t, row)
         ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
                                 self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row), crane)
@@ -590,21 +497,17 @@ class Stage:
         # (highlighted in the video), the short one in between
         full = bool(ft.banner) or video_t is None
         text = overlay.caution_banner_text() if full else ft.caution
-        self._set("caution", layout_mod.wrap(" ".join(text.split()), self.caution_chars))
-        band = "banner" if ft.banner else "caution_band"
-        if band != getattr(self, "_band", None):
-            self._set_rect_colour(self._caution_rect, PALETTE[band])
-            self._band = band
+        self.chrome.set("caution", layout_mod.wrap(" ".join(text.split()), self.caution_chars),
+                        PALETTE["banner" if ft.banner else "caution_band"])
         self.last_text = ft
         self.zone_states = states
         self.near_zones = [name for name, _state, _bodies in states]
         return ft
 
     def _set(self, key: str, text: str):
-        """Change a kept text actor only when its words change (text is costly to rasterise)."""
-        a = self.txt[key]
-        if a.GetInput() != text:
-            a.SetInput(text)
+        """Show words in one of the changing text boxes."""
+        self.chrome.set(key, text)
+        self.texts[key] = text
 
     def _crane_numbers(self, t: float, row: dict) -> dict:
         """Radius and slew (slewing cranes), hook height, and the wind at the load, for the readout."""
@@ -683,8 +586,13 @@ class Stage:
         solid.SetVisibility(not (zone.kind == "exclusion" and state not in (ENTERED, NEAR)))
 
     # ------------------------------------------------------------------ output
-    def grab(self) -> np.ndarray:
-        """Render the frame and read its pixels.
+    def grab(self, overlay: bool = True) -> np.ndarray:
+        """Render the frame and read its pixels, with the 2D layer put on.
+
+        Parameters
+        ----------
+        overlay : bool
+            Put on the bands, words and labels (False: the 3D views alone, for checks).
 
         Returns
         -------
@@ -692,10 +600,19 @@ class Stage:
             (height, width, 3) uint8, top row first.
         """
         rw = self.pl.ren_win
+        if not self._warm:  # the very first picture after posing is lit differently: draw it twice
+            rw.Render()
+            self._warm = True
         rw.Render()
         w, h = self.render_size
         rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
-        img = vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1]
+        img = np.ascontiguousarray(vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1])
+        if overlay:
+            self.chrome.apply(img)
+            k = self.ss
+            for shown in self._shown_labels:
+                for j, lb in shown:
+                    chrome_mod.blend(img, self.labels[j][1], int(round(lb.x0 * k)), int(round(lb.y0 * k)))
         if self.ss == 1:
             return img
         k = self.ss  # supersampled: the mean of each k x k block (a box filter), rounded
