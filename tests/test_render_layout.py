@@ -204,5 +204,14 @@ def test_zone_words_follow_the_summary_entries():
             else:
                 assert "IN zone: footpath" not in words, (t, words)
         assert inside >= 3
+        # the chunk's zone states (numpy over the chunk) are the summary's per-instant rule
+        from swingsim.metrics.zones import zone_verdicts_at
+
+        samples = traj.sample(times)
+        stage.begin_chunk(samples)
+        for i, t in enumerate(times):
+            row = {k: (v[i] if isinstance(v, np.ndarray) and v.ndim and len(v) == len(times) else v)
+                   for k, v in samples.items()}
+            assert stage._zone_chunk[float(t)] == zone_verdicts_at(row, traj.scene), t
     finally:
         stage.close()

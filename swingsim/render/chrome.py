@@ -92,10 +92,47 @@ def blend(target: np.ndarray, rgba: np.ndarray, col: int, row: int) -> tuple:
     if x1 <= x0 or y1 <= y0:
         return (x0, y0, x0, y0)
     src = rgba[y0 - row:y1 - row, x0 - col:x1 - col]
-    a = src[..., 3:4].astype(np.float32) * (1.0 / 255.0)
+    a = src[..., 3:4].astype(np.uint16)
     region = target[y0:y1, x0:x1]
-    region[:] = (src[..., :3] * a + region * (1.0 - a) + 0.5).astype(np.uint8)
+    # integer "over": (s a + d (255 - a)) / 255, rounded (x / 255 as (x + 128 + (x + 128) / 256) / 256)
+    x = src[..., :3] * a + region * (255 - a) + 128
+    region[:] = (x + (x >> 8)) >> 8
     return (x0, y0, x1, y1)
+
+
+class Sticker:
+    """An RGBA image prepared for fast repeated blending (alpha and premultiplied colour kept as float32).
+
+    Parameters
+    ----------
+    rgba : numpy.ndarray
+        (rows, columns, 4) uint8.
+    """
+
+    def __init__(self, rgba: np.ndarray):
+        self.shape = rgba.shape
+        self.alpha = rgba[..., 3:4].astype(np.float32) * (1.0 / 255.0)
+        self.keep = 1.0 - self.alpha
+        self.colour = rgba[..., :3].astype(np.float32) * self.alpha + 0.5
+
+    def put(self, target: np.ndarray, col: int, row: int) -> None:
+        """Blend onto ``target`` (in place) with the top-left corner at (col, row), clipped.
+
+        Parameters
+        ----------
+        target : numpy.ndarray
+            (rows, columns, 3) uint8.
+        col, row : int
+            Top-left corner [px].
+        """
+        h, w = target.shape[:2]
+        x0, y0 = max(0, col), max(0, row)
+        x1, y1 = min(w, col + self.shape[1]), min(h, row + self.shape[0])
+        if x1 <= x0 or y1 <= y0:
+            return
+        sl = (slice(y0 - row, y1 - row), slice(x0 - col, x1 - col))
+        region = target[y0:y1, x0:x1]
+        region[:] = (region * self.keep[sl] + self.colour[sl]).astype(np.uint8)
 
 
 def fill(target: np.ndarray, box, colour: str, k: int = 1) -> None:

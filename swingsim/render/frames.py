@@ -172,6 +172,7 @@ def draw_frames(stage, traj, times, video_t0_index: int = 0, fps: float = 30.0, 
         ts = times[c0:c0 + CHUNK]
         samples = traj.sample(ts)
         frames = stage.scene3d.frames_from_samples(samples, traj.motion.pose(ts))
+        stage.begin_chunk(samples)
         for i, row in enumerate(rows(samples, len(ts))):
             stage.show(float(ts[i]), frames, i, row, video_t=(video_t0_index + c0 + i) / fps)
             yield stage.grab()

@@ -6,6 +6,7 @@ can be checked without rendering anything.
 
 from __future__ import annotations
 
+import functools
 import math
 
 from dataclasses import dataclass
@@ -57,6 +58,7 @@ def _banner_text(max_chars: int = 70) -> str:
     return _wrap(_CAUTION, max_chars)
 
 
+@functools.lru_cache(maxsize=32)
 def _wrap(text: str, width: int) -> str:
     import textwrap
 

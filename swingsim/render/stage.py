@@ -17,7 +17,7 @@ from vtkmodules.util.numpy_support import vtk_to_numpy
 
 from swingsim import scene3d
 from swingsim.metrics.chart import chart_series
-from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
+from swingsim.metrics.zones import ENTERED, NEAR, suspended_bodies, verdict, zone_clearances, zone_verdicts_at
 from swingsim.render import chrome as chrome_mod
 from swingsim.render import layout as layout_mod
 from swingsim.render import overlay, views
@@ -113,7 +113,9 @@ class Stage:
         self._overlay()
         self._pixels = vtk.vtkUnsignedCharArray()
         self.texts = {}
+        self._zone_chunk = self._chart_chunk = None
         self._warm = False
+        self._cam_set = [False] * len(self.views)
         self._readout_slot = None
         self._slew0 = float(traj.motion.pose(np.array([0.0])).jib_angle_rad[0])
         try:
@@ -244,7 +246,7 @@ class Stage:
         font = max(self.layout.fonts["label"], int(round(size * self.size[1])))
         img = chrome_mod.rasterise(text, font * self.ss, colour, bold=bold, background=PALETTE["label_bg"],
                                    background_opacity=0.85)
-        self.labels.append((np.asarray(pos, dtype=float), img, role, text))
+        self.labels.append((np.asarray(pos, dtype=float), img, role, text, chrome_mod.Sticker(img)))
 
     def _place_labels(self, view_index: int, load_xyz=None) -> list:
         """Where a view's labels go this frame: wholly inside the view, over neither the load nor a
@@ -264,7 +266,7 @@ class Stage:
         load_px = px[-1] if load_xyz is not None else None
         taken, shown = [], []
         for k in self._label_order:
-            _pos, img, role, _text = self.labels[k]
+            _pos, img, role, _text, _sticker = self.labels[k]
             c, r = px[k]
             half_w, half_h = 0.5 * img.shape[1] / self.ss, 0.5 * img.shape[0] / self.ss
             if not (np.isfinite(c) and np.isfinite(r)) or 2 * half_w > box.width or 2 * half_h > box.height:
@@ -330,6 +332,8 @@ class Stage:
         """The chart utilisation at one instant, as the summary measures it; None without a chart."""
         if self.traj.scene.crane.chart is None:
             return None
+        if self._chart_chunk is not None and t in self._chart_chunk:
+            return self._chart_chunk[t]
         one = {k: np.asarray(row[k], dtype=float)[None] for k in
                ("suspension", "load", "rope_dir", "rope_tension_N") if row.get(k) is not None}
         one["hook"] = None if row.get("hook") is None else np.asarray(row["hook"], dtype=float)[None]
@@ -348,6 +352,8 @@ class Stage:
         else:
             c.ParallelProjectionOff()
         ren.ResetCameraClippingRange()
+        near, far = c.GetClippingRange()
+        c.SetClippingRange(0.5 * near, 1.5 * far)  # room for the moving parts (a fixed camera is set once)
     # ------------------------------------------------------------------ overlay
     def _overlay(self):
         """The 2D layer (:class:`swingsim.render.chrome.Chrome`): the bands around the views, the
@@ -477,7 +483,9 @@ class Stage:
                 # aim a little above the load: the swing in the middle of the view
                 focus = (0.3 * p[0] + 0.7 * load[0], 0.3 * p[1] + 0.7 * load[1], load[2] + 0.3 * (p[2] - load[2]))
                 cam = views.follow(focus, self.follow_span, self.aspect)
-            self._apply_camera(ren, cam)
+            if follow or not self._cam_set[i]:
+                self._apply_camera(ren, cam)
+                self._cam_set[i] = True
             self._shown_labels[i] = self._place_labels(i, load)
         crane = self._crane_numbers(t, row)
         ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
@@ -553,8 +561,12 @@ class Stage:
             ``(zone name, state, body names)`` of the zones not clear.
         """
         shown = []
-        verdicts = zone_verdicts_at(row, self.traj.scene) if self.zones else []
         t = float(row["t"]) if row.get("t") is not None and np.ndim(row["t"]) == 0 else None
+        chunk = self._zone_chunk
+        if chunk is not None and t is not None and t in chunk:
+            verdicts = chunk[t]
+        else:
+            verdicts = zone_verdicts_at(row, self.traj.scene) if self.zones else []
         for j, ((z, solid, edges, colour), (state, bodies)) in enumerate(zip(self.zones, verdicts)):
             if state != ENTERED and t is not None and self.facts.zone_entered_at(j, t):
                 # the summary, sampled finer than the frames, counts this instant inside an entry:
@@ -567,6 +579,42 @@ class Stage:
                 self._zone_look(z, solid, edges, state)
                 self._zone_state[j] = state
         return shown
+
+    def begin_chunk(self, samples: dict) -> None:
+        """Measure the zones and the chart utilisation for a whole chunk of frames at once (numpy over it).
+
+        The same rule as :func:`swingsim.metrics.zones.zone_verdicts_at` (a test holds them
+        equal): each zone's :func:`~swingsim.metrics.zones.verdict` from the smallest clearance
+        of any body, and the bodies inside (entered) or within the margin (near).
+
+        Parameters
+        ----------
+        samples : dict
+            ``Trajectory.sample`` at the chunk's instants (with ``t``).
+        """
+        self._zone_chunk = self._chart_chunk = None
+        scene = self.traj.scene
+        ts = np.atleast_1d(np.asarray(samples["t"], dtype=float))
+        if scene.crane.chart is not None:
+            series = chart_series(self.traj, ts, samples)
+            self._chart_chunk = {float(t): float(u) for t, u in zip(ts, series["utilisation_pct"])}
+        if not scene.zones:
+            return
+        bodies = suspended_bodies(samples, scene)
+        per_zone = []
+        for zone in scene.zones:
+            distance, _ = zone_clearances(bodies, zone)
+            table = np.stack([np.asarray(distance[name], dtype=float).reshape(-1) for name in bodies.names], -1)
+            per_zone.append((zone.margin_m, table))
+        chunk = {}
+        for i, t in enumerate(ts):
+            out = []
+            for margin, table in per_zone:
+                state = verdict(float(table[i].min()), margin)
+                limit = 0.0 if state == ENTERED else margin
+                out.append((state, [name for c, name in enumerate(bodies.names) if table[i, c] <= limit]))
+            chunk[float(t)] = out
+        self._zone_chunk = chunk
 
     def _zone_look(self, zone, solid, edges, state):
         """A zone's colours for its state: amber within the margin, red when entered; a clear
@@ -612,7 +660,7 @@ class Stage:
             k = self.ss
             for shown in self._shown_labels:
                 for j, lb in shown:
-                    chrome_mod.blend(img, self.labels[j][1], int(round(lb.x0 * k)), int(round(lb.y0 * k)))
+                    self.labels[j][4].put(img, int(round(lb.x0 * k)), int(round(lb.y0 * k)))
         if self.ss == 1:
             return img
         k = self.ss  # supersampled: the mean of each k x k block (a box filter), rounded

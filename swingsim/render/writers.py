@@ -87,7 +87,7 @@ class _Pipe:
 
     def write(self, frame: np.ndarray) -> None:
         try:
-            self.proc.stdin.write(np.ascontiguousarray(frame, dtype=np.uint8).tobytes())
+            self.proc.stdin.write(memoryview(np.ascontiguousarray(frame, dtype=np.uint8)).cast("B"))
         except BrokenPipeError:
             self._fail()
         self.count += 1
