@@ -37,7 +37,6 @@ SUPERSAMPLE = {"standard": 1, "high": 2}
 #: The legend of the side panel: palette key (its swatch) and words.
 LEGEND = (("exclusion", "no-go zone"), ("obstacle", "obstacle"), ("envelope", "swing envelope"),
           ("trail", "load path, last 6 s"))
-LEGEND_ROWS = len(LEGEND)
 
 
 def _polydata(mesh, part: str) -> pv.PolyData:
@@ -93,8 +92,10 @@ class Stage:
         scene = traj.scene
         self.has_wind = scene.wind.speed_m_s > 0.0
         rows = overlay.readout_rows(scene.crane.kind, self.has_wind, scene.crane.chart is not None)
+        kinds = {z.kind for z in scene.zones}
+        self.legend = tuple((key, words) for key, words in LEGEND if key not in ("exclusion", "obstacle") or key in kinds)
         self.layout = layout_mod.compute_layout(self.size, len(self.views), overlay.caution_banner_text(),
-                                                rows, LEGEND_ROWS, overlay.clock_text(9999.99, speed))
+                                                rows, len(self.legend), overlay.clock_text(9999.99, speed))
         # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
         # which would cost software OpenGL several times a frame's rendering time.
         theme = pv.themes.Theme()
@@ -107,7 +108,8 @@ class Stage:
             ren.SetViewport(*box.viewport(self.size))
         self.scene3d = scene3d.build(traj, load_mesh=load_mesh)
         self.lay = self.scene3d.layout
-        self.labels = []  # 3D-anchored labels: (world position [m], RGBA image, role)
+        self.labels = []  # 3D-anchored labels: (world position [m], RGBA image, role, text, Sticker)
+        self._ground_marks = []  # points of the ground arrows, for the fitted views
         self._build()
         self._place_cameras()
         self._overlay()
@@ -204,6 +206,8 @@ class Stage:
                     [np.full(n_legs, 2), np.arange(0, 2 * n_legs, 2), np.arange(1, 2 * n_legs, 2)]).ravel())
                 self._add(self.sling_lines, PALETTE["sling"], line_width=2, lighting=False)
         self.trail_t, self.trail_xyz = self.scene3d.path_t_s, self.scene3d.path_load_m
+        half = 0.5 * np.asarray(self.lay.load_size_m, dtype=float)
+        self._load_corners = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)]) * half
         rank = {"obstacle": 0, "exclusion": 0, "axis": 1, "axis_x": 1, "axis_y": 1}
         self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][2], 2))
         # moving bodies, each with its actors (a spreader has its beam and its centre line)
@@ -262,8 +266,12 @@ class Stage:
             return []
         box = self.layout.views[view_index]
         pts = np.array([lab[0] for lab in self.labels])
-        px = self.project(np.vstack([pts, load_xyz[None]]) if load_xyz is not None else pts, view_index)
-        load_px = px[-1] if load_xyz is not None else None
+        load_box = None
+        if load_xyz is not None:  # the load's box on the picture (its 8 corners around the centre)
+            corners = self.project(load_xyz[None] + self._load_corners, view_index)
+            lo, hi = corners.min(axis=0), corners.max(axis=0)
+            load_box = layout_mod.Box(lo[0] - 2, lo[1] - 2, hi[0] + 2, hi[1] + 2)
+        px = self.project(pts, view_index)
         taken, shown = [], []
         for k in self._label_order:
             _pos, img, role, _text, _sticker = self.labels[k]
@@ -275,7 +283,7 @@ class Stage:
                 c += min(0.0, box.x1 - (c + half_w)) + max(0.0, box.x0 - (c - half_w))
                 r += min(0.0, box.y1 - (r + half_h)) + max(0.0, box.y0 - (r - half_h))
             lb = layout_mod.Box(c - half_w, r - half_h, c + half_w, r + half_h)
-            if not lb.inside(box) or (load_px is not None and lb.contains(*load_px)):
+            if not lb.inside(box) or (load_box is not None and lb.intersects(load_box)):
                 continue
             if any(lb.intersects(o) for o in taken):
                 continue
@@ -292,6 +300,7 @@ class Stage:
         """
         scene = self.traj.scene
         v = axis_mesh.vertices
+        self._ground_marks.extend([v.min(axis=0), v.max(axis=0)])
         origin = v.min(axis=0)
         length = float(np.ptp(v[:, 1]))
         centre = np.array([origin[0] - 3.0 * length, origin[1] + 1.0 * length, 0.12])
@@ -299,6 +308,7 @@ class Stage:
         d = np.array([math.cos(north), math.sin(north), 0.0])
         self._add(_polydata(arrow(centre - 0.5 * length * d, d, length), "faces"), PALETTE["north"],
                   lighting=False)
+        self._ground_marks.extend([centre - 0.7 * length * d, centre + 0.7 * length * d])
         self._label(centre + 0.65 * length * d, "N", size=LABEL_STYLE["axis_x"][1], colour=PALETTE["north"],
                     bold=True, role="axis")
         if scene.wind.speed_m_s > 0.0:
@@ -307,6 +317,8 @@ class Stage:
             at = centre + np.array([-0.2 * length, -1.6 * length, 0.0])
             self._add(_polydata(arrow(at - 0.5 * length * w, w, length, tip_radius=0.12, shaft_radius=0.05),
                                 "faces"), PALETTE["wind"], lighting=False)
+            self._ground_marks.extend([at - 0.6 * length * w, at + 0.6 * length * w,
+                                       at + np.array([0.0, -0.75 * length, 0.0])])
             self._label(at + np.array([0.0, -0.75 * length, 0.0]),
                         f"wind {scene.wind.speed_m_s:g} m/s from {compass_point(scene_wind_from_bearing_deg(scene))}",
                         size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True, role="axis")
@@ -315,7 +327,14 @@ class Stage:
         box = self.layout.views[0]
         aspect = box.width / box.height
         self.aspect = aspect
-        pts = self.scene3d.interest_points()
+        # what the fitted views must show: the scene's points of interest, the load's box along its
+        # path, the whole swing envelope, and the ground arrows (north, wind, +x/+y) with their labels
+        half = 0.5 * np.asarray(self.lay.load_size_m, dtype=float)
+        box = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)]) * half
+        path = self.scene3d.path_load_m[::10]
+        env = self.scene3d.bodies["envelope"].mesh.vertices
+        pts = np.vstack([self.scene3d.interest_points(), (path[:, None, :] + box[None]).reshape(-1, 3),
+                         env.min(axis=0), env.max(axis=0), *self._ground_marks])
         self.cams = []
         for view in self.views:
             if view == "custom":
@@ -382,7 +401,7 @@ class Stage:
         lg = L.legend
         row_h = f["legend"] * layout_mod.LINE_EM
         sw = int(round(1.6 * f["legend"]))
-        for i, (_key, words) in enumerate(LEGEND):
+        for i, (_key, words) in enumerate(self.legend):
             y = lg.y0 + pad + i * row_h
             ch.text(f"legend_{i}", words, layout_mod.Box(lg.x0 + 2 * pad + sw, y, lg.x1, y + row_h), "l",
                     f["legend"], PALETTE["text"])
@@ -405,7 +424,7 @@ class Stage:
         row_h = f * layout_mod.LINE_EM
         sw = int(round(1.6 * f))
         out = []
-        for i, (key, _words) in enumerate(LEGEND):
+        for i, (key, _words) in enumerate(self.legend):
             y0 = L.legend.y0 + pad + i * row_h + 0.15 * row_h
             y1 = y0 + 0.7 * row_h
             x0 = L.legend.x0 + pad
