@@ -5,7 +5,8 @@ fast as real time on a 2-core machine with no GPU (frames per second >= 2 x the
 clip's fps), so re-rendering during a briefing is painless.  Each line prints
 the real-time factor (frames per second over the clip's fps) from wall time,
 and the factor two idle cores would reach from the CPU time a frame takes
-(``cores x 1000 / CPU ms a frame / fps``), since a busy shared machine
+(``cores x 1000 / CPU ms a frame / fps``; one process already keeps two cores
+busy: the renderer with its rasteriser threads, and the encoder), since a busy shared machine
 distorts wall time; the load average is printed too.
 The baseline draws the same clip frame by frame with matplotlib's 3D axes
 (artists updated in place, not re-created) and writes it with imageio.  Both
@@ -139,7 +140,7 @@ def main():
             res[name] = (n / wall, cpu / n)
             print(f"{name:>22}: {n / wall:6.1f} frames/s  ({wall:5.1f} s wall, {1000 * cpu / n:5.1f} ms CPU a frame)"
                   f"  real-time factor {n / wall / a.fps:4.2f}x wall, "
-                  f"{min(cores, workers) / (cpu / n) / a.fps:4.2f}x on {min(cores, workers)} idle core(s) by CPU")
+                  f"{cores / (cpu / n) / a.fps:4.2f}x on {cores} idle cores by CPU")
         c0, t0 = _cpu(), time.perf_counter()
         matplotlib_clip(traj, str(Path(tmp) / "baseline.mp4"), size, a.fps, a.seconds)
         wall, cpu = time.perf_counter() - t0, _cpu() - c0
