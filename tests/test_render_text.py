@@ -178,7 +178,7 @@ def test_cli_bad_size_is_exit_2_and_writes_nothing(tmp_path, capsys):
                      '[rope]\nlength_m = 8.0\n[load]\nmass_kg = 500.0\n')
     out = tmp_path / "out"
     for bad in (["--size", "big"], ["--size", "321x240"], ["--split", "side"], ["--view", "custom"],
-                ["--from", "9"]):
+                ["--from", "9"], ["--format", "gif", "--fps", "60"]):
         rc = cli.main(p.parse_args([str(scene), "--out", str(out), *bad]))
         err = capsys.readouterr().err
         assert rc == 2, bad
@@ -186,6 +186,37 @@ def test_cli_bad_size_is_exit_2_and_writes_nothing(tmp_path, capsys):
     assert not out.exists()
     rc = cli.main(p.parse_args([str(tmp_path / "nope.toml"), "--out", str(out)]))
     assert rc == 2 and "file not found" in capsys.readouterr().err
+
+
+def test_quality_option_defaults_to_standard_and_is_checked():
+    from swingsim.cli import render as cli
+
+    p = argparse.ArgumentParser()
+    cli.add_arguments(p)
+    s = make_scene(moves=[MOVE])
+    assert cli.options(p.parse_args(["s.toml"]), s)["quality"] == "standard"
+    assert cli.options(p.parse_args(["s.toml", "--quality", "high"]), s)["quality"] == "high"
+    with pytest.raises(SystemExit):  # argparse refuses other words (exit 2, its one-line usage error)
+        p.parse_args(["s.toml", "--quality", "ultra"])
+    with pytest.raises(InputError, match="--quality"):
+        check_options(s, size=(640, 360), fps=30, fmt="mp4", view="side", speed=1.0, window=None, split=None,
+                      quality="ultra")
+
+
+def test_readout_has_radius_slew_wind_and_tonnes():
+    s = make_scene(moves=[MOVE])
+    traj = simulate(s)
+    row = {k: (v[0] if isinstance(v, np.ndarray) and v.ndim else v) for k, v in traj.sample([3.0]).items()}
+    crane = {"radius_m": 18.25, "slew_deg": 35.0, "hook_height_m": 22.1, "height_label": "hook height",
+             "wind_m_s": 9.0, "wind_from": "SSW"}
+    ft = overlay.frame_text(3.0, 3.0, 20.0, 1.0, row, (), [], crane=crane)
+    lines = ft.readout.split("\n")
+    assert "radius" in lines[0] and "18.2 m" in lines[0]  # 18.25 to one decimal (round half to even)
+    assert "+35.0 deg" in ft.readout and "22.1 m" in ft.readout and "SSW" in ft.readout
+    # 1 t-force = 1000 kg x 9.80665 m/s^2 (standard gravity, 3rd CGPM 1901)
+    tonnes = row["rope_tension_N"] / 9806.65
+    assert f"{tonnes:6.2f} t" in ft.readout and f"{row['rope_tension_N'] / 1000:6.1f} kN" in ft.readout
+    assert all(len(line) <= 22 for line in lines)  # layout.READOUT_CHARS: the panel's width
 
 
 def test_a_run_that_stops_early_says_so_at_its_end():

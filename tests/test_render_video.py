@@ -46,12 +46,17 @@ def _is_load_colour(px):
     return (r > 90) & (r > 1.6 * g) & (g > 1.4 * b + 5)
 
 
-def _pinhole(cam, points, size):
+def _pinhole(cam, points, size, box=None):
     """Pixel (column, row from top) of world points through a perspective camera.
 
     gluLookAt: forward f = (focus - eye)/|.|, side s = f x up, true up u = s x f;
     gluPerspective: x_ndc = cot(fovy/2)/aspect * x_c/depth, y_ndc = cot(fovy/2) * y_c/depth.
+    ``box`` is the view's rectangle in the frame (the layout keeps the bands around it);
+    the whole frame when None.
     """
+    if box is not None:
+        px = _pinhole(cam, points, (box.width, box.height))
+        return px + np.array([box.x0, box.y0])
     eye, focus, up, fovy = (np.asarray(cam.GetPosition()), np.asarray(cam.GetFocalPoint()),
                             np.asarray(cam.GetViewUp()), np.radians(cam.GetViewAngle()))
     f = (focus - eye) / np.linalg.norm(focus - eye)
@@ -98,7 +103,7 @@ def test_load_is_where_the_simulation_says(tmp_path):
         ks = [0, 8, 16, 24, 39]
         t = ks and np.array(ks) / 10.0
         load = traj.sample(t)["load"]
-        px = _pinhole(cam, load, SIZE)
+        px = _pinhole(cam, load, SIZE, stage.layout.views[0])
         np.testing.assert_allclose(stage.project(load), px, atol=0.5)  # the renderer agrees
     finally:
         stage.close()
@@ -133,18 +138,62 @@ def test_gif_and_stills(tmp_path):
     assert np.abs(stills[0].astype(int) - stills[2].astype(int)).mean() > 0.5
 
 
+@pytest.mark.parametrize("fps", [15, 12, 30])
+def test_gif_frame_delays_average_to_the_frame_rate(tmp_path, fps):
+    """GIF stores each frame's delay in hundredths of a second (GIF89a, Graphic Control Extension):
+    at 15 fps the delays must alternate (7, 7, 6 cs...) so the clip plays at 15 fps on average."""
+    from PIL import Image
+
+    from swingsim.render.writers import GifWriter
+
+    frames = [np.full((16, 16, 3), (5 * i) % 250, np.uint8) for i in range(3 * fps)]
+    w = GifWriter(tmp_path / "t.gif", (16, 16), fps, frames[:4])
+    for f in frames:
+        w.write(f)
+    w.close()
+    with Image.open(tmp_path / "t.gif") as im:
+        delays = []
+        for i in range(im.n_frames):
+            im.seek(i)
+            delays.append(im.info["duration"])  # Pillow reports milliseconds (centiseconds x 10)
+    assert len(delays) == len(frames)
+    # each delay is one of the two whole centiseconds around 100/fps...
+    lo = 10 * int(100 // fps)
+    assert set(delays) <= {lo, lo + 10}
+    # ...and the total is within one centisecond of the clip's length, so the mean is 1/fps
+    assert abs(sum(delays) - 1000 * len(frames) / fps) <= 10
+    assert np.mean(delays) == pytest.approx(1000 / fps, abs=10 / len(frames))
+
+
+def _layout(traj, views, size=SIZE):
+    """The frame layout a render of ``traj`` uses (from a stage built the same way)."""
+    from swingsim.render.facts import collect
+    from swingsim.render.stage import Stage
+
+    stage = Stage(traj, collect(traj), size=size, views=views)
+    try:
+        return stage.layout
+    finally:
+        stage.close()
+
+
 def test_split_views_side_by_side(tmp_path):
     traj = simulate(_scene())
     render_scene(traj, None, tmp_path, size=SIZE, fps=4, fmt="png", split=("side", "plan"), window=(1.0, 1.5),
                  quiet=True, stills=False)
     img = iio.imread(tmp_path / "scene_frames" / "frame_00000.png")
     assert img.shape == (240, 320, 3)
-    left, right = img[:, :150].astype(int), img[:, 170:].astype(int)
+    lay = _layout(traj, ("side", "plan"))
+    (a, b), (d,) = lay.views, lay.dividers
+    left = img[int(a.y0):int(a.y1), int(a.x0):int(a.x1)].astype(int)
+    right = img[int(b.y0):int(b.y1), int(b.x0):int(b.x1)].astype(int)
     assert left.std() > 20 and right.std() > 20
     # the divider between the halves is a dark line
-    assert img[100:140, 159:161].mean() < 80
+    mid = int(0.5 * (d.y0 + d.y1))
+    assert img[mid - 20:mid + 20, int(d.x0):int(d.x1)].mean() < 80
     # two different views, not one picture twice
-    assert np.abs(left[:, :140] - right[:, :140]).mean() > 10
+    n = min(left.shape[1], right.shape[1])
+    assert np.abs(left[:, :n] - right[:, :n]).mean() > 10
 
 
 def test_zone_turns_warning_colour_near_the_load():
@@ -173,7 +222,7 @@ def test_zone_turns_warning_colour_near_the_load():
             assert (t >= first) == near
             assert stage.near_zones == (["hut"] if near else [])
             colour = stage.zones[0][1].GetProperty().GetColor()
-            want = PALETTE["warn"] if near else PALETTE["obstacle"]
+            want = PALETTE["near"] if near else PALETTE["obstacle"]  # amber within the margin
             np.testing.assert_allclose(colour, rgb(want), atol=1e-6)
             assert ("Load near zone: hut" in stage.last_text.zone) == near
     finally:
@@ -196,7 +245,10 @@ def test_user_mesh_load(tmp_path):
                          window=(0, 1), quiet=True)
     img = iio.imread(paths[1])
     # the sphere fills the middle of this close custom view, in the load colour
-    assert _is_load_colour(img[100:140, 140:180]).mean() > 0.8
+    box = _layout(traj, ("custom",)).views[0]
+    c, r = int(0.5 * (box.x0 + box.x1)), int(0.5 * (box.y0 + box.y1))
+    k = int(box.height / 12)  # the middle sixth of the view's height, as a square
+    assert _is_load_colour(img[r - k:r + k, c - k:c + k]).mean() > 0.8
     (tmp_path / "bad.ply").write_text("not a mesh")
     d["load"] = {"mass_kg": 900.0, "mesh_file": "bad.ply"}
     traj = simulate(scene_from_dict(d, file="tank.toml", base_dir=tmp_path))
@@ -447,7 +499,7 @@ def test_spreader_beam_is_where_the_model_says(tmp_path):
         # posed by its transform, never rebuilt
         np.testing.assert_array_equal(np.array(beam.GetMapper().GetInput().points), local)
         cam = stage.renderers[0].GetActiveCamera()
-        px = _pinhole(cam, mid, SIZE)
+        px = _pinhole(cam, mid, SIZE, stage.layout.views[0])
         np.testing.assert_allclose(stage.project(mid), px, atol=0.5)  # the renderer agrees
     finally:
         stage.close()

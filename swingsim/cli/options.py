@@ -202,6 +202,9 @@ def add_video_arguments(parser: argparse.ArgumentParser) -> None:
     add_time_window_arguments(g, "time window shown")
     g.add_argument("--no-stills", dest="stills", action="store_false",
                    help="do not write the PNG stills")
+    g.add_argument("--quality", choices=("standard", "high"), default="standard",
+                   help="standard (fast, for checking) or high (smooth, supersampled edges for the final "
+                        "cut, about four times slower); default standard")
 
 
 def video_view(args: argparse.Namespace, source: str) -> tuple:

@@ -71,13 +71,14 @@ def options(args, scene) -> dict:
     -------
     dict
         ``size``, ``fps`` [1/s], ``fmt``, ``view``, ``speed`` [-], ``window``
-        (start and end [s], or None), ``split`` and ``stills``.
+        (start and end [s], or None), ``split``, ``stills`` and ``quality``.
     """
     source = getattr(args, "command", None) or "render"
     window = time_window(args, scene, source)
     view, split = video_view(args, source)
     return dict(size=parse_size(args.size), fps=args.fps, fmt=args.fmt, view=view, speed=args.speed,
-                window=window, split=split, stills=getattr(args, "stills", True))
+                window=window, split=split, stills=getattr(args, "stills", True),
+                quality=getattr(args, "quality", "standard"))
 
 
 def main(args) -> int:

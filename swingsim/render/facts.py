@@ -34,6 +34,27 @@ class Facts:
     status: str
     message: str
     events: tuple = field(default_factory=tuple)
+    #: Per zone of the scene, the summary's entries: ((start [s], end [s]), ...).
+    zone_entries: tuple = field(default_factory=tuple)
+
+    def zone_entered_at(self, index: int, t_s: float) -> bool:
+        """Whether the summary counts zone ``index`` as entered at time ``t_s``.
+
+        Parameters
+        ----------
+        index : int
+            The zone's position in the scene's ``zones``.
+        t_s : float
+            Simulated time [s].
+
+        Returns
+        -------
+        bool
+            True inside one of the summary's entries of that zone.
+        """
+        if index >= len(self.zone_entries):
+            return False
+        return any(a - 1e-9 <= t_s <= b + 1e-9 for a, b in self.zone_entries[index])
 
 
 def rope_angle_deg(rope_dir) -> np.ndarray:
@@ -102,6 +123,9 @@ def collect(traj, summary=None) -> Facts:
     if traj.status != "ok":
         events.append(Event(float(traj.t_end_s), f"Run stopped: {traj.status}", "stopped"))
     events.sort(key=lambda e: e.t_s)
-    return Facts(t_end_s=float(traj.t_end_s), peak_angle_deg=float(peak), peak_time_s=float(peak_t),
+    zones = _get(summary, "zones") or []
+    entries = tuple(tuple((float(e["start_s"]), float(e["end_s"])) for e in z.get("entries", ()))
+                    for z in zones)
+    return Facts(zone_entries=entries, t_end_s=float(traj.t_end_s), peak_angle_deg=float(peak), peak_time_s=float(peak_t),
                  last_move_end_s=float(last), settled_at_s=settled, status=traj.status,
                  message=traj.message, events=tuple(events))

@@ -65,7 +65,7 @@ def read_load_mesh(scene) -> Mesh | None:
     return Mesh(np.array(mesh.points, dtype=float), np.asarray(mesh.regular_faces, dtype=np.int64))
 
 
-def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s):
+def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s, quality="standard"):
     """The stage of a run, built once (``pyvista`` loads here).
 
     Parameters
@@ -84,6 +84,8 @@ def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s):
         Playback speed [-].
     video_len_s : float
         Length of the video [s].
+    quality : {"standard", "high"}
+        ``high`` supersamples (see :class:`swingsim.render.stage.Stage`).
 
     Returns
     -------
@@ -92,7 +94,8 @@ def build_stage(traj, facts, size, views, load_mesh, speed, video_len_s):
     """
     from swingsim.render.stage import Stage
 
-    return Stage(traj, facts, size=size, views=views, load_mesh=load_mesh, speed=speed, video_len_s=video_len_s)
+    return Stage(traj, facts, size=size, views=views, load_mesh=load_mesh, speed=speed, video_len_s=video_len_s,
+                 quality=quality)
 
 
 def progress_bar(total: int, quiet: bool, desc: str):
@@ -169,6 +172,7 @@ def draw_frames(stage, traj, times, video_t0_index: int = 0, fps: float = 30.0, 
         ts = times[c0:c0 + CHUNK]
         samples = traj.sample(ts)
         frames = stage.scene3d.frames_from_samples(samples, traj.motion.pose(ts))
+        stage.begin_chunk(samples)
         for i, row in enumerate(rows(samples, len(ts))):
             stage.show(float(ts[i]), frames, i, row, video_t=(video_t0_index + c0 + i) / fps)
             yield stage.grab()

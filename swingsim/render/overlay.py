@@ -6,6 +6,7 @@ can be checked without rendering anything.
 
 from __future__ import annotations
 
+import functools
 import math
 
 from dataclasses import dataclass
@@ -41,11 +42,23 @@ def caution_line(max_chars: int = 200) -> str:
     return _wrap(_CAUTION_SHORT, max_chars)
 
 
+def caution_banner_text() -> str:
+    """The full caution, on one line (the video's caution band wraps it to its width).
+
+    Returns
+    -------
+    str
+        The caution of :mod:`swingsim.metrics.cautions`.
+    """
+    return _CAUTION
+
+
 def _banner_text(max_chars: int = 70) -> str:
     """The caution banner of the first and last seconds (wrapped for the screen)."""
     return _wrap(_CAUTION, max_chars)
 
 
+@functools.lru_cache(maxsize=32)
 def _wrap(text: str, width: int) -> str:
     import textwrap
 
@@ -107,14 +120,83 @@ def clock_text(t_s: float, speed: float) -> str:
 
 
 def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_m: float,
-                  chart_pct: float | None = None, wind_m_s: float | None = None) -> str:
-    rows = [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
-            ("hook load", f"{hook_load_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
-    if wind_m_s is not None:  # the wind at the load, as the run has it at this instant (gusts, turbulence)
-        rows.append(("wind", f"{wind_m_s:6.1f}", "m/s"))
+                  chart_pct: float | None = None, crane: dict | None = None) -> str:
+    """The numbers panel: one row each of READOUT_CHARS (label 11, value 7, space, unit 3)."""
+    from swingsim.constants import newton_to_tonnes_force
+
+    rows = []
+    c = crane or {}
+    if c.get("radius_m") is not None:
+        rows.append(("radius", f"{c['radius_m']:6.1f}", "m"))
+    if c.get("slew_deg") is not None:
+        rows.append(("slew", f"{c['slew_deg']:+6.1f}", "deg"))
+    if c.get("hook_height_m") is not None:
+        rows.append((c.get("height_label", "hook height"), f"{c['hook_height_m']:6.1f}", "m"))
+    rows += [("rope angle", f"{angle_deg:6.1f}", "deg"), ("load speed", f"{speed_m_s:6.2f}", "m/s"),
+             ("hook load", f"{newton_to_tonnes_force(1000.0 * hook_load_kN):6.2f}", "t"),
+             ("", f"{hook_load_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
+    if c.get("wind_m_s") is not None:
+        rows.append(("wind", f"{c['wind_m_s']:6.1f}", "m/s"))
+        if c.get("wind_from"):
+            rows.append(("wind from", f"{c['wind_from']:>6}", ""))
     if chart_pct is not None:
         rows.append(("of chart", f"{chart_pct:6.1f}" if math.isfinite(chart_pct) else "   off", "%"))
-    return "\n".join(f"{a:<12}{b:>7} {c:<3}" for a, b, c in rows)
+    return "\n".join(f"{a:<11}{b:>7} {c_:<3}".rstrip() for a, b, c_ in rows)
+
+
+def readout_rows(crane_kind: str, wind: bool, chart: bool) -> int:
+    """How many rows the numbers panel has for a lift (the layout sizes the panel from it).
+
+    Parameters
+    ----------
+    crane_kind : str
+        ``crane.kind``: a tower or mobile crane also shows radius and slew.
+    wind : bool
+        Whether the wind rows are shown.
+    chart : bool
+        Whether the scene has a capacity chart.
+
+    Returns
+    -------
+    int
+        Rows.
+    """
+    n = 1 + 5  # height; angle, speed, load in t, load in kN, rope length
+    n += 2 if crane_kind in SLEWING_KINDS else 0
+    n += 2 if wind else 0
+    n += 1 if chart else 0
+    return n
+
+
+#: Crane kinds with a slewing part: their readout has radius and slew angle.
+SLEWING_KINDS = ("tower", "mobile")
+
+
+def wind_at_load_m_s(row: dict, scene) -> float:
+    """The wind speed at the load at one instant [m/s].
+
+    The model's own output when it gives one (``wind_speed_m_s``, or the
+    ``wind_at_load`` vector of a gusty or sheared wind), else the scene's steady wind.
+
+    Parameters
+    ----------
+    row : dict
+        The run's outputs at one instant.
+    scene : Scene
+        The scene (its ``[wind]``).
+
+    Returns
+    -------
+    float
+        Wind speed [m/s].
+    """
+    v = row.get("wind_speed_m_s")
+    if v is not None and np.ndim(v) == 0:
+        return float(v)
+    wxy = row.get("wind_at_load")  # the model's wind at the load (x, y) [m/s]: gusts, turbulence, profile
+    if wxy is not None and np.ndim(wxy) == 1:
+        return float(np.hypot(float(wxy[0]), float(wxy[1])))
+    return float(scene.wind.speed_m_s)
 
 
 def event_text(t_s: float, events) -> str:
@@ -169,7 +251,7 @@ def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
 
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
                events, zone_states, line_chars: int = 200, banner_chars: int = 70, facts=None,
-               chart_pct: float | None = None) -> FrameText:
+               chart_pct: float | None = None, crane: dict | None = None) -> FrameText:
     """All the words of the frame at simulated time ``t_s``.
 
     Parameters
@@ -197,11 +279,16 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     chart_pct : float, optional
         The swinging lift's utilisation of the rated capacity chart at this instant [%]
         (``metrics.chart``); shown when the scene has a chart.
+    crane : dict, optional
+        Numbers of the crane and site at this instant: ``radius_m``, ``slew_deg`` (from the
+        start), ``hook_height_m`` with its ``height_label``, ``wind_m_s`` and ``wind_from``
+        (a compass point); each shown when present.
 
     Returns
     -------
     FrameText
-        Clock, readout (rope angle, load speed, hook load, rope length, chart utilisation), events, zones, caution, banner, stop notice.
+        Clock, readout (radius, slew, hook height, rope angle, load speed, hook load in t and kN,
+        rope length, wind, chart utilisation), events, zones, caution, banner, stop notice.
     """
     from swingsim.render.facts import rope_angle_deg
 
@@ -210,9 +297,7 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     ten = float(row["rope_tension_N"]) / 1000.0
     return FrameText(
         clock=clock_text(t_s, speed),
-        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct,
-                              None if row.get("wind_at_load") is None or not np.any(row["wind_at_load"])
-                              else float(np.hypot(*np.asarray(row["wind_at_load"], dtype=float)[:2]))),
+        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct, crane),
         event=event_text(t_s, events),
         zone=zone_text(zone_states),
         caution=caution_line(line_chars),

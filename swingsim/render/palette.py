@@ -17,9 +17,15 @@ PALETTE = {
     "crane": "#3f5d7d", "crane_dark": "#2a3f56", "trolley": "#1f2d3d",
     "rope": "#202020", "hook": "#f2c14e", "sling": "#2e7d32",
     "load": "#f26b1d", "shadow": "#3b3528", "envelope": "#5fa8d3", "trail": "#7b2cbf",
-    "obstacle": "#6c757d", "exclusion": "#2a9d8f", "warn": "#d62828",
+    "obstacle": "#6c757d", "exclusion": "#c1121f", "warn": "#d62828", "near": "#f4a100",
+    # -- no-go (exclusion) zones: red and white stripes, as site barriers are marked --
+    "nogo_red": "#d00000", "nogo_white": "#ffffff",
     "axis_x": "#9d0208", "axis_y": "#1b4332", "text": "#111111", "panel": "#ffffff",
-    "banner": "#fff3b0",
+    "banner": "#ffd23f",
+    # -- the bands around the views: title bar, side panel, caution band; labels on a light panel --
+    "bar": "#1f2d3d", "bar_light": "#c9d3dc", "bar_text": "#ffffff", "rule": "#8a97a5",
+    "caution_band": "#fff3b0", "label_bg": "#ffffff",
+    "label_grid": "#3d372b", "label_obstacle": "#2b3035", "label_exclusion": "#9b0000",
     # -- site bearings: the north arrow and the wind arrow on the ground --
     "north": "#111111", "wind": "#0b6e99",
 }
@@ -33,8 +39,8 @@ STYLE = {
     "trolley": dict(_PLAIN, colour="trolley"),
     "axis_x": dict(_PLAIN, colour="axis_x", lighting=False),
     "axis_y": dict(_PLAIN, colour="axis_y", lighting=False),
-    "obstacle": dict(_PLAIN, colour="obstacle", opacity=0.33),
-    "exclusion": dict(_PLAIN, colour="exclusion", opacity=0.25),
+    "obstacle": dict(_PLAIN, colour="obstacle", opacity=0.5),
+    "exclusion": dict(_PLAIN, colour="exclusion", opacity=0.25, line_width=3),
     "rope": dict(_PLAIN, colour="rope", ambient=0.4),
     "sling": dict(_PLAIN, colour="sling", ambient=0.4),
     "hook": dict(_PLAIN, colour="hook", ambient=0.4),
@@ -44,12 +50,32 @@ STYLE = {
 }
 #: Labels: palette colour, height as a share of the frame's height, bold.
 LABEL_STYLE = {
-    "grid": ("grid_major", 0.017, False),
-    "axis_x": ("axis_x", 0.022, True),
-    "axis_y": ("axis_y", 0.022, True),
-    "obstacle": ("obstacle", 0.02, True),
-    "exclusion": ("exclusion", 0.02, True),
+    "grid": ("label_grid", 0.026, False),
+    "axis_x": ("axis_x", 0.028, True),
+    "axis_y": ("axis_y", 0.028, True),
+    "obstacle": ("label_obstacle", 0.027, True),
+    "exclusion": ("label_exclusion", 0.027, True),
 }
+#: Period of the no-go stripes along x + y + z [m], as a share of the zone's largest side,
+#: kept between these bounds so a stripe reads at site scale.
+NOGO_STRIPE_SHARE, NOGO_STRIPE_MIN_M, NOGO_STRIPE_MAX_M = 0.125, 0.6, 3.0
+#: Opacity of the no-go stripes: red, white [0-255].
+NOGO_ALPHA = (170, 120)
+
+
+def nogo_image() -> np.ndarray:
+    """The no-go stripe texture: one red and one white texel, translucent (repeated along the zone).
+
+    Returns
+    -------
+    numpy.ndarray
+        (1, 2, 4) uint8 RGBA.
+    """
+    out = np.zeros((1, 2, 4), dtype=np.uint8)
+    out[0, 0, :3] = np.asarray(rgb(PALETTE["nogo_red"])) * 255
+    out[0, 1, :3] = np.asarray(rgb(PALETTE["nogo_white"])) * 255
+    out[0, :, 3] = NOGO_ALPHA
+    return out
 #: Opacity of the swing envelope's inside and of its rim [0-255].
 ENVELOPE_ALPHA, ENVELOPE_EDGE_ALPHA = 120, 230
 

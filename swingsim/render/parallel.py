@@ -35,7 +35,7 @@ def _draw_range(job: dict) -> None:
     traj = job["traj"]
     facts = run_facts.collect(traj, job["summary"])
     stage = build_stage(traj, facts, job["size"], job["views"], read_load_mesh(traj.scene), job["speed"],
-                   job["video_len"])
+                        job["video_len"], job.get("quality", "standard"))
     sink = writers.Mp4Writer(job["segment"], job["size"], job["fps"], threads=1)
     try:
         n = 0
@@ -53,7 +53,8 @@ def _draw_range(job: dict) -> None:
         stage.close()
 
 
-def render_parallel(traj, summary, target, times, *, size, fps, views, speed, video_len, workers, quiet):
+def render_parallel(traj, summary, target, times, *, size, fps, views, speed, video_len, workers, quiet,
+                    quality="standard"):
     """Render ``times`` into the MP4 ``target`` with worker processes and join their segments.
 
     Parameters
@@ -80,6 +81,8 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
         Worker processes (at most one a frame).
     quiet : bool
         No progress bar.
+    quality : {"standard", "high"}
+        Supersampled (``high``) or not.
 
     Returns
     -------
@@ -108,7 +111,8 @@ def render_parallel(traj, summary, target, times, *, size, fps, views, speed, vi
         for i in range(workers):
             seg = tmpdir / f"part{i:03d}.mp4"
             job = dict(traj=traj, summary=summary, segment=seg, times=times[bounds[i]:bounds[i + 1]],
-                       k0=int(bounds[i]), size=size, fps=fps, views=views, speed=speed, video_len=video_len)
+                       k0=int(bounds[i]), size=size, fps=fps, views=views, speed=speed, video_len=video_len,
+                       quality=quality)
             jf = tmpdir / f"job{i:03d}.pickle"
             jf.write_bytes(pickle.dumps(job))
             p = subprocess.Popen([sys.executable, "-m", "swingsim.render.parallel", str(jf)], env=env,

@@ -17,11 +17,14 @@ from vtkmodules.util.numpy_support import vtk_to_numpy
 
 from swingsim import scene3d
 from swingsim.metrics.chart import chart_series
-from swingsim.metrics.zones import ENTERED, NEAR, zone_verdicts_at
+from swingsim.metrics.zones import ENTERED, NEAR, suspended_bodies, verdict, zone_clearances, zone_verdicts_at
+from swingsim.render import chrome as chrome_mod
+from swingsim.render import layout as layout_mod
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
-from swingsim.render.palette import LABEL_STYLE, PALETTE, STYLE, darker, envelope_image, ground_image, rgb
-from swingsim.scene.site import wind_from_bearing_deg, wind_words
+from swingsim.render.palette import (LABEL_STYLE, NOGO_STRIPE_MAX_M, NOGO_STRIPE_MIN_M, NOGO_STRIPE_SHARE, PALETTE,
+                                     STYLE, envelope_image, ground_image, nogo_image, rgb)
+from swingsim.scene.site import compass_point, scene_wind_from_bearing_deg, wind_from_bearing_deg
 from swingsim.scene3d.meshes import arrow
 from swingsim.scene3d.poses import SAMPLE_KEYS
 from swingsim.scene3d.transforms import is_shown
@@ -29,6 +32,11 @@ from swingsim.scene3d.transforms import is_shown
 READOUT_HZ = 10.0  # refreshes of the numbers panel per second of video
 TRAIL_S = 6.0  # simulated seconds of trail behind the load
 TRAIL_N = 61
+#: Pixels drawn per output pixel along each side, by ``quality``.
+SUPERSAMPLE = {"standard": 1, "high": 2}
+#: The legend of the side panel: palette key (its swatch) and words.
+LEGEND = (("exclusion", "no-go zone"), ("obstacle", "obstacle"), ("envelope", "swing envelope"),
+          ("trail", "load path, last 6 s"))
 
 
 def _polydata(mesh, part: str) -> pv.PolyData:
@@ -68,30 +76,52 @@ class Stage:
         Playback speed, for the clock's words [-].
     video_len_s : float
         Length of the video, for the caution banner's timing [s].
+    quality : {"standard", "high"}
+        ``high`` draws every frame at twice the width and height and averages each
+        2x2 block of pixels (supersampling): smooth edges for the final cut, about
+        four times the drawing work.
     """
 
     def __init__(self, traj, facts, *, size=(1280, 720), views=("oblique",), load_mesh=None,
-                 speed=1.0, video_len_s=0.0):
+                 speed=1.0, video_len_s=0.0, quality="standard"):
         self.traj, self.facts, self.size = traj, facts, tuple(int(s) for s in size)
         w = traj.scene.wind
         self._wind_varies = bool(w.gusts or w.turbulence_intensity > 0.0 or w.profile != "uniform")
         self.views = tuple(views)
         self.speed, self.video_len_s = speed, video_len_s
+        self.ss = SUPERSAMPLE[quality]
+        self.render_size = (self.size[0] * self.ss, self.size[1] * self.ss)
+        scene = traj.scene
+        self.has_wind = scene.wind.speed_m_s > 0.0
+        rows = overlay.readout_rows(scene.crane.kind, self.has_wind, scene.crane.chart is not None)
+        kinds = {z.kind for z in scene.zones}
+        self.legend = tuple((key, words) for key, words in LEGEND if key not in ("exclusion", "obstacle") or key in kinds)
+        self.layout = layout_mod.compute_layout(self.size, len(self.views), overlay.caution_banner_text(),
+                                                rows, len(self.legend), overlay.clock_text(9999.99, speed))
         # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
         # which would cost software OpenGL several times a frame's rendering time.
         theme = pv.themes.Theme()
         theme.multi_samples = 0
         theme.anti_aliasing = None
-        self.pl = pv.Plotter(off_screen=True, window_size=list(self.size), theme=theme,
+        self.pl = pv.Plotter(off_screen=True, window_size=list(self.render_size), theme=theme,
                              shape=(1, len(self.views)), border=False, lighting=None)
         self.renderers = [self.pl.renderers[i] for i in range(len(self.views))]
+        for ren, box in zip(self.renderers, self.layout.views):
+            ren.SetViewport(*box.viewport(self.size))
         self.scene3d = scene3d.build(traj, load_mesh=load_mesh)
         self.lay = self.scene3d.layout
+        self.labels = []  # 3D-anchored labels: (world position [m], RGBA image, role, text, Sticker)
+        self._ground_marks = []  # points of the ground arrows, for the fitted views
         self._build()
         self._place_cameras()
         self._overlay()
         self._pixels = vtk.vtkUnsignedCharArray()
+        self.texts = {}
+        self._zone_chunk = self._chart_chunk = None
+        self._warm = False
+        self._cam_set = [False] * len(self.views)
         self._readout_slot = None
+        self._slew0 = float(traj.motion.pose(np.array([0.0])).jib_angle_rad[0])
         try:
             self.pl.show(auto_close=False)
         except Exception as exc:  # noqa: BLE001 - VTK raises bare RuntimeErrors without a context
@@ -111,7 +141,7 @@ class Stage:
                     kw = dict(color=colour, opacity=opacity, ambient=ambient, diffuse=diffuse,
                               specular=specular, smooth_shading=False, lighting=lighting, show_scalar_bar=False)
                     if line_width:
-                        kw["line_width"] = line_width
+                        kw["line_width"] = line_width * self.ss
                 actor = self.pl.add_mesh(mesh, reset_camera=False, **kw)
             else:
                 ren.add_actor(actor, reset_camera=False)
@@ -160,8 +190,8 @@ class Stage:
             self.actors[name] = self._add_body(body)
             for label in labels_after.get(name, ()):
                 colour, size, bold = LABEL_STYLE[label.role]
-                colour = PALETTE[colour] if label.role in ("grid", "axis_x", "axis_y") else darker(PALETTE[colour])
-                self._label(label.position_m, label.text, size=size, colour=colour, bold=bold)
+                colour = PALETTE[colour]
+                self._label(label.position_m, label.text, size=size, colour=colour, bold=bold, role=label.role)
             if name == "axis_y":
                 self._site_arrows(body.mesh)
             if name == "envelope":  # the trail: the load's last TRAIL_S seconds
@@ -178,6 +208,10 @@ class Stage:
                     [np.full(n_legs, 2), np.arange(0, 2 * n_legs, 2), np.arange(1, 2 * n_legs, 2)]).ravel())
                 self._add(self.sling_lines, PALETTE["sling"], line_width=2, lighting=False)
         self.trail_t, self.trail_xyz = self.scene3d.path_t_s, self.scene3d.path_load_m
+        half = 0.5 * np.asarray(self.lay.load_size_m, dtype=float)
+        self._load_corners = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)]) * half
+        rank = {"obstacle": 0, "exclusion": 0, "axis": 1, "axis_x": 1, "axis_y": 1}
+        self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][2], 2))
         # moving bodies, each with its actors (a spreader has its beam and its centre line)
         self.moving = {name: [a for a in self.actors[name] if a is not None]
                        for name, body in bodies.items() if body.moves}
@@ -186,6 +220,9 @@ class Stage:
         for z in scene.zones:
             solid, edges = self.actors[f"zone_{z.name}"]
             self.zones.append((z, solid, edges, PALETTE[z.kind]))
+            if z.kind == "exclusion":
+                self._nogo_stripes(z)
+            self._zone_look(z, solid, edges, "clear")
         self._zone_state = ["clear"] * len(self.zones)
         self.rope = self.actors["rope"][0]
         self.slings = [self.actors[f"sling_{i + 1}"][0] for i in range(self.scene3d.rigging.sling_count)]
@@ -196,21 +233,65 @@ class Stage:
         self.beam_actors = tuple(self.moving.get("spreader", ()))
         self.beam_span = self.scene3d.spreader_span_m
 
-    def _label(self, pos, text, *, size, colour, bold=False):
-        """A 3D-anchored label that always faces the camera (one actor per view, returned)."""
-        made = []
-        for ren in self.renderers:
-            a = vtk.vtkBillboardTextActor3D()
-            a.SetInput(text)
-            a.SetPosition(*pos)
-            tp = a.GetTextProperty()
-            tp.SetFontSize(max(10, int(size * self.size[1])))
-            tp.SetColor(*rgb(colour))
-            tp.SetBold(bold)
-            tp.SetJustificationToCentered()
-            ren.AddActor(a)
-            made.append(a)
-        return made
+    def _nogo_stripes(self, zone):
+        """A no-go zone's box in translucent red and white diagonal stripes (our own barrier look)."""
+        lo, hi = np.asarray(zone.min_m, dtype=float), np.asarray(zone.max_m, dtype=float)
+        box = pv.Box(bounds=(lo[0], hi[0], lo[1], hi[1], lo[2], max(hi[2], lo[2] + 0.05)), quads=True)
+        period = float(np.clip(NOGO_STRIPE_SHARE * np.max(hi - lo), NOGO_STRIPE_MIN_M, NOGO_STRIPE_MAX_M))
+        pts = np.asarray(box.points)
+        u = (pts[:, 0] + pts[:, 1] + pts[:, 2]) / period
+        box.active_texture_coordinates = np.column_stack([u, np.full(len(u), 0.5)])
+        tex = pv.Texture(nogo_image())
+        tex.SetInterpolate(False)
+        tex.SetRepeat(True)
+        self._add(box.triangulate(), None, texture=tex)
+
+    def _label(self, pos, text, *, size, colour, bold=False, role="grid"):
+        """A label anchored at a 3D point: dark words on a light panel, composited over the view
+        (so never hidden behind the crane or the boom) where :meth:`_place_labels` finds room."""
+        font = max(self.layout.fonts["label"], int(round(size * self.size[1])))
+        img = chrome_mod.rasterise(text, font * self.ss, colour, bold=bold, background=PALETTE["label_bg"],
+                                   background_opacity=0.85)
+        self.labels.append((np.asarray(pos, dtype=float), img, role, text, chrome_mod.Sticker(img)))
+
+    def _place_labels(self, view_index: int, load_xyz=None) -> list:
+        """Where a view's labels go this frame: wholly inside the view, over neither the load nor a
+        label placed before them (zone labels first, then the arrows', then the grid's); a zone's
+        name is moved into the view rather than lost at its edge.
+
+        Returns
+        -------
+        list of tuple
+            (label index, layout.Box [output px]) of the labels shown.
+        """
+        if not self.labels:
+            return []
+        box = self.layout.views[view_index]
+        pts = np.array([lab[0] for lab in self.labels])
+        load_box = None
+        if load_xyz is not None:  # the load's box on the picture (its 8 corners around the centre)
+            corners = self.project(load_xyz[None] + self._load_corners, view_index)
+            lo, hi = corners.min(axis=0), corners.max(axis=0)
+            load_box = layout_mod.Box(lo[0] - 2, lo[1] - 2, hi[0] + 2, hi[1] + 2)
+        px = self.project(pts, view_index)
+        taken, shown = [], []
+        for k in self._label_order:
+            _pos, img, role, _text, _sticker = self.labels[k]
+            c, r = px[k]
+            half_w, half_h = 0.5 * img.shape[1] / self.ss, 0.5 * img.shape[0] / self.ss
+            if not (np.isfinite(c) and np.isfinite(r)) or 2 * half_w > box.width or 2 * half_h > box.height:
+                continue
+            if role in ("obstacle", "exclusion"):
+                c += min(0.0, box.x1 - (c + half_w)) + max(0.0, box.x0 - (c - half_w))
+                r += min(0.0, box.y1 - (r + half_h)) + max(0.0, box.y0 - (r - half_h))
+            lb = layout_mod.Box(c - half_w, r - half_h, c + half_w, r + half_h)
+            if not lb.inside(box) or (load_box is not None and lb.intersects(load_box)):
+                continue
+            if any(lb.intersects(o) for o in taken):
+                continue
+            taken.append(lb)
+            shown.append((k, lb))
+        return shown
 
     def _site_arrows(self, axis_mesh):
         """A north arrow and, with wind, an arrow the way the wind blows, on the ground beside the +x/+y arrows.
@@ -221,6 +302,7 @@ class Stage:
         """
         scene = self.traj.scene
         v = axis_mesh.vertices
+        self._ground_marks.extend([v.min(axis=0), v.max(axis=0)])
         origin = v.min(axis=0)
         length = float(np.ptp(v[:, 1]))
         centre = np.array([origin[0] - 3.0 * length, origin[1] + 1.0 * length, 0.12])
@@ -228,49 +310,57 @@ class Stage:
         d = np.array([math.cos(north), math.sin(north), 0.0])
         self._add(_polydata(arrow(centre - 0.5 * length * d, d, length), "faces"), PALETTE["north"],
                   lighting=False)
+        self._ground_marks.extend([centre - 0.7 * length * d, centre + 0.7 * length * d])
         self._label(centre + 0.65 * length * d, "N", size=LABEL_STYLE["axis_x"][1], colour=PALETTE["north"],
-                    bold=True)
+                    bold=True, role="axis")
         if scene.wind.speed_m_s > 0.0 or scene.wind.gusts:
             toward = math.radians(scene.wind.direction_deg)
             at = centre + np.array([-0.2 * length, -1.6 * length, 0.0])
+            w = np.array([math.cos(toward), math.sin(toward), 0.0])
             # built along +x about its middle, turned and scaled each frame to the wind at the load
             actor = self._add(_polydata(arrow(np.array([-0.5 * length, 0.0, 0.0]), np.array([1.0, 0.0, 0.0]),
                                               length, tip_radius=0.12, shaft_radius=0.05), "faces"),
                               PALETTE["wind"], lighting=False)
-            labels = self._label(at + np.array([0.0, -1.2 * length, 0.0]),
-                                 f"wind {scene.wind.speed_m_s:g} m/s {wind_words(scene)}",
-                                 size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True)
-            self._wind_arrow = (actor, labels, at, max(scene.wind.speed_m_s, 1.0))
-            self._set_wind_arrow(toward, scene.wind.speed_m_s, None)
+            self._ground_marks.extend([at - 0.6 * length * w, at + 0.6 * length * w,
+                                       at + np.array([0.0, -0.75 * length, 0.0])])
+            mean = "mean wind" if self._wind_varies else "wind"
+            self._label(at + np.array([0.0, -0.75 * length, 0.0]),
+                        f"{mean} {scene.wind.speed_m_s:g} m/s from {compass_point(scene_wind_from_bearing_deg(scene))}",
+                        size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True, role="axis")
+            self._wind_arrow = (actor, at, max(scene.wind.speed_m_s, 1.0))
+            self._set_wind_arrow(toward, scene.wind.speed_m_s)
 
-    def _set_wind_arrow(self, toward_rad: float, speed_m_s: float, text: str | None) -> None:
-        """Turn the wind arrow toward ``toward_rad``, its length with the speed, and relabel it."""
-        actor, labels, at, ref = self._wind_arrow
+    def _set_wind_arrow(self, toward_rad: float, speed_m_s: float) -> None:
+        """Turn the wind arrow toward ``toward_rad`` [rad] and scale it with the speed [m/s]."""
+        actor, at, ref = self._wind_arrow
         k = min(max(speed_m_s / ref, 0.25), 1.8)
         c, s_ = math.cos(toward_rad), math.sin(toward_rad)
         m = np.array([[c * k, -s_ * k, 0.0, at[0]], [s_ * k, c * k, 0.0, at[1]], [0.0, 0.0, k, at[2]],
                       [0.0, 0.0, 0.0, 1.0]])
         actor.user_matrix = m
-        if text is not None:
-            for a in labels:
-                a.SetInput(text)
 
     def _update_wind(self, row) -> None:
-        """The wind arrow and its label from the run's wind at the load at this instant (gusts, turbulence)."""
+        """The wind arrow from the run's wind at the load at this instant (gusts, turbulence)."""
         wxy = row.get("wind_at_load")
         if getattr(self, "_wind_arrow", None) is None or wxy is None or not self._wind_varies:
             return
         wx, wy = float(wxy[0]), float(wxy[1])
         speed = math.hypot(wx, wy)
         toward = math.atan2(wy, wx) if speed > 0.0 else math.radians(self.traj.scene.wind.direction_deg)
-        bearing = wind_from_bearing_deg(math.degrees(toward), self.traj.scene.site.north_deg)
-        self._set_wind_arrow(toward, speed, f"wind at load {speed:.1f} m/s from {bearing:.0f} deg")
+        self._set_wind_arrow(toward, speed)
 
     def _place_cameras(self):
-        w, h = self.size
-        aspect = (w / len(self.views)) / h
+        box = self.layout.views[0]
+        aspect = box.width / box.height
         self.aspect = aspect
-        pts = self.scene3d.interest_points()
+        # what the fitted views must show: the scene's points of interest, the load's box along its
+        # path, the whole swing envelope, and the ground arrows (north, wind, +x/+y) with their labels
+        half = 0.5 * np.asarray(self.lay.load_size_m, dtype=float)
+        box = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)]) * half
+        path = self.scene3d.path_load_m[::10]
+        env = self.scene3d.bodies["envelope"].mesh.vertices
+        pts = np.vstack([self.scene3d.interest_points(), (path[:, None, :] + box[None]).reshape(-1, 3),
+                         env.min(axis=0), env.max(axis=0), *self._ground_marks])
         self.cams = []
         for view in self.views:
             if view == "custom":
@@ -287,6 +377,8 @@ class Stage:
         """The chart utilisation at one instant, as the summary measures it; None without a chart."""
         if self.traj.scene.crane.chart is None:
             return None
+        if self._chart_chunk is not None and t in self._chart_chunk:
+            return self._chart_chunk[t]
         one = {k: np.asarray(row[k], dtype=float)[None] for k in
                ("suspension", "load", "rope_dir", "rope_tension_N") if row.get(k) is not None}
         one["hook"] = None if row.get("hook") is None else np.asarray(row["hook"], dtype=float)[None]
@@ -305,86 +397,71 @@ class Stage:
         else:
             c.ParallelProjectionOff()
         ren.ResetCameraClippingRange()
+        near, far = c.GetClippingRange()
+        c.SetClippingRange(0.5 * near, 1.5 * far)  # room for the moving parts (a fixed camera is set once)
     # ------------------------------------------------------------------ overlay
     def _overlay(self):
-        """A top layer, as large as the window, that holds all the 2D text."""
-        rw = self.pl.ren_win
-        rw.SetNumberOfLayers(2)
-        ren = vtk.vtkRenderer()
-        ren.SetLayer(1)
-        ren.SetViewport(0, 0, 1, 1)
-        ren.InteractiveOff()
-        rw.AddRenderer(ren)
-        self.over = ren
-        h = self.size[1]
-        fs = lambda k: max(9, int(round(k * h)))  # noqa: E731
-        self.txt = {}
-        self.txt["title"] = self._text(self.traj.scene.title, (0.012, 0.985), fs(0.036), "tl", bold=True)
-        self.txt["clock"] = self._text("", (0.012, 0.925), fs(0.032), "tl", mono=True)
-        self.txt["readout"] = self._text("", (0.988, 0.985), fs(0.027), "tr", mono=True)
-        self.txt["event"] = self._text("", (0.012, 0.86), fs(0.03), "tl", bold=True,
-                                       colour="#7a0000")
-        self.txt["zone"] = self._text("", (0.012, 0.70), fs(0.03), "tl", bold=True, colour=PALETTE["warn"])
-        self.txt["stopped"] = self._text("", (0.5, 0.55), fs(0.034), "cc", bold=True, colour=PALETTE["warn"],
-                                         opacity=0.9, frame=True)
-        # characters a line holds at a font size (Arial averages about 0.55 em a character)
-        self.line_chars = max(20, int(self.size[0] * 0.97 / (0.55 * fs(0.024))))
-        self.banner_chars = max(20, min(72, int(self.size[0] * 0.9 / (0.58 * fs(0.032)))))
-        self.txt["caution"] = self._text(overlay.caution_line(self.line_chars), (0.5, 0.012), fs(0.024), "bc")
-        self.txt["banner"] = self._text("", (0.5, 0.075), fs(0.032), "bc", bold=True,
-                                        background=PALETTE["banner"], opacity=0.92, frame=True)
-        if len(self.views) > 1:
-            for i, v in enumerate(self.views):
-                self._text(f"{v} view", ((i + 0.5) / len(self.views), 0.06), fs(0.026), "bc",
-                           bold=True, colour="#333333")
-            sep = vtk.vtkActor2D()
-            pts = vtk.vtkPoints()
-            pts.InsertNextPoint(0.5, 0.0, 0)
-            pts.InsertNextPoint(0.5, 1.0, 0)
-            lines = vtk.vtkCellArray()
-            lines.InsertNextCell(2)
-            lines.InsertCellPoint(0)
-            lines.InsertCellPoint(1)
-            poly = vtk.vtkPolyData()
-            poly.SetPoints(pts)
-            poly.SetLines(lines)
-            coord = vtk.vtkCoordinate()
-            coord.SetCoordinateSystemToNormalizedViewport()
-            mapper = vtk.vtkPolyDataMapper2D()
-            mapper.SetInputData(poly)
-            mapper.SetTransformCoordinate(coord)
-            sep.SetMapper(mapper)
-            sep.GetProperty().SetColor(*rgb("#222222"))
-            sep.GetProperty().SetLineWidth(3)
-            ren.AddActor(sep)
+        """The 2D layer (:class:`swingsim.render.chrome.Chrome`): the bands around the views, the
+        legend and all words, from :mod:`swingsim.render.layout`; nothing is drawn over a view."""
+        L = self.layout
+        f = L.fonts
+        pad = L.text_boxes["pad"]
+        ch = self.chrome = chrome_mod.Chrome(L, self.ss)
+        k = self.ss
+        rects = [(L.title, PALETTE["bar"]), (L.clock, PALETTE["bar"]), (L.panel, PALETTE["panel"]),
+                 (L.notes, PALETTE["panel"]), (L.legend, PALETTE["panel"]), (L.caution, PALETTE["caution_band"])]
+        rects += [(b, PALETTE["bar_light"]) for b in L.tags] + [(b, PALETTE["bar"]) for b in L.dividers]
+        # the side panel's rules: along its left edge, and between readout, notes and legend
+        rule = max(1, int(round(0.002 * self.size[1])))
+        rects += [(layout_mod.Box(L.panel.x0, L.panel.y0, L.panel.x0 + rule, L.caution.y0), PALETTE["bar"]),
+                  (layout_mod.Box(L.notes.x0, L.notes.y0, L.notes.x1, L.notes.y0 + rule), PALETTE["rule"]),
+                  (layout_mod.Box(L.legend.x0, L.legend.y0, L.legend.x1, L.legend.y0 + rule), PALETTE["rule"])]
+        rects += self._legend_swatches()
+        for box, colour in rects:
+            chrome_mod.fill(ch.picture, box, colour, k)
+        for box in [L.title, L.clock, L.panel, L.notes, L.legend, L.caution, *L.tags, *L.dividers]:
+            ch.keep(box)
+        scene = self.traj.scene
+        ch.text("title", layout_mod.fit_title(scene.title, L), L.title, "l", f["title"], PALETTE["bar_text"],
+                bold=True, pad=pad)
+        lg = L.legend
+        row_h = f["legend"] * layout_mod.LINE_EM
+        sw = int(round(1.6 * f["legend"]))
+        for i, (_key, words) in enumerate(self.legend):
+            y = lg.y0 + pad + i * row_h
+            ch.text(f"legend_{i}", words, layout_mod.Box(lg.x0 + 2 * pad + sw, y, lg.x1, y + row_h), "l",
+                    f["legend"], PALETTE["text"])
+        for i, (box, v) in enumerate(zip(L.tags, self.views)):
+            ch.text(f"tag_{i + 1}", f"{v} view", box, "c", f["tag"], PALETTE["text"], bold=True)
+        ch.changing("clock", L.clock, "r", f["clock"], PALETTE["bar_text"], mono=True, pad=pad)
+        ch.changing("readout", L.panel, "tl", f["panel"], PALETTE["text"], mono=True, pad=pad)
+        ch.changing("notes", L.notes, "tl", f["notes"], PALETTE["text"], pad=pad)
+        ch.changing("caution", L.caution, "c", f["caution"], PALETTE["text"], pad=pad)
+        self.notes_chars = layout_mod.chars_per_line(L.notes.width - 2 * pad, f["notes"])
+        self.caution_chars = layout_mod.chars_per_line(L.caution.width - 2 * pad, f["caution"])
+        self.line_chars = self.banner_chars = self.caution_chars
+        self._shown_labels = [[] for _ in self.views]
 
-    def _text(self, text, pos, size, anchor, *, bold=False, mono=False, colour=None, background=None,
-              opacity=0.8, frame=False):
-        a = vtk.vtkTextActor()
-        a.SetInput(text)
-        a.GetPositionCoordinate().SetCoordinateSystemToNormalizedViewport()
-        a.GetPositionCoordinate().SetValue(*pos)
-        tp = a.GetTextProperty()
-        tp.SetFontSize(size)
-        tp.SetBold(bold)
-        if mono:
-            tp.SetFontFamilyToCourier()
-        else:
-            tp.SetFontFamilyToArial()
-        tp.SetColor(*rgb(colour or PALETTE["text"]))
-        tp.SetBackgroundColor(*rgb(background or PALETTE["panel"]))
-        tp.SetBackgroundOpacity(opacity)
-        if frame:
-            tp.SetFrame(True)
-            tp.SetFrameColor(*rgb("#7a5c00"))
-            tp.SetFrameWidth(3)
-        v, hz = anchor[0], anchor[1]
-        {"t": tp.SetVerticalJustificationToTop, "b": tp.SetVerticalJustificationToBottom,
-         "c": tp.SetVerticalJustificationToCentered}[v]()
-        {"l": tp.SetJustificationToLeft, "r": tp.SetJustificationToRight,
-         "c": tp.SetJustificationToCentered}[hz]()
-        self.over.AddActor(a)
-        return a
+    def _legend_swatches(self) -> list:
+        """Small swatches of the legend: the no-go zone in red and white stripes, the others plain."""
+        L = self.layout
+        pad = L.text_boxes["pad"]
+        f = L.fonts["legend"]
+        row_h = f * layout_mod.LINE_EM
+        sw = int(round(1.6 * f))
+        out = []
+        for i, (key, _words) in enumerate(self.legend):
+            y0 = L.legend.y0 + pad + i * row_h + 0.15 * row_h
+            y1 = y0 + 0.7 * row_h
+            x0 = L.legend.x0 + pad
+            if key == "exclusion":
+                n = 4
+                for k in range(n):
+                    out.append((layout_mod.Box(x0 + k * sw / n, y0, x0 + (k + 1) * sw / n, y1),
+                                PALETTE["nogo_red"] if k % 2 == 0 else PALETTE["nogo_white"]))
+            else:
+                out.append((layout_mod.Box(x0, y0, x0 + sw, y1), PALETTE[key]))
+        return out
 
     # ------------------------------------------------------------------ posing
     def pose(self, t: float, row: dict, crane: tuple, video_t: float | None = 0.0):
@@ -446,30 +523,67 @@ class Stage:
         self._update_trail(t, load)
         self._update_wind(row)
         states = self._update_zones(row)
-        for ren, cam in zip(self.renderers, self.cams):
-            if cam is None:
-                # aim a little above the load: the swing in the middle, clear of the banner
+        for i, (ren, cam) in enumerate(zip(self.renderers, self.cams)):
+            follow = cam is None
+            if follow:
+                # aim a little above the load: the swing in the middle of the view
                 focus = (0.3 * p[0] + 0.7 * load[0], 0.3 * p[1] + 0.7 * load[1], load[2] + 0.3 * (p[2] - load[2]))
                 cam = views.follow(focus, self.follow_span, self.aspect)
-            self._apply_camera(ren, cam)
+            if follow or not self._cam_set[i]:
+                self._apply_camera(ren, cam)
+                self._cam_set[i] = True
+            self._shown_labels[i] = self._place_labels(i, load)
+        crane = self._crane_numbers(t, row)
         ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
-                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row))
+                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row), crane)
         # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
         # display (readable, and text is costly to rasterise); the clock and the picture
         # show every frame's own time.
         slot = None if video_t is None else int(math.floor(video_t * READOUT_HZ + 1e-9))
-        keys = ["clock", "event", "zone", "banner", "stopped"]
         if slot is None or slot != self._readout_slot:
-            keys.append("readout")
+            self._set("readout", ft.readout)
             self._readout_slot = slot
             self.shown_readout = ft.readout
-        for key in keys:
-            self.txt[key].SetInput(getattr(ft, key))
-            self.txt[key].SetVisibility(bool(getattr(ft, key)))
+        self._set("clock", ft.clock)
+        notes = "\n".join(x for x in (ft.stopped, ft.zone, ft.event) if x)
+        self._set("notes", layout_mod.fit_lines(notes, self.notes_chars, self.layout.notes_lines))
+        # the caution band: the full caution over the first and last seconds and on stills
+        # (highlighted in the video), the short one in between
+        full = bool(ft.banner) or video_t is None
+        text = overlay.caution_banner_text() if full else ft.caution
+        self.chrome.set("caution", layout_mod.wrap(" ".join(text.split()), self.caution_chars),
+                        PALETTE["banner" if ft.banner else "caution_band"])
         self.last_text = ft
         self.zone_states = states
         self.near_zones = [name for name, _state, _bodies in states]
         return ft
+
+    def _set(self, key: str, text: str):
+        """Show words in one of the changing text boxes."""
+        self.chrome.set(key, text)
+        self.texts[key] = text
+
+    def _crane_numbers(self, t: float, row: dict) -> dict:
+        """Radius and slew (slewing cranes), hook height, and the wind at the load, for the readout."""
+        scene = self.traj.scene
+        out = {}
+        if scene.crane.kind in overlay.SLEWING_KINDS:
+            pose = self.traj.motion.pose(np.array([t]))
+            out["radius_m"] = float(pose.radius_m[0])
+            out["slew_deg"] = math.degrees(float(pose.jib_angle_rad[0]) - self._slew0)
+        hook = row.get("hook")
+        if hook is not None and np.ndim(hook) == 1:
+            out["hook_height_m"], out["height_label"] = float(hook[2]), "hook height"
+        else:
+            out["hook_height_m"], out["height_label"] = float(np.asarray(row["load"])[2]), "load height"
+        if self.has_wind or self._wind_varies or row.get("wind_speed_m_s") is not None:
+            out["wind_m_s"] = overlay.wind_at_load_m_s(row, scene)
+            out["wind_from"] = compass_point(scene_wind_from_bearing_deg(scene))
+            wxy = row.get("wind_at_load")
+            if self._wind_varies and wxy is not None and math.hypot(float(wxy[0]), float(wxy[1])) > 0.0:
+                toward = math.degrees(math.atan2(float(wxy[1]), float(wxy[0])))
+                out["wind_from"] = compass_point(wind_from_bearing_deg(toward, scene.site.north_deg))
+        return out
 
     def _update_trail(self, t, load):
         """The trail: the last TRAIL_S seconds, sampled every 0.1 s, ending at the load now."""
@@ -497,22 +611,86 @@ class Stage:
             ``(zone name, state, body names)`` of the zones not clear.
         """
         shown = []
-        verdicts = zone_verdicts_at(row, self.traj.scene) if self.zones else []
+        t = float(row["t"]) if row.get("t") is not None and np.ndim(row["t"]) == 0 else None
+        chunk = self._zone_chunk
+        if chunk is not None and t is not None and t in chunk:
+            verdicts = chunk[t]
+        else:
+            verdicts = zone_verdicts_at(row, self.traj.scene) if self.zones else []
         for j, ((z, solid, edges, colour), (state, bodies)) in enumerate(zip(self.zones, verdicts)):
+            if state != ENTERED and t is not None and self.facts.zone_entered_at(j, t):
+                # the summary, sampled finer than the frames, counts this instant inside an entry:
+                # the video says the same (never "near" while the summary says entered)
+                state = ENTERED
+                bodies = bodies or ["load"]
             if state in (ENTERED, NEAR):
                 shown.append((z.name, state, bodies))
             if state != self._zone_state[j]:
-                warn = state in (ENTERED, NEAR)
-                c = rgb(PALETTE["warn"] if warn else colour)
-                solid.GetProperty().SetColor(*c)
-                edges.GetProperty().SetColor(*c)
-                solid.GetProperty().SetOpacity(0.6 if state == ENTERED else 0.45 if warn else STYLE[z.kind]["opacity"])
+                self._zone_look(z, solid, edges, state)
                 self._zone_state[j] = state
         return shown
 
+    def begin_chunk(self, samples: dict) -> None:
+        """Measure the zones and the chart utilisation for a whole chunk of frames at once (numpy over it).
+
+        The same rule as :func:`swingsim.metrics.zones.zone_verdicts_at` (a test holds them
+        equal): each zone's :func:`~swingsim.metrics.zones.verdict` from the smallest clearance
+        of any body, and the bodies inside (entered) or within the margin (near).
+
+        Parameters
+        ----------
+        samples : dict
+            ``Trajectory.sample`` at the chunk's instants (with ``t``).
+        """
+        self._zone_chunk = self._chart_chunk = None
+        scene = self.traj.scene
+        ts = np.atleast_1d(np.asarray(samples["t"], dtype=float))
+        if scene.crane.chart is not None:
+            series = chart_series(self.traj, ts, samples)
+            self._chart_chunk = {float(t): float(u) for t, u in zip(ts, series["utilisation_pct"])}
+        if not scene.zones:
+            return
+        bodies = suspended_bodies(samples, scene)
+        per_zone = []
+        for zone in scene.zones:
+            distance, _ = zone_clearances(bodies, zone)
+            table = np.stack([np.asarray(distance[name], dtype=float).reshape(-1) for name in bodies.names], -1)
+            per_zone.append((zone.margin_m, table))
+        chunk = {}
+        for i, t in enumerate(ts):
+            out = []
+            for margin, table in per_zone:
+                state = verdict(float(table[i].min()), margin)
+                limit = 0.0 if state == ENTERED else margin
+                out.append((state, [name for c, name in enumerate(bodies.names) if table[i, c] <= limit]))
+            chunk[float(t)] = out
+        self._zone_chunk = chunk
+
+    def _zone_look(self, zone, solid, edges, state):
+        """A zone's colours for its state: amber within the margin, red when entered; a clear
+        no-go zone shows only its red and white stripes and its red rim."""
+        sp, ep = solid.GetProperty(), edges.GetProperty()
+        if state == ENTERED:
+            colour, opacity, width = PALETTE["warn"], 0.6, 4
+        elif state == NEAR:
+            colour, opacity, width = PALETTE["near"], 0.45, 4
+        else:
+            colour, opacity, width = PALETTE[zone.kind], STYLE[zone.kind]["opacity"], STYLE[zone.kind]["line_width"]
+        sp.SetColor(*rgb(colour))
+        sp.SetOpacity(opacity)
+        ep.SetColor(*rgb(PALETTE["nogo_red"] if zone.kind == "exclusion" and state not in (ENTERED, NEAR)
+                         else colour))
+        ep.SetLineWidth(width * self.ss)
+        solid.SetVisibility(not (zone.kind == "exclusion" and state not in (ENTERED, NEAR)))
+
     # ------------------------------------------------------------------ output
-    def grab(self) -> np.ndarray:
-        """Render the frame and read its pixels.
+    def grab(self, overlay: bool = True) -> np.ndarray:
+        """Render the frame and read its pixels, with the 2D layer put on.
+
+        Parameters
+        ----------
+        overlay : bool
+            Put on the bands, words and labels (False: the 3D views alone, for checks).
 
         Returns
         -------
@@ -520,10 +698,24 @@ class Stage:
             (height, width, 3) uint8, top row first.
         """
         rw = self.pl.ren_win
+        if not self._warm:  # the very first picture after posing is lit differently: draw it twice
+            rw.Render()
+            self._warm = True
         rw.Render()
-        w, h = self.size
+        w, h = self.render_size
         rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
-        return vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1]
+        img = np.ascontiguousarray(vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1])
+        if overlay:
+            self.chrome.apply(img)
+            k = self.ss
+            for shown in self._shown_labels:
+                for j, lb in shown:
+                    self.labels[j][4].put(img, int(round(lb.x0 * k)), int(round(lb.y0 * k)))
+        if self.ss == 1:
+            return img
+        k = self.ss  # supersampled: the mean of each k x k block (a box filter), rounded
+        blocks = img.reshape(h // k, k, w // k, k, 3).astype(np.uint16).sum(axis=(1, 3))
+        return ((blocks + (k * k) // 2) // (k * k)).astype(np.uint8)
 
     def project(self, points, view_index: int = 0) -> np.ndarray:
         """Where world points appear in one view's picture.

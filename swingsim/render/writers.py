@@ -87,7 +87,7 @@ class _Pipe:
 
     def write(self, frame: np.ndarray) -> None:
         try:
-            self.proc.stdin.write(np.ascontiguousarray(frame, dtype=np.uint8).tobytes())
+            self.proc.stdin.write(memoryview(np.ascontiguousarray(frame, dtype=np.uint8)).cast("B"))
         except BrokenPipeError:
             self._fail()
         self.count += 1
@@ -126,7 +126,14 @@ class Mp4Writer(_Pipe):
 
 
 class GifWriter(_Pipe):
-    """Animated GIF with one palette made beforehand from sample frames (so frames stream)."""
+    """Animated GIF with one palette made beforehand from sample frames (so frames stream).
+
+    GIF stores each frame's delay in whole hundredths of a second.  ffmpeg's GIF
+    muxer takes each delay as the difference of the frames' times rounded to that
+    unit, so the delays alternate (15 fps: 7, 6, 7, 7, 6, ... cs) and the clip plays
+    at its frame rate on average rather than at a rounded one
+    (``tests/test_render_video.py`` reads them back).
+    """
 
     def __init__(self, target, size, fps, palette_frames):
         self._pal = _tmp_name(Path(target), ".png")
