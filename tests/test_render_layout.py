@@ -72,6 +72,29 @@ def test_notes_keep_whole_entries_first_first():
     assert all(len(line) <= 20 for line in out.split("\n")) and len(out.split("\n")) == 5
 
 
+@pytest.mark.parametrize("size", [(640, 360), (1280, 720)], ids=lambda s: f"{s[0]}x{s[1]}")
+def test_the_resonance_and_gust_notes_fit_the_notes_at_the_smallest_legible_size(size):
+    from swingsim.render.facts import gust_note
+    from swingsim.render.overlay import readout_rows
+
+    # the fullest side panel: the readout of a slewing crane in wind with a chart, and 4 legend rows
+    lay = L.compute_layout(size, 1, CAUTION, readout_rows=readout_rows("tower", True, True), legend_rows=4)
+    pad = lay.text_boxes["pad"]
+    chars = L.chars_per_line(lay.notes.width - 2 * pad, lay.fonts["notes"])
+    resonance = "RESONANCE: radius moves every 12.50 s, swing period 12.69 s\nEach repetition adds swing."
+    for note in (resonance, gust_note(20.8, 20.0, 41.7)):
+        kept = L.fit_lines(note + "\nslew past the hut: ends", chars, lay.notes_lines)
+        # the caution's first entry is kept whole, ahead of the events, in the box's lines
+        head = note.split("\n")[0]
+        assert " ".join(kept.split()).startswith(" ".join(head.split())), (kept, lay.notes_lines)
+        assert len(kept.split("\n")) <= lay.notes_lines
+        assert all(len(line) <= chars for line in kept.split("\n"))
+    # and the notes box is still apart from every other box
+    for name, b in lay.overlay_boxes().items():
+        assert name == "notes" or not b.intersects(lay.notes)
+    assert not any(v.intersects(lay.notes) for v in lay.views)
+
+
 def test_tonnes_force_against_standard_gravity():
     # 1 tonne-force = 1000 kg x g_n, g_n = 9.80665 m/s^2 exactly (3rd CGPM, 1901)
     assert STANDARD_GRAVITY == 9.80665
@@ -213,5 +236,32 @@ def test_zone_words_follow_the_summary_entries():
             row = {k: (v[i] if isinstance(v, np.ndarray) and v.ndim and len(v) == len(times) else v)
                    for k, v in samples.items()}
             assert stage._zone_chunk[float(t)] == zone_verdicts_at(row, traj.scene), t
+    finally:
+        stage.close()
+
+
+def test_the_inching_video_says_resonance_in_its_notes_at_640x360():
+    from pathlib import Path
+
+    from swingsim import load_scene
+    from swingsim.metrics.single import summarize
+    from swingsim.render.facts import collect
+    from swingsim.render.frames import draw_frames
+    from swingsim.render.stage import Stage
+
+    traj = simulate(load_scene(Path(__file__).resolve().parents[1] / "scenes" / "inching_resonance.toml"))
+    sm = summarize(traj)
+    assert any("resonance" in c for c in sm.data["cautions"])  # the summary's caution the video repeats
+    stage = Stage(traj, collect(traj, sm), size=(640, 360), views=("oblique",), video_len_s=traj.t_end_s)
+    try:
+        t = 22.0  # after the last nudge, near the peak swing: the caution, then the events
+        next(draw_frames(stage, traj, np.array([t]), video_t0_index=int(t * 30), fps=30))
+        notes = stage.texts["notes"]
+        assert notes.startswith("RESONANCE:") and "Each repetition adds swing." in " ".join(notes.split())
+        ext = stage.chrome.extents
+        assert "notes" in ext and not [k for k in ext if k.endswith(":cut")], ext
+        assert ext["notes"].inside(stage.layout.notes)
+        for name, b in stage.layout.overlay_boxes().items():
+            assert name == "notes" or not ext["notes"].intersects(b), name
     finally:
         stage.close()

@@ -243,3 +243,53 @@ def test_render_refuses_implausible_frame_count(tmp_path, capsys):
     err = capsys.readouterr().err
     assert rc == 2 and "plausibility limit" in err and "--allow-implausible" in err
     assert not (tmp_path / "v").exists()
+
+
+def test_the_notes_repeat_the_resonance_caution_of_the_inching_scene():
+    from pathlib import Path
+
+    from swingsim import load_scene
+    from swingsim.metrics.single import summarize
+
+    scene = load_scene(Path(__file__).resolve().parents[1] / "scenes" / "inching_resonance.toml")
+    traj = simulate(scene)
+    sm = summarize(traj)
+    facts = collect(traj, sm)
+    caution = [c for c in sm.data["cautions"] if "resonance" in c]
+    assert caution  # the summary cautions (tests/test_response.py checks why)
+    rhythm = sm.data["move_rhythms"][0]
+    period = sm.data["response_modes"][0]["period_s"]
+    # the same rhythm and period as the summary's caution, worded short for the notes panel
+    assert f"{rhythm['rhythm_s']:.2f} s" in caution[0] and f"{period:.2f} s" in caution[0]
+    start = rhythm["from_s"] + rhythm["rhythm_s"]  # from the second repetition
+    assert overlay.caution_notes(start - 0.1, facts) == ""
+    late = overlay.caution_notes(start + 0.1, facts)
+    assert late.startswith("RESONANCE:") and f"every {rhythm['rhythm_s']:.2f} s" in late
+    assert f"swing period {period:.2f} s" in late and "Each repetition adds swing." in late
+    assert overlay.caution_notes(traj.t_end_s, facts) == late  # kept to the end
+    # a lift without repeated moves has no such note (a single move: tests/test_response.py)
+    single = simulate(make_scene(moves=[MOVE], duration_s=20.0))
+    assert collect(single).notes == ()
+
+
+def test_the_notes_flag_a_gust_over_the_in_service_limit():
+    from swingsim.metrics.single import summarize
+
+    # one 1 - cosine gust (gust-load practice; issue text): peak added speed 14 m/s at
+    # start + duration / 2 on a steady 10 m/s, so 24 m/s at the load against a 20 m/s limit
+    s = make_scene({"crane": {"wind_limit_m_s": 20.0},
+                    "wind": {"speed_m_s": 10.0, "direction_deg": 90.0,
+                             "gusts": [{"start_s": 4.0, "peak_m_s": 14.0, "duration_s": 4.0}]}},
+                   moves=[MOVE], duration_s=12.0)
+    traj = simulate(s)
+    facts = collect(traj, summarize(traj))
+    assert facts.gust_limit_m_s == 20.0
+    assert overlay.caution_notes(3.0, facts, 10.0) == ""  # the mean wind, under the limit
+    # before the peak: flagged while the wind at the load is above the limit (our rule: the frame's wind)
+    assert overlay.caution_notes(5.8, facts, 21.0).startswith("WIND 21.0 m/s at the load, above the 20 m/s limit")
+    peak = overlay.caution_notes(6.01, facts, 23.9)
+    assert peak.startswith("GUST 24.0 m/s at the load, above the 20 m/s limit")
+    assert "(t = 6.0 s)" in peak and "WIND" not in peak
+    # a steady wind under the limit: no note
+    calm = simulate(make_scene({"wind": {"speed_m_s": 10.0, "direction_deg": 90.0}}, moves=[MOVE], duration_s=10.0))
+    assert collect(calm).gust_limit_m_s is None and collect(calm).notes == ()

@@ -84,6 +84,8 @@ class FrameText:
     caution: str
     banner: str
     stopped: str = ""
+    #: The run's cautions repeated in the notes (resonance, a gust over the limit), one entry a line.
+    notes: str = ""
 
     def strings(self) -> list[str]:
         """All the frame's words, in drawing order.
@@ -91,9 +93,10 @@ class FrameText:
         Returns
         -------
         list of str
-            Clock, readout, event, zone, caution, banner, stopped.
+            Clock, readout, event, zone, caution, banner, stopped, notes.
         """
-        return [self.clock, self.readout, self.event, self.zone, self.caution, self.banner, self.stopped]
+        return [self.clock, self.readout, self.event, self.zone, self.caution, self.banner, self.stopped,
+                self.notes]
 
 
 def clock_text(t_s: float, speed: float) -> str:
@@ -136,9 +139,9 @@ def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_
              ("hook load", f"{newton_to_tonnes_force(1000.0 * hook_load_kN):6.2f}", "t"),
              ("", f"{hook_load_kN:6.1f}", "kN"), ("rope length", f"{rope_m:6.1f}", "m")]
     if c.get("wind_m_s") is not None:
-        rows.append(("wind", f"{c['wind_m_s']:6.1f}", "m/s"))
-        if c.get("wind_from"):
-            rows.append(("wind from", f"{c['wind_from']:>6}", ""))
+        # one row: a wind is named by where it comes from (WMO), "wind SW" is a wind from the
+        # south-west; a compass point has at most 3 letters, so the label keeps its 11 characters
+        rows.append((f"wind {c['wind_from']}" if c.get("wind_from") else "wind", f"{c['wind_m_s']:6.1f}", "m/s"))
     if chart_pct is not None:
         rows.append(("of chart", f"{chart_pct:6.1f}" if math.isfinite(chart_pct) else "   off", "%"))
     return "\n".join(f"{a:<11}{b:>7} {c_:<3}".rstrip() for a, b, c_ in rows)
@@ -163,7 +166,7 @@ def readout_rows(crane_kind: str, wind: bool, chart: bool) -> int:
     """
     n = 1 + 5  # height; angle, speed, load in t, load in kN, rope length
     n += 2 if crane_kind in SLEWING_KINDS else 0
-    n += 2 if wind else 0
+    n += 1 if wind else 0  # speed and where it comes from in one row
     n += 1 if chart else 0
     return n
 
@@ -241,6 +244,39 @@ def zone_text(states) -> str:
     return "\n".join(lines)
 
 
+def caution_notes(t_s: float, facts, wind_m_s: float | None = None) -> str:
+    """The run's cautions the notes repeat at simulated time ``t_s`` (before events and zones).
+
+    The notes of :attr:`swingsim.render.facts.Facts.notes` whose time has come (a
+    resonance from its second repetition, the peak gust from its instant), and, before
+    the peak gust, a flag whenever the wind at the load is above the in-service limit.
+
+    Parameters
+    ----------
+    t_s : float
+        Simulated time [s].
+    facts : swingsim.render.facts.Facts or None
+        The run's facts.
+    wind_m_s : float, optional
+        The wind speed at the load at ``t_s`` [m/s].
+
+    Returns
+    -------
+    str
+        Entries one a line (the most important first); empty when there is nothing to say.
+    """
+    if facts is None:
+        return ""
+    from swingsim.render.facts import gust_note
+
+    out = [n.text for n in facts.notes if n.t_s <= t_s + 1e-9]
+    limit = facts.gust_limit_m_s
+    gust_shown = any(n.text.startswith("GUST") for n in facts.notes if n.t_s <= t_s + 1e-9)
+    if limit is not None and wind_m_s is not None and wind_m_s > limit and not gust_shown:
+        out.append(gust_note(wind_m_s, limit))
+    return "\n".join(out)
+
+
 def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
     """Near the end of a run that stopped early: when and why (the results stop there)."""
     if facts is None or facts.status == "ok" or t_s < facts.t_end_s - hold_s:
@@ -288,7 +324,8 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     -------
     FrameText
         Clock, readout (radius, slew, hook height, rope angle, load speed, hook load in t and kN,
-        rope length, wind, chart utilisation), events, zones, caution, banner, stop notice.
+        rope length, wind, chart utilisation), events, zones, caution, banner, stop notice, and
+        the run's cautions for the notes (:func:`caution_notes`).
     """
     from swingsim.render.facts import rope_angle_deg
 
@@ -303,4 +340,5 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         caution=caution_line(line_chars),
         banner=_banner_text(banner_chars) if _banner_on(video_t_s, video_len_s) else "",
         stopped=_stopped_text(t_s, facts),
+        notes=caution_notes(t_s, facts, (crane or {}).get("wind_m_s")),
     )

@@ -545,7 +545,7 @@ class Stage:
             self._readout_slot = slot
             self.shown_readout = ft.readout
         self._set("clock", ft.clock)
-        notes = "\n".join(x for x in (ft.stopped, ft.zone, ft.event) if x)
+        notes = "\n".join(x for x in (ft.stopped, ft.notes, ft.zone, ft.event) if x)
         self._set("notes", layout_mod.fit_lines(notes, self.notes_chars, self.layout.notes_lines))
         # the caution band: the full caution over the first and last seconds and on stills
         # (highlighted in the video), the short one in between
