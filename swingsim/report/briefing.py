@@ -45,6 +45,9 @@ PLOT_CAPTIONS = {
                "the load's tilt (or the leg's angle to the hoist rope).",
     "chart": "Utilisation of the rated capacity chart over time, and the lift's path on the chart "
              "(hook load as mass against radius).",
+    "response": "Frequency response at the start of the lift: the steady swing per m/s2 of suspension-point "
+                "acceleration against the forcing period, for each direction of travel; each swing mode's "
+                "period, half-power band and our resonance band marked, and the rhythm of repeated moves.",
 }
 
 #: Still kinds of the renderer (file name ``<scene>_<kind>.png``) -> caption.
@@ -123,14 +126,39 @@ class _Document:
         self.text = _Text()
         self.page = None
         self.y_in = 0.0  # cursor, from the page's top
+        #: A plot that shares a text page: (page index, figure, caption, its top from the page's top [in]).
+        self.host = None
+        self._hosted_bottom = None
 
     # -- pages -------------------------------------------------------------------
     def new_page(self, landscape: bool = False):
         w, h = self.portrait[::-1] if landscape else self.portrait
-        self.page = self.plt.figure(figsize=(w, h))
+        if self.host is not None and not landscape and len(self.pages) == self.host[0]:
+            # the page is the shared plot's own figure, the plot placed below where the text will end
+            _index, fig, _caption, top = self.host
+            self._hosted_bottom = _place_figure(fig, (w, h), (MARGIN_IN, top, w - 2 * MARGIN_IN, h))
+            self.page = fig
+        else:
+            self.page = self.plt.figure(figsize=(w, h))
         self.pages.append(self.page)
         self.y_in = TOP_IN
         return self.page
+
+    def place_hosted(self) -> None:
+        """After the text: the shared plot's caption under it (the plot was placed with its page)."""
+        if self.host is None:
+            return
+        if self._hosted_bottom is None or self.page is not self.host[1]:
+            raise RuntimeError("the shared plot's page was not the last text page")  # the two passes differ
+        self.y_in = self._hosted_bottom + 0.05
+        self.lines(self.host[2], 9.0)
+
+    def close(self) -> None:
+        """Close every page's figure without writing it (the layout probe)."""
+        for page in self.pages:
+            self.plt.close(page)
+        self.pages = []
+        self.page = None
 
     @property
     def size_in(self):
@@ -426,23 +454,136 @@ def zone_rows(zones) -> list:
     return rows
 
 
-def _fit_onto_page(fig, doc, caption):
-    """Turn a finished plot into a landscape page: the plot scaled as a whole (fonts, lines) into the text area.
+def wind_rows(d, scene) -> list:
+    """The wind-at-the-load table: rows of (quantity, value, against), as summary.txt gives them.
 
-    Its own caution line is dropped (the page's footer carries the caution).
+    Parameters
+    ----------
+    d : dict
+        The summary's data (``peak_gust_m_s``, ``peak_gust_time_s``, ``wind_limit_m_s``).
+    scene : swingsim.scene.Scene
+        The scene (its ``[wind]``).
+
+    Returns
+    -------
+    list of tuple
+        Strings; empty in still air.
+    """
+    if d.get("peak_gust_m_s") is None:
+        return []
+    w = scene.wind
+    rows = [("Mean wind", f"{w.speed_m_s:.1f} m/s {wind_words(scene)}",
+             f"at {w.reference_height_m:g} m, {w.profile} profile" if w.profile != "uniform" else "the same at every height")]
+    if w.turbulence_intensity > 0.0:
+        rows.append(("Turbulence", f"intensity {w.turbulence_intensity:g}, {w.spectrum} spectrum",
+                     f"seed {w.seed}"))
+    if w.gusts:
+        rows.append(("Discrete gusts", f"{len(w.gusts)} (1 - cosine)",
+                     ", ".join(f"+{g.peak_m_s:g} m/s at {g.start_s:g} s" for g in w.gusts)))
+    rows.append(("Peak gust at load height", f"{d['peak_gust_m_s']:.2f} m/s at t = {d['peak_gust_time_s']:.1f} s",
+                 f"in-service limit {d['wind_limit_m_s']:g} m/s (applies to gusts)"))
+    return rows
+
+
+def gust_statistic_rows(stats) -> list:
+    """The realisations table: rows of (quantity, mean, 95th percentile, largest).
+
+    Parameters
+    ----------
+    stats : dict
+        ``summary.json`` ``gust_statistics``.
+
+    Returns
+    -------
+    list of tuple
+        Strings, forces in kN and t; a zone's clearance as mean, 5th percentile and least.
+    """
+    rows = []
+    for key, label, unit, nd in (("peak_rope_angle_deg", "Peak rope angle", "deg", 1),
+                                 ("peak_excursion_m", "Peak excursion", "m", 2),
+                                 ("peak_hook_load_kN", "Peak hook load", "kN", 1)):
+        st = stats.get(key)
+        if st is None:
+            continue
+        cells = [force_text(st[k]) if unit == "kN" else f"{st[k]:.{nd}f} {unit}" for k in ("mean", "p95", "max")]
+        rows.append((label, *cells))
+    for name, st in (stats.get("zone_clearance_m") or {}).items():
+        rows.append((f"Clearance to {name}", f"{st['mean']:.2f} m", f"{st['p5']:.2f} m (5th pct)",
+                     f"{st['min']:.2f} m (least)"))
+    return rows
+
+
+def resonance_rows(d) -> list:
+    """The resonance table: rows of (mode, period, what it is, damping, peak, half-power band).
+
+    Parameters
+    ----------
+    d : dict
+        The summary's data (``response_modes``).
+
+    Returns
+    -------
+    list of tuple
+        Strings, decimals as in summary.txt.
+    """
+    rows = []
+    for m in d.get("response_modes") or []:
+        short, long_ = m["half_power_periods_s"]
+        band = (f"{short:.2f} to {long_:.2f} s ({100 * m['half_power_fraction']:.1f}%)"
+                if short is not None and long_ is not None and m["half_power_fraction"] is not None else "none")
+        peak = ("unbounded (no damping)" if m["peak_amplification"] is None
+                else f"{m['peak_amplification']:.0f} x static")
+        rows.append((str(m["mode"]), f"{m['period_s']:.2f} s", m["label"], f"{100 * m['damping_ratio']:.2f}%",
+                     peak, band))
+    return rows
+
+
+def rhythm_lines(d) -> list:
+    """One sentence per rhythm of repeated moves: in or clear of a mode's resonance band.
+
+    Parameters
+    ----------
+    d : dict
+        The summary's data (``move_rhythms``).
+
+    Returns
+    -------
+    list of str
+        The sentences.
+    """
+    out = []
+    for r in d.get("move_rhythms") or []:
+        hit = ("IN RESONANCE with mode " + ", ".join(str(k) for k in r["resonant_modes"])
+               if r["resonant_modes"] else "clear of every mode's resonance band")
+        out.append(f"The {r['axis']} moves ({r['source']}, {r['from_s']:.1f} to {r['to_s']:.1f} s) repeat every "
+                   f"{r['rhythm_s']:.2f} s: {hit}.")
+    return out
+
+
+#: Smallest scale at which a plot may share the last text page (fonts of 10 pt stay above 6.5 pt).
+MIN_SHARED_SCALE = 0.65
+#: Height kept for a plot's caption under it [in].
+CAPTION_IN = 0.55
+
+
+def _place_figure(fig, page_in, box_in) -> float:
+    """Scale a finished plot as a whole (fonts, lines, axes) into a box of a page, top-aligned.
+
+    The figure becomes the page: its size is set to ``page_in`` and its axes and texts are
+    moved into ``box_in``.  Its own caution line is dropped (the page's footer carries the caution).
+
+    Returns the plot's bottom edge from the page's top [in].
     """
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
     from matplotlib.text import Text
 
     fw, fh = fig.get_size_inches()
-    page_w, page_h = doc.portrait[::-1]
-    caption_h = 0.55
-    box_w = page_w - 2 * MARGIN_IN
-    box_h = page_h - TOP_IN - FOOTER_IN - caption_h
+    page_w, page_h = page_in
+    left, top, box_w, box_h = box_in
     scale = min(box_w / fw, box_h / fh)
-    ox = (page_w - fw * scale) / 2.0
-    oy = FOOTER_IN + caption_h + (box_h - fh * scale)  # bottom of the plot, from the page's bottom (top-aligned)
+    ox = left + (box_w - fw * scale) / 2.0
+    oy = page_h - top - fh * scale  # bottom of the plot, from the page's bottom
     for text in list(fig.texts):
         if text.get_text() == cautions.CAUTION_SHORT:
             text.remove()
@@ -473,10 +614,73 @@ def _fit_onto_page(fig, doc, caption):
     for text in fig.texts:
         text.set_position(to_page(*text.get_position()))
     fig.set_size_inches(page_w, page_h)
+    return page_h - oy
+
+
+def _fit_onto_page(fig, doc, caption):
+    """Turn a finished plot into a landscape page: the plot scaled as a whole into the text area."""
+    page_w, page_h = doc.portrait[::-1]
+    box = (MARGIN_IN, TOP_IN, page_w - 2 * MARGIN_IN, page_h - TOP_IN - FOOTER_IN - CAPTION_IN)
+    bottom = _place_figure(fig, (page_w, page_h), box)
     doc.pages.append(fig)
     doc.page = fig
-    doc.y_in = page_h - oy + 0.05  # the caption right under the plot
+    doc.y_in = bottom + 0.05  # the caption right under the plot
     doc.lines(caption, 9.0)
+
+
+def _shared_height_in(fig, doc) -> float:
+    """Height a plot takes at the text width of a portrait page, with its caption [in]; inf when too small."""
+    fw, fh = fig.get_size_inches()
+    width = doc.portrait[0] - 2 * MARGIN_IN
+    scale = width / fw
+    return fh * scale + CAPTION_IN + 0.15 if scale >= MIN_SHARED_SCALE else float("inf")
+
+
+def _write_text(doc, traj, summary, names) -> None:
+    """The text pages: title, caution, the lift, key numbers, zones, wind, resonance, cautions, limits."""
+    scene = traj.scene
+    d = summary.data
+    doc.new_page()
+    doc.lines(d["title"], 16.0, bold=True, gap_in=0.02)
+    doc.lines(f"Lift briefing sheet - swingsim {d['swingsim_version']} - scene {scene.name}", 9.0, colour=GREY,
+              gap_in=0.12)
+    doc.caution_box(cautions.CAUTION)
+    if not d["valid"]:
+        doc.caution_box("RESULT INVALID: " + d.get("invalid_reason", "the run stopped early"))
+    doc.heading("The lift")
+    doc.lines(lift_paragraph(summary, scene))
+    doc.heading("Key numbers")
+    doc.table(("quantity", "value", "compared with / what it is"), key_numbers(summary, scene, names), (3.0, 3.2, 3.2))
+    doc.lines(cautions.TONNE_FORCE_NOTE, 8.5, colour=GREY)
+    if d["zones"]:
+        doc.heading("Zones")
+        doc.table(("zone", "kind", "verdict", "closest approach"), zone_rows(d["zones"]), (2.4, 1.2, 3.0, 3.0))
+    wind = wind_rows(d, scene)
+    if wind:
+        doc.heading("Wind at the load")
+        doc.table(("quantity", "value", "compared with / what it is"), wind, (3.0, 3.2, 3.2))
+        stats = d.get("gust_statistics")
+        if stats:
+            doc.lines(f"Over {stats['realisations']} turbulence realisations (seeds {stats['seeds'][0]} to "
+                      f"{stats['seeds'][-1]}); the plots, stills and video show the worst (seed "
+                      f"{stats['worst_seed']}, largest peak swing).", 9.0)
+            doc.table(("quantity", "mean", "95th percentile", "largest"), gust_statistic_rows(stats),
+                      (2.6, 2.3, 2.3, 2.3))
+    if d.get("response_modes"):
+        doc.heading("Resonance")
+        doc.lines("Steady swing per m/s2 of suspension-point acceleration at the start of the lift (response.csv, "
+                  f"the frequency response plot); our resonance band: the half-power band widened to at least "
+                  f"+-{100 * d['resonance_band_fraction']:.0f}% of the period.", 9.0)
+        doc.table(("mode", "period", "what swings", "damping", "peak", "half-power band"), resonance_rows(d),
+                  (0.8, 1.0, 3.0, 1.1, 1.6, 2.5))
+        for line in rhythm_lines(d):
+            doc.lines(line, 9.0, bullet="-", gap_in=0.04)
+    doc.heading("Cautions")
+    for c in d["cautions"][1:] or ["No scenario warnings."]:
+        doc.lines(c, 9.0, bullet="-", gap_in=0.04)
+    doc.heading("What the model leaves out (check these against the lift plan)")
+    for limit in cautions.model_limits(scene):
+        doc.lines(limit, 9.0, bullet="-", gap_in=0.04)
 
 
 def briefing_pdf(traj, summary, *, paper: str = "a4", cols=None, stills=()) -> bytes:
@@ -504,31 +708,23 @@ def briefing_pdf(traj, summary, *, paper: str = "a4", cols=None, stills=()) -> b
 
     scene = traj.scene
     d = summary.data
-    doc = _Document(paper, d["title"])
+    names = mode_names(traj.model)
     with literal_text():
-        doc.new_page()
-        doc.lines(d["title"], 16.0, bold=True, gap_in=0.02)
-        doc.lines(f"Lift briefing sheet - swingsim {d['swingsim_version']} - scene {scene.name}", 9.0, colour=GREY,
-                  gap_in=0.12)
-        doc.caution_box(cautions.CAUTION)
-        if not d["valid"]:
-            doc.caution_box("RESULT INVALID: " + d.get("invalid_reason", "the run stopped early"))
-        doc.heading("The lift")
-        doc.lines(lift_paragraph(summary, scene))
-        doc.heading("Key numbers")
-        names = mode_names(traj.model)
-        doc.table(("quantity", "value", "compared with / what it is"), key_numbers(summary, scene, names), (3.0, 3.2, 3.2))
-        doc.lines(cautions.TONNE_FORCE_NOTE, 8.5, colour=GREY)
-        if d["zones"]:
-            doc.heading("Zones")
-            doc.table(("zone", "kind", "verdict", "closest approach"), zone_rows(d["zones"]), (2.4, 1.2, 3.0, 3.0))
-        doc.heading("Cautions")
-        for c in d["cautions"][1:] or ["No scenario warnings."]:
-            doc.lines(c, 9.0, bullet="-", gap_in=0.04)
-        doc.heading("What the model leaves out (check these against the lift plan)")
-        for limit in cautions.model_limits(scene):
-            doc.lines(limit, 9.0, bullet="-", gap_in=0.04)
         figures = draw_figures(traj, summary, cols)
+        # the first plot shares the last text page when it fits below the text at the text
+        # width (no page that holds only a few lines): measured by laying the text out once
+        probe = _Document(paper, d["title"])
+        _write_text(probe, traj, summary, names)
+        room = probe.room_in()
+        host, text_end = len(probe.pages) - 1, probe.y_in
+        probe.close()
+        first = next(iter(figures), None)
+        doc = _Document(paper, d["title"])
+        if first is not None and _shared_height_in(figures[first], doc) <= room:
+            fig = figures.pop(first)
+            doc.host = (host, fig, PLOT_CAPTIONS.get(Path(first).stem, Path(first).stem), text_end + 0.15)
+        _write_text(doc, traj, summary, names)
+        doc.place_hosted()
         for stem, fig in figures.items():
             _fit_onto_page(fig, doc, PLOT_CAPTIONS.get(stem, stem))
         stills = [Path(p) for p in stills]

@@ -27,8 +27,18 @@ def _time_plot(traj, cols):
     """A figure with one time axis, and the run's columns (sampled here when ``cols`` is None)."""
     columns = timeseries_columns(traj) if cols is None else cols
     _plt, fig = new_figure()
-    ax = fig.add_axes([0.08, 0.14, 0.88, 0.74])
+    ax = fig.add_axes([0.08, 0.14, 0.88, 0.70])  # the legend goes above the axes, off the curves
     return fig, ax, columns
+
+
+def _legend_above(ax, twin=None) -> None:
+    """The legend in rows above the axes (never over a curve), with a twin axis's lines too."""
+    handles, labels = ax.get_legend_handles_labels()
+    if twin is not None:
+        more = twin.get_legend_handles_labels()
+        handles, labels = handles + more[0], labels + more[1]
+    ax.legend(handles, labels, loc="lower left", bbox_to_anchor=(0.0, 1.01), ncol=min(3, len(labels)),
+              fontsize=8, frameon=False, borderaxespad=0.0, columnspacing=1.5)
 
 
 def _swing_figure(traj, summary, cols=None):
@@ -56,20 +66,23 @@ def _swing_figure(traj, summary, cols=None):
         ax.text(d["settled_at_s"], ax.get_ylim()[0], f" settled < {lim.settle_deg:g} deg", fontsize=8,
                 va="bottom", color=INK)
     label_axes(ax, "time [s]", "angle [deg]", "lower right")
-    _wind_axis(ax, c, d)
+    _legend_above(ax, _wind_axis(ax, c, d))
     title_and_caution(fig, f"{scene.title}: swing angle (shaded: moves)", summary)
     return fig
 
 
-def _wind_axis(ax, c, d) -> None:
-    """The wind speed at the load on a right-hand axis, with the in-service limit, when the wind varies."""
+def _wind_axis(ax, c, d):
+    """The wind speed at the load on a right-hand axis, with the in-service limit, when the wind varies.
+
+    Returns the right-hand axes (None in a steady wind).
+    """
     if not d.get("wind_varies"):
-        return
+        return None
     fig = ax.figure
     pos = ax.get_position()
     ax.set_position([pos.x0, pos.y0, pos.width - 0.04, pos.height])
     wax = ax.twinx()
-    wax.plot(c["t_s"], c["wind_speed_m_s"], color=WIND, lw=0.9, alpha=0.85)
+    wax.plot(c["t_s"], c["wind_speed_m_s"], color=WIND, lw=0.9, alpha=0.85, label="wind speed at the load")
     wax.axhline(d["wind_limit_m_s"], color=WIND, lw=1, ls="--")
     top = max(float(np.max(c["wind_speed_m_s"])), d["wind_limit_m_s"]) * 1.1
     wax.set_ylim(0.0, top)
@@ -78,6 +91,7 @@ def _wind_axis(ax, c, d) -> None:
     wax.set_ylabel("wind speed at the load [m/s]", color=WIND)
     wax.tick_params(axis="y", colors=WIND)
     fig.sca(ax)
+    return wax
 
 
 def _speed_figure(traj, summary, cols=None):
@@ -94,6 +108,7 @@ def _speed_figure(traj, summary, cols=None):
         ax.plot(t, c["hoist_speed_m_s"], color=ROPE, lw=1.2, ls="--", label="hoist (+ raising)")
     shade_moves(ax, scene, traj.motion)
     label_axes(ax, "time [s]", "speed [m/s]", "upper right")
+    _legend_above(ax)
     title_and_caution(fig, f"{scene.title}: speeds", summary)
     return fig
 
@@ -123,6 +138,7 @@ def _plan_figure(traj, summary, cols=None):
     for x, y in zip(sx[::step], sy[::step]):
         ax1.add_patch(Circle((x, y), ex, facecolor=ENVELOPE, edgecolor="none", lw=0, zorder=0))
     ax1.plot(lx[0], ly[0], "o", color=LOAD, ms=6)
+    labels = []  # (zone label, its dashed margin box): placed once the plan's scale is set
     ax1.plot(lx[-1], ly[-1], "s", color=LOAD, ms=6)
     for z, verdict in zip(scene.zones, summary["zones"]):
         col = LIMIT if z.kind == "exclusion" else GREY
@@ -137,11 +153,14 @@ def _plan_figure(traj, summary, cols=None):
         # the summary's own verdict, word for word
         state = ("ENTERED by " + ", ".join(verdict["entered_by"]) if entered
                  else "inside margin" if verdict["within_margin"] else "clear")
-        ax1.text(z.min_m[0], z.max_m[1], f"{z.name} [{state}]", fontsize=7.5, va="bottom", color=col,
-                 fontweight="bold" if entered else "normal")
+        margin_box = (z.min_m[0] - z.margin_m, z.min_m[1] - z.margin_m, z.max_m[0] + z.margin_m,
+                      z.max_m[1] + z.margin_m)
+        labels.append((ax1.text(0.0, 0.0, f"{z.name} [{state}]", fontsize=7.5, color=col,
+                                fontweight="bold" if entered else "normal"), margin_box))
     _crane_reach(ax1, scene.crane)
     ax1.set_aspect("equal", adjustable="datalim")
     label_axes(ax1, "x [m]", "y [m]", "best")
+    place_box_labels(ax1, labels)
     ax1.set_title("plan view (blue band: swing envelope)", fontsize=9)
     _site_arrows(fig, scene)
     dx, dy = lx - sx, ly - sy
@@ -159,6 +178,64 @@ def _plan_figure(traj, summary, cols=None):
     ax2.set_title("load relative to the point below the suspension point", fontsize=9)
     title_and_caution(fig, f"{scene.title}: load path", summary)
     return fig
+
+
+def place_box_labels(ax, labels, pad_pt: float = 3.0) -> None:
+    """Put each label beside its box, clear of the box's outline, the axes' edges and the other labels.
+
+    Tries above the box (left-aligned, then right-aligned), then below it, then the same
+    on two lines (the name, then the bracketed state); the first place that lies wholly
+    inside the axes and apart from the labels placed so far is kept, else the last is.
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        Axes with their limits and aspect set.
+    labels : list of tuple
+        ``(text artist, (x0, y0, x1, y1))``: the label and the box it names [data units].
+    pad_pt : float
+        Gap between the box's outline and the label [pt].
+    """
+    from matplotlib.transforms import ScaledTranslation
+
+    fig = ax.figure
+    renderer = fig.canvas.get_renderer()
+    ax.apply_aspect()
+    frame = ax.get_window_extent(renderer)
+    placed = []
+    for text, (x0, y0, x1, y1) in labels:
+        words = text.get_text()
+        name, _, state = words.rpartition(" [")
+        variants = [words] + ([f"{name}\n[{state}"] if name else [])
+        chosen = None
+        for content in variants:
+            for x, y, ha, va, dy in ((x0, y1, "left", "bottom", pad_pt), (x1, y1, "right", "bottom", pad_pt),
+                                     (x0, y0, "left", "top", -pad_pt), (x1, y0, "right", "top", -pad_pt)):
+                text.set_text(content)
+                text.set_position((x, y))
+                text.set_ha(ha)
+                text.set_va(va)
+                text.set_transform(ax.transData + ScaledTranslation(0.0, dy / 72.0, fig.dpi_scale_trans))
+                box = text.get_window_extent(renderer)
+                if chosen is None:
+                    chosen = (content, x, y, ha, va, dy)
+                gap = 2.0 * pad_pt * fig.dpi / 72.0  # kept well off the axes' edges too
+                inside = (box.x0 >= frame.x0 + gap and box.x1 <= frame.x1 - gap and box.y0 >= frame.y0 + gap
+                          and box.y1 <= frame.y1 - gap)
+                if inside and not any(box.overlaps(other) for other in placed):
+                    chosen = (content, x, y, ha, va, dy)
+                    break
+            else:
+                continue
+            break
+        content, x, y, ha, va, dy = chosen
+        text.set_text(content)
+        text.set_position((x, y))
+        text.set_ha(ha)
+        text.set_va(va)
+        text.set_transform(ax.transData + ScaledTranslation(0.0, dy / 72.0, fig.dpi_scale_trans))
+        text.set_clip_on(True)
+        placed.append(text.get_window_extent(renderer))
 
 
 def _site_arrows(fig, scene) -> None:

@@ -113,10 +113,19 @@ def shade_moves(ax, scene, motion) -> None:
         row = next((i for i, s in enumerate(starts) if prof.start_s - s > 0.2 * (x1 - x0)), len(starts))
         starts[row:row + 1] = [prof.start_s]
         rows.append(row)
-    if rows:  # room above the data for the rows of names, so no name sits on a curve
-        ymax += (ymax - ymin) * 0.07 * (max(rows) + 1)
+    if rows:  # room above the data for the rows of names (in points of the axes' height), so no
+        # name sits on a curve or on the axes' top edge
+        fig = ax.figure
+        height_pt = ax.get_position().height * fig.get_size_inches()[1] * 72.0
+        share = min(0.45, (MOVE_ROW_PT * (max(rows) + 1) + 2 * MOVE_PAD_PT) / height_pt)
+        ymax = ymin + (ymax - ymin) / (1.0 - share)
         ax.set_ylim(ymin, ymax)
     for ((_axis, prof), m), row in zip(zip(motion.moves, scene.moves), rows):
         ax.axvspan(prof.start_s, prof.end_s, color=MOVE_BAND, alpha=0.45, lw=0, zorder=0)
-        ax.annotate(" " + m.name, (prof.start_s, ymax), xytext=(0, -10 * row), textcoords="offset points",
-                    fontsize=7.5, va="top", ha="left", color=INK, annotation_clip=True)
+        ax.annotate(m.name, (prof.start_s, ymax), xytext=(2, -MOVE_PAD_PT - MOVE_ROW_PT * row),
+                    textcoords="offset points", fontsize=7.5, va="top", ha="left", color=INK,
+                    annotation_clip=True)
+
+
+#: A row of move names [pt] (7.5 pt text with its leading) and the gap under the axes' top edge [pt].
+MOVE_ROW_PT, MOVE_PAD_PT = 10.0, 3.0
