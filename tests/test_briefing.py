@@ -185,3 +185,77 @@ def test_point_mass_and_rigid_load_modes():
     assert sorted(names[:2]) == ["load swings on the rope, along x", "load swings on the rope, along y"]
     assert sorted(names[2:]) == ["load rocks end to end on its slings", "load tilts about its long axis"]
     assert all(math.isfinite(p) for p in model.mode_periods_s())
+
+
+# -- resonance, gusts, no near-empty page ------------------------------------------------------
+
+def _run_scene(folder, text=None, path=None):
+    out = folder / "out"
+    if text is not None:
+        path = folder / "s.toml"
+        path.write_text(text)
+    assert main(["run", str(path), "--out", str(out), "--quiet", "--no-plots"]) == 0
+    return out
+
+
+def test_briefing_gives_the_resonance_of_the_inching_scene(tmp_path):
+    from pathlib import Path
+
+    out = _run_scene(tmp_path, path=Path(__file__).resolve().parents[1] / "scenes" / "inching_resonance.toml")
+    text = _words(_poppler("pdftotext", str(out / "briefing.pdf"), "-"))
+    summary = json.loads((out / "summary.json").read_text())
+    # the summary's resonance caution, word for word
+    caution = [c for c in summary["cautions"] if "resonance" in c]
+    assert caution and _words(caution[0]) in text
+    # the modes' sharpness as summary.json has it (summary.txt's decimals)
+    assert "Resonance" in text
+    for m in summary["response_modes"]:
+        short, long_ = m["half_power_periods_s"]
+        assert f"{m['period_s']:.2f} s {m['label']} {100 * m['damping_ratio']:.2f}%" in text
+        assert f"{m['peak_amplification']:.0f} x static" in text
+        assert f"{short:.2f} to {long_:.2f} s ({100 * m['half_power_fraction']:.1f}%)" in text
+    # the rhythm of the inching, in resonance, and the frequency response plot with its caption
+    rhythm = summary["move_rhythms"][0]
+    assert f"repeat every {rhythm['rhythm_s']:.2f} s: IN RESONANCE with mode 1" in text
+    assert "Frequency response at the start of the lift" in text
+
+
+GUSTY = GOOD.replace('title = "t"', 'title = "gusty"').replace("duration_s = 30.0", "duration_s = 20.0") + """
+[wind]
+speed_m_s = 8.0
+turbulence_intensity = 0.15
+spectrum = "kaimal"
+seed = 3
+realisations = 3
+"""
+
+
+def test_briefing_gives_the_gust_statistics(tmp_path):
+    out = _run_scene(tmp_path, GUSTY)
+    text = _words(_poppler("pdftotext", str(out / "briefing.pdf"), "-"))
+    summary = json.loads((out / "summary.json").read_text())
+    stats = summary["gust_statistics"]
+    assert "Wind at the load" in text
+    assert f"Peak gust at load height {summary['peak_gust_m_s']:.2f} m/s" in text
+    assert f"Over {stats['realisations']} turbulence realisations" in text
+    st = stats["peak_rope_angle_deg"]
+    assert f"Peak rope angle {st['mean']:.1f} deg {st['p95']:.1f} deg {st['max']:.1f} deg" in text
+    # the 95th percentile lies between the mean and the largest (definition of a percentile)
+    assert st["mean"] <= st["p95"] + 1e-12 and st["p95"] <= st["max"] + 1e-12
+    hook = stats["peak_hook_load_kN"]
+    assert f"{hook['max']:.1f} kN ({newton_to_tonnes_force(1e3 * hook['max']):.2f} t)" in text
+
+
+def test_no_page_but_the_last_is_nearly_empty(demo_run, tmp_path):
+    import matplotlib.image
+
+    # a page whose ink ends in its top third (a few lines spilled over) is a near-empty page:
+    # our rule; the footer strip (the bottom 0.75 in of 11.7 in) is left out of the count
+    _poppler("pdftoppm", "-png", "-r", "30", str(demo_run / "briefing.pdf"), str(tmp_path / "p"))
+    pages = sorted(tmp_path.glob("p-*.png"))
+    for page in pages[:-1]:
+        pixels = matplotlib.image.imread(str(page))[..., :3]
+        h = pixels.shape[0]
+        body = pixels[: int(h * (1 - 0.75 / 8.27 if pixels.shape[1] > h else 1 - 0.75 / 11.69))]
+        rows = np.nonzero((body.min(axis=-1) < 0.9).any(axis=1))[0]
+        assert rows.size and rows.max() > h / 3, page.name

@@ -57,6 +57,10 @@ def _texture(image: np.ndarray) -> pv.Texture:
     return tex
 
 
+#: Least gap between two labels on a view [output px].
+LABEL_GAP_PX = 3
+
+
 class Stage:
     """A posed, photographable scene of one run.
 
@@ -210,8 +214,9 @@ class Stage:
         self.trail_t, self.trail_xyz = self.scene3d.path_t_s, self.scene3d.path_load_m
         half = 0.5 * np.asarray(self.lay.load_size_m, dtype=float)
         self._load_corners = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)]) * half
-        rank = {"obstacle": 0, "exclusion": 0, "axis": 1, "axis_x": 1, "axis_y": 1}
-        self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][2], 2))
+        # zones first, then the wind (its speed and bearing are news), the arrows, the grid
+        rank = {"obstacle": 0, "exclusion": 0, "wind": 1, "axis": 2, "axis_x": 2, "axis_y": 2}
+        self._label_order = sorted(range(len(self.labels)), key=lambda k: rank.get(self.labels[k][2], 3))
         # moving bodies, each with its actors (a spreader has its beam and its centre line)
         self.moving = {name: [a for a in self.actors[name] if a is not None]
                        for name, body in bodies.items() if body.moves}
@@ -273,10 +278,18 @@ class Stage:
             corners = self.project(load_xyz[None] + self._load_corners, view_index)
             lo, hi = corners.min(axis=0), corners.max(axis=0)
             load_box = layout_mod.Box(lo[0] - 2, lo[1] - 2, hi[0] + 2, hi[1] + 2)
+        keep_off = [] if load_box is None else [load_box]
+        if getattr(self, "_wind_ends", None) is not None:  # the wind arrow stays visible
+            ends = self.project(self._wind_ends, view_index)
+            if np.all(np.isfinite(ends)):
+                lo, hi = ends.min(axis=0), ends.max(axis=0)
+                keep_off.append(layout_mod.Box(lo[0] - 3, lo[1] - 3, hi[0] + 3, hi[1] + 3))
         px = self.project(pts, view_index)
-        taken, shown = [], []
+        taken, shown, said = [], [], set()
         for k in self._label_order:
-            _pos, img, role, _text, _sticker = self.labels[k]
+            _pos, img, role, text, _sticker = self.labels[k]
+            if role == "wind" and text in said:  # the wind's label has places to choose from: shown once
+                continue
             c, r = px[k]
             half_w, half_h = 0.5 * img.shape[1] / self.ss, 0.5 * img.shape[0] / self.ss
             if not (np.isfinite(c) and np.isfinite(r)) or 2 * half_w > box.width or 2 * half_h > box.height:
@@ -285,12 +298,14 @@ class Stage:
                 c += min(0.0, box.x1 - (c + half_w)) + max(0.0, box.x0 - (c - half_w))
                 r += min(0.0, box.y1 - (r + half_h)) + max(0.0, box.y0 - (r - half_h))
             lb = layout_mod.Box(c - half_w, r - half_h, c + half_w, r + half_h)
-            if not lb.inside(box) or (load_box is not None and lb.intersects(load_box)):
+            if not lb.inside(box) or any(lb.intersects(o) for o in keep_off):
                 continue
-            if any(lb.intersects(o) for o in taken):
+            gap = LABEL_GAP_PX  # labels never touch: a word run into the next one reads as one
+            if any(layout_mod.Box(lb.x0 - gap, lb.y0 - gap, lb.x1 + gap, lb.y1 + gap).intersects(o) for o in taken):
                 continue
             taken.append(lb)
             shown.append((k, lb))
+            said.add(text)
         return shown
 
     def _site_arrows(self, axis_mesh):
@@ -324,17 +339,22 @@ class Stage:
             self._ground_marks.extend([at - 0.6 * length * w, at + 0.6 * length * w,
                                        at + np.array([0.0, -0.75 * length, 0.0])])
             mean = "mean wind" if self._wind_varies else "wind"
-            self._label(at + np.array([0.0, -0.75 * length, 0.0]),
-                        f"{mean} {scene.wind.speed_m_s:g} m/s from {compass_point(scene_wind_from_bearing_deg(scene))}",
-                        size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True, role="axis")
-            self._wind_arrow = (actor, at, max(scene.wind.speed_m_s, 1.0))
+            words = f"{mean} {scene.wind.speed_m_s:.1f} m/s from {compass_point(scene_wind_from_bearing_deg(scene))}"
+            # one label, at the first of these places beside the arrow where it fits (_place_labels)
+            for side in ((0.0, -1.0), (0.0, 1.0), (-1.0, 0.0), (1.0, 0.0), (0.0, -1.6), (-1.6, 0.0), (-1.2, -1.2)):
+                self._label(at + np.array([side[0], side[1], 0.0]) * length, words,
+                            size=LABEL_STYLE["axis_x"][1], colour=PALETTE["wind"], bold=True, role="wind")
+            self._wind_arrow = (actor, at, max(scene.wind.speed_m_s, 1.0), length)
             self._set_wind_arrow(toward, scene.wind.speed_m_s)
 
     def _set_wind_arrow(self, toward_rad: float, speed_m_s: float) -> None:
         """Turn the wind arrow toward ``toward_rad`` [rad] and scale it with the speed [m/s]."""
-        actor, at, ref = self._wind_arrow
+        actor, at, ref, length = self._wind_arrow
         k = min(max(speed_m_s / ref, 0.25), 1.8)
         c, s_ = math.cos(toward_rad), math.sin(toward_rad)
+        # its tail and tip (built from -length/2 to +length/2 along +x): labels keep off it
+        self._wind_ends = np.array([at - 0.5 * k * length * np.array([c, s_, 0.0]),
+                                    at + 0.5 * k * length * np.array([c, s_, 0.0])])
         m = np.array([[c * k, -s_ * k, 0.0, at[0]], [s_ * k, c * k, 0.0, at[1]], [0.0, 0.0, k, at[2]],
                       [0.0, 0.0, 0.0, 1.0]])
         actor.user_matrix = m
