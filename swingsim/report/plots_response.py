@@ -62,6 +62,17 @@ def response_csv(traj) -> str:
     return buf.getvalue()
 
 
+def _room_above_curves(ax, box, peak) -> None:
+    """Raise a log y-axis's top so the curves' peak (and its mode number) stays below the text box."""
+    renderer = ax.figure.canvas.get_renderer()
+    share = box.get_window_extent(renderer).height / ax.get_window_extent(renderer).height
+    low, high = ax.get_ylim()
+    room = 1.0 - 0.02 - share - 0.1  # the box's top margin, the box, the mode numbers above the peak
+    if room > 0.2 and peak > low:
+        top = math.exp(math.log(low) + (math.log(peak) - math.log(low)) / room)
+        ax.set_ylim(low, max(high, top))
+
+
 def response_figure(traj, summary, cols=None):
     """response.png: resonance curves of the hoist rope's swing, modes and the moves' rhythms marked.
 
@@ -106,7 +117,6 @@ def response_figure(traj, summary, cols=None):
                label=f"steady push: {math.degrees(1.0 / g):.2f} deg per m/s2 (atan(a/g), small a)")
     ax.set_xscale("log")
     ax.set_yscale("log")
-    top = ax.get_ylim()[1]
     lines = []
     for m in d.get("response_modes", []):
         lo, hi = m["resonance_band_s"]
@@ -115,8 +125,9 @@ def response_figure(traj, summary, cols=None):
         if short is not None and long_ is not None:
             ax.axvspan(short, long_, color=MOVE_BAND, alpha=0.9, lw=0, zorder=0)
         ax.axvline(m["period_s"], color=INK, lw=0.8, ls="--")
-        ax.annotate(f"{m['mode']}", (m["period_s"], top), xytext=(2, -2 - 9 * ((m["mode"] - 1) % 2)),
-                    textcoords="offset points", fontsize=8, va="top", ha="left", color=INK, weight="bold")
+        at = max(float(np.interp(m["period_s"], T, c)) for c in curves.values())  # the mode's peak
+        ax.annotate(f"{m['mode']}", (m["period_s"], at), xytext=(3, 2 + 9 * ((m["mode"] - 1) % 2)),
+                    textcoords="offset points", fontsize=8, va="bottom", ha="left", color=INK, weight="bold")
         amp = ("no damping: unbounded" if m["peak_amplification"] is None
                else f"peak x{m['peak_amplification']:.0f} the static swing")
         lines.append(f"{m['mode']}: {m['label']}, {m['period_s']:.2f} s, {amp}")
@@ -129,8 +140,10 @@ def response_figure(traj, summary, cols=None):
     label_axes(ax, "forcing period [s]", "swing amplitude [deg per m/s2]", "lower right")
     band = 100 * d.get("resonance_band_fraction", 0.15)
     lines.append(f"shaded: half-power band (dark), resonance band (light: at least +-{band:.0f}%, our rule)")
-    ax.text(0.01, 0.98, "Swing modes\n" + "\n".join(lines), transform=ax.transAxes, fontsize=7.5, va="top",
-            ha="left", color=INK, bbox={"facecolor": "white", "edgecolor": GREY, "alpha": 0.9, "pad": 3})
+    box = ax.text(0.01, 0.98, "Swing modes\n" + "\n".join(lines), transform=ax.transAxes, fontsize=7.5,
+                  va="top", ha="left", color=INK, bbox={"facecolor": "white", "edgecolor": GREY, "alpha": 0.9,
+                                                        "pad": 3})
+    _room_above_curves(ax, box, max(float(np.max(c)) for c in curves.values()))
     if others:
         ax.set_xlabel("")
         ax2 = fig.add_axes([0.08, 0.1, 0.88, 0.2], sharex=ax)
