@@ -216,7 +216,8 @@ def test_briefing_gives_the_resonance_of_the_inching_scene(tmp_path):
         assert f"{short:.2f} to {long_:.2f} s ({100 * m['half_power_fraction']:.1f}%)" in text
     # the rhythm of the inching, in resonance, and the frequency response plot with its caption
     rhythm = summary["move_rhythms"][0]
-    assert f"repeat every {rhythm['rhythm_s']:.2f} s: IN RESONANCE with mode 1" in text
+    assert f"Rhythm of the radius moves (repeated moves, {rhythm['from_s']:.1f} to {rhythm['to_s']:.1f} s) " \
+           f"{rhythm['rhythm_s']:.2f} s: IN RESONANCE with mode 1" in text
     assert "Frequency response at the start of the lift" in text
 
 

@@ -25,6 +25,7 @@ from swingsim.metrics import cautions
 from swingsim.metrics.cautions import force_text
 from swingsim.metrics.modes import mode_names
 from swingsim.report.style import GREY, INK, LIMIT, literal_text
+from swingsim.report.tables import half_power_text, peak_text, rhythm_sentences
 from swingsim.scene.site import wind_words
 
 #: Paper sizes [in] (portrait): ISO 216 A4 (210 x 297 mm) and US Letter (8.5 x 11 in).
@@ -526,38 +527,8 @@ def resonance_rows(d) -> list:
     list of tuple
         Strings, decimals as in summary.txt.
     """
-    rows = []
-    for m in d.get("response_modes") or []:
-        short, long_ = m["half_power_periods_s"]
-        band = (f"{short:.2f} to {long_:.2f} s ({100 * m['half_power_fraction']:.1f}%)"
-                if short is not None and long_ is not None and m["half_power_fraction"] is not None else "none")
-        peak = ("unbounded (no damping)" if m["peak_amplification"] is None
-                else f"{m['peak_amplification']:.0f} x static")
-        rows.append((str(m["mode"]), f"{m['period_s']:.2f} s", m["label"], f"{100 * m['damping_ratio']:.2f}%",
-                     peak, band))
-    return rows
-
-
-def rhythm_lines(d) -> list:
-    """One sentence per rhythm of repeated moves: in or clear of a mode's resonance band.
-
-    Parameters
-    ----------
-    d : dict
-        The summary's data (``move_rhythms``).
-
-    Returns
-    -------
-    list of str
-        The sentences.
-    """
-    out = []
-    for r in d.get("move_rhythms") or []:
-        hit = ("IN RESONANCE with mode " + ", ".join(str(k) for k in r["resonant_modes"])
-               if r["resonant_modes"] else "clear of every mode's resonance band")
-        out.append(f"The {r['axis']} moves ({r['source']}, {r['from_s']:.1f} to {r['to_s']:.1f} s) repeat every "
-                   f"{r['rhythm_s']:.2f} s: {hit}.")
-    return out
+    return [(str(m["mode"]), f"{m['period_s']:.2f} s", m["label"], f"{100 * m['damping_ratio']:.2f}%",
+             peak_text(m), half_power_text(m)) for m in d.get("response_modes") or []]
 
 
 #: Smallest scale at which a plot may share the last text page (fonts of 10 pt stay above 6.5 pt).
@@ -673,8 +644,8 @@ def _write_text(doc, traj, summary, names) -> None:
                   f"+-{100 * d['resonance_band_fraction']:.0f}% of the period.", 9.0)
         doc.table(("mode", "period", "what swings", "damping", "peak", "half-power band"), resonance_rows(d),
                   (0.8, 1.0, 3.0, 1.1, 1.6, 2.5))
-        for line in rhythm_lines(d):
-            doc.lines(line, 9.0, bullet="-", gap_in=0.04)
+        for line in rhythm_sentences(d):
+            doc.lines(line + ".", 9.0, bullet="-", gap_in=0.04)
     doc.heading("Cautions")
     for c in d["cautions"][1:] or ["No scenario warnings."]:
         doc.lines(c, 9.0, bullet="-", gap_in=0.04)

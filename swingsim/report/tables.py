@@ -180,6 +180,65 @@ def _chart_lines(d: dict) -> list:
     return w
 
 
+def peak_text(mode: dict) -> str:
+    """A swing mode's peak amplification in words ("50 x static"), as summary.txt and the briefing give it.
+
+    Parameters
+    ----------
+    mode : dict
+        An entry of ``response_modes`` (:func:`swingsim.metrics.resonance.resonance_metrics`).
+
+    Returns
+    -------
+    str
+        The steady swing at resonance over the static swing, or "unbounded (no damping)".
+    """
+    if mode["peak_amplification"] is None:
+        return "unbounded (no damping)"
+    return f"{mode['peak_amplification']:.0f} x static"
+
+
+def half_power_text(mode: dict) -> str:
+    """A swing mode's half-power band in words ("4.87 to 4.97 s (2.0%)").
+
+    Parameters
+    ----------
+    mode : dict
+        An entry of ``response_modes``: ``half_power_periods_s`` [s] and ``half_power_fraction`` [-].
+
+    Returns
+    -------
+    str
+        The band's periods and its width over the mode's period, or "none".
+    """
+    short, long_ = mode["half_power_periods_s"]
+    if short is None or long_ is None or mode["half_power_fraction"] is None:
+        return "none"
+    return f"{short:.2f} to {long_:.2f} s ({100 * mode['half_power_fraction']:.1f}%)"
+
+
+def rhythm_sentences(d: dict) -> list:
+    """One sentence per rhythm of repeated moves or a recorded input: in or clear of a mode's band.
+
+    Parameters
+    ----------
+    d : dict
+        The summary's data (``move_rhythms``).
+
+    Returns
+    -------
+    list of str
+        E.g. ``Rhythm of the radius moves (repeated moves, 2.0 to 21.1 s) 5.00 s: IN RESONANCE with mode 1``.
+    """
+    out = []
+    for r in d.get("move_rhythms") or []:
+        hit = ("IN RESONANCE with mode " + ", ".join(str(k) for k in r["resonant_modes"])
+               if r["resonant_modes"] else "clear of every mode's band")
+        out.append(f"Rhythm of the {r['axis']} moves ({r['source']}, {r['from_s']:.1f} to {r['to_s']:.1f} s) "
+                   f"{r['rhythm_s']:.2f} s: {hit}")
+    return out
+
+
 def _resonance_lines(d: dict) -> list:
     """The "Resonance" section: each mode's sharpness and the moves' rhythms (response.csv, response.png)."""
     modes = d.get("response_modes") or []
@@ -188,19 +247,13 @@ def _resonance_lines(d: dict) -> list:
     w = ["", f"Resonance (steady swing per m/s2 of suspension-point acceleration: response.csv, response.png; "
              f"band: half-power band widened to +-{100 * d['resonance_band_fraction']:.0f}%, our rule)"]
     for m in modes:
-        amp = ("unbounded (no damping)" if m["peak_amplification"] is None
-               else f"peak {m['peak_amplification']:.0f} x static")
-        short, long_ = m["half_power_periods_s"]
-        band = (f"half-power {short:.2f} to {long_:.2f} s ({100 * m['half_power_fraction']:.1f}%)"
-                if short is not None and long_ is not None and m["half_power_fraction"] is not None
-                else "no half-power band")
+        amp = peak_text(m)
+        amp = amp if amp.startswith("unbounded") else "peak " + amp
+        band = half_power_text(m)
+        band = "no half-power band" if band == "none" else "half-power " + band
         w.append(f"  Mode {m['mode']} {m['period_s']:7.3f} s  {m['label']}: damping {100 * m['damping_ratio']:.2f}%, "
                  f"{amp}, {band}")
-    for r in d.get("move_rhythms") or []:
-        hit = ("IN RESONANCE with mode " + ", ".join(str(k) for k in r["resonant_modes"])
-               if r["resonant_modes"] else "clear of every mode's band")
-        w.append(f"  Rhythm of the {r['axis']} moves ({r['source']}, {r['from_s']:.1f} to {r['to_s']:.1f} s) "
-                 f"{r['rhythm_s']:.2f} s: {hit}")
+    w.extend("  " + line for line in rhythm_sentences(d))
     return w
 
 
