@@ -188,23 +188,32 @@ def sample(run: IntegratedChunk, sel, samples_per_step: int) -> DenseSamples:
     Y = np.ascontiguousarray(run.states[:, :, sel].transpose(2, 1, 0))       # (b, 4, N+1)
     A0 = np.ascontiguousarray(run.accel_start[:, :, sel].transpose(2, 1, 0))  # (b, 2, N)
     A1 = np.ascontiguousarray(run.accel_end[:, :, sel].transpose(2, 1, 0))
-    out = []
     h2 = h[..., 0]
-    hs = np.where(h2 > 0, h2, 1.0)[..., None]
+    hs = np.where(h2 > 0, h2, 1.0)
     hh = h2 * h2
+    moving = h2 > 0
+    N = h2.shape[1]
+    out = []
     for q in (0, 1):
         b0 = Y[:, q + 2, :-1]
-        coefs = np.stack([Y[:, q, :-1], h2 * b0, hh * A0[:, q],
-                          Y[:, q, 1:], h2 * Y[:, q + 2, 1:], hh * A1[:, q]], axis=-1)
+        coefs = (Y[:, q, :-1], h2 * b0, hh * A0[:, q], Y[:, q, 1:], h2 * Y[:, q + 2, 1:], hh * A1[:, q])
+        val = np.empty((Bs, N * S + 1))
+        der = np.empty((Bs, N * S + 1))
+        val_s = val[:, :-1].reshape(Bs, N, S)
+        der_s = der[:, :-1].reshape(Bs, N, S)
+        # one fraction at a time on contiguous (b, N) arrays, the basis weights as scalars;
         # explicit sums (not matmul/BLAS): the same rounding for every element
-        val = coefs[..., 0, None] * H[0]
-        der = coefs[..., 0, None] * dH[0]
-        for m in range(1, 6):
-            val = val + coefs[..., m, None] * H[m]
-            der = der + coefs[..., m, None] * dH[m]
-        der = np.where(h > 0, der / hs, b0[..., None])
-        out.append(np.concatenate([val.reshape(Bs, -1), Y[:, q, -1:]], axis=1))
-        out.append(np.concatenate([der.reshape(Bs, -1), Y[:, q + 2, -1:]], axis=1))
+        for j in range(S):
+            vj = coefs[0] * H[0, j]
+            dj = coefs[0] * dH[0, j]
+            for m in range(1, 6):
+                vj = vj + coefs[m] * H[m, j]
+                dj = dj + coefs[m] * dH[m, j]
+            val_s[..., j] = vj
+            der_s[..., j] = np.where(moving, dj / hs, b0)
+        val[:, -1] = Y[:, q, -1]
+        der[:, -1] = Y[:, q + 2, -1]
+        out.extend((val, der))
     u, du, v, dv = out
     ts = np.concatenate([(tg[:, :-1, None] + frac * h).reshape(Bs, -1), tg[:, -1:]], axis=1)
     # kinematics at the samples, on each step's own segment
