@@ -99,28 +99,34 @@ def refine_peak_sq(run: IntegratedChunk, rows, t0, iterations=6):
         The integrated chunk.
     rows : ndarray of int
         Rows of the chunk to refine.
-    t0 : ndarray (len(rows),)
-        Starting times [s].
+    t0 : ndarray (len(rows),) or (len(rows), K)
+        Starting times, one or K per row [s] (K candidates refined in one pass).
     iterations : int
         Newton steps.
 
     Returns
     -------
     tuple of ndarray
-        ``(time_s, horizontal_sq)``: where the iteration ended [s] and
-        :math:`|n_h|^2` there [-] (-inf where the step has zero length or the
+        ``(time_s, horizontal_sq)``, shaped like ``t0``: where the iteration ended [s]
+        and :math:`|n_h|^2` there [-] (-inf where the step has zero length or the
         state is not finite).
     """
+    t0 = np.asarray(t0, dtype=float)
+    flat = t0.ndim == 1
+    if flat:
+        t0 = t0[:, None]
     tg = run.step_times[rows]
     B, N1 = tg.shape
-    r = np.arange(B)
+    r = np.arange(B)[:, None]
     t_end = tg[:, -1]
-    k = np.minimum(np.sum(tg[:, 1:] <= t0[:, None], axis=1), np.sum(tg[:, 1:] < t_end[:, None], axis=1))
+    k = np.minimum(np.sum(tg[:, None, 1:] <= t0[..., None], axis=2),
+                   np.sum(tg[:, 1:] < t_end[:, None], axis=1)[:, None])
     k = np.clip(k, 0, N1 - 2)
     ta = tg[r, k]
     h = tg[r, k + 1] - ta
     hs = np.where(h > 0, h, 1.0)
     Y, A0, A1 = run.states, run.accel_start, run.accel_end
+    rows = np.asarray(rows)[:, None]
     polys = []
     for q in (0, 1):
         c = (Y[k, q, rows], h * Y[k, q + 2, rows], h * h * A0[k, q, rows],
@@ -157,7 +163,8 @@ def refine_peak_sq(run: IntegratedChunk, rows, t0, iterations=6):
         u = ev(polys[0], s)[0]
         v = ev(polys[1], s)[0]
     good = (h > 0) & np.isfinite(u) & np.isfinite(v)
-    return ta + s * h, np.where(good, u * u + v * v, -np.inf)
+    t_out, x_out = ta + s * h, np.where(good, u * u + v * v, -np.inf)
+    return (t_out[:, 0], x_out[:, 0]) if flat else (t_out, x_out)
 
 
 def sample(run: IntegratedChunk, sel, samples_per_step: int) -> DenseSamples:

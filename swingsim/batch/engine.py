@@ -379,7 +379,7 @@ def _facts(vs) -> VariantFacts:
 
 
 #: Rows of a chunk measured together (bounds the memory of the dense samples).
-_MEASURE_ROWS = 128
+_MEASURE_ROWS = 256
 
 
 def _chunk_batch(variants, samples_per_step):
