@@ -21,8 +21,9 @@ values, 5-35 m) x acceleration (20 values, 0.1-1.0 m/s^2) x speed (20 values,
 
 Prints both timings (wall and CPU), the ratios (target >= 50, aim 100), the
 largest differences of the peak and residual rope angles between the
-comparison's table and the loop (target <= 0.01 deg), a profile summary of
-the comparison (cProfile, in-process: where the time goes) and the remaining
+comparison's table and the loop (target <= 0.01 deg), the CPU time of each
+phase (imports, loading, engine with the CSV, report, and the report's figure
+drawing on its own), a cProfile top-15 of the command and the remaining
 limit.  ``--memory`` also runs a 100,000-variant sweep (``--allow-implausible``)
 in a fresh interpreter and prints its peak resident memory (target < 2 GB)
 and the table's size.
@@ -81,6 +82,18 @@ sensitivity = false
 "moves.0.accel_m_s2" = {{ from = 0.1, to = 1.0, count = {n_a} }}
 "moves.0.speed_m_s" = {{ from = 0.5, to = 2.0, count = {n_v} }}
 """
+
+
+REMAINING_LIMIT = """remaining limit (what 100x would need): the run is now about a third fixed cost and two thirds
+numpy work.  Fixed: the interpreter and imports (numpy, swingsim, then matplotlib for the report:
+about 1 s CPU) and the report's four figures (matplotlib builds every tick, label and line as a
+Python object: about 0.5 s whatever the number of variants).  Variable: the engine's fixed-step
+DOP853 (13 right-hand sides per step, each some 80 numpy operations on arrays of one chunk, so
+Python's per-operation overhead is about half of it), then the dense samples and the measuring.
+100x (about 3 s CPU here) would need the right-hand side and the stage sums compiled into one
+loop per variant (a few operations per step instead of ~1,000 array calls) and the figures drawn
+without matplotlib's object model; fewer steps per period would cut the engine proportionally but
+the 60 deg swings of tests/test_batch.py leave no accuracy margin for that."""
 
 
 def write_study(folder: Path, n_l=25, n_a=20, n_v=20) -> Path:
@@ -148,7 +161,7 @@ def phases(sweep: Path, out: Path):
 
     import matplotlib.figure  # noqa: F401  (the report's first import, timed apart)
 
-    spent = {"imports (swingsim, numpy, scipy, matplotlib)": c() - t0}
+    spent = {"imports (swingsim, numpy, matplotlib; scipy is not needed)": c() - t0}
 
     def timed(name, fn):
         def run(*a, **kw):
@@ -160,8 +173,11 @@ def phases(sweep: Path, out: Path):
         return run
 
     real_run, real_html, real_rank = cmp.run_chunks, html.comparison_html, cmp.rank
+    real_heat, real_qty = html.heatmap_figure, html.quantity_figure
     cmp.run_chunks = timed("batch engine (prepare, integrate, measure) + streamed CSV rows", real_run)
-    html.comparison_html = timed("report.html (4 figures, tables)", real_html)
+    html.comparison_html = timed("report.html (figures and tables)", real_html)
+    html.heatmap_figure = timed("  of which drawing the figures (heat map + one per varied key, PNG)", real_heat)
+    html.quantity_figure = timed("  of which drawing the figures (heat map + one per varied key, PNG)", real_qty)
     cmp.rank = timed("ranking", real_rank)
     try:
         t = c()
@@ -172,39 +188,42 @@ def phases(sweep: Path, out: Path):
         total = c() - t
     finally:
         cmp.run_chunks, html.comparison_html, cmp.rank = real_run, real_html, real_rank
-    inner = sum(v for k, v in spent.items() if not k.startswith(("imports", "load")))
+        html.heatmap_figure, html.quantity_figure = real_heat, real_qty
+    inner = sum(v for k, v in spent.items() if not k.startswith(("imports", "load", "  ")))
     spent["the rest (ranking.csv, folder handling)"] = total - inner
     return spent
 
 
-def profile_engine(sweep: Path, top=10):
-    """cProfile of the batch engine alone: its top entries by own time."""
-    from swingsim.batch import engine
-    from swingsim.study.variants import load_sweep
-
-    sw = load_sweep(sweep)
-    rows = list(range(min(sw.table.n, 2048)))
-    prof = cProfile.Profile()
-    prof.enable()
-    engine.run_table_chunk(sw.table, rows)
-    prof.disable()
+def profile_command(sweep: Path, out: Path, top=15):
+    """cProfile of ``swingsim compare`` in a fresh interpreter (imports included): the top entries by own time."""
+    stats = out.parent / "compare.prof"
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    subprocess.run([sys.executable, "-m", "cProfile", "-o", str(stats), "-m", "swingsim", "compare", str(sweep),
+                    "--out", str(out), "--force", "--no-sensitivity", "--quiet"], env=env, check=True,
+                   capture_output=True)
     buf = io.StringIO()
-    pstats.Stats(prof, stream=buf).sort_stats("tottime").print_stats(top)
-    return buf.getvalue()
+    pstats.Stats(str(stats), stream=buf).strip_dirs().sort_stats("tottime").print_stats(top)
+    text = buf.getvalue()
+    return text[text.index("   ncalls"):] if "   ncalls" in text else text
 
 
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     ap.add_argument("--loop", type=int, default=300, help="variants of the loop's random subsample")
     ap.add_argument("--memory", action="store_true", help="also run the 100,000-variant sweep")
-    ap.add_argument("--no-profile", action="store_true")
+    ap.add_argument("--no-profile", action="store_true", help="skip the phases and the profile")
     a = ap.parse_args(argv)
     with tempfile.TemporaryDirectory(prefix="bench-compare-") as tmp:
         tmp = Path(tmp)
+        # an installed package has its bytecode compiled (pip does it); a checkout may not (e.g. with
+        # PYTHONDONTWRITEBYTECODE set), and compiling ~150 modules would be timed with the command
+        subprocess.run([sys.executable, "-m", "compileall", "-q", str(ROOT / "swingsim")], check=True)
         sweep = write_study(tmp / "s10k")
         n = 25 * 20 * 20
         print(f"{n} variants, 60 s each, point-mass load, one trapezoid trolley move "
-              f"(rope length x acceleration x speed)")
+              f"(rope length x acceleration x speed); swingsim's bytecode compiled first, as installed")
+        print("machine load (1, 5, 15 min) at the start: " + ", ".join(f"{x:.2f}" for x in os.getloadavg())
+              + f" on {os.cpu_count()} CPUs (CPU-time ratios are steadier than wall-clock ones on a shared machine)")
         wall_c, cpu_c, rss = run_compare(sweep, tmp / "out")
         print(f"swingsim compare (end to end, report included): {wall_c:7.2f} s wall, {cpu_c:7.2f} s CPU, "
               f"peak RSS {rss:.0f} MB")
@@ -239,12 +258,10 @@ def main(argv=None) -> int:
             print("\nwhere the time goes (CPU seconds of each phase, the comparison run again in this process):")
             for name, sec in phases(sweep, tmp / "prof").items():
                 print(f"  {sec:6.2f} s  {name}")
-            print("\nthe batch engine on one chunk of 2048 variants (cProfile, top entries by own time):")
-            print(profile_engine(sweep))
-            print("remaining limit: the engine is numpy-bound (13 right-hand sides per fixed step on arrays of "
-                  "one chunk, then the dense samples and the peak refinement); a Python interpreter start and "
-                  "the imports, and matplotlib's text drawing for the report, are fixed costs of about 2 s "
-                  "that do not shrink with the number of variants.")
+            print("\nswingsim compare under cProfile (fresh interpreter, top 15 by own time; the profiler "
+                  "slows small calls most):")
+            print(profile_command(sweep, tmp / "prof-cli"))
+            print(REMAINING_LIMIT)
         if a.memory:
             big = write_study(tmp / "s100k", n_l=50, n_a=50, n_v=40)
             wall_m, cpu_m, rss_m = run_compare(big, tmp / "out100k", extra=("--allow-implausible",))
@@ -252,6 +269,7 @@ def main(argv=None) -> int:
             print(f"100,000 variants: {wall_m:.1f} s wall, {cpu_m:.1f} s CPU, peak RSS {rss_m:.0f} MB "
                   f"(target < 2048 MB: {'MET' if rss_m < 2048 else 'NOT MET'}); comparison.csv {size:.1f} MB "
                   "written chunk by chunk")
+        print("machine load (1, 5, 15 min) at the end: " + ", ".join(f"{x:.2f}" for x in os.getloadavg()))
     return 0
 
 

@@ -285,3 +285,29 @@ def test_report_reads_at_size(tmp_path):
     assert 'id="ignored"' in body and "jerk_m_s3" in body and "position:sticky" in body
     rk = read_csv(out / "ranking.csv")
     assert "worst_settled_at_s" in rk[0] and all(r["variants"] == "5" for r in rk)
+
+
+# ---------------------------------------------------------------------------
+# the CSV rows written without csv.writer when no cell needs quoting
+
+
+def test_csv_rows_are_what_csv_writer_writes():
+    # reference: Python's csv module (csv.writer, QUOTE_MINIMAL, "\n" line ends), the writer
+    # comparison.csv is read back with; cells with commas, quotes, line breaks, empty cells and
+    # lone cells take the same text, and the checksum cell is the CRC-32 of the row before it
+    import random
+    import zlib
+
+    def reference(cells):
+        buf = io.StringIO()
+        csv.writer(buf, lineterminator="\n").writerow(cells)
+        return buf.getvalue()
+
+    rnd = random.Random(20261202)
+    pieces = ["a", ",", '"', "\n", "\r", " ", "", "1.5", "'", ";", "é", "\t", "-0.0", "1e-300"]
+    for _ in range(5000):
+        cells = ["".join(rnd.choice(pieces) for _ in range(rnd.randint(0, 3))) for _ in range(rnd.randint(0, 6))]
+        assert compare._csv_line(cells) == reference(cells), cells
+        line = compare._checked_line(cells)
+        assert line == reference([*cells, compare.row_checksum(cells)]), cells
+        assert line.rstrip("\n").rsplit(",", 1)[-1] == f"{zlib.crc32(reference(cells)[:-1].encode('utf-8')):08x}"

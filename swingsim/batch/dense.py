@@ -99,28 +99,34 @@ def refine_peak_sq(run: IntegratedChunk, rows, t0, iterations=6):
         The integrated chunk.
     rows : ndarray of int
         Rows of the chunk to refine.
-    t0 : ndarray (len(rows),)
-        Starting times [s].
+    t0 : ndarray (len(rows),) or (len(rows), K)
+        Starting times, one or K per row [s] (K candidates refined in one pass).
     iterations : int
         Newton steps.
 
     Returns
     -------
     tuple of ndarray
-        ``(time_s, horizontal_sq)``: where the iteration ended [s] and
-        :math:`|n_h|^2` there [-] (-inf where the step has zero length or the
+        ``(time_s, horizontal_sq)``, shaped like ``t0``: where the iteration ended [s]
+        and :math:`|n_h|^2` there [-] (-inf where the step has zero length or the
         state is not finite).
     """
+    t0 = np.asarray(t0, dtype=float)
+    flat = t0.ndim == 1
+    if flat:
+        t0 = t0[:, None]
     tg = run.step_times[rows]
     B, N1 = tg.shape
-    r = np.arange(B)
+    r = np.arange(B)[:, None]
     t_end = tg[:, -1]
-    k = np.minimum(np.sum(tg[:, 1:] <= t0[:, None], axis=1), np.sum(tg[:, 1:] < t_end[:, None], axis=1))
+    k = np.minimum(np.sum(tg[:, None, 1:] <= t0[..., None], axis=2),
+                   np.sum(tg[:, 1:] < t_end[:, None], axis=1)[:, None])
     k = np.clip(k, 0, N1 - 2)
     ta = tg[r, k]
     h = tg[r, k + 1] - ta
     hs = np.where(h > 0, h, 1.0)
     Y, A0, A1 = run.states, run.accel_start, run.accel_end
+    rows = np.asarray(rows)[:, None]
     polys = []
     for q in (0, 1):
         c = (Y[k, q, rows], h * Y[k, q + 2, rows], h * h * A0[k, q, rows],
@@ -157,7 +163,8 @@ def refine_peak_sq(run: IntegratedChunk, rows, t0, iterations=6):
         u = ev(polys[0], s)[0]
         v = ev(polys[1], s)[0]
     good = (h > 0) & np.isfinite(u) & np.isfinite(v)
-    return ta + s * h, np.where(good, u * u + v * v, -np.inf)
+    t_out, x_out = ta + s * h, np.where(good, u * u + v * v, -np.inf)
+    return (t_out[:, 0], x_out[:, 0]) if flat else (t_out, x_out)
 
 
 def sample(run: IntegratedChunk, sel, samples_per_step: int) -> DenseSamples:
@@ -188,23 +195,32 @@ def sample(run: IntegratedChunk, sel, samples_per_step: int) -> DenseSamples:
     Y = np.ascontiguousarray(run.states[:, :, sel].transpose(2, 1, 0))       # (b, 4, N+1)
     A0 = np.ascontiguousarray(run.accel_start[:, :, sel].transpose(2, 1, 0))  # (b, 2, N)
     A1 = np.ascontiguousarray(run.accel_end[:, :, sel].transpose(2, 1, 0))
-    out = []
     h2 = h[..., 0]
-    hs = np.where(h2 > 0, h2, 1.0)[..., None]
+    hs = np.where(h2 > 0, h2, 1.0)
     hh = h2 * h2
+    moving = h2 > 0
+    N = h2.shape[1]
+    out = []
     for q in (0, 1):
         b0 = Y[:, q + 2, :-1]
-        coefs = np.stack([Y[:, q, :-1], h2 * b0, hh * A0[:, q],
-                          Y[:, q, 1:], h2 * Y[:, q + 2, 1:], hh * A1[:, q]], axis=-1)
+        coefs = (Y[:, q, :-1], h2 * b0, hh * A0[:, q], Y[:, q, 1:], h2 * Y[:, q + 2, 1:], hh * A1[:, q])
+        val = np.empty((Bs, N * S + 1))
+        der = np.empty((Bs, N * S + 1))
+        val_s = val[:, :-1].reshape(Bs, N, S)
+        der_s = der[:, :-1].reshape(Bs, N, S)
+        # one fraction at a time on contiguous (b, N) arrays, the basis weights as scalars;
         # explicit sums (not matmul/BLAS): the same rounding for every element
-        val = coefs[..., 0, None] * H[0]
-        der = coefs[..., 0, None] * dH[0]
-        for m in range(1, 6):
-            val = val + coefs[..., m, None] * H[m]
-            der = der + coefs[..., m, None] * dH[m]
-        der = np.where(h > 0, der / hs, b0[..., None])
-        out.append(np.concatenate([val.reshape(Bs, -1), Y[:, q, -1:]], axis=1))
-        out.append(np.concatenate([der.reshape(Bs, -1), Y[:, q + 2, -1:]], axis=1))
+        for j in range(S):
+            vj = coefs[0] * H[0, j]
+            dj = coefs[0] * dH[0, j]
+            for m in range(1, 6):
+                vj = vj + coefs[m] * H[m, j]
+                dj = dj + coefs[m] * dH[m, j]
+            val_s[..., j] = vj
+            der_s[..., j] = np.where(moving, dj / hs, b0)
+        val[:, -1] = Y[:, q, -1]
+        der[:, -1] = Y[:, q + 2, -1]
+        out.extend((val, der))
     u, du, v, dv = out
     ts = np.concatenate([(tg[:, :-1, None] + frac * h).reshape(Bs, -1), tg[:, -1:]], axis=1)
     # kinematics at the samples, on each step's own segment

@@ -151,6 +151,9 @@ class _Cache:
         self.models = {}
         self.profiles = {}
         self.cuts = {}
+        self.at_start = {}   # profile key -> every move's (axis, position, velocity, acceleration) at t = 0
+        self.starts = {}     # (group, moves at t = 0) -> (initial state, suspension height)
+        self.ends = {}       # (group, final rope length) -> (rest direction, periods at start and end)
 
 
 def _profiles_of(table, g, m, cache, model):
@@ -248,7 +251,12 @@ def _step_grids(variants):
 
 
 def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
-    """One variant of a columnar table, from its group's scene and its move combination's profiles."""
+    """One variant of a columnar table, from its group's scene and its move combination's profiles.
+
+    What depends only on the group and the crane's motion at t = 0 (the initial state) or
+    at the end (the rest direction and the periods) is computed once per distinct value
+    (``cache``) by the model's own methods, so rows that share it get the same floats.
+    """
     g, m = int(table.group_ids[i]), int(table.move_ids[i])
     gs = table.group_scene(g)
     model = cache.models.get(g)
@@ -267,13 +275,23 @@ def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
     else:
         Lmin = L_end = float(motion.rope_length_m)
     hmax = min(_period(gs, Lmin) / steps_per_period, model.max_step_s)
-    rest = np.asarray(model.rest_direction(L_end))
-    # the suspension point's height sets the wind's height (only a varying wind needs it)
-    z0 = float(motion.evaluate(np.array([0.0]))["p"][0][2]) if model.wind is not None else 0.0
-    return _Variant(gs, motion, model, cuts, coef, hmax,
-                    np.asarray(model.initial_state(motion), dtype=float), rest,
-                    float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]),
-                    L_end, motion.last_move_end_s, z0)
+    # the initial state reads the motion at t = 0 only (Motion.evaluate sums the moves' values there)
+    zero = cache.at_start.get(key)
+    if zero is None:
+        zero = cache.at_start[key] = tuple((ax, *(float(x) for x in prof.evaluate(0.0))) for ax, prof in moves)
+    start = cache.starts.get((g, zero))
+    if start is None:
+        y0 = np.asarray(model.initial_state(motion), dtype=float)
+        # the suspension point's height sets the wind's height (only a varying wind needs it)
+        z0 = float(motion.evaluate(np.array([0.0]))["p"][0][2]) if model.wind is not None else 0.0
+        start = cache.starts[(g, zero)] = (y0, z0)
+    end = cache.ends.get((g, L_end))
+    if end is None:
+        # after initial_state: a sheared wind's rest lean reads the suspension height it set
+        end = cache.ends[(g, L_end)] = (np.asarray(model.rest_direction(L_end)),
+                                        float(model.mode_periods_s()[0]), float(model.mode_periods_s(L_end)[0]))
+    return _Variant(gs, motion, model, cuts, coef, hmax, start[0], end[0], end[1], end[2],
+                    L_end, motion.last_move_end_s, start[1])
 
 
 def _prepare(scene, steps_per_period) -> _Variant:
@@ -361,7 +379,7 @@ def _facts(vs) -> VariantFacts:
 
 
 #: Rows of a chunk measured together (bounds the memory of the dense samples).
-_MEASURE_ROWS = 128
+_MEASURE_ROWS = 256
 
 
 def _chunk_batch(variants, samples_per_step):

@@ -167,7 +167,7 @@ def measure_block(samples: DenseSamples, facts: VariantFacts, forces: dict, refi
         scalar zeros), as :func:`swingsim.dynamics.pendulum.specific_force` reads them.
     refine_peak_sq : callable, optional
         ``refine_peak_sq(t0) -> (time_s, horizontal_sq)``: a local maximiser of
-        :math:`|n_h|^2` on the dense interpolant, from starting times (B,) [s].
+        :math:`|n_h|^2` on the dense interpolant, from starting times (B, K) [s].
 
     Returns
     -------
@@ -318,7 +318,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
         What the summary needs to know of each run, arrays (B,).
     refine_peak_sq : callable, optional
         ``refine_peak_sq(t0) -> (time_s, horizontal_sq)``: a local maximiser of
-        :math:`|n_h|^2` on the dense interpolant from starting times (B,) [s];
+        :math:`|n_h|^2` on the dense interpolant from starting times (B, K) [s];
         without it the rope-angle peaks are the parabola vertices.
 
     Returns
@@ -347,14 +347,17 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
         # only give the starting points (their own vertex can overshoot beside a breakpoint)
         _, pk_t, pk = definitions.peak_sample(t, r2)
         res = definitions.peak_sample(t, r2, post).value
-        for j in range(cand.shape[1]):
-            tn, xn = refine_peak_sq(cand[:, j])
+        # every candidate refined in one pass (the same arithmetic per element as one by one)
+        nc = cand.shape[1]
+        tn_all, xn_all = refine_peak_sq(np.concatenate([cand, np.maximum(cand_r, move_end[:, None])], axis=1))
+        for j in range(nc):
+            tn, xn = tn_all[:, j], xn_all[:, j]
             better = xn > pk
             pk = np.where(better, xn, pk)
             pk_t = np.where(better, tn, pk_t)
         lo = move_end - definitions.AFTER_MOVE_TOLERANCE_S
         for j in range(cand_r.shape[1]):
-            tn, xn = refine_peak_sq(np.maximum(cand_r[:, j], move_end))
+            tn, xn = tn_all[:, nc + j], xn_all[:, nc + j]
             better = (xn > res) & (tn >= lo) & anyp
             res = np.where(better, xn, res)
     pk_r2 = pk

@@ -66,7 +66,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.interpolate import CubicSpline
 
 #: Turbulence spectra by name.
 SPECTRA = ("kaimal", "von-karman", "davenport")
@@ -209,6 +208,8 @@ class _Record:
     def __init__(self, t, x, keep_s):
         self.dt = float(t[1] - t[0])
         self.period = len(t) * self.dt
+        from scipy.interpolate import CubicSpline  # lazily: start-up time of every command
+
         s = CubicSpline(np.append(t, self.period), np.append(x, x[0]), bc_type="periodic")
         # the pieces the run reaches (the record is longer, for its low frequencies)
         self.n = min(len(t), int(math.ceil(keep_s / self.dt)) + 2)

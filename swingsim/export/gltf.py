@@ -26,7 +26,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 from PIL import Image
-from scipy.spatial.transform import Rotation
 
 from swingsim import scene3d
 from swingsim._version import __version__
@@ -189,6 +188,8 @@ def _trs(m: np.ndarray) -> tuple:
     hidden = np.all(s < 1e-5, axis=1)
     s = np.where(hidden[:, None], 0.0, s)
     r = np.where(hidden[:, None, None], np.eye(3), lin / np.where(s > 0, s, 1.0)[:, None, :])
+    from scipy.spatial.transform import Rotation  # lazily: start-up time of every command
+
     q = Rotation.from_matrix(r).as_quat()
     flips = np.ones(len(q))
     flips[1:] = np.sign(np.sum(q[1:] * q[:-1], axis=1) + 1e-300)

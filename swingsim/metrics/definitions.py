@@ -66,7 +66,6 @@ import math
 from typing import NamedTuple
 
 import numpy as np
-from scipy.special import ellipk
 
 #: Samples this close before the last move's end count as after it [s].
 AFTER_MOVE_TOLERANCE_S = 1e-12
@@ -465,4 +464,6 @@ def exact_period_s(rope_length_m: float, gravity_m_s2: float, amplitude_rad: flo
     ----------
     Abramowitz & Stegun 17.3 (``scipy.special.ellipk`` takes the parameter m).
     """
+    from scipy.special import ellipk  # lazily: start-up time of every command
+
     return 4.0 * math.sqrt(rope_length_m / gravity_m_s2) * float(ellipk(math.sin(amplitude_rad / 2.0) ** 2))

@@ -15,7 +15,6 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
 from swingsim._version import __version__
 from swingsim.metrics import cautions, definitions
@@ -103,6 +102,8 @@ def _refine_max(f, t, vals, mask=None):
     a = t[max(i - 1, first)]
     b = t[min(i + 1, len(t) - 1)]
     if b > a:
+        from scipy.optimize import minimize_scalar  # lazily: start-up time of every command
+
         res = minimize_scalar(lambda x: -f(x), bounds=(a, b), method="bounded",
                               options={"xatol": 1e-9})
         if res.success and -res.fun > best:

@@ -24,8 +24,6 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.interpolate import CubicSpline
-from scipy.optimize import brentq
 
 __all__ = [
     "Profile",
@@ -287,6 +285,8 @@ def s_curve(start_s: float, distance: float, speed: float, accel: float,
 
     vpk = speed
     if need(vpk) > D:
+        from scipy.optimize import brentq  # lazily: scipy.optimize costs start-up time
+
         vpk = brentq(lambda v: need(v) - D, 1e-300, speed, xtol=1e-15, rtol=1e-15)
     up, dup = _scurve_ramp(vpk, accel, jerk)
     dn, ddn = _scurve_ramp(vpk, decel, jerk)
@@ -376,6 +376,8 @@ def from_table(start_s: float, times_s, positions) -> SplineProfile:
     if np.any(np.diff(t) <= 0):
         i = int(np.argmax(np.diff(t) <= 0)) + 1
         raise ProfileError(f"table times must increase strictly (row {i + 1}: {t[i]!r})")
+    from scipy.interpolate import CubicSpline  # lazily: start-up time of every command
+
     spline = CubicSpline(t, x - x[0], bc_type="clamped")
     return SplineProfile(spline, float(start_s), float(start_s + t[-1]),
                          (float(start_s), float(start_s + t[-1])))

@@ -81,7 +81,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import fsolve
 
 from swingsim.motion.profiles import (PiecewiseCubic, Profile, ProfileError, SumProfile, s_curve,
                                       trapezoid)
@@ -250,6 +249,8 @@ def ei(period_s: float, zeta: float = 0.0, tolerance: float = 0.05) -> Shaper:
         return [abs(S) ** 2 - V * V, float(np.real(np.conj(S) * dS)) * w]
 
     guess = np.array([A0[0], A0[1] * K]) / (A0[0] + A0[1] * K + A0[2] * K * K)
+    from scipy.optimize import fsolve  # lazily: start-up time of every command
+
     x, info, ok, _ = fsolve(eqs, guess, full_output=True, xtol=1e-14)
     A = (float(x[0]), float(x[1]), float(1.0 - x[0] - x[1]))
     if min(A) <= 0 or max(abs(r) for r in eqs(x)) > 1e-12:

@@ -63,7 +63,7 @@ def _finish(fig, title, right=0.98):
     # a fixed layout: tight_layout measured every tick label again and cost more than the drawing
     fig.suptitle(title, fontsize=10, color=INK)
     fig.text(0.5, 0.005, cautions.CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color=LIMIT)
-    fig.subplots_adjust(left=0.09, right=right, bottom=0.2, top=0.88, wspace=0.32)
+    fig.subplots_adjust(left=0.09, right=right, bottom=0.2, top=0.88 - 0.05 * title.count("\n"), wspace=0.32)
 
 
 def is_numeric(values) -> bool:
@@ -101,9 +101,12 @@ def _no_labels():
 
 def _log_axis(axis):
     """A log axis labelled in plain numbers (0.001, 0.1, 10: the report draws text literally, no TeX)."""
-    from matplotlib.ticker import FuncFormatter
+    from matplotlib.ticker import FuncFormatter, LogLocator
 
     axis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
+    # minor ticks at 2 and 5 times each power of ten only: every tick is an artist that costs
+    # more to create than its line costs to draw (eight per decade made the log plots' drawing slow)
+    axis.set_minor_locator(LogLocator(subs=(2.0, 5.0)))
     axis.set_minor_formatter(_no_labels())
 
 
@@ -253,7 +256,8 @@ def quantity_figure(table, results, key, keys) -> str:
     if any(line_labels[0]) or len(line_labels) > 1:
         if len(line_labels) > 1:
             axes[1].legend(fontsize=6.5, loc="best")
-    how = " (line: median over the other compared values; band: best to worst)" if aggregated else ""
+    # the aggregation said on a second line: on one line it ran past the figure's edges
+    how = "\nline: median over the other compared values; band: best to worst" if aggregated else ""
     _finish(fig, f"Residual swing and move time against {key}{how}")
     return _png(plt, fig)
 

@@ -11,8 +11,6 @@ import math
 from typing import NamedTuple
 
 import numpy as np
-from scipy.ndimage import binary_erosion
-from scipy.spatial import cKDTree
 
 from swingsim.scene3d.meshes import Mesh, arrow, plane
 
@@ -206,6 +204,9 @@ def envelope(points_m, half_xy_m) -> tuple:
     grid_x, grid_y = np.meshgrid(gx, gy)  # rows along y
     # footprint test in units of the half sizes: max(|dx|/hx, |dy|/hy) <= 1 (the inf-norm)
     scale = np.array([1.0 / hx, 1.0 / hy])
+    from scipy.ndimage import binary_erosion  # lazily: start-up time of every command
+    from scipy.spatial import cKDTree
+
     dist, _ = cKDTree(path * scale).query(np.column_stack([grid_x.ravel(), grid_y.ravel()]) * scale,
                                           distance_upper_bound=1.0 + 1e-9, p=np.inf)
     inside = np.isfinite(dist).reshape(ny, nx)

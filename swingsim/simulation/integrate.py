@@ -10,7 +10,6 @@ instant shows the state at exactly that instant.
 from __future__ import annotations
 
 import numpy as np
-from scipy.integrate import solve_ivp
 
 from swingsim import constants
 from swingsim.dynamics.registry import select_model
@@ -60,6 +59,7 @@ def simulate(scene, *, rtol: float = constants.RTOL, atol: float = constants.ATO
         Check ``status``: a run that the model cannot carry on (slack rope,
         swing at the model's limit, a failing solver) stops early and says why.
     """
+    from scipy.integrate import solve_ivp  # lazily: start-up time of every command
     model, motion = prepare(scene, model)
     y = np.asarray(model.initial_state(motion), dtype=float)
     T = scene.duration_s

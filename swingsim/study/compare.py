@@ -46,6 +46,7 @@ import csv
 import io
 import math
 import os
+import re
 import zlib
 from dataclasses import dataclass
 from pathlib import Path
@@ -165,10 +166,22 @@ def row_cells(sweep, variant, summary) -> list[str]:
     i = variant if isinstance(variant, (int, np.integer)) else variant.index
     t = sweep.table
     vals = [cell(t.value(i, k)) for k in sweep.keys]
-    return [str(i), t.names[i], *vals, *(cell(summary.get(k)) for k in batch.SUMMARY_KEYS)]
+    # a summary is mostly floats: repr them here, without a call of cell() each (10,000 rows x 24 cells)
+    return [str(i), t.names[i], *vals,
+            *[repr(x) if type(x) is float else cell(x) for x in map(summary.get, batch.SUMMARY_KEYS)]]
+
+
+#: Characters that make ``csv.writer`` (QUOTE_MINIMAL) quote a cell.
+_QUOTED = re.compile(r'[,"\r\n]')
 
 
 def _csv_line(cells) -> str:
+    # the common row (numbers, plain names) needs no quoting: the same text csv.writer writes,
+    # joined directly (a lone empty cell is the one unquoted cell csv.writer still quotes)
+    if len(cells) > 1:
+        text = ",".join(cells)
+        if not _QUOTED.search(text):
+            return text + "\n"
     buf = io.StringIO()
     csv.writer(buf, lineterminator="\n").writerow(cells)
     return buf.getvalue()
@@ -192,8 +205,11 @@ def row_checksum(cells) -> str:
 
 
 def _checked_line(cells) -> str:
-    """A row of ``comparison.csv`` with its checksum cell last."""
-    return _csv_line([*cells, row_checksum(cells)])
+    """A row of ``comparison.csv`` with its checksum cell last (the same text as ``_csv_line`` of all cells)."""
+    if len(cells) < 2:  # a lone empty cell is quoted alone but not beside the checksum
+        return _csv_line([*cells, row_checksum(cells)])
+    line = _csv_line(cells)[:-1]
+    return f"{line},{zlib.crc32(line.encode('utf-8')):08x}\n"
 
 
 def _row_is_whole(row, n_columns) -> bool:
