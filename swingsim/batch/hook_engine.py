@@ -43,7 +43,8 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.batch import dense
-from swingsim.batch.measure import VariantFacts, direction_runs, summaries_from_samples, variant_facts
+from swingsim.batch.measure import (VariantFacts, chart_utilisation_pct, direction_runs, summaries_from_samples,
+                                    variant_facts)
 from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments,
                                      pack_grids, parameter_rows, rope_lengths, step_grid)
 from swingsim.dynamics.hook_load import PARAMETER_NAMES, ArrayArithmetic, HookLoadModel, equations_of_motion
@@ -274,8 +275,16 @@ def _measure(run: _Run, variants, sel, samples_per_step):
         if st.tilt_index is not None:
             ia = st.tilt_index
             ok &= np.all(np.cos(q[ia]) * np.cos(q[ia + 1]) > wlim, axis=1)
+    # the sling leg's tension as the model defines it for a single leg: the leg's own below a
+    # hook block, the hoist rope's when the leg hangs straight on from the rope's end; a bridle's
+    # or spreader's legs (resolved by the model's rigging geometry) are left to the single run
+    single = np.array([v.model.rigging_kind == "single" for v in vs])
+    leg = np.where(single[:, None], d["leg"] if st.leg_below_hook else d["T"], np.nan)
+    ell = q[st.rope_length_index] if st.rope_length_index is not None else kin.rope_length
+    hook = (ell * u1, ell * v1) if st.rope_end_is_hook else None  # the hook block hangs at the rope's end
+    util = chart_utilisation_pct(facts, s01.time_s, (u1, v1, -w1), d["T"], (d["gx"], d["gy"]), hook)
     runs = direction_runs(s01, u1, v1, w1, facts.rest_direction, d["T"], d["gx"], d["gy"],
-                          (d["gvx"], d["gvy"], d["gvz"]))
+                          (d["gvx"], d["gvy"], d["gvz"]), leg_tension_N=leg, utilisation_pct=util)
     sums = summaries_from_samples(runs, facts, lambda t0: dense.refine_peak_sq(first, local, t0))
     for v, s in zip(vs, sums):
         s.update({"valid": True, "status": "ok", "model": v.model.name, "engine": "batch"})
