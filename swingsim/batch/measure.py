@@ -11,7 +11,7 @@ segment, then, for the rope angle, Newton's method on the dense interpolant
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from types import SimpleNamespace
 from typing import Callable, NamedTuple
 
@@ -137,11 +137,11 @@ class SampledRuns:
         First sample of a segment after a breakpoint (parabolas do not reach across).
     real : ndarray of bool
         False for the samples of padding steps.
-    leg_tension_N : ndarray, optional
-        Tension of the most loaded sling leg [N] (NaN rows: not measured by the batch).
-    utilisation_pct : ndarray, optional
-        Dynamic chart utilisation [%] (:func:`swingsim.metrics.chart.chart_series`; NaN
-        rows: no chart).
+    peaks_only : dict
+        Quantities of which only the peak is reported, by summary key: ``peak_leg_tension_kN``
+        (the most loaded sling leg's tension [N]) and ``peak_utilisation_pct`` (the dynamic
+        chart utilisation [%], :func:`swingsim.metrics.chart.chart_series`), each (B, M) with
+        NaN rows where not measured (:data:`PEAK_SCALE` turns them into the key's unit).
     """
 
     time_s: np.ndarray
@@ -157,8 +157,11 @@ class SampledRuns:
     load_vel_z: np.ndarray
     segment_start: np.ndarray
     real: np.ndarray
-    leg_tension_N: np.ndarray | None = None
-    utilisation_pct: np.ndarray | None = None
+    peaks_only: dict = field(default_factory=dict)
+
+
+#: The summary keys of ``SampledRuns.peaks_only`` and the factor from their samples' unit to the key's.
+PEAK_SCALE = {"peak_leg_tension_kN": 1e-3, "peak_utilisation_pct": 1.0}
 
 
 class MeasuredBlock(NamedTuple):
@@ -312,8 +315,9 @@ def direction_runs(samples: DenseSamples, u, v, w, rest, tension_N, excursion_x,
         swing_at=swing_at, offset_x=u - rest[:, None, 0], offset_y=v - rest[:, None, 1],
         tension_N=tension_N, excursion_sq_m2=definitions.excursion_sq_m2(excursion_x, excursion_y),
         load_vel_x=load_vel[0], load_vel_y=load_vel[1], load_vel_z=load_vel[2],
-        segment_start=samples.segment_start, real=samples.real, leg_tension_N=leg_tension_N,
-        utilisation_pct=utilisation_pct)
+        segment_start=samples.segment_start, real=samples.real,
+        peaks_only={k: x for k, x in (("peak_leg_tension_kN", leg_tension_N),
+                                      ("peak_utilisation_pct", utilisation_pct)) if x is not None})
 
 
 def _windows(t, x, kink=None):
@@ -451,8 +455,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
         exc = np.where(fixed, exc, np.sqrt(np.maximum(_best_peak(t, runs.excursion_sq_m2, None, kink)[2], 0.0)))
     t_max = _best_peak(t, runs.tension_N, None, kink)[2]
     # the largest leg's and the chart's peaks: the same parabolas as the tension's (NaN rows: not measured)
-    leg_max = _optional_peak(t, runs.leg_tension_N, kink)
-    util_max = _optional_peak(t, runs.utilisation_pct, kink)
+    extra = {k: _optional_peak(t, runs.peaks_only.get(k), kink) * PEAK_SCALE[k] for k in PEAK_SCALE}
     t_min = np.min(runs.tension_N, axis=1)
     static = facts.mass_kg * facts.gravity_m_s2
     # the hook load is the hoist rope's tension; the line pull its share per fall
@@ -473,7 +476,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
         "df": definitions.dynamic_factor(t_max, static), "speed": speed, "meas": measured.period_s,
         "set": settled_at, "me": move_end, "L0": facts.rope_length_start_m,
         "Le": facts.rope_length_end_m, "p0": facts.natural_period_s,
-        "leg": leg_max / 1e3, "util": util_max,
+        **extra,
     }
     cols = {k: a.tolist() for k, a in cols.items()}
     fin = math.isfinite
@@ -503,8 +506,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
             "measured_period_s": cols["meas"][b] if fin(cols["meas"][b]) else None,
             "settle_time_s": None if st_at is None else st_at - me,
             "settled_at_s": st_at,
-            "peak_leg_tension_kN": cols["leg"][b] if fin(cols["leg"][b]) else None,
-            "peak_utilisation_pct": cols["util"][b] if fin(cols["util"][b]) else None,
+            **{k: cols[k][b] if fin(cols[k][b]) else None for k in PEAK_SCALE},
         })
     return out
 
