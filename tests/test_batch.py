@@ -260,3 +260,57 @@ def test_every_model_on_the_batch_engine_matches_solve_ivp():
         for k in ("peak_rope_angle_deg", "residual_rope_angle_deg"):
             assert g[k] == pytest.approx(s[k], abs=1e-3), (name, k)  # 1e-3 deg: ten times the study's goal
         assert g["peak_hook_load_kN"] == pytest.approx(s["peak_hook_load_kN"], rel=2e-3), name
+
+
+#: An invented rated capacity chart (radius_m, capacity_kg).
+_CHART_CSV = "# invented test chart\nradius_m,capacity_kg\n2,9000\n10,9000\n20,5000\n30,3000\n"
+
+
+def test_leg_tension_and_chart_utilisation_peaks_match_the_single_run(tmp_path):
+    # The batch summaries' peak_leg_tension_kN (largest leg) and peak_utilisation_pct (dynamic
+    # chart utilisation) against the single run's summary of DOP853 at rtol 1e-10
+    # (swingsim.simulation.simulate + summarize), which defines them (metrics/models.py,
+    # metrics/chart.py): 0.2 %, as the tension peaks above.  A slew and a trolley run out move
+    # the load across the chart's sloping part, so the radius counts, not only the tension.
+    from swingsim.scene import scene_from_dict
+
+    (tmp_path / "chart.csv").write_text(_CHART_CSV)
+    hook = {"mass_kg": 400.0, "size_m": [0.5, 0.4, 0.9]}
+    riggings = {
+        "point-mass": {},
+        "leg below a hook block": {"hook": hook, "rigging": {"kind": "single", "leg_length_m": 2.5}},
+        "rigid load on a leg": {"load": {"mass_kg": 2500.0, "size_m": [2.0, 1.0, 1.0]},
+                                "rigging": {"kind": "single", "leg_length_m": 1.0, "attach_m": [[0.3, 0.0, 0.5]]}},
+        "elastic rope": {"rope": {"length_m": 14.0, "stiffness_kN_per_m": 900.0, "bounce_damping_ratio": 0.02}},
+        "bridle under a hook block": {"hook": hook, "load": {"mass_kg": 3000.0, "size_m": [4.0, 0.3, 1.0]},
+                                      "rigging": {"kind": "bridle", "leg_length_m": 4.0,
+                                                  "attach_m": [[-1.5, 0.0, 0.5], [1.5, 0.0, 0.5]]}},
+    }
+    scenes = []
+    for upd in riggings.values():
+        d = {"title": "chart and legs", "duration_s": 20.0,
+             "crane": {"kind": "tower", "suspension_m": [18.0, 0.0, 40.0], "slew_center_m": [0.0, 0.0],
+                       "chart_file": "chart.csv", "chart_includes": ["rigging", "hook"]},
+             "rope": {"length_m": 14.0}, "load": {"mass_kg": 2000.0},
+             "moves": [{"axis": "slew", "profile": "trapezoid", "start_s": 1.0, "angle_deg": 30.0,
+                        "speed_deg_s": 5.0, "accel_deg_s2": 2.0},
+                       {"axis": "radius", "profile": "trapezoid", "start_s": 1.0, "distance_m": 6.0,
+                        "speed_m_s": 1.0, "accel_m_s2": 0.5}]}
+        for key, value in upd.items():
+            d[key] = {**d.get(key, {}), **value}
+        scenes.append(scene_from_dict(d, file="chart_and_legs.toml", base_dir=tmp_path))
+    got = batch.run_chunk(scenes)
+    for name, sc, g in zip(riggings, scenes, got):
+        s = summarize(simulate(sc)).data
+        assert g["engine"] == "batch", name
+        assert s["peak_utilisation_pct"] > 40.0, name  # the chart is in play
+        assert g["peak_utilisation_pct"] == pytest.approx(s["peak_utilisation_pct"], rel=2e-3), name
+        if name == "point-mass":  # no sling legs in the model: neither run reports them
+            assert g["peak_leg_tension_kN"] is None and s.get("peak_leg_tension_kN") is None
+        elif name.startswith("bridle"):  # resolved by the model's rigging geometry: single run only
+            assert g["peak_leg_tension_kN"] is None and s["peak_leg_tension_kN"] > 0.0
+        else:
+            assert g["peak_leg_tension_kN"] == pytest.approx(s["peak_leg_tension_kN"], rel=2e-3), name
+    # without a chart the key stays empty on both paths
+    plain = batch.run_chunk([make_scene(duration_s=10.0)])[0]
+    assert plain["peak_utilisation_pct"] is None

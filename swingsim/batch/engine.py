@@ -85,7 +85,7 @@ SUMMARY_KEYS = (
     "peak_rope_tension_kN", "min_rope_tension_kN", "static_rope_tension_kN", "dynamic_factor",
     "peak_load_speed_m_s", "rope_length_start_m", "rope_length_end_m",
     "natural_period_s", "measured_period_s", "settle_time_s", "settled_at_s",
-    "peak_hook_load_kN", "peak_line_pull_kN",
+    "peak_hook_load_kN", "peak_line_pull_kN", "peak_leg_tension_kN", "peak_utilisation_pct",
 )
 
 # ----------------------------------------------------------------------------

@@ -43,12 +43,14 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.batch import dense
-from swingsim.batch.measure import VariantFacts, direction_runs, summaries_from_samples, variant_facts
+from swingsim.batch.measure import (VariantFacts, chart_utilisation_pct, direction_runs, summaries_from_samples,
+                                    variant_facts)
 from swingsim.batch.segments import (PreparedVariant, chunk_kinematics, integrate_steps, motion_segments,
                                      pack_grids, parameter_rows, rope_lengths, step_grid)
 from swingsim.dynamics.hook_load import PARAMETER_NAMES, ArrayArithmetic, HookLoadModel, equations_of_motion
 from swingsim.dynamics.registry import select_model
 from swingsim.dynamics.rope import ElasticRope
+from swingsim.dynamics.wind import BatchWind, WindField, rope_end_wind
 from swingsim.simulation import prepare
 
 __all__ = ["supported", "run_variants"]
@@ -73,9 +75,9 @@ def supported(scene) -> bool:
     -------
     bool
         True for a scene of the hook-and-load model (hook block, rigid load,
-        elastic rope, sling leg), unless its load rests for lift-off, its wind
-        varies in time or height, or a boom crane luffs (these go to the
-        single-run solver).
+        elastic rope, sling leg), unless its load rests for lift-off or a boom
+        crane luffs (these go to the single-run solver).  A wind varying in time
+        or height (gusts, turbulence, a profile) is taken.
     """
     if scene.crane.has_boom and any(m.axis == "radius" for m in scene.moves):
         return False
@@ -83,24 +85,26 @@ def supported(scene) -> bool:
         model = select_model(scene)
     except Exception:  # a model that cannot build: leave it to simulate, which reports it
         return False
-    # a wind varying in time or height (gusts, turbulence, a profile) is left to the single-run solver
-    return isinstance(model, HookLoadModel) and not model.starts_resting and model.wind is None
+    return isinstance(model, HookLoadModel) and not model.starts_resting
 
 
 def _prepare(scene, steps_per_period) -> PreparedVariant:
     model, motion = prepare(scene)
-    cuts, coef = motion_segments(motion, scene.duration_s)
+    cuts, coef = motion_segments(motion, scene.duration_s, model.extra_breakpoints)
     Lmin, L_end = rope_lengths(motion, cuts)
     L0 = float(motion.rope_length_m)
     periods0 = model.mode_periods_s()
     shortest = min(periods0 if Lmin == L0 else model.mode_periods_s(Lmin))
     if model.rope_is_elastic:
         shortest = min(shortest, model.bounce_period_s(Lmin))
-    grid, seg = step_grid(cuts, shortest / steps_per_period)
+    # turbulence bounds the step too (the model's max_step_s, as the single run's solver obeys it)
+    grid, seg = step_grid(cuts, min(shortest / steps_per_period, model.max_step_s))
     y0 = np.asarray(model.initial_state(motion), dtype=float)
     period_end = periods0[0] if L_end == L0 else model.mode_periods_s(L_end)[0]
+    # the suspension point's height sets the wind's heights (only a varying wind needs it)
+    pz = float(motion.evaluate(np.array([0.0]))["p"][0][2]) if model.wind is not None else 0.0
     return PreparedVariant(scene, motion, model, cuts, coef, grid, seg, y0, np.asarray(model.rest_direction(L_end)),
-                           float(periods0[0]), float(period_end), L_end, motion.last_move_end_s)
+                           float(periods0[0]), float(period_end), L_end, motion.last_move_end_s, pz)
 
 
 # ----------------------------------------------------------------------------
@@ -109,12 +113,20 @@ def _prepare(scene, steps_per_period) -> PreparedVariant:
 
 @dataclass
 class _Equations:
-    """What the equations read of a slice of variants, arrays (B,) or shared scalars."""
+    """What the equations read of a slice of variants, arrays (B,) or shared scalars.
+
+    ``wind`` is the steady wind ``(wx, wy)``; ``field`` (a :class:`BatchWind`, or None
+    when no variant's wind varies) and ``pz`` (the suspension points' heights [m]) give
+    a varying one, read through :func:`~swingsim.dynamics.wind.rope_end_wind` as the
+    single run reads it.
+    """
 
     structure: object
     par: dict
     rope: object
     wind: tuple
+    field: object = None
+    pz: object = 0.0
 
     def rows(self, sel, ndim):
         """The same for some rows, shaped to broadcast over ``ndim`` axes."""
@@ -122,14 +134,17 @@ class _Equations:
         if self.rope is not None:
             rope = ElasticRope(**{f.name: (parameter_rows({"x": getattr(self.rope, f.name)}, sel, ndim)["x"]
                                            if f.name != "source" else "") for f in fields(ElasticRope)})
-        wind = parameter_rows({"x": self.wind[0], "y": self.wind[1]}, sel, ndim)
-        return _Equations(self.structure, parameter_rows(self.par, sel, ndim), rope, (wind["x"], wind["y"]))
+        wind = parameter_rows({"x": self.wind[0], "y": self.wind[1], "field": self.field, "pz": self.pz}, sel, ndim)
+        return _Equations(self.structure, parameter_rows(self.par, sel, ndim), rope, (wind["x"], wind["y"]),
+                          wind["field"], wind["pz"])
 
-    def evaluate(self, q, qd, kin, details=False):
-        """Accelerations (or details) at states ``q, qd`` with the crane's motion ``kin`` (SuspensionRates)."""
+    def evaluate(self, q, qd, kin, t=None, details=False):
+        """Accelerations (or details) at states ``q, qd`` with the crane's motion ``kin`` (SuspensionRates)
+        at times ``t`` (shaped as the states; a varying wind reads them)."""
         k = (kin.vx, kin.vy, 0.0, kin.ax, kin.ay, 0.0, kin.rope_length, kin.rope_rate, kin.rope_accel,
              kin.slew_rate)
-        return equations_of_motion(q, qd, k, self.par, self.rope, self.wind, self.structure, ArrayArithmetic,
+        wind = self.wind if self.field is None else rope_end_wind(self.field, t, self.pz)
+        return equations_of_motion(q, qd, k, self.par, self.rope, wind, self.structure, ArrayArithmetic,
                                    details)
 
 
@@ -148,12 +163,17 @@ def _equations(variants) -> _Equations:
     if models[0].rope_is_elastic:
         rope = ElasticRope(**{f.name: (np.array([getattr(m.elastic_rope, f.name) for m in models], dtype=float)
                                        if f.name != "source" else "") for f in fields(ElasticRope)})
-    return _Equations(models[0].structure, par, rope, tuple(wind))
+    field, pz = None, 0.0
+    if any(m.wind is not None for m in models):
+        # gusts, turbulence or a profile: every variant's wind field (steady ones included)
+        field = BatchWind([v.model.wind or WindField(v.scene.wind, v.scene.duration_s) for v in variants])
+        pz = np.array([v.suspension_z for v in variants])
+    return _Equations(models[0].structure, par, rope, tuple(wind), field, pz)
 
 
-def _rhs(y, kin, eq):
+def _rhs(y, kin, eq, t):
     nq = eq.structure.n_coordinates
-    qdd = eq.evaluate([y[i] for i in range(nq)], [y[nq + i] for i in range(nq)], kin)
+    qdd = eq.evaluate([y[i] for i in range(nq)], [y[nq + i] for i in range(nq)], kin, t)
     return np.concatenate([y[nq:], qdd.T])
 
 
@@ -175,7 +195,7 @@ def _integrate(variants) -> _Run:
     kin = chunk_kinematics(variants)
     eq = _equations(variants)
     Y, A0, A1 = integrate_steps(np.stack([v.y0 for v in variants], axis=1), grids, kin,
-                                lambda y, k, t: _rhs(y, k, eq))
+                                lambda y, k, t: _rhs(y, k, eq, t))
     tg, sg, coef, t0s = grids
     return _Run(tg, sg, coef, t0s, Y, A0, A1, kin, eq)
 
@@ -199,8 +219,8 @@ def _facts(vs) -> VariantFacts:
                          np.zeros(len(vs), dtype=bool))
 
 
-def _details(eq: _Equations, q, qd, kin, sel):
-    """The equations' details at the samples of rows ``sel`` (arrays (b, M)), a few points at a time."""
+def _details(eq: _Equations, q, qd, kin, sel, t):
+    """The equations' details at the samples of rows ``sel`` (arrays (b, M)) at times ``t``, a few points at a time."""
     b, M = q[0].shape
     out = {k: np.empty((b, M)) for k in ("T", "T_raw", "leg", "gx", "gy", "gvx", "gvy", "gvz")}
     step = max(1, _MEASURE_POINTS // M)
@@ -209,7 +229,7 @@ def _details(eq: _Equations, q, qd, kin, sel):
         rows = np.arange(r.start, r.stop)
         sub = eq.rows(sel[rows], 2)
         k = type(kin)(*(x[r] if np.ndim(x) == 2 else x for x in kin))
-        d = sub.evaluate([x[r] for x in q], [x[r] for x in qd], k, details=True)
+        d = sub.evaluate([x[r] for x in q], [x[r] for x in qd], k, t[r], details=True)
         out["T"][r] = d["rope_tension_N"]
         out["T_raw"][r] = d["rope_tension_raw_N"] if d["rope_tension_raw_N"] is not None else d["rope_tension_N"]
         out["leg"][r] = d["leg_tension_N"] if d["leg_tension_N"] is not None else np.inf
@@ -236,7 +256,7 @@ def _measure(run: _Run, variants, sel, samples_per_step):
     vs = [variants[i] for i in sel]
     facts = _facts(vs)
     with np.errstate(all="ignore"):
-        d = _details(run.equations, q, qd, kin, sel)
+        d = _details(run.equations, q, qd, kin, sel, s01.time_s)
         r2 = u1 * u1 + v1 * v1
         w1 = np.sqrt(np.clip(1.0 - r2, 0.0, None))
         # a run the model cannot carry on goes to the single-run solver (events, exact stop)
@@ -255,8 +275,16 @@ def _measure(run: _Run, variants, sel, samples_per_step):
         if st.tilt_index is not None:
             ia = st.tilt_index
             ok &= np.all(np.cos(q[ia]) * np.cos(q[ia + 1]) > wlim, axis=1)
+    # the sling leg's tension as the model defines it for a single leg: the leg's own below a
+    # hook block, the hoist rope's when the leg hangs straight on from the rope's end; a bridle's
+    # or spreader's legs (resolved by the model's rigging geometry) are left to the single run
+    single = np.array([v.model.rigging_kind == "single" for v in vs])
+    leg = np.where(single[:, None], d["leg"] if st.leg_below_hook else d["T"], np.nan)
+    ell = q[st.rope_length_index] if st.rope_length_index is not None else kin.rope_length
+    hook = (ell * u1, ell * v1) if st.rope_end_is_hook else None  # the hook block hangs at the rope's end
+    util = chart_utilisation_pct(facts, s01.time_s, (u1, v1, -w1), d["T"], (d["gx"], d["gy"]), hook)
     runs = direction_runs(s01, u1, v1, w1, facts.rest_direction, d["T"], d["gx"], d["gy"],
-                          (d["gvx"], d["gvy"], d["gvz"]))
+                          (d["gvx"], d["gvy"], d["gvz"]), leg_tension_N=leg, utilisation_pct=util)
     sums = summaries_from_samples(runs, facts, lambda t0: dense.refine_peak_sq(first, local, t0))
     for v, s in zip(vs, sums):
         s.update({"valid": True, "status": "ok", "model": v.model.name, "engine": "batch"})

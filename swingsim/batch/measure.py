@@ -11,7 +11,8 @@ segment, then, for the rope angle, Newton's method on the dense interpolant
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from types import SimpleNamespace
 from typing import Callable, NamedTuple
 
 import numpy as np
@@ -20,6 +21,7 @@ from swingsim import constants
 from swingsim.batch.dense import DenseSamples
 from swingsim.dynamics.pendulum import specific_force, tension_per_mass, wind_terms
 from swingsim.metrics import definitions
+from swingsim.metrics.chart import chart_series
 
 
 @dataclass(frozen=True)
@@ -50,6 +52,9 @@ class VariantFacts:
         Falls of the reeving [-] (1 when not given).
     reeving_efficiency : ndarray, optional
         Overall efficiency of the reeving [-] (1 when not given).
+    charted : tuple, optional
+        Per variant ``(scene, motion)`` when its crane has a rated capacity chart, else
+        None (None for the whole block: no chart in it).
     """
 
     move_end_s: np.ndarray
@@ -65,6 +70,7 @@ class VariantFacts:
     gravity_m_s2: np.ndarray
     falls: np.ndarray | None = None
     reeving_efficiency: np.ndarray | None = None
+    charted: tuple | None = None
 
 
 def variant_facts(vs, mass_kg, gravity_m_s2, fixed_length) -> VariantFacts:
@@ -100,6 +106,8 @@ def variant_facts(vs, mass_kg, gravity_m_s2, fixed_length) -> VariantFacts:
         gravity_m_s2=np.asarray(gravity_m_s2, dtype=float),
         falls=np.array([x.scene.rope.falls for x in vs], dtype=float),
         reeving_efficiency=np.array([x.scene.rope.reeving_efficiency for x in vs]),
+        charted=(tuple((x.scene, x.motion) if x.scene.crane.chart is not None else None for x in vs)
+                 if any(x.scene.crane.chart is not None for x in vs) else None),
     )
 
 
@@ -129,6 +137,11 @@ class SampledRuns:
         First sample of a segment after a breakpoint (parabolas do not reach across).
     real : ndarray of bool
         False for the samples of padding steps.
+    peaks_only : dict
+        Quantities of which only the peak is reported, by summary key: ``peak_leg_tension_kN``
+        (the most loaded sling leg's tension [N]) and ``peak_utilisation_pct`` (the dynamic
+        chart utilisation [%], :func:`swingsim.metrics.chart.chart_series`), each (B, M) with
+        NaN rows where not measured (:data:`PEAK_SCALE` turns them into the key's unit).
     """
 
     time_s: np.ndarray
@@ -144,6 +157,11 @@ class SampledRuns:
     load_vel_z: np.ndarray
     segment_start: np.ndarray
     real: np.ndarray
+    peaks_only: dict = field(default_factory=dict)
+
+
+#: The summary keys of ``SampledRuns.peaks_only`` and the factor from their samples' unit to the key's.
+PEAK_SCALE = {"peak_leg_tension_kN": 1e-3, "peak_utilisation_pct": 1.0}
 
 
 class MeasuredBlock(NamedTuple):
@@ -195,13 +213,69 @@ def measure_block(samples: DenseSamples, facts: VariantFacts, forces: dict, refi
     # a run the model cannot carry on goes to the single-run solver (events, exact stop)
     ok = np.all(np.isfinite(r2) & np.isfinite(tpm), axis=1)
     ok &= np.all(tpm > 0.0, axis=1) & np.all(w > wlim, axis=1)
-    runs = direction_runs(samples, u, v, w, facts.rest_direction, facts.mass_kg[:, None] * tpm,
-                          L * u, L * v, (load_vel_x, load_vel_y, load_vel_z))
+    tension = facts.mass_kg[:, None] * tpm
+    runs = direction_runs(samples, u, v, w, facts.rest_direction, tension,
+                          L * u, L * v, (load_vel_x, load_vel_y, load_vel_z),
+                          utilisation_pct=chart_utilisation_pct(facts, samples.time_s, (u, v, -w), tension,
+                                                                (L * u, L * v)))
     return MeasuredBlock(summaries_from_samples(runs, facts, refine_peak_sq), ok)
 
 
+def chart_utilisation_pct(facts: VariantFacts, time_s, rope_dir, tension_N, load_xy, hook_xy=None):
+    """The dynamic chart utilisation at each sample, through the single run's definition.
+
+    :func:`swingsim.metrics.chart.chart_series` (radii of the suspension point, the hook
+    block and the load from the slew axis, the lowest capacity among them, the counted
+    hook load over ``g`` times it), called once per charted variant on its samples.
+
+    Parameters
+    ----------
+    facts : VariantFacts
+        The block's variants (``charted``: their scenes and motions).
+    time_s : ndarray (B, M)
+        Sample times [s].
+    rope_dir : tuple of ndarray
+        Unit rope direction ``(nx, ny, nz)``, each (B, M) [-].
+    tension_N : ndarray (B, M)
+        Hoist rope tension at the hook block [N].
+    load_xy : tuple of ndarray
+        The load's horizontal offset from the suspension point, each (B, M) [m].
+    hook_xy : tuple of ndarray, optional
+        The hook block's horizontal offset from the suspension point [m] (None: no hook
+        block in the block's model).
+
+    Returns
+    -------
+    ndarray or None
+        Utilisation (B, M) [%], NaN rows for variants without a chart; None when no
+        variant of the block has one.
+    """
+    if facts.charted is None:
+        return None
+    out = np.full(np.shape(time_s), np.nan)
+    for b, got in enumerate(facts.charted):
+        if got is None:
+            continue
+        scene, motion = got
+        t = time_s[b]
+        p = np.asarray(motion.evaluate(t)["p"], dtype=float)
+
+        def at(xy, p=p, b=b):
+            q = p.copy()
+            q[:, 0] += xy[0][b]
+            q[:, 1] += xy[1][b]
+            return q
+
+        s = {"suspension": p, "load": at(load_xy), "rope_tension_N": tension_N[b],
+             "rope_dir": np.stack([rope_dir[0][b], rope_dir[1][b], rope_dir[2][b]], axis=-1),
+             "hook": at(hook_xy) if hook_xy is not None and scene.hook is not None else None}
+        with np.errstate(all="ignore"):
+            out[b] = chart_series(SimpleNamespace(scene=scene), t, s)["utilisation_pct"]
+    return out
+
+
 def direction_runs(samples: DenseSamples, u, v, w, rest, tension_N, excursion_x, excursion_y,
-                   load_vel) -> SampledRuns:
+                   load_vel, leg_tension_N=None, utilisation_pct=None) -> SampledRuns:
     """The sampled quantities of a block of runs from its hoist rope's direction.
 
     Parameters
@@ -218,6 +292,10 @@ def direction_runs(samples: DenseSamples, u, v, w, rest, tension_N, excursion_x,
         The load's horizontal offset from the suspension point [m].
     load_vel : tuple of ndarray
         The load's velocity components (B, M) [m/s].
+    leg_tension_N : ndarray (B, M), optional
+        Tension of the most loaded sling leg [N] (NaN rows: not measured).
+    utilisation_pct : ndarray (B, M), optional
+        Dynamic chart utilisation [%] (:func:`chart_utilisation_pct`).
 
     Returns
     -------
@@ -237,7 +315,9 @@ def direction_runs(samples: DenseSamples, u, v, w, rest, tension_N, excursion_x,
         swing_at=swing_at, offset_x=u - rest[:, None, 0], offset_y=v - rest[:, None, 1],
         tension_N=tension_N, excursion_sq_m2=definitions.excursion_sq_m2(excursion_x, excursion_y),
         load_vel_x=load_vel[0], load_vel_y=load_vel[1], load_vel_z=load_vel[2],
-        segment_start=samples.segment_start, real=samples.real)
+        segment_start=samples.segment_start, real=samples.real,
+        peaks_only={k: x for k, x in (("peak_leg_tension_kN", leg_tension_N),
+                                      ("peak_utilisation_pct", utilisation_pct)) if x is not None})
 
 
 def _windows(t, x, kink=None):
@@ -377,6 +457,8 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
     if not np.all(fixed):
         exc = np.where(fixed, exc, np.sqrt(np.maximum(_best_peak(t, runs.excursion_sq_m2, None, kink)[2], 0.0)))
     t_max = _best_peak(t, runs.tension_N, None, kink)[2]
+    # the largest leg's and the chart's peaks: the same parabolas as the tension's (NaN rows: not measured)
+    extra = {k: _optional_peak(t, runs.peaks_only.get(k), kink) * PEAK_SCALE[k] for k in PEAK_SCALE}
     t_min = np.min(runs.tension_N, axis=1)
     static = facts.mass_kg * facts.gravity_m_s2
     # the hook load is the hoist rope's tension; the line pull its share per fall
@@ -397,6 +479,7 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
         "df": definitions.dynamic_factor(t_max, static), "speed": speed, "meas": measured.period_s,
         "set": settled_at, "me": move_end, "L0": facts.rope_length_start_m,
         "Le": facts.rope_length_end_m, "p0": facts.natural_period_s,
+        **extra,
     }
     cols = {k: a.tolist() for k, a in cols.items()}
     fin = math.isfinite
@@ -426,5 +509,19 @@ def summaries_from_samples(runs: SampledRuns, facts: VariantFacts, refine_peak_s
             "measured_period_s": cols["meas"][b] if fin(cols["meas"][b]) else None,
             "settle_time_s": None if st_at is None else st_at - me,
             "settled_at_s": st_at,
+            **{k: cols[k][b] if fin(cols[k][b]) else None for k in PEAK_SCALE},
         })
+    return out
+
+
+def _optional_peak(t, x, kink):
+    """:func:`_best_peak` of a sampled quantity some rows lack (NaN rows; None: no row has it) -> (B,), NaN where absent."""
+    B = t.shape[0]
+    if x is None:
+        return np.full(B, np.nan)
+    have = ~np.all(np.isnan(x), axis=1)
+    out = np.full(B, np.nan)
+    if have.any():
+        rows = np.flatnonzero(have)
+        out[rows] = _best_peak(t[rows], x[rows], None, kink[rows])[2]
     return out

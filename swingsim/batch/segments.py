@@ -50,6 +50,9 @@ class PreparedVariant:
         Rope length at the end [m].
     move_end : float
         End of the last move [s].
+    suspension_z : float
+        Height of the suspension point above the ground [m] (a varying wind's height;
+        the batch engines take no crane whose tip changes height).
     """
 
     scene: object
@@ -65,6 +68,7 @@ class PreparedVariant:
     period_end: float
     L_end: float
     move_end: float
+    suspension_z: float = 0.0
 
 #: The non-zero weights of each stage of the tableau, in a fixed order.
 A_NZ = [[(j, float(rk8.A[s, j])) for j in range(s) if rk8.A[s, j] != 0.0] for s in range(rk8.N_STAGES)]
@@ -121,7 +125,7 @@ def segment_times(prof) -> set:
     return set(float(b) for b in prof.breakpoints)
 
 
-def motion_segments(motion, duration_s: float):
+def motion_segments(motion, duration_s: float, breakpoints=()):
     """A run cut into segments on which every axis is one cubic, with the cubics.
 
     Parameters
@@ -130,6 +134,8 @@ def motion_segments(motion, duration_s: float):
         The variant's crane motion.
     duration_s : float
         End of the run [s].
+    breakpoints : sequence of float
+        The model's own cuts (a gust's start and end: ``extra_breakpoints``) [s].
 
     Returns
     -------
@@ -139,7 +145,7 @@ def motion_segments(motion, duration_s: float):
         about each segment's start (constant first) [axis units, per s^k].
     """
     T = duration_s
-    pts = {0.0, T}
+    pts = {0.0, T} | {float(b) for b in breakpoints if 0.0 < b < T}
     for _, prof in motion.moves:
         pts |= {b for b in segment_times(prof) if 0.0 < b < T}
     cuts = np.array(sorted(pts))

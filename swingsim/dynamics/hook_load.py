@@ -81,7 +81,7 @@ import numpy as np
 from swingsim import constants
 from swingsim.dynamics.base import LinearSwing, ModelDefaults, SwingModel
 from swingsim.dynamics.pendulum import direction_from_projected, projected_angles, starts_in_steady_wind
-from swingsim.dynamics.wind import wind_field
+from swingsim.dynamics.wind import rope_end_wind, wind_field
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
 from swingsim.dynamics.rope import elastic_rope
 
@@ -316,9 +316,10 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         the CG from its pivot in load axes [m], the principal inertias [kg m^2].
     rope : ElasticRope or None
         The elastic reeving (its fields floats or arrays); None for an inextensible rope.
-    wind : tuple
+    wind : tuple or callable
         ``(wx, wy)``: the wind velocity the bodies and the rope see [m/s] (the one
-        place the wind enters the equations).
+        place the wind enters the equations); a wind varying in time or height is
+        :func:`~swingsim.dynamics.wind.rope_end_wind` (floats or arrays alike).
     structure : Structure
         Which coordinates and terms the model has.
     ops : type
@@ -1007,8 +1008,13 @@ class HookLoadModel(ModelDefaults, SwingModel):
         """The wind for :func:`equations_of_motion` when it varies: a function of the rope end's height.
 
         ``t`` is the time [s] (None: at rest in the mean wind), ``pz`` the suspension
-        point's height [m]; heights inside the equations are relative to it.
+        point's height [m]; heights inside the equations are relative to it.  In a run
+        it is :func:`~swingsim.dynamics.wind.rope_end_wind`, which the batch engine calls
+        on arrays of variants.
         """
+        if t is not None:
+            return rope_end_wind(self.wind, t, pz)
+
         def at(hz):
             end_z = pz + hz
             wx, wy, rope_factor = self._wind_terms(t, pz, end_z)

@@ -306,9 +306,16 @@ class WindField:
             return 1.0 if np.ndim(height_m) == 0 else np.ones(np.shape(height_m))
         z = np.maximum(height_m, MIN_HEIGHT_M)
         if self.profile == "power":
-            return (z / self.reference_height_m) ** self.shear_exponent
-        z0 = self.roughness_length_m
-        return np.log(z / z0) / math.log(self.reference_height_m / z0)
+            f = (z / self.reference_height_m) ** self.shear_exponent
+        else:
+            z0 = self.roughness_length_m
+            f = np.log(z / z0) / math.log(self.reference_height_m / z0)
+        return float(f) if np.ndim(f) == 0 else f  # a float for a float (the single run's fast path)
+
+    @property
+    def profile_key(self) -> tuple:
+        """What :meth:`profile_factor` depends on: fields with equal keys give equal factors."""
+        return (self.profile, self.reference_height_m, self.shear_exponent, self.roughness_length_m)
 
     # -- the wind ----------------------------------------------------------------
     def reference_velocity(self, t: float) -> tuple:
@@ -485,6 +492,11 @@ class BatchWind:
                 self.gusts[k, :, i] = g
         self.gusts[:, 1][self.gusts[:, 1] == 0.0] = -1.0  # padding: an empty gust window
         self.sheared = any(f.sheared for f in self.fields)
+        # variants sharing a profile (typically all of a chunk): one array call of its profile_factor each
+        groups: dict = {}
+        for i, f in enumerate(self.fields):
+            groups.setdefault(f.profile_key, []).append(i)
+        self._profile_groups = [(self.fields[rows[0]], np.array(rows)) for rows in groups.values()]
 
     def velocities(self, t, height_m) -> tuple:
         """Wind velocities of each variant at its own instant and height.
@@ -548,7 +560,12 @@ class BatchWind:
             The factors, shaped as ``height_m`` [-].
         """
         z = np.asarray(height_m, dtype=float)
-        return np.stack([np.broadcast_to(f.profile_factor(z[i]), z[i].shape) for i, f in enumerate(self.fields)])
+        if len(self._profile_groups) == 1:
+            return np.broadcast_to(self._profile_groups[0][0].profile_factor(z), z.shape)
+        out = np.empty(z.shape)
+        for field, rows in self._profile_groups:  # elementwise: a row's factor does not depend on the others
+            out[rows] = field.profile_factor(z[rows])
+        return out
 
     def select(self, rows) -> "BatchWind":
         """The same winds for some variants only.
@@ -589,3 +606,40 @@ class BatchWind:
         zl = np.broadcast_to(np.asarray(load_height_m, dtype=float), shape)
         zm = np.broadcast_to(np.asarray(rope_mid_height_m, dtype=float), shape)
         return wx, wy, self.profile_factor(zm) / self.profile_factor(zl)
+
+
+def rope_end_wind(field, t, pz):
+    """The wind of the hook-and-load equations at one instant, as a function of the rope end's height.
+
+    What :func:`swingsim.dynamics.hook_load.equations_of_motion` takes as its ``wind``
+    argument when the wind varies: the single run passes a :class:`WindField` and
+    floats, the batch engine a :class:`BatchWind` and arrays (one row per variant).
+
+    Parameters
+    ----------
+    field : WindField or BatchWind
+        The run's (or the chunk's) wind.
+    t : float or ndarray
+        Time [s]: a float, or one per variant (B,) or per sample (B, M).
+    pz : float or ndarray
+        Height of the suspension point above the ground [m] (one per variant,
+        shaped to broadcast with ``t``).
+
+    Returns
+    -------
+    callable
+        ``at(hz) -> (wx, wy, rope_factor, load_factor)`` for the rope end's height
+        ``hz`` relative to the suspension point [m]: the wind at the rope's end [m/s],
+        the wind at the rope's mid-height over it [-] and ``load_factor(gz)``, the wind
+        at the height ``gz`` (relative to the suspension point) over the wind at the
+        rope's end [-] (None without a profile: 1).
+    """
+    def at(hz):
+        end_z = pz + hz
+        wx, wy, rope_factor = field.terms(t, end_z, 0.5 * (pz + end_z))
+        if not field.sheared:
+            return wx, wy, rope_factor, None
+        at_end = field.profile_factor(end_z)
+        return wx, wy, rope_factor, lambda gz: field.profile_factor(pz + gz) / at_end
+
+    return at

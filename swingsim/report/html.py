@@ -60,6 +60,8 @@ def _fmt(x, key="", digits=3) -> str:
 
 _SHOW = ["last_move_end_s", "peak_rope_angle_deg", "residual_rope_angle_deg", "settled_at_s",
          "peak_rope_tension_kN", "peak_hook_load_kN", "dynamic_factor"]
+#: Shown when some variant has them: sling legs (hook-and-load model), a rated capacity chart.
+_SHOW_WHEN_MEASURED = ["peak_leg_tension_kN", "peak_utilisation_pct"]
 
 
 def _tonnes_column(key: str) -> str:
@@ -88,7 +90,8 @@ def _variant_table(sweep, results, ranking, entries, max_rows):
     obj = sweep.minimize
     t = sweep.table
     cols = list(sweep.keys)
-    show = list(_SHOW)
+    show = list(_SHOW) + [k for k in _SHOW_WHEN_MEASURED
+                          if any(v == v for v in results.numbers.get(k, ()))]  # a number somewhere (NaN != NaN)
     if obj not in show:
         show.insert(0, obj)
     named = any(t.names)

@@ -5,9 +5,10 @@ seed + N - 1`` (one turbulence realisation each; everything else equal) and repo
 the mean, the 95th percentile and the largest of the peak rope angle, the peak
 excursion and the peak hook load, and the mean, 5th percentile and least of each
 zone's clearance (``summary.json`` ``gust_statistics``).  The realisations run on the
-batch engine where it integrates the model (the point mass; any other model, and a
-realisation the batch cannot vouch for, falls back to the single-run solver per
-realisation).  Zone clearances are measured by the single-run path only, so a scene
+batch engine (``batch.engine.run_batch``: the point mass, and the hook block, rigid load
+and elastic rope of ``batch/hook_engine.py``, the seeds of one scene integrated together;
+a load resting for lift-off, a luffing boom and a realisation the batch cannot vouch for
+fall back to the single-run solver per realisation).  Zone clearances are measured by the single-run path only, so a scene
 with zones runs every realisation there.  The run's time series, plots and video are
 those of the worst realisation (the largest peak rope angle).
 
