@@ -104,7 +104,8 @@ def model_limits(scene) -> list[str]:
     else:
         out.append("The wind is steady: no gusts or turbulence"
                    + ("" if w.profile != "uniform" else ", and one speed at every height")
-                   + "; on a real site it varies with height and time.")
+                   + "; on a real site it varies with height and time ([wind] turbulence_intensity, "
+                   "[[wind.gusts]] and profile model that).")
     out.append("The crane structure is rigid: no boom, jib or mast deflection, no slew or travel "
                "drive flexibility; the crane moves exactly as the moves prescribe.")
     if scene.start.rope_preload == "lift-off":

@@ -135,9 +135,14 @@ def gust_lines(data: dict, scene) -> list[str]:
         parts.append(f"{len(w.gusts)} discrete gust(s)")
     if parts:
         out.append("  " + "; ".join(parts))
-    out.append(f"  Peak gust at load height         {data['peak_gust_m_s']:.2f} m/s  at t = "
-               f"{data['peak_gust_time_s']:.1f} s (in-service limit {data['wind_limit_m_s']:g} m/s, "
-               "which applies to gusts)")
+    if data.get("wind_varies"):
+        out.append(f"  Peak gust at load height         {data['peak_gust_m_s']:.2f} m/s  at t = "
+                   f"{data['peak_gust_time_s']:.1f} s (in-service limit {data['wind_limit_m_s']:g} m/s, "
+                   "which applies to gusts)")
+    else:  # a steady, uniform wind has no gust: say what the figure is and what it leaves out
+        out.append(f"  Steady wind at the load          {data['peak_gust_m_s']:.2f} m/s (in-service limit "
+                   f"{data['wind_limit_m_s']:g} m/s, which applies to gusts; a steady wind has none, "
+                   "see [wind] turbulence_intensity and [[wind.gusts]])")
     stats = data.get("gust_statistics")
     if stats:
         out.append(f"  Over {stats['realisations']} turbulence realisations (seeds {stats['seeds'][0]}.."

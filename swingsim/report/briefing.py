@@ -481,8 +481,12 @@ def wind_rows(d, scene) -> list:
     if w.gusts:
         rows.append(("Discrete gusts", f"{len(w.gusts)} (1 - cosine)",
                      ", ".join(f"+{g.peak_m_s:g} m/s at {g.start_s:g} s" for g in w.gusts)))
-    rows.append(("Peak gust at load height", f"{d['peak_gust_m_s']:.2f} m/s at t = {d['peak_gust_time_s']:.1f} s",
-                 f"in-service limit {d['wind_limit_m_s']:g} m/s (applies to gusts)"))
+    if d.get("wind_varies"):
+        rows.append(("Peak gust at load height", f"{d['peak_gust_m_s']:.2f} m/s at t = {d['peak_gust_time_s']:.1f} s",
+                     f"in-service limit {d['wind_limit_m_s']:g} m/s (applies to gusts)"))
+    else:
+        rows.append(("Steady wind at the load", f"{d['peak_gust_m_s']:.2f} m/s",
+                     f"in-service limit {d['wind_limit_m_s']:g} m/s applies to gusts; none modelled"))
     return rows
 
 
