@@ -267,7 +267,7 @@ class ArrayArithmetic(FloatArithmetic):
 
 
 class LoadFrame:
-    """The rigid load's attitude at one state, and points fixed on the load (one state or many).
+    r"""The rigid load's attitude at one state, and points fixed on the load (one state or many).
 
     :math:`R = R_z(c) R_x(a) R_y(b)` (module Notes), its world angular velocity
     :math:`\omega = J_\omega \dot q` and bias :math:`b_\omega` (the angular acceleration at
@@ -315,7 +315,7 @@ class LoadFrame:
         self.omega_bias = (sc * k * sa - yaw_rate * tilts[1], -cc * k * sa + yaw_rate * tilts[0], k * ca)
 
     def point(self, p_b):
-        """A point fixed on the load, relative to the CG: offset, velocity, Jacobian, bias.
+        r"""A point fixed on the load, relative to the CG: offset, velocity, Jacobian, bias.
 
         Parameters
         ----------
@@ -1716,6 +1716,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         tops = np.empty((N, 2)) if self.rigging_kind == "spreader" else None
         rot = np.empty((N, 3, 3))
         tilt = np.empty((N, 2)) if self.rigid_load else None
+        yaw = np.empty(N) if self.rigid_load else None
         ell = np.empty(N)
         energy = np.empty(N)
         for i in range(N):
@@ -1733,6 +1734,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             rot[i] = evaluation["R"]
             if tilt is not None:
                 tilt[i] = np.degrees(evaluation["tilt"])
+                yaw[i] = evaluation["yaw"]
             ell[i] = evaluation["ell"]
             energy[i] = evaluation["energy"]
         attach = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.attach_points_b) if self.rigid_load \
@@ -1746,6 +1748,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
             "static_rope_load_N": self.hanging_mass_kg * self.gravity_m_s2,
             "leg_tension_N": legs, "attach_points": attach, "load_rotation": rot,
             "load_tilt_deg": tilt,
+            "rope_end": res["H"],
+            "load_yaw_deg": None if yaw is None else np.degrees(yaw - self.yaw_start_rad),
+            "load_corners": None,
             "static_leg_tension_N": self.static_leg_tension_N(),
             "hanging_leg_tension_N": self.hanging_leg_tension_N(),
         }
@@ -1756,6 +1761,11 @@ class HookLoadModel(ModelDefaults, SwingModel):
             columns["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))
             columns["load_tilt_x_deg"] = tilt[:, 0]
             columns["load_tilt_y_deg"] = tilt[:, 1]
+            # the turn about the vertical from the start heading (the coordinate itself: unwrapped)
+            columns["load_yaw_deg"] = out["load_yaw_deg"]
+            corners = self.load_corners_b()
+            if corners is not None:  # the box's corners, as the load turns and tilts
+                out["load_corners"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, corners)
         for j in range(k):
             columns[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
         if self.rigging_kind == "spreader" and self.rigid_load:
@@ -1772,6 +1782,21 @@ class HookLoadModel(ModelDefaults, SwingModel):
             columns["rope_stretch_m"] = out["rope_stretch_m"]
         out["extra_columns"] = columns
         return out
+
+    def load_corners_b(self):
+        """The corners of the load's box (``load.size_m``), load axes from the CG.
+
+        Returns
+        -------
+        ndarray or None
+            Corners (8, 3) [m]; None for a point load or a load without a size.
+        """
+        load = self.scene.load
+        if not self.rigid_load or load.size_m is None:
+            return None
+        half = 0.5 * np.array(load.size_m, float)
+        signs = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)], float)
+        return signs * half - np.array(load.cg_offset_m, float)
 
     # -- static leg loads ------------------------------------------------------------------
     def _hanging(self) -> dict:
