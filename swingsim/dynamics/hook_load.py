@@ -18,9 +18,14 @@ Generalised coordinates (all regular at hanging rest)
 ``u2, v2``
     Same for the sling leg below a hook block (single leg only).
 ``a, b``
-    Tilt of a rigid load, :math:`R = R_x(a) R_y(b)`; yaw (turning about the
-    vertical) is held fixed: the load keeps its heading, an ideal constraint
-    torque about the vertical holds it.
+    Tilt of a rigid load.
+``yaw``
+    Heading ``c`` of a rigid load about the vertical, turned last:
+    :math:`R = R_z(c) R_x(a) R_y(b)`, regular for every heading and singular only
+    at 90 degrees of tilt.  A coordinate on a free swivel (``[hook] swivel``) and on a
+    locked one with the reeving's torsion spring (:math:`-k (c - c_0)` about the start
+    heading); a locked swivel without it holds ``c = c_0`` by an ideal constraint
+    torque (then the equations are exactly the fixed-heading ones).
 ``ell``
     Stretched rope length of an elastic rope.
 
@@ -32,7 +37,9 @@ that is only the rope's end), leg end :math:`A = H + l_2 n_2`, load CG
 :math:`c` the CG seen from the pivot in load axes.  Every point's acceleration
 is linear in :math:`\\ddot q`: :math:`\\ddot r_i = J_i \\ddot q + b_i(q, \\dot q, t)`,
 and the angular acceleration :math:`\\dot\\omega = J_\\omega \\ddot q + b_\\omega`,
-with :math:`\\omega = \\dot a\\, e_x + \\dot b\\, R_x(a) e_y`.  Kane's equations
+with :math:`\\omega = \\dot c\\, e_z + R_z(c)(\\dot a\\, e_x + \\dot b\\, R_x(a) e_y)`
+(:class:`LoadFrame`; in load axes the yaw adds :math:`\\dot c\\,(-\\sin b \\cos a, \\sin a,
+\\cos b \\cos a)`, the rest of Euler's equations unchanged).  Kane's equations
 (the principle of virtual power; Kane & Levinson, *Dynamics: Theory and
 Applications*, 1985) give
 
@@ -58,9 +65,14 @@ Damping: a force :math:`-2\\zeta\\omega_d m_i (\\dot r_i - \\dot p - \\dot\\ell 
 :math:`\\Omega` its slew rate, as in the point-mass model),
 :math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the hanging distance
 from the rope's end to the load's CG: the core model's damping in the
-point-mass limit (mass-proportional, so faster modes are damped less).  Drag
-acts at the CG (no aerodynamic moment), on the hook block when it has a size,
-and half the rope's drag acts at the rope's end as in the point-mass model.
+point-mass limit (mass-proportional, so faster modes are damped less); it acts on
+translation only, so it exerts no moment: a load on a free swivel keeps its heading
+in space while the jib slews.  The load's drag acts at its centre of pressure
+(``load.wind_center_m``, the CG by default; away from the CG it turns the load), the
+hook block's at its centre when it has a size, and half the rope's drag acts at the
+rope's end as in the point-mass model.  The legs of a bridle or spreader meet at one
+point, so turning the load about the vertical through it does no work against
+gravity: nothing but a torsion spring restores the heading.
 
 References
 ----------
