@@ -1330,7 +1330,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             # R = Rz(c) Rx(a) Ry(b) as matrices; the angular velocity's Jacobian J_w and its
             # bias b_w = dJ_w/dt qd from the derivative of each column (module Notes)
             ia, iy = self.tilt_index, self.yaw_index
-            a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
+            a, b, da = q[ia], q[ia + 1], qd[ia]
             c, dc = (q[iy], qd[iy]) if iy is not None else (self.yaw_start_rad, 0.0)
             ca, sa = math.cos(a), math.sin(a)
             Rz = rotation_z(c)
