@@ -626,6 +626,7 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
         masses += [m, m, m]
     inertial, generalised = {}, {}
+    n_points = len(rows) // 3  # the bodies' rows (x, y, z of each), before any rotation's
     if body:
         I0, I1, I2 = par["I0"], par["I1"], par["I2"]
         # body-frame angular velocity and its bias; Euler's equations about the CG
@@ -648,22 +649,30 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
             h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
             h1_ = I1 * ab1 + (wb2 * I0 * wb0 - wb0 * I2 * wb2)
             h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
-            inertial = {(ia, ia): I0 * cb * cb + I2 * sb * sb, (ia + 1, ia + 1): I1,
-                        (iy, ia): cb * (I0 * e0 + I2 * sb * ca), (iy, ia + 1): I1 * e1,
-                        (iy, iy): I0 * e0 * e0 + I1 * e1 * e1 + I2 * e2 * e2}
-            generalised = {ia: -(cb * h0 + sb * h2), ia + 1: -h1_, iy: -(e0 * h0 + e1 * h1_ + e2 * h2)}
+            # the body-frame angular velocity is linear in the rates like a point's velocity: three
+            # rows of the stacked Jacobian weighted by the principal inertias add J_b^T I J_b to M
+            # and -J_b^T (I alpha_bias + w x I w) to Q
+            za = [0.0] * nq
+            ra, rb, rc = za[:], za[:], za[:]
+            ra[ia], ra[iy] = cb, e0
+            rb[ia + 1], rb[iy] = 1.0, e1
+            rc[ia], rc[iy] = sb, e2
+            rows += [ra, rb, rc]
+            fvec += [-h0, -h1_, -h2]
+            masses += [I0, I1, I2]
+            generalised = {iy: 0.0}
             k_yaw = par["yaw_stiffness_N_m_per_rad"]
             if _on(k_yaw):  # the reeving's torsion (locked swivel): a spring about the start heading
                 generalised[iy] = generalised[iy] - k_yaw * (yaw - par["yaw_start_rad"])
         for k, x in load_moments.items():
-            generalised[k] = generalised[k] + x
+            generalised[k] = generalised.get(k, 0.0) + x
     qdd = ops.solve(rows, fvec, masses, inertial, generalised)
     if not details:
         return qdd
     # what is left of each point's momentum balance: the constraint forces (module Notes)
     acc = [qdd[..., i] for i in range(nq)]
     rest = []
-    for r, f, mr in zip(rows, fvec, masses):
+    for r, f, mr in zip(rows[:3 * n_points], fvec, masses):
         s = f
         for i, x in enumerate(r):
             if _on(x):
