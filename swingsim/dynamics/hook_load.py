@@ -1348,7 +1348,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Jw[:, ia] = Rz[:, 0]  # Rz ex
             Jw[:, ia + 1] = Rz @ (0.0, ca, sa)  # Rz Rx(a) ey
             dJ = np.zeros((3, nq))
-            dJ[:, ia] = dc * Rz @ (0.0, 1.0, 0.0)  # d/dt Rz ex = dc Rz ey
+            dJ[:, ia] = dc * Rz[:, 1]  # d/dt Rz ex = dc Rz ey
             dJ[:, ia + 1] = Rz @ (-dc * ca, -da * sa, da * ca)
             if iy is not None:
                 Jw[2, iy] = 1.0
@@ -1356,10 +1356,12 @@ class HookLoadModel(ModelDefaults, SwingModel):
             bw = dJ @ qd
             r = R @ self.cg_from_pivot_b
             G = np.array(P) + r
-            wxr = np.cross(om, r)
+            wxr = np.array(_cx(om, r))
             Gd = np.array(Pd) + wxr
-            JG = JP + np.cross(Jw.T, r).T  # column k: J_w,k x r
-            bG = bP + np.cross(bw, r) + np.cross(om, wxr)
+            JG = JP.copy()
+            for k in (ia, ia + 1) if iy is None else (ia, ia + 1, iy):  # column k: J_w,k x r
+                JG[:, k] += _cx(Jw[:, k], r)
+            bG = bP + _cx(bw, r) + _cx(om, wxr)
             Iw = (R * self.inertia_b) @ R.T
         else:
             G, Gd, JG, bG = np.array(P), np.array(Pd), JP, bP
@@ -1370,11 +1372,12 @@ class HookLoadModel(ModelDefaults, SwingModel):
             if applied and self._load_drag_k:
                 rho = R @ self.wind_center_b if self.rigid_load else np.zeros(3)
                 lwf = self._height_factor(G[2] + rho[2], H[2], t)
-                rel = Gd + np.cross(om, rho) - (lwf * wx, lwf * wy, 0.0) if self.rigid_load \
+                rel = Gd + _cx(om, rho) - (lwf * wx, lwf * wy, 0.0) if self.rigid_load \
                     else Gd - (lwf * wx, lwf * wy, 0.0)
                 drag = -self._load_drag_k * math.sqrt(rel @ rel) * rel
                 FG += drag
-                moment += np.cross(rho, drag)
+                if self.structure.wind_center:
+                    moment += _cx(rho, drag)
             pts_m.append(m)
             pts_J.append(JG)
             pts_b.append(bG)
@@ -1392,7 +1395,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Iom = Iw @ om
             M += Jw.T @ Iw @ Jw
             Qv -= Jw.T @ (Iw @ bw + _cx(om, Iom))
-            Qv += Jw.T @ moment
+            if self.structure.wind_center:
+                Qv += Jw.T @ moment
             if iy is not None and self.yaw_stiffness_N_m_per_rad:  # the reeving's torsion (locked swivel)
                 Qv[iy] -= self.yaw_stiffness_N_m_per_rad * (c - self.yaw_start_rad)
         qdd = np.linalg.solve(M, Qv)
