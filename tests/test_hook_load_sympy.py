@@ -66,6 +66,14 @@ def _derive(model):
         Rx = sp.Matrix([[1, 0, 0], [0, sp.cos(a), -sp.sin(a)], [0, sp.sin(a), sp.cos(a)]])
         Ry = sp.Matrix([[sp.cos(b), 0, sp.sin(b)], [0, 1, 0], [-sp.sin(b), 0, sp.cos(b)]])
         R = Rx * Ry
+        if "yaw" in Q:  # the heading about the vertical, turned last: Rz(c) Rx(a) Ry(b)
+            c = Q["yaw"]
+            R = sp.Matrix([[sp.cos(c), -sp.sin(c), 0], [sp.sin(c), sp.cos(c), 0], [0, 0, 1]]) * R
+            # the reeving's torsion on a locked swivel: a spring about the start heading
+            V += sp.Rational(1, 2) * sp.Float(model.yaw_stiffness_N_m_per_rad) * (c - sp.Float(model.yaw_start_rad)) ** 2
+        elif model.yaw_start_rad:
+            c = sp.Float(model.yaw_start_rad)
+            R = sp.Matrix([[sp.cos(c), -sp.sin(c), 0], [sp.sin(c), sp.cos(c), 0], [0, 0, 1]]) * R
         G = P + R * sp.Matrix([sp.Float(c) for c in model.cg_from_pivot_b])
         W = sp.simplify(R.diff(t) * R.T)
         om = sp.Matrix([W[2, 1], W[0, 2], W[1, 0]])
@@ -125,6 +133,19 @@ CASES = {
         load={"mass_kg": 900.0, "size_m": [1.2, 0.8, 0.6], "inertia_kg_m2": [70.0, 120.0, 150.0]},
         rigging={"kind": "single", "leg_length_m": 0.7, "attach_m": [[0.1, -0.05, 0.3]]},
         rope={"length_m": 9.0, "modulus_GPa": 95.0, "diameter_m": 0.016, "falls": 1}),
+    # the yaw's variants: a locked swivel on the reeving's torsion spring (free heading with a
+    # spring), and a locked one holding a turned heading (no coordinate of its own)
+    "rigid+bridle+torsion": dict(
+        hook={"swivel": "locked", "torsion_stiffness_N_m_per_rad": 2500.0},
+        load={"mass_kg": 3000.0, "size_m": [4.0, 0.5, 1.0], "cg_offset_m": [0.3, 0.1, -0.1]},
+        rigging={"kind": "bridle", "leg_length_m": [3.0, 3.2], "attach_m": [[-1.6, 0.1, 0.5], [1.8, -0.1, 0.5]]},
+        start={"yaw_deg": 25.0}),
+    "hook+spreader+locked-turned": dict(
+        hook={"mass_kg": 350.0, "swivel": "locked"},
+        load={"mass_kg": 2500.0, "size_m": [0.8, 5.0, 0.8], "shape": "cylinder", "cg_offset_m": [0.05, 0.2, 0.0]},
+        rigging={"kind": "spreader", "leg_length_m": 2.0, "attach_m": [[0.0, -2.0, 0.4], [0.0, 2.0, 0.4]],
+                 "top_leg_length_m": 3.0},
+        start={"yaw_deg": -40.0}),
 }
 
 
@@ -143,6 +164,8 @@ def test_accelerations_match_lagrange(case):
             q[2:4] = rng.uniform(-0.35, 0.35, 2)
         if model.rigid_load:
             q[model.tilt_index:model.tilt_index + 2] = rng.uniform(-0.5, 0.5, 2)
+        if model.yaw_index is not None:  # any heading: the chart is regular about the vertical
+            q[model.yaw_index] = rng.uniform(-3.0, 3.0)
         X, dX, ddX, Y_, dY, ddY = rng.uniform(-2, 2, 6)
         L, dL, ddL = 9.0 + rng.uniform(-1, 1), rng.uniform(-0.5, 0.5), rng.uniform(-0.3, 0.3)
         if model.rope_is_elastic:  # a stretched rope (slack, the model's rope pushes nothing)
@@ -167,7 +190,7 @@ def test_fast_path_matches_reference_path_with_damping_wind_and_slewing(case):
     over["wind"] = {"speed_m_s": 11.0, "direction_deg": 35.0}
     over["load"] = dict(over.get("load", {"mass_kg": 1500.0}), wind_area_m2=6.0)
     over["rope"] = dict(over.get("rope", {"length_m": 9.0}), diameter_m=0.02)
-    if "hook" in over:
+    if "mass_kg" in over.get("hook", {}):  # a hook block (not a [hook] table with a swivel only)
         over["hook"] = dict(over["hook"], size_m=[0.5, 0.4, 0.9])
     model = HookLoadModel(_scene(**over))
     rng = np.random.default_rng(3)
@@ -179,6 +202,8 @@ def test_fast_path_matches_reference_path_with_damping_wind_and_slewing(case):
             q[2:4] = rng.uniform(-0.3, 0.3, 2)
         if model.rigid_load:
             q[model.tilt_index:model.tilt_index + 2] = rng.uniform(-0.4, 0.4, 2)
+        if model.yaw_index is not None:
+            q[model.yaw_index] = rng.uniform(-3.0, 3.0)
         qd = rng.uniform(-0.7, 0.7, nq)
         kt = tuple(rng.uniform(-2, 2, 9)) + (9.0, 0.3, -0.2, rng.uniform(-0.1, 0.1))
         kt = kt[:2] + (30.0,) + kt[3:5] + (0.0,) + kt[6:8] + (0.0,) + kt[9:]

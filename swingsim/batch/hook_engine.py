@@ -59,8 +59,9 @@ __all__ = ["supported", "run_variants"]
 _SLICE_VALUES = 6_000_000
 #: Sample points evaluated together when measuring (bounds the equations' temporaries).
 _MEASURE_POINTS = 40_000
-#: Drag and wind terms: a scalar zero when zero in the whole slice (the term is skipped).
-_SKIPPABLE = ("rope_drag_k", "end_drag_k", "load_drag_k")
+#: Drag, wind and heading terms: a scalar zero when zero in the whole slice (the term is skipped).
+_SKIPPABLE = ("rope_drag_k", "end_drag_k", "load_drag_k", "yaw_start_rad", "yaw_stiffness_N_m_per_rad",
+              "wc0", "wc1", "wc2")
 
 
 def supported(scene) -> bool:

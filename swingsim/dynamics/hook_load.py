@@ -18,9 +18,14 @@ Generalised coordinates (all regular at hanging rest)
 ``u2, v2``
     Same for the sling leg below a hook block (single leg only).
 ``a, b``
-    Tilt of a rigid load, :math:`R = R_x(a) R_y(b)`; yaw (turning about the
-    vertical) is held fixed: the load keeps its heading, an ideal constraint
-    torque about the vertical holds it.
+    Tilt of a rigid load.
+``yaw``
+    Heading ``c`` of a rigid load about the vertical, turned last:
+    :math:`R = R_z(c) R_x(a) R_y(b)`, regular for every heading and singular only
+    at 90 degrees of tilt.  A coordinate on a free swivel (``[hook] swivel``) and on a
+    locked one with the reeving's torsion spring (:math:`-k (c - c_0)` about the start
+    heading); a locked swivel without it holds ``c = c_0`` by an ideal constraint
+    torque (then the equations are exactly the fixed-heading ones).
 ``ell``
     Stretched rope length of an elastic rope.
 
@@ -32,7 +37,9 @@ that is only the rope's end), leg end :math:`A = H + l_2 n_2`, load CG
 :math:`c` the CG seen from the pivot in load axes.  Every point's acceleration
 is linear in :math:`\\ddot q`: :math:`\\ddot r_i = J_i \\ddot q + b_i(q, \\dot q, t)`,
 and the angular acceleration :math:`\\dot\\omega = J_\\omega \\ddot q + b_\\omega`,
-with :math:`\\omega = \\dot a\\, e_x + \\dot b\\, R_x(a) e_y`.  Kane's equations
+with :math:`\\omega = \\dot c\\, e_z + R_z(c)(\\dot a\\, e_x + \\dot b\\, R_x(a) e_y)`
+(:class:`LoadFrame`; in load axes the yaw adds :math:`\\dot c\\,(-\\sin b \\cos a, \\sin a,
+\\cos b \\cos a)`, the rest of Euler's equations unchanged).  Kane's equations
 (the principle of virtual power; Kane & Levinson, *Dynamics: Theory and
 Applications*, 1985) give
 
@@ -58,9 +65,14 @@ Damping: a force :math:`-2\\zeta\\omega_d m_i (\\dot r_i - \\dot p - \\dot\\ell 
 :math:`\\Omega` its slew rate, as in the point-mass model),
 :math:`\\omega_d = \\sqrt{g / (\\ell + d)}` with :math:`d` the hanging distance
 from the rope's end to the load's CG: the core model's damping in the
-point-mass limit (mass-proportional, so faster modes are damped less).  Drag
-acts at the CG (no aerodynamic moment), on the hook block when it has a size,
-and half the rope's drag acts at the rope's end as in the point-mass model.
+point-mass limit (mass-proportional, so faster modes are damped less); it acts on
+translation only, so it exerts no moment: a load on a free swivel keeps its heading
+in space while the jib slews.  The load's drag acts at its centre of pressure
+(``load.wind_center_m``, the CG by default; away from the CG it turns the load), the
+hook block's at its centre when it has a size, and half the rope's drag acts at the
+rope's end as in the point-mass model.  The legs of a bridle or spreader meet at one
+point, so turning the load about the vertical through it does no work against
+gravity: nothing but a torsion spring restores the heading.
 
 References
 ----------
@@ -82,13 +94,18 @@ from swingsim import constants
 from swingsim.dynamics.base import LinearSwing, ModelDefaults, SwingModel
 from swingsim.dynamics.pendulum import direction_from_projected, projected_angles, starts_in_steady_wind
 from swingsim.dynamics.wind import rope_end_wind, wind_field
-from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, tilt_to_align
+from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, rotation_z, tilt_to_align
 from swingsim.dynamics.rope import elastic_rope
 
 
 def _cx(a, b):
     """Cross product of two 3-sequences as a tuple (np.cross is slow on single vectors)."""
     return (a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0])
+
+
+def _turn(cc, sc, v):
+    """A 3-sequence turned about the vertical by the angle whose cosine and sine are ``cc, sc``."""
+    return (cc * v[0] - sc * v[1], sc * v[0] + cc * v[1], v[2])
 
 
 #: Names under which this model is listed in ``swingsim.dynamics.registry.MODELS``.
@@ -153,7 +170,7 @@ class FloatArithmetic:
         return x if x > 0.0 else 0.0
 
     @staticmethod
-    def solve(rows, forces, masses, diagonal, generalised):
+    def solve(rows, forces, masses, inertial, generalised):
         """Generalised accelerations from the stacked Jacobian: ``M qdd = Q``.
 
         :math:`M = B^T \\operatorname{diag}(m) B + D`, :math:`Q = B^T f + g`.
@@ -166,9 +183,9 @@ class FloatArithmetic:
             Applied force less mass times bias acceleration, per row [N].
         masses : list
             Mass of each row's point [kg].
-        diagonal : dict
-            Additions to diagonal entries of ``M``, by index (a rigid load's rotation)
-            [kg m^2 per chart unit^2].
+        inertial : dict
+            Additions to entries of ``M`` (a rigid load's rotation), by ``(i, j)`` with
+            ``i >= j``, added to both ``(i, j)`` and ``(j, i)`` [kg m^2 per chart unit^2].
         generalised : dict
             Additions to entries of ``Q``, by index [N m per chart unit].
 
@@ -181,8 +198,10 @@ class FloatArithmetic:
         mw = np.array(masses)
         M = B.T @ (mw[:, None] * B)
         Q = B.T @ np.array(forces)
-        for i, x in diagonal.items():
-            M[i, i] += x
+        for (i, j), x in inertial.items():
+            M[i, j] += x
+            if i != j:
+                M[j, i] += x
         for i, x in generalised.items():
             Q[i] += x
         return np.linalg.solve(M, Q)
@@ -207,7 +226,7 @@ class ArrayArithmetic(FloatArithmetic):
         return np.maximum(x, 0.0)
 
     @staticmethod
-    def solve(rows, forces, masses, diagonal, generalised):
+    def solve(rows, forces, masses, inertial, generalised):
         n = len(rows[0])
         # every force holds a state, so together they have the states' full shape
         shape = np.broadcast_shapes(*(np.shape(x) for x in forces))
@@ -227,8 +246,8 @@ class ArrayArithmetic(FloatArithmetic):
                 if _on(r[i]):
                     acc = acc + r[i] * f
             Q.append(acc)
-        for i, x in diagonal.items():
-            M[i][i] = M[i][i] + x
+        for (i, j), x in inertial.items():
+            M[i][j] = M[i][j] + x
         for i, x in generalised.items():
             Q[i] = Q[i] + x
         # M = L D L^T (Golub & Van Loan, Matrix Computations, sec. 4.1), then two triangular solves
@@ -259,6 +278,98 @@ class ArrayArithmetic(FloatArithmetic):
         return np.stack([np.broadcast_to(v, shape) for v in x], axis=-1)
 
 
+class LoadFrame:
+    r"""The rigid load's attitude at one state, and points fixed on the load (one state or many).
+
+    :math:`R = R_z(c) R_x(a) R_y(b)` (module Notes), its world angular velocity
+    :math:`\omega = J_\omega \dot q` and bias :math:`b_\omega` (the angular acceleration at
+    :math:`\ddot q = 0`).  :meth:`point` gives a point fixed on the load with its velocity,
+    Jacobian and bias relative to the CG, :meth:`generalised_force` the generalised force of
+    a force applied there: a force at any point of the load (the wind's centre of pressure;
+    later a tag line's attachment, a corner on the ground) is one term.  Works on floats and
+    on arrays alike (``ops``).
+
+    Parameters
+    ----------
+    ops : type
+        :class:`FloatArithmetic` or :class:`ArrayArithmetic`.
+    tilt, tilt_rate : tuple
+        ``(a, b)`` [rad] and their rates [rad/s].
+    yaw, yaw_rate : float or ndarray
+        The heading ``c`` about the vertical [rad] and its rate [rad/s] (0 when held).
+    tilt_index : int
+        Index of ``a`` in the coordinates (``b`` follows).
+    yaw_index : int or None
+        Index of ``c`` (None when the heading is held: no coordinate of its own).
+    """
+
+    def __init__(self, ops, tilt, tilt_rate, yaw, yaw_rate, tilt_index, yaw_index):
+        a, b = tilt
+        da, db = tilt_rate
+        ca, sa, cb, sb = ops.cos(a), ops.sin(a), ops.cos(b), ops.sin(b)
+        cc, sc = ops.cos(yaw), ops.sin(yaw)
+        r0 = (cb, 0.0 * cb, sb)
+        r1 = (sa * sb, ca, -sa * cb)
+        #: rows of R (load axes to world) [-]
+        self.rows = ((cc * r0[0] - sc * r1[0], -sc * r1[1], cc * r0[2] - sc * r1[2]),
+                     (sc * r0[0] + cc * r1[0], cc * r1[1], sc * r0[2] + cc * r1[2]),
+                     (-ca * sb, sa, ca * cb))
+        #: world angular velocity per unit rate of each coordinate (columns of J_omega) [rad per chart unit]
+        self.columns = {tilt_index: (cc, sc, 0.0 * cc), tilt_index + 1: (-sc * ca, cc * ca, sa)}
+        if yaw_index is not None:
+            self.columns[yaw_index] = (0.0, 0.0, 1.0)
+        tilts = (cc * da - sc * db * ca, sc * da + cc * db * ca, db * sa)  # Rz (da ex + db Rx ey)
+        #: world angular velocity [rad/s]
+        self.omega = (tilts[0], tilts[1], tilts[2] + yaw_rate)
+        k = da * db
+        # d/dt (Rz v) = dc ez x Rz v + Rz dv/dt, with v the tilts' angular velocity
+        #: angular acceleration at zero generalised accelerations [rad/s^2]
+        self.omega_bias = (sc * k * sa - yaw_rate * tilts[1], -cc * k * sa + yaw_rate * tilts[0], k * ca)
+
+    def point(self, p_b):
+        r"""A point fixed on the load, relative to the CG: offset, velocity, Jacobian, bias.
+
+        Parameters
+        ----------
+        p_b : sequence of 3
+            The point in load axes, from the CG [m].
+
+        Returns
+        -------
+        tuple
+            ``(rho, rho_dot, jacobian, bias)``: world offset from the CG [m], its rate
+            :math:`\omega \times \rho` [m/s], ``{index: column}`` with column
+            :math:`\partial \dot\rho / \partial \dot q_k` [m per chart unit], and the
+            acceleration at zero generalised accelerations
+            :math:`b_\omega \times \rho + \omega \times (\omega \times \rho)` [m/s^2].
+        """
+        rho = tuple(row[0] * p_b[0] + row[1] * p_b[1] + row[2] * p_b[2] for row in self.rows)
+        rho_dot = _cx(self.omega, rho)
+        jac = {k: _cx(col, rho) for k, col in self.columns.items()}
+        bias_cross, spin = _cx(self.omega_bias, rho), _cx(self.omega, rho_dot)
+        return rho, rho_dot, jac, tuple(x + y for x, y in zip(bias_cross, spin))
+
+    def generalised_force(self, rho, force):
+        """The rotational generalised forces of a force applied at a point of the load.
+
+        Parameters
+        ----------
+        rho : sequence of 3
+            The point's world offset from the CG [m] (:meth:`point`).
+        force : sequence of 3
+            The force, world axes [N].
+
+        Returns
+        -------
+        dict
+            ``{index: J_omega_k . (rho x F)}`` [N m per chart unit]; the force itself acts
+            on the CG's coordinates as any force at the CG does.
+        """
+        moment = _cx(rho, force)
+        return {k: col[0] * moment[0] + col[1] * moment[1] + col[2] * moment[2]
+                for k, col in self.columns.items()}
+
+
 class Structure(NamedTuple):
     """What fixes the coordinates and the terms of the equations (shared by a batch group).
 
@@ -276,6 +387,11 @@ class Structure(NamedTuple):
         A mass at the rope's end (hook block, or the point load itself).
     rope_end_is_hook : bool
         That mass is a hook block (its drag uses the hook's coefficient).
+    yaw_index : int or None
+        Index of the rigid load's yaw (free swivel, or a locked one on a torsion spring);
+        None when the heading is held (locked, no torsion stiffness).
+    wind_center : bool
+        The load's wind drag acts at a centre of pressure away from its CG.
     """
 
     n_coordinates: int
@@ -284,12 +400,14 @@ class Structure(NamedTuple):
     leg_below_hook: bool
     rope_end_mass: bool
     rope_end_is_hook: bool
+    yaw_index: object = None
+    wind_center: bool = False
 
 
 #: Parameters of :func:`equations_of_motion` (see :meth:`HookLoadModel.equation_parameters`).
 PARAMETER_NAMES = ("g", "zeta", "rope_drag_k", "end_drag_k", "load_drag_k", "end_mass_kg", "load_mass_kg",
                    "rope_end_leg_m", "leg_below_hook_m", "cg_below_rope_end_m", "c0", "c1", "c2",
-                   "I0", "I1", "I2")
+                   "I0", "I1", "I2", "yaw_start_rad", "yaw_stiffness_N_m_per_rad", "wc0", "wc1", "wc2")
 
 
 def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithmetic, details=False):
@@ -340,6 +458,14 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
     nq, ia, il, link2 = structure.n_coordinates, structure.tilt_index, structure.rope_length_index, \
         structure.leg_below_hook
     body = ia is not None
+    iy = structure.yaw_index
+    # the load's heading: the yaw coordinate (free swivel, or a locked one on a torsion spring), or
+    # the start's heading held (locked); turned: R = Rz(yaw) Rx(a) Ry(b) differs from Rx(a) Ry(b)
+    if iy is not None:
+        yaw, dyaw = q[iy], qd[iy]
+    else:
+        yaw, dyaw = par["yaw_start_rad"], 0.0
+    turned = body and (iy is not None or _on(yaw))
     vx, vy, vz, ax, ay, az, L, dL, ddL, om_s = kin
     g = par["g"]
     sqrt = ops.sqrt
@@ -410,6 +536,7 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
             Fy -= sp * ry
             Fz -= sp * rz
     rows = [Jx, Jy, Jz]
+    load_moments = {}
     fvec = [Fx - mH * bx, Fy - mH * by, Fz - mH * bz]
     masses = [mH, mH, mH]
     Gx, Gy, Gz, Gdx, Gdy, Gdz = Hx, Hy, Hz, Hdx, Hdy, Hdz
@@ -435,25 +562,41 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
             a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
             ca, sa, cb, sb = ops.cos(a), ops.sin(a), ops.cos(b), ops.sin(b)
             c0, c1, c2 = par["c0"], par["c1"], par["c2"]
+            # in the frame turned by the yaw c: R0 = Rx(a) Ry(b) (the whole rotation without yaw)
             r0 = cb * c0 + sb * c2
             r1 = sa * sb * c0 + ca * c1 - sa * cb * c2
             r2 = -ca * sb * c0 + sa * c1 + ca * cb * c2
-            o0, o1, o2 = da, db * ca, db * sa  # world angular velocity
+            o0, o1, o2 = da, db * ca, db * sa  # angular velocity of the tilts
             wr0, wr1, wr2 = o1 * r2 - o2 * r1, o2 * r0 - o0 * r2, o0 * r1 - o1 * r0
-            Gx, Gy, Gz = Px + r0, Py + r1, Pz + r2
-            Gdx, Gdy, Gdz = Pdx + wr0, Pdy + wr1, Pdz + wr2
             # columns of a, b: ex x r, ey' x r
-            Gy_[ia] = Gy_[ia] - r2
-            Gz_[ia] = Gz_[ia] + r1
-            Gx_[ia + 1] = Gx_[ia + 1] + (ca * r2 - sa * r1)
-            Gy_[ia + 1] = Gy_[ia + 1] + sa * r0
-            Gz_[ia + 1] = Gz_[ia + 1] - ca * r0
+            colA = (0.0, -r2, r1)
+            colB = (ca * r2 - sa * r1, sa * r0, -ca * r0)
             # bias: bw x r + w x (w x r), bw = da db (0, -sa, ca)
             k_ = da * db
             bw1, bw2 = -k_ * sa, k_ * ca
-            gbx = gbx + (bw1 * r2 - bw2 * r1 + (o1 * wr2 - o2 * wr1))
-            gby = gby + (bw2 * r0 + (o2 * wr0 - o0 * wr2))
-            gbz = gbz + (-bw1 * r0 + (o0 * wr1 - o1 * wr0))
+            br = (bw1 * r2 - bw2 * r1 + (o1 * wr2 - o2 * wr1), bw2 * r0 + (o2 * wr0 - o0 * wr2),
+                  -bw1 * r0 + (o0 * wr1 - o1 * wr0))
+            wr = (wr0, wr1, wr2)
+            r = (r0, r1, r2)
+            if turned:  # R = Rz(c) R0: turn every vector about the vertical, add the yaw's own terms
+                cc, sc = ops.cos(yaw), ops.sin(yaw)
+                r, wr, colA, colB, br = (_turn(cc, sc, x) for x in (r, wr, colA, colB, br))
+                if iy is not None:  # d/dt (Rz v) = dc ez x Rz v + Rz dv/dt
+                    wr = (wr[0] - dyaw * r[1], wr[1] + dyaw * r[0], wr[2])
+                    Gx_[iy], Gy_[iy] = -r[1], r[0]  # ez x r
+                    e_ = dyaw * dyaw
+                    br = (br[0] - 2.0 * dyaw * (wr[1] - dyaw * r[0]) - e_ * r[0],
+                          br[1] + 2.0 * dyaw * (wr[0] + dyaw * r[1]) - e_ * r[1], br[2])
+            Gx, Gy, Gz = Px + r[0], Py + r[1], Pz + r[2]
+            Gdx, Gdy, Gdz = Pdx + wr[0], Pdy + wr[1], Pdz + wr[2]
+            Gy_[ia] = Gy_[ia] + colA[1]
+            Gz_[ia] = Gz_[ia] + colA[2]
+            if turned:
+                Gx_[ia] = Gx_[ia] + colA[0]
+            Gx_[ia + 1] = Gx_[ia + 1] + colB[0]
+            Gy_[ia + 1] = Gy_[ia + 1] + colB[1]
+            Gz_[ia + 1] = Gz_[ia + 1] + colB[2]
+            gbx, gby, gbz = gbx + br[0], gby + br[1], gbz + br[2]
         else:
             Gx, Gy, Gz, Gdx, Gdy, Gdz = Px, Py, Pz, Pdx, Pdy, Pdz
         m = par["load_mass_kg"]
@@ -462,7 +605,18 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         FGy = -cm * (Gdy - rfy - om_s * Gx)
         FGz = -cm * (Gdz - rfz) - m * g
         k_load = par["load_drag_k"]
-        if _on(k_load):
+        if _on(k_load) and body and structure.wind_center:
+            # the drag at the centre of pressure: its force on the CG, its moment through the load's frame
+            frame = LoadFrame(ops, (a, b), (da, db), yaw, dyaw, ia, iy)
+            rho, rho_d = frame.point((par["wc0"], par["wc1"], par["wc2"]))[:2]
+            lwf = 1.0 if load_factor is None else load_factor(Gz + rho[2])
+            rx, ry, rz = Gdx + rho_d[0] - lwf * wx, Gdy + rho_d[1] - lwf * wy, Gdz + rho_d[2]
+            sp = k_load * sqrt(rx * rx + ry * ry + rz * rz)
+            FGx = FGx - sp * rx
+            FGy = FGy - sp * ry
+            FGz = FGz - sp * rz
+            load_moments = frame.generalised_force(rho, (-sp * rx, -sp * ry, -sp * rz))
+        elif _on(k_load):
             lwf = 1.0 if load_factor is None else load_factor(Gz)
             rx, ry, rz = Gdx - lwf * wx, Gdy - lwf * wy, Gdz
             sp = k_load * sqrt(rx * rx + ry * ry + rz * rz)
@@ -472,24 +626,54 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         rows += [Gx_, Gy_, Gz_]
         fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
         masses += [m, m, m]
-    diagonal, generalised = {}, {}
+    inertial, generalised = {}, {}
+    n_points = len(rows) // 3  # the bodies' rows (x, y, z of each), before any rotation's
     if body:
         I0, I1, I2 = par["I0"], par["I1"], par["I2"]
         # body-frame angular velocity and its bias; Euler's equations about the CG
+        # (the yaw about the vertical does not change the body-frame terms: Rz^T ez = ez)
         wb0, wb1, wb2 = da * cb, db, da * sb
         ab0, ab2 = -da * db * sb, da * db * cb
-        h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
-        h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
-        h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
-        diagonal = {ia: I0 * cb * cb + I2 * sb * sb, ia + 1: I1}
-        generalised = {ia: -(cb * h0 + sb * h2), ia + 1: -h1_}
-    qdd = ops.solve(rows, fvec, masses, diagonal, generalised)
+        if iy is None:
+            h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
+            h1_ = wb2 * I0 * wb0 - wb0 * I2 * wb2
+            h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
+            inertial = {(ia, ia): I0 * cb * cb + I2 * sb * sb, (ia + 1, ia + 1): I1}
+            generalised = {ia: -(cb * h0 + sb * h2), ia + 1: -h1_}
+        else:
+            # the yaw's column in load axes, ez seen from the load: (-sb ca, sa, cb ca)
+            e0, e1, e2 = -sb * ca, sa, cb * ca
+            wb0, wb1, wb2 = wb0 + dyaw * e0, wb1 + dyaw * e1, wb2 + dyaw * e2
+            ab0 = ab0 + dyaw * (da * sb * sa - db * cb * ca)
+            ab1 = dyaw * da * ca
+            ab2 = ab2 - dyaw * (db * sb * ca + da * cb * sa)
+            h0 = I0 * ab0 + (wb1 * I2 * wb2 - wb2 * I1 * wb1)
+            h1_ = I1 * ab1 + (wb2 * I0 * wb0 - wb0 * I2 * wb2)
+            h2 = I2 * ab2 + (wb0 * I1 * wb1 - wb1 * I0 * wb0)
+            # the body-frame angular velocity is linear in the rates like a point's velocity: three
+            # rows of the stacked Jacobian weighted by the principal inertias add J_b^T I J_b to M
+            # and -J_b^T (I alpha_bias + w x I w) to Q
+            za = [0.0] * nq
+            ra, rb, rc = za[:], za[:], za[:]
+            ra[ia], ra[iy] = cb, e0
+            rb[ia + 1], rb[iy] = 1.0, e1
+            rc[ia], rc[iy] = sb, e2
+            rows += [ra, rb, rc]
+            fvec += [-h0, -h1_, -h2]
+            masses += [I0, I1, I2]
+            generalised = {iy: 0.0}
+            k_yaw = par["yaw_stiffness_N_m_per_rad"]
+            if _on(k_yaw):  # the reeving's torsion (locked swivel): a spring about the start heading
+                generalised[iy] = generalised[iy] - k_yaw * (yaw - par["yaw_start_rad"])
+        for k, x in load_moments.items():
+            generalised[k] = generalised.get(k, 0.0) + x
+    qdd = ops.solve(rows, fvec, masses, inertial, generalised)
     if not details:
         return qdd
     # what is left of each point's momentum balance: the constraint forces (module Notes)
     acc = [qdd[..., i] for i in range(nq)]
     rest = []
-    for r, f, mr in zip(rows, fvec, masses):
+    for r, f, mr in zip(rows[:3 * n_points], fvec, masses):
         s = f
         for i, x in enumerate(r):
             if _on(x):
@@ -675,9 +859,19 @@ class HookLoadModel(ModelDefaults, SwingModel):
         if self.leg_below_hook:
             names += ["u2", "v2"]
         self.tilt_index = None
+        swivel = getattr(scene, "swivel", None)
+        self.swivel = swivel.kind if swivel is not None else "free"
+        self.yaw_stiffness_N_m_per_rad = swivel.torsion_stiffness_N_m_per_rad if swivel is not None else 0.0
+        self.yaw_start_rad = math.radians(getattr(scene.start, "yaw_deg", 0.0)) if self.rigid_load else 0.0
+        self.wind_center_b = np.array(getattr(load, "wind_center_m", (0.0, 0.0, 0.0)), dtype=float)
+        self.yaw_index = None
         if self.rigid_load:
             self.tilt_index = len(names)
             names += ["tilt_a", "tilt_b"]
+            # the heading is a coordinate unless a locked swivel holds it (no torsion spring)
+            if self.swivel == "free" or self.yaw_stiffness_N_m_per_rad > 0.0:
+                self.yaw_index = len(names)
+                names += ["yaw"]
         self.rope_length_index = None
         if self.rope_is_elastic:
             self.rope_length_index = len(names)
@@ -697,7 +891,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
         self.structure = Structure(self.n_coordinates, self.tilt_index, self.rope_length_index,
                                    self.leg_below_hook, self.hook_mass_kg + (
                                        0.0 if (self.rigid_load or self.leg_below_hook) else self.load_mass_kg) > 0.0,
-                                   self.has_hook_block)
+                                   self.has_hook_block, self.yaw_index,
+                                   bool(self.rigid_load and self._load_drag_k and np.any(self.wind_center_b)))
         self._par = self.equation_parameters()
 
     # -- set-up ------------------------------------------------------------------
@@ -741,18 +936,22 @@ class HookLoadModel(ModelDefaults, SwingModel):
             if in_wind:  # the CG's direction from its pivot at rest, turned by the start's swing
                 ia = self.tilt_index
                 a0, b0 = rest[ia], rest[ia + 1]
-                cg = rotation(a0, b0) @ self.cg_from_pivot_b
+                cg = rotation_z(self.yaw_start_rad) @ rotation(a0, b0) @ self.cg_from_pivot_b
                 norm = float(np.linalg.norm(cg))
                 if norm > 0.0:
                     t2 = turned(cg / norm)
                     target = np.array([t2[0], t2[1], -math.sqrt(max(1.0 - t2[0] ** 2 - t2[1] ** 2, 0.0))])
-            a, b = tilt_to_align(self.cg_from_pivot_b, target, guess=(a0, b0))
+            c0 = self.yaw_start_rad
+            a, b = tilt_to_align(self.cg_from_pivot_b, rotation_z(-c0) @ target, guess=(a0, b0))
             if in_wind and not any(sw.swing_deg):
                 a, b = rest[self.tilt_index], rest[self.tilt_index + 1]  # exactly the rest
             q += [a, b]
-            Jw = np.array([[1.0, 0.0], [0.0, math.cos(a)], [0.0, math.sin(a)]])
+            Jw = rotation_z(c0) @ np.array([[1.0, 0.0], [0.0, math.cos(a)], [0.0, math.sin(a)]])
             rates = np.linalg.lstsq(Jw, Om, rcond=None)[0]
             qd += [float(rates[0]), float(rates[1])]
+            if self.yaw_index is not None:  # the heading and its rate of [start]
+                q.append(c0)
+                qd.append(math.radians(sw.yaw_rate_deg_s))
         if in_wind and not any(sw.swing_deg):  # exactly the rest (no round trip through angles)
             q[:2] = [float(rest[0]), float(rest[1])]
             if self.leg_below_hook:
@@ -860,18 +1059,27 @@ class HookLoadModel(ModelDefaults, SwingModel):
         if self.leg_below_hook:
             guess += list(n_load[:2])
         if self.rigid_load:
-            guess += list(tilt_to_align(self.cg_from_pivot_b, n_load, guess=self.geometry.rest_tilt_rad))
+            turn = rotation_z(-self.yaw_start_rad)
+            guess += list(tilt_to_align(self.cg_from_pivot_b, turn @ n_load, guess=self.geometry.rest_tilt_rad))
         if self.rope_is_elastic:
             guess.append(float(y_still[self.rope_length_index]))
         kin_state = self._hanging_support(rope_length_m)
         zeros = np.zeros(nq)
-
-        def residual(q):
-            return self._qdd(np.concatenate([q, zeros]), kin_state, None)
+        iy = self.yaw_index
+        if iy is None:
+            def residual(q):
+                return self._qdd(np.concatenate([q, zeros]), kin_state, None)
+        else:  # the heading stays the start's; the other coordinates balance (zero generalised forces)
+            def residual(q):
+                full = np.insert(q, iy, self.yaw_start_rad)
+                Q = self._eval(np.concatenate([full, zeros]), kin_state, full=True, t=None)["Q"]
+                return np.delete(Q, iy)
 
         solution = root(residual, np.array(guess), method="hybr", options={"xtol": 1e-15})
         q = solution.x if np.max(np.abs(residual(solution.x))) <= np.max(np.abs(residual(np.array(guess)))) \
             else np.array(guess)
+        if iy is not None:
+            q = np.insert(q, iy, self.yaw_start_rad)
         return np.concatenate([q, zeros])
 
     def rest_state(self, rope_length_m=None) -> np.ndarray:
@@ -893,7 +1101,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
         if self.leg_below_hook:
             q += [0.0, 0.0]
         if self.rigid_load:
-            q += list(self.geometry.rest_tilt_rad)
+            q += list(self.geometry.rest_tilt_rad)  # the CG under the pivot, whatever the heading
+        if self.yaw_index is not None:
+            q.append(self.yaw_start_rad)
         if self.rope_is_elastic:
             L = self.initial_rope_length_m if rope_length_m is None else rope_length_m
             lam = self.hanging_rope.unstretched(L)
@@ -969,8 +1179,10 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Gravity [m/s^2], swing damping ratio [-], drag coefficients ``0.5 rho Cd A``
             [kg/m] (the rope's per metre of rope [kg/m^2]), the rope end's and the
             load's masses [kg], the leg lengths and the CG's hanging distance below the
-            rope's end [m], the CG from its pivot in load axes ``c0, c1, c2`` [m] and the
-            principal inertias ``I0, I1, I2`` [kg m^2] (zeros for a point load).
+            rope's end [m], the CG from its pivot in load axes ``c0, c1, c2`` [m], the
+            principal inertias ``I0, I1, I2`` [kg m^2] (zeros for a point load), the start
+            heading [rad], the reeving's torsion stiffness on the yaw [N m/rad] (locked swivel)
+            and the wind's centre of pressure from the CG ``wc0, wc1, wc2``, load axes [m].
         """
         body_or_leg = self.rigid_load or self.leg_below_hook
         c = self.cg_from_pivot_b
@@ -984,6 +1196,10 @@ class HookLoadModel(ModelDefaults, SwingModel):
             "leg_below_hook_m": self.leg_below_hook_m, "cg_below_rope_end_m": self._cg_below_rope_end_m,
             "c0": float(c[0]), "c1": float(c[1]), "c2": float(c[2]),
             "I0": float(inertia[0]), "I1": float(inertia[1]), "I2": float(inertia[2]),
+            "yaw_start_rad": self.yaw_start_rad,
+            "yaw_stiffness_N_m_per_rad": self.yaw_stiffness_N_m_per_rad if self.yaw_index is not None else 0.0,
+            "wc0": float(self.wind_center_b[0]), "wc1": float(self.wind_center_b[1]),
+            "wc2": float(self.wind_center_b[2]),
         }
 
     def _qdd(self, y, kin_state, t=0.0):
@@ -1126,36 +1342,48 @@ class HookLoadModel(ModelDefaults, SwingModel):
             bP = bH + (0.0, 0.0, l2 * h2)
         m = self.load_mass_kg
         if self.rigid_load:
-            ia = self.tilt_index
-            a, b, da, db = q[ia], q[ia + 1], qd[ia], qd[ia + 1]
-            ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
-            R = np.array([[cb, 0.0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]])
-            c0, c1, c2 = self.cg_from_pivot_b
-            r = (cb * c0 + sb * c2, sa * sb * c0 + ca * c1 - sa * cb * c2,
-                 -ca * sb * c0 + sa * c1 + ca * cb * c2)
-            om = (da, db * ca, db * sa)
-            bw = (0.0, -da * db * sa, da * db * ca)
-            G = np.array((P[0] + r[0], P[1] + r[1], P[2] + r[2]))
-            wxr = _cx(om, r)
-            Gd = np.array((Pd[0] + wxr[0], Pd[1] + wxr[1], Pd[2] + wxr[2]))
+            # R = Rz(c) Rx(a) Ry(b) as matrices; the angular velocity's Jacobian J_w and its
+            # bias b_w = dJ_w/dt qd from the derivative of each column (module Notes)
+            ia, iy = self.tilt_index, self.yaw_index
+            a, b, da = q[ia], q[ia + 1], qd[ia]
+            c, dc = (q[iy], qd[iy]) if iy is not None else (self.yaw_start_rad, 0.0)
+            ca, sa = math.cos(a), math.sin(a)
+            Rz = rotation_z(c)
+            R = Rz @ rotation(a, b)
+            Jw = np.zeros((3, nq))
+            Jw[:, ia] = Rz[:, 0]  # Rz ex
+            Jw[:, ia + 1] = Rz @ (0.0, ca, sa)  # Rz Rx(a) ey
+            dJ = np.zeros((3, nq))
+            dJ[:, ia] = dc * Rz[:, 1]  # d/dt Rz ex = dc Rz ey
+            dJ[:, ia + 1] = Rz @ (-dc * ca, -da * sa, da * ca)
+            if iy is not None:
+                Jw[2, iy] = 1.0
+            om = Jw @ qd
+            bw = dJ @ qd
+            r = R @ self.cg_from_pivot_b
+            G = np.array(P) + r
+            wxr = np.array(_cx(om, r))
+            Gd = np.array(Pd) + wxr
             JG = JP.copy()
-            JG[:, ia] += (0.0, -r[2], r[1])
-            JG[:, ia + 1] += (ca * r[2] - sa * r[1], sa * r[0], -ca * r[0])
+            for k in (ia, ia + 1) if iy is None else (ia, ia + 1, iy):  # column k: J_w,k x r
+                JG[:, k] += _cx(Jw[:, k], r)
             bG = bP + _cx(bw, r) + _cx(om, wxr)
             Iw = (R * self.inertia_b) @ R.T
-            Jw = np.zeros((3, nq))
-            Jw[0, ia] = 1.0
-            Jw[1, ia + 1] = ca
-            Jw[2, ia + 1] = sa
         else:
             G, Gd, JG, bG = np.array(P), np.array(Pd), JP, bP
         if self.rigid_load or self.leg_below_hook:
             FG = np.array([0.0, 0.0, -m * g])
             FG -= cdamp * m * (Gd - ref + om_s * np.array([G[1] - py, px - G[0], 0.0]))
+            moment = np.zeros(3)  # about the CG, of forces applied away from it
             if applied and self._load_drag_k:
-                lwf = self._height_factor(G[2], H[2], t)
-                rel = Gd - (lwf * wx, lwf * wy, 0.0)
-                FG -= self._load_drag_k * math.sqrt(rel @ rel) * rel
+                rho = R @ self.wind_center_b if self.rigid_load else np.zeros(3)
+                lwf = self._height_factor(G[2] + rho[2], H[2], t)
+                rel = Gd + _cx(om, rho) - (lwf * wx, lwf * wy, 0.0) if self.rigid_load \
+                    else Gd - (lwf * wx, lwf * wy, 0.0)
+                drag = -self._load_drag_k * math.sqrt(rel @ rel) * rel
+                FG += drag
+                if self.structure.wind_center:
+                    moment += _cx(rho, drag)
             pts_m.append(m)
             pts_J.append(JG)
             pts_b.append(bG)
@@ -1173,6 +1401,10 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Iom = Iw @ om
             M += Jw.T @ Iw @ Jw
             Qv -= Jw.T @ (Iw @ bw + _cx(om, Iom))
+            if self.structure.wind_center:
+                Qv += Jw.T @ moment
+            if iy is not None and self.yaw_stiffness_N_m_per_rad:  # the reeving's torsion (locked swivel)
+                Qv[iy] -= self.yaw_stiffness_N_m_per_rad * (c - self.yaw_start_rad)
         qdd = np.linalg.solve(M, Qv)
         if not full:
             return qdd
@@ -1193,6 +1425,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         out["R"] = R_out
         if self.rigid_load:
             out["tilt"] = (a, b)
+            out["yaw"] = c
             out["omega"] = om
             out["Iw"] = Iw
             out["Jw"] = Jw
@@ -1211,6 +1444,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
             e += 0.5 * m * float(Gd @ Gd) + m * g * float(G[2])
         if self.rigid_load:
             e += 0.5 * float(om @ (Iw @ om))
+            if iy is not None and self.yaw_stiffness_N_m_per_rad:
+                e += 0.5 * self.yaw_stiffness_N_m_per_rad * (c - self.yaw_start_rad) ** 2
         if self.rope_is_elastic:
             e += self.elastic_rope.energy(ell, L)
         out["energy"] = e
@@ -1375,6 +1610,11 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Qp = self._eval(yp, kin_state, full=True, applied=False)["Q"]
             Qm = self._eval(ym, kin_state, full=True, applied=False)["Q"]
             K[:, j] = -(Qp - Qm) / (2 * h)
+        iy = self.yaw_index
+        if iy is not None and not self.yaw_stiffness_N_m_per_rad:
+            # a free swivel: no stiffness on the heading, so its small-oscillation equation is
+            # M_yy yaw'' + M_yx x'' = 0; eliminating it (Schur complement) keeps its inertia coupling
+            M = M - np.outer(M[:, iy], M[iy, :]) / M[iy, iy]
         return M, 0.5 * (K + K.T)
 
     def linear_swing(self, rope_length_m: float | None = None) -> LinearSwing:
@@ -1507,6 +1747,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         tops = np.empty((N, 2)) if self.rigging_kind == "spreader" else None
         rot = np.empty((N, 3, 3))
         tilt = np.empty((N, 2)) if self.rigid_load else None
+        yaw = np.empty(N) if self.rigid_load else None
         ell = np.empty(N)
         energy = np.empty(N)
         for i in range(N):
@@ -1524,6 +1765,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
             rot[i] = evaluation["R"]
             if tilt is not None:
                 tilt[i] = np.degrees(evaluation["tilt"])
+                yaw[i] = evaluation["yaw"]
             ell[i] = evaluation["ell"]
             energy[i] = evaluation["energy"]
         attach = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.attach_points_b) if self.rigid_load \
@@ -1537,6 +1779,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
             "static_rope_load_N": self.hanging_mass_kg * self.gravity_m_s2,
             "leg_tension_N": legs, "attach_points": attach, "load_rotation": rot,
             "load_tilt_deg": tilt,
+            "rope_end": res["H"],
+            "load_yaw_deg": None if yaw is None else np.degrees(yaw - self.yaw_start_rad),
+            "load_corners": None,
             "static_leg_tension_N": self.static_leg_tension_N(),
             "hanging_leg_tension_N": self.hanging_leg_tension_N(),
         }
@@ -1547,6 +1792,11 @@ class HookLoadModel(ModelDefaults, SwingModel):
             columns["load_tilt_deg"] = np.degrees(np.arccos(np.clip(rot[:, 2, 2], -1.0, 1.0)))
             columns["load_tilt_x_deg"] = tilt[:, 0]
             columns["load_tilt_y_deg"] = tilt[:, 1]
+            # the turn about the vertical from the start heading (the coordinate itself: unwrapped)
+            columns["load_yaw_deg"] = out["load_yaw_deg"]
+            corners = self.load_corners_b()
+            if corners is not None:  # the box's corners, as the load turns and tilts
+                out["load_corners"] = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, corners)
         for j in range(k):
             columns[f"leg_{j + 1}_tension_kN"] = legs[:, j] / 1e3
         if self.rigging_kind == "spreader" and self.rigid_load:
@@ -1563,6 +1813,21 @@ class HookLoadModel(ModelDefaults, SwingModel):
             columns["rope_stretch_m"] = out["rope_stretch_m"]
         out["extra_columns"] = columns
         return out
+
+    def load_corners_b(self):
+        """The corners of the load's box (``load.size_m``), load axes from the CG.
+
+        Returns
+        -------
+        ndarray or None
+            Corners (8, 3) [m]; None for a point load or a load without a size.
+        """
+        load = self.scene.load
+        if not self.rigid_load or load.size_m is None:
+            return None
+        half = 0.5 * np.array(load.size_m, float)
+        signs = np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)], float)
+        return signs * half - np.array(load.cg_offset_m, float)
 
     # -- static leg loads ------------------------------------------------------------------
     def _hanging(self) -> dict:
@@ -1630,10 +1895,13 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Rotation matrix (3, 3) from load axes to world axes [-]; the identity for
             a point load.
         """
-        return rotation(*self.geometry.rest_tilt_rad) if self.geometry is not None else np.eye(3)
+        if self.geometry is None:
+            return np.eye(3)
+        return rotation_z(self.yaw_start_rad) @ rotation(*self.geometry.rest_tilt_rad)
 
     def swing_coordinate_indices(self) -> list:
-        """Indices of the swing coordinates: every coordinate but the elastic rope's length.
+        """Indices of the swing coordinates: every coordinate but the elastic rope's length
+        and a free swivel's heading (which has no stiffness to swing about).
 
         Returns
         -------
@@ -1641,4 +1909,5 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Indices into the coordinates (the first :attr:`n_coordinates` state
             entries).
         """
-        return [i for i in range(self.n_coordinates) if i != self.rope_length_index]
+        free_yaw = self.yaw_index if not self.yaw_stiffness_N_m_per_rad else None
+        return [i for i in range(self.n_coordinates) if i not in (self.rope_length_index, free_yaw)]

@@ -32,10 +32,11 @@ Spreader (lifting beam): the drop legs hang vertically (load axes) from beam
 lugs :math:`S_j = A_j + l_j e_z`; the two lugs farthest apart are the beam's
 end lugs, and two top slings of equal length run from them to the hook.
 
-Orientation of a rigid load: :math:`R = R_x(\\alpha) R_y(\\beta)`, tilt
-:math:`\\alpha` about the world x axis after :math:`\\beta` about the load's y
-axis.  Yaw (turning about the vertical) is held fixed: the load keeps its
-heading; the chart is regular for tilts below 90 degrees.
+Orientation of a rigid load: :math:`R = R_z(c) R_x(\\alpha) R_y(\\beta)`: the
+heading :math:`c` about the vertical (yaw), tilt :math:`\\alpha` about the turned
+x axis after :math:`\\beta` about the load's y axis.  The chart is regular for
+every heading and for tilts below 90 degrees; the hanging rest (CG under the
+pivot) has the same tilts at every heading.
 """
 
 from __future__ import annotations
@@ -152,7 +153,7 @@ def load_inertia(load) -> np.ndarray | None:
 
 
 def rotation(a: float, b: float) -> np.ndarray:
-    """The load's orientation :math:`R = R_x(a) R_y(b)` (yaw held fixed; module Notes).
+    """The load's tilts :math:`R_x(a) R_y(b)`, its orientation at heading zero (module Notes).
 
     Parameters
     ----------
@@ -168,6 +169,23 @@ def rotation(a: float, b: float) -> np.ndarray:
     """
     ca, sa, cb, sb = math.cos(a), math.sin(a), math.cos(b), math.sin(b)
     return np.array([[cb, 0.0, sb], [sa * sb, ca, -sa * cb], [-ca * sb, sa, ca * cb]])
+
+
+def rotation_z(c: float) -> np.ndarray:
+    """A turn about the vertical :math:`R_z(c)` (the load's heading; module Notes).
+
+    Parameters
+    ----------
+    c : float
+        The turn, counter-clockwise seen from above [rad].
+
+    Returns
+    -------
+    ndarray
+        Rotation matrix (3, 3) [-].
+    """
+    cc, sc = math.cos(c), math.sin(c)
+    return np.array([[cc, -sc, 0.0], [sc, cc, 0.0], [0.0, 0.0, 1.0]])
 
 
 def tilt_to_align(c, d, guess=(0.0, 0.0)) -> tuple[float, float]:

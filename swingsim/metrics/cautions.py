@@ -87,8 +87,11 @@ def model_limits(scene) -> list[str]:
     if not scene.rope.elastic:
         out.append("The hoist rope does not stretch: no hoist snatch or bounce"
                    + (" (see the cautions)." if rigid_rope_hides_snatch(scene) else "."))
-    if scene.rigid_load:
+    if scene.rigid_load and scene.swivel.kind == "locked" and not scene.swivel.torsion_stiffness_N_m_per_rad:
         out.append("The load's yaw (turning about the vertical) is held fixed: spin is not simulated.")
+    elif scene.rigid_load:
+        out.append("The load turns on a frictionless swivel (or the reeving's torsion spring): no twist of "
+                   "the rope itself, and the wind's moment only from its drag at load.wind_center_m.")
     else:
         out.append("The load is a point mass: it neither turns nor tilts.")
     if scene.rigging is not None:

@@ -183,7 +183,7 @@ def model_metrics(traj, t, s) -> dict:
     d["hook_mass_kg"] = model.hook_mass_kg if model.has_hook_block else None
     d["load_modelled_as"] = "rigid body" if model.rigid_load else "point mass"
     d["rigging_kind"] = model.rigging_kind if scene.rigging is not None else None
-    d["yaw_held_fixed"] = bool(model.rigid_load)
+    d["yaw_held_fixed"] = bool(model.rigid_load and model.yaw_index is None)
     legs = s["leg_tension_N"]
     static = model.static_leg_tension_N()
     hanging = model.hanging_leg_tension_N()
@@ -226,6 +226,7 @@ def model_metrics(traj, t, s) -> dict:
         d["peak_tilt_from_rest_deg"] = float(np.max(dev))
         post = t >= traj.motion.last_move_end_s - 1e-12
         d["residual_tilt_from_rest_deg"] = float(np.max(dev[post])) if post.any() else None
+        d.update(turn_metrics(t, s, model))
     if model.has_hook_block:
         hor = s["hook"][:, :2] - s["suspension"][:, :2]
         d["peak_hook_excursion_m"] = float(np.max(np.hypot(hor[:, 0], hor[:, 1])))
@@ -327,6 +328,39 @@ def model_warnings(s: dict, scene) -> list[str]:
     return out
 
 
+def turn_metrics(t, s, model) -> dict:
+    """The rigid load's turn about the vertical and the reach of its ends (module Definitions).
+
+    Parameters
+    ----------
+    t : ndarray
+        Sample times (N,) [s].
+    s : dict
+        The model's outputs at ``t``: ``load_yaw_deg`` (N,) [deg], ``load_corners``
+        (N, 8, 3) or None [m], ``hook`` or ``rope_end`` (N, 3) [m].
+    model : HookLoadModel
+        The model (its swivel).
+
+    Returns
+    -------
+    dict
+        ``swivel``; ``peak_load_yaw_deg`` and its time [deg, s]: the largest turn from the
+        start heading; ``load_end_sweep_radius_m`` [m]: the largest horizontal distance of
+        the box's corners from the hook's vertical (None without ``load.size_m``).
+    """
+    yaw = np.abs(s["load_yaw_deg"])
+    i = int(np.argmax(yaw))
+    d = {"swivel": model.swivel if model.yaw_index is not None or model.swivel == "free" else "locked (held)",
+         "peak_load_yaw_deg": float(yaw[i]), "peak_load_yaw_time_s": float(t[i]),
+         "load_end_sweep_radius_m": None}
+    corners = s.get("load_corners")
+    if corners is not None:
+        hook = s["hook"] if s.get("hook") is not None else s["rope_end"]
+        reach = np.hypot(corners[:, :, 0] - hook[:, None, 0], corners[:, :, 1] - hook[:, None, 1])
+        d["load_end_sweep_radius_m"] = float(np.max(reach))
+    return d
+
+
 def model_summary_lines(d: dict) -> list[str]:
     """Extra lines of summary.txt (empty for the point-mass model).
 
@@ -360,8 +394,13 @@ def model_summary_lines(d: dict) -> list[str]:
         w.append("  Spreader top slings: peak " + ", ".join(force_text(x) for x in d["top_sling_peak_tension_kN"]))
     if d.get("peak_tilt_deg") is not None:
         w.append(f"  Load tilt: {d['rest_tilt_deg']:.1f} deg at rest; peak {d['peak_tilt_deg']:.1f} deg "
-                 f"from level, {d['peak_tilt_from_rest_deg']:.1f} deg from its hanging attitude "
-                 "(yaw held fixed)")
+                 f"from level, {d['peak_tilt_from_rest_deg']:.1f} deg from its hanging attitude"
+                 + (" (yaw held fixed)" if d.get("yaw_held_fixed") else ""))
+    if d.get("peak_load_yaw_deg") is not None:
+        w.append(f"  Load turn (swivel {d['swivel']}): peak {d['peak_load_yaw_deg']:.1f} deg from its start "
+                 f"heading at t = {d['peak_load_yaw_time_s']:.1f} s"
+                 + ("" if d.get("load_end_sweep_radius_m") is None else
+                    f"; its ends reach {d['load_end_sweep_radius_m']:.2f} m from the hook's vertical"))
     if d.get("rope_elastic"):
         w.append(f"  Elastic rope: {d['rope_stiffness_kN_per_m']:.0f} kN/m ({d['rope_stiffness_from']}); "
                  f"bounce period {d['bounce_period_s']:.3f} s; peak stretch {1000 * d['peak_rope_stretch_m']:.1f} mm "

@@ -17,7 +17,10 @@ direction (its x and y components: the rope's angle in the x-z and y-z
 planes), ``u2, v2`` the leg's, and ``tilt_a, tilt_b`` the load's rotation
 ``R = Rx(a) Ry(b)``.  A load hanging rigidly in line with its rope has its up
 axis along ``-n``, so at small angles ``b = -u`` and ``a = v``: tilt with the rope
-is ``-b`` in the x-z plane and ``+a`` in the y-z plane.
+is ``-b`` in the x-z plane and ``+a`` in the y-z plane.  ``yaw`` is the load's
+heading about the vertical (a swing coordinate only on a locked swivel with the
+reeving's torsion spring): a mode in which nothing else moves is "load turns about
+the vertical", otherwise the mode is named by its swing.
 """
 
 from __future__ import annotations
@@ -91,7 +94,11 @@ def mode_name(model, period_s: float, rope_length_m: float | None = None) -> str
 def _name_of_shape(shape, coordinate_names, model, degenerate: bool) -> str:
     """The name of one mode shape (module docstring)."""
     planes = {"x": {}, "y": {}}
-    for value, name in zip(np.asarray(shape, dtype=float), coordinate_names):
+    values = dict(zip(coordinate_names, np.asarray(shape, dtype=float)))
+    turn = abs(values.pop("yaw", 0.0))
+    if turn > 0.0 and all(abs(v) <= NEGLIGIBLE * turn for v in values.values()):
+        return "load turns about the vertical"
+    for name, value in values.items():
         plane, part, sign = _COORDINATES[name]
         planes[plane][part] = sign * float(value)
     size = {p: math.sqrt(sum(v * v for v in parts.values())) for p, parts in planes.items()}

@@ -132,6 +132,7 @@ class Load:
     mesh_file: str | None = None
     inertia_kg_m2: tuple | None = None
     cg_offset_m: tuple = (0.0, 0.0, 0.0)
+    wind_center_m: tuple = (0.0, 0.0, 0.0)
 
     @property
     def rigid(self) -> bool:
@@ -160,6 +161,8 @@ class Start:
     swing_rate_deg_s: tuple
     rope_preload: str = "static"
     rope_slack_m: float = 0.0
+    yaw_deg: float = 0.0
+    yaw_rate_deg_s: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -171,6 +174,18 @@ class Hook:
     drag_coefficient: float
     # -- hook load and line pull --
     wll_kN: float | None = None
+
+
+@dataclass(frozen=True)
+class Swivel:
+    """How the rigid load turns about the vertical (``[hook] swivel``, ``torsion_stiffness_N_m_per_rad``).
+
+    ``kind`` is ``"free"`` (the heading is a degree of freedom) or ``"locked"`` (held at the
+    start heading, or on the reeving's torsion spring when its stiffness is given).
+    """
+
+    kind: str = "free"
+    torsion_stiffness_N_m_per_rad: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -335,6 +350,7 @@ class Scene:
     hook: Hook | None = None
     rigging: Rigging | None = None
     site: Site = field(default_factory=Site)
+    swivel: Swivel = field(default_factory=Swivel)
 
     @property
     def rigid_load(self) -> bool:

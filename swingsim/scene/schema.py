@@ -352,12 +352,17 @@ TABLES: dict[str, dict[str, Key]] = {
         "cg_offset_m": Key("vec3", "Centre of gravity relative to the centre of the size_m box, load "
                            "axes [m] (drawing, and the default attachment point).",
                            default=(0.0, 0.0, 0.0)),
+        "wind_center_m": Key("vec3", "Rigid load: centre of pressure, where the wind's drag on the load "
+                             "acts, load axes from the centre of gravity [m]; away from it the wind "
+                             "turns the load (a yaw moment). Default: at the centre of gravity.",
+                             default=(0.0, 0.0, 0.0)),
     },
     # -- hook block and rigging (hook-and-load models) --
     "hook": {
         "mass_kg": Key("float", "Mass of the hook block [kg]; makes the hook a body of its own on "
-                       "the hoist rope, with the load hung below it on the rigging.",
-                       required=True, gt=0.0),
+                       "the hoist rope, with the load hung below it on the rigging. Required for a "
+                       "hook block; a [hook] table with only swivel and torsion_stiffness_N_m_per_rad "
+                       "sets the swivel at the rope's end of a load without one.", gt=0.0),
         "size_m": Key("vec3", "Overall size of the hook block [lx, ly, lz] [m], for drawing; "
                       "lx * lz is its area facing the wind.", gt=0.0),
         "drag_coefficient": Key("float", "Drag (force) coefficient of the hook block [-].",
@@ -366,6 +371,18 @@ TABLES: dict[str, dict[str, Key]] = {
         "wll_kN": Key("float", "Working load limit (rating) of the hook block [kN]; a caution is raised "
                       "when the peak hook load (everything the block carries, its own weight included) "
                       "exceeds it.", gt=0.0),
+        # -- the load's heading (rigid loads) --
+        "swivel": Key("str", "Rigid load: free: the hook swivel lets the load turn about the vertical "
+                      "(its heading is a degree of freedom: it keeps its turn in space while the jib "
+                      "slews, the wind at an offset centre of pressure turns it); locked: the load's "
+                      "heading follows the hook block and the rope, which do not turn in this model: "
+                      "held at start.yaw_deg, or on the reeving's torsion_stiffness_N_m_per_rad.",
+                      default="free", choices=("free", "locked")),
+        "torsion_stiffness_N_m_per_rad": Key("float", "swivel = locked only: torsional stiffness of the "
+                                             "reeving about the vertical [N m/rad], a spring on the load's "
+                                             "heading about start.yaw_deg; 0 (default) holds the heading. "
+                                             "Two falls of length L at half-spacing r under a weight W give "
+                                             "about W r^2 / L (bifilar suspension).", default=0.0, ge=0.0),
     },
     "rigging": {
         "kind": Key("str", "single: one leg from the hook to one attachment point, the load pivots "
@@ -402,6 +419,12 @@ TABLES: dict[str, dict[str, Key]] = {
                                  "weight coming suddenly onto an unstretched rope is rope_preload = \"none\""))),
         "rope_slack_m": Key("float", "rope_preload = lift-off only: slack rope the hoist takes up "
                             "before the rope starts to stretch [m].", default=0.0, ge=0.0),
+        "yaw_deg": Key("float", "Rigid load: heading at t = 0, a turn about the vertical from the load "
+                       "axes' alignment with the site axes, counter-clockwise seen from above [deg].",
+                       default=0.0, ge=-360.0, le=360.0),
+        "yaw_rate_deg_s": Key("float", "Rigid load with a free swivel (or a torsion spring): rate of turn "
+                              "about the vertical at t = 0, counter-clockwise seen from above [deg/s].",
+                              default=0.0, ge=-360.0, le=360.0),
     },
     "damping": {
         "ratio": Key("float", "Equivalent viscous damping ratio of the swing [-].", default=0.0, ge=0.0, lt=1.0),

@@ -24,7 +24,7 @@ from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
 from swingsim.scene.geometry import check_crane
-from swingsim.scene.model import (Crane, Gust, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start,
+from swingsim.scene.model import (Crane, Gust, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start, Swivel,
                                   View, Wind, Zone, models_rigid_load, slew_centre)
 from swingsim.scene.read import KeyReader, line_of_key, read_chart, read_document, read_table, suggest
 from swingsim.scene.site import wind_toward_deg
@@ -145,6 +145,10 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         zones.append(Zone(**v))
 
     hook_t = r.table(data, "hook", schema.TABLES["hook"]) if "hook" in data else None
+    swivel = _read_swivel(r, data, hook_t)
+    if hook_t is not None:  # the hook block's own keys; without mass_kg there is no hook block
+        hook_t = {k: v for k, v in hook_t.items() if k not in SWIVEL_KEYS}
+        hook_t = hook_t if hook_t["mass_kg"] is not None else None
     rig_t = r.table(data, "rigging", schema.TABLES["rigging"]) if "rigging" in data else None
     _read_reeving(r, data, rope)
     rope_o, load_o, start_o = Rope(**rope), Load(**load), Start(**start)
@@ -157,8 +161,9 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
         wind=wind, sample_hz=output["sample_hz"], limits=Limits(**limits),
         zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
-        hook=hook_o, rigging=rig_o, site=site,
+        hook=hook_o, rigging=rig_o, site=site, swivel=swivel,
     )
+    _check_heading_keys(r, scene)
     if validate_motion:
         # a move that cannot be built is bad input; a profile tuned to the swing period is
         # built with the period of the model the scene selects, as the run will
@@ -328,6 +333,51 @@ def _per_leg(r, values, n, key):
     if len(values) != n:
         raise r.err(key, f"expected one value or one per leg ({n} legs)", list(values))
     return tuple(values)
+
+
+#: keys of [hook] that set the swivel, not the hook block
+SWIVEL_KEYS = ("swivel", "torsion_stiffness_N_m_per_rad")
+
+
+def _read_swivel(r, data, hook_t) -> Swivel:
+    """The swivel of ``[hook]``, and a hook block's mass required when its other keys are given."""
+    if hook_t is None:
+        return Swivel()
+    given = data["hook"] if isinstance(data.get("hook"), dict) else {}
+    if hook_t["mass_kg"] is None:
+        block_keys = [k for k in given if k not in SWIVEL_KEYS]
+        if block_keys:
+            raise r.err("hook.mass_kg", f"missing required key; a hook block (hook.{block_keys[0]}) needs "
+                        "its mass (a [hook] table with only swivel and torsion_stiffness_N_m_per_rad sets "
+                        "the swivel of a load without a hook block)")
+    if hook_t["torsion_stiffness_N_m_per_rad"] and hook_t["swivel"] != "locked":
+        raise r.err("hook.torsion_stiffness_N_m_per_rad", "only with hook.swivel = \"locked\" (a free "
+                    "swivel turns without twisting the reeving)", hook_t["torsion_stiffness_N_m_per_rad"])
+    return Swivel(hook_t["swivel"], hook_t["torsion_stiffness_N_m_per_rad"])
+
+
+def _check_heading_keys(r, scene) -> None:
+    """The heading's keys only where a rigid load turns."""
+    if scene.rigid_load:
+        if scene.start.yaw_rate_deg_s and scene.swivel.kind == "locked" \
+                and not scene.swivel.torsion_stiffness_N_m_per_rad:
+            raise r.err("start.yaw_rate_deg_s", "must be zero with hook.swivel = \"locked\" and no "
+                        "hook.torsion_stiffness_N_m_per_rad (the heading is held)", scene.start.yaw_rate_deg_s)
+        if any(scene.load.wind_center_m) and not scene.load.wind_area_m2:
+            raise r.err("load.wind_center_m", "needs load.wind_area_m2 (no wind force on the load without it)",
+                        list(scene.load.wind_center_m))
+        return
+    why = ("only a rigid load turns (give load.size_m with [rigging] or a [hook] block, or "
+           "load.inertia_kg_m2)")
+    for key, value in (("start.yaw_deg", scene.start.yaw_deg), ("start.yaw_rate_deg_s", scene.start.yaw_rate_deg_s)):
+        if value:
+            raise r.err(key, why, value)
+    if any(scene.load.wind_center_m):
+        raise r.err("load.wind_center_m", why, list(scene.load.wind_center_m))
+    given = scene.raw.get("hook", {}) if isinstance(scene.raw.get("hook"), dict) else {}
+    for key in SWIVEL_KEYS:
+        if key in given:
+            raise r.err(f"hook.{key}", why, given[key])
 
 
 def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
