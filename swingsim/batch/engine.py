@@ -58,7 +58,7 @@ import numpy as np
 
 from swingsim.batch import dense, hook_engine
 from swingsim.batch.measure import VariantFacts, measure_block, variant_facts
-from swingsim.batch.segments import chunk_kinematics, integrate_steps, parameter_rows, segment_times
+from swingsim.batch.segments import chunk_kinematics, integrate_steps, parameter_rows, segment_cubics
 from swingsim.dynamics.pendulum import PointMassModel, accelerations, specific_force, wind_terms
 from swingsim.dynamics.wind import BatchWind, WindField
 from swingsim.dynamics.registry import select_model
@@ -177,28 +177,7 @@ def _cuts_and_coefficients(key, moves, T, cache, breakpoints=()):
     got = cache.cuts.get(key)
     if got is not None:
         return got
-    pts = {0.0, T} | {b for b in breakpoints if 0.0 < b < T}
-    for _, prof in moves:
-        pts |= {b for b in segment_times(prof) if 0.0 < b < T}
-    cuts = np.array(sorted(pts))
-    cuts = cuts[np.concatenate([[True], np.diff(cuts) > 1e-12])]
-    if cuts[-1] != T:
-        cuts[-1] = T
-    nseg = len(cuts) - 1
-    coef = np.zeros((nseg, len(AXES), 4))
-    a0, a1 = cuts[:-1], cuts[1:]
-    tm = 0.5 * (a0 + a1)
-    t2 = a0 + 0.75 * (a1 - a0)
-    d = tm - a0
-    both = np.concatenate([tm, t2])
-    for ax, prof in moves:
-        # each profile is one cubic on each segment: read it off at two interior points
-        pp, vv, aa = prof.evaluate(both)
-        p, v, a = pp[:nseg], vv[:nseg], aa[:nseg]
-        j = (aa[nseg:] - a) / (t2 - tm)
-        c = np.stack([p - v * d + a * d**2 / 2 - j * d**3 / 6, v - a * d + j * d**2 / 2,
-                      (a - j * d) / 2, j / 6], axis=-1)
-        coef[:, AXES.index(ax)] += c
+    cuts, coef = segment_cubics(moves, T, breakpoints)
     cache.cuts[key] = (cuts, coef)
     return cuts, coef
 
@@ -357,7 +336,6 @@ def _rhs(y, kin, par, t=None):
 def _integrate(variants) -> dense.IntegratedChunk:
     B = len(variants)
     tg, sg = _step_grids(variants)
-    N = sg.shape[1]
     nseg = max(len(v.cuts) - 1 for v in variants)
     coef = np.zeros((B, nseg, len(AXES), 4))
     t0s = np.zeros((B, nseg))

@@ -140,13 +140,33 @@ def motion_segments(motion, duration_s: float, breakpoints=()):
     Returns
     -------
     tuple
+        ``(cuts, coef)``: see :func:`segment_cubics`.
+    """
+    return segment_cubics(motion.moves, duration_s, breakpoints)
+
+
+def segment_cubics(moves, duration_s: float, breakpoints=()):
+    """Segments on which every axis of some moves is one cubic, with the cubics.
+
+    Parameters
+    ----------
+    moves : sequence of tuple
+        ``(axis, profile)`` of each move (``Motion.moves``).
+    duration_s : float
+        End of the run [s].
+    breakpoints : sequence of float
+        The model's own cuts (a gust's start and end: ``extra_breakpoints``) [s].
+
+    Returns
+    -------
+    tuple
         ``(cuts, coef)``: segment boundaries ``0 .. duration_s`` [s] and the cubic
         coefficients (nseg, 5, 4) per axis of :data:`~swingsim.motion.kinematics.AXES`
         about each segment's start (constant first) [axis units, per s^k].
     """
     T = duration_s
     pts = {0.0, T} | {float(b) for b in breakpoints if 0.0 < b < T}
-    for _, prof in motion.moves:
+    for _, prof in moves:
         pts |= {b for b in segment_times(prof) if 0.0 < b < T}
     cuts = np.array(sorted(pts))
     cuts = cuts[np.concatenate([[True], np.diff(cuts) > 1e-12])]
@@ -159,7 +179,7 @@ def motion_segments(motion, duration_s: float, breakpoints=()):
     t2 = a0 + 0.75 * (a1 - a0)
     d = tm - a0
     both = np.concatenate([tm, t2])
-    for ax, prof in motion.moves:
+    for ax, prof in moves:
         # each profile is one cubic on each segment: read it off at two interior points
         pp, vv, aa = prof.evaluate(both)
         p, v, a = pp[:nseg], vv[:nseg], aa[:nseg]
