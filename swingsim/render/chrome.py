@@ -12,8 +12,11 @@ which cost software rendering more than the 3D scene itself.
 from __future__ import annotations
 
 import numpy as np
-import vtk
+# the few VTK modules used, not the whole ``vtk`` package (importing it costs ~0.5 s a render)
+import vtkmodules.vtkRenderingFreeType  # noqa: F401  (registers the FreeType text renderer)
 from vtkmodules.util.numpy_support import vtk_to_numpy
+from vtkmodules.vtkCommonDataModel import vtkImageData
+from vtkmodules.vtkRenderingCore import vtkTextProperty, vtkTextRenderer
 
 from swingsim.render import layout as layout_mod
 from swingsim.render.palette import rgb
@@ -50,7 +53,7 @@ def rasterise(text: str, font_px: int, colour: str, *, bold=False, mono=False, a
     """
     if not text:
         return np.zeros((0, 0, 4), dtype=np.uint8)
-    tp = vtk.vtkTextProperty()
+    tp = vtkTextProperty()
     tp.SetFontSize(int(font_px))
     tp.SetColor(*rgb(colour))
     tp.SetBold(bool(bold))
@@ -61,9 +64,9 @@ def rasterise(text: str, font_px: int, colour: str, *, bold=False, mono=False, a
     if background is not None:
         tp.SetBackgroundColor(*rgb(background))
         tp.SetBackgroundOpacity(float(background_opacity))
-    img = vtk.vtkImageData()
+    img = vtkImageData()
     dims = [0, 0]
-    vtk.vtkTextRenderer.GetInstance().RenderString(tp, text, img, dims, 72)
+    vtkTextRenderer.GetInstance().RenderString(tp, text, img, dims, 72)
     nx, ny, _ = img.GetDimensions()
     a = vtk_to_numpy(img.GetPointData().GetScalars()).reshape(ny, nx, -1)
     return np.ascontiguousarray(a[:dims[1], :dims[0]][::-1])

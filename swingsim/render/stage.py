@@ -12,8 +12,8 @@ import math
 
 import numpy as np
 import pyvista as pv
-import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
+from vtkmodules.vtkCommonCore import vtkUnsignedCharArray
 
 from swingsim import scene3d
 from swingsim.metrics.chart import chart_series
@@ -119,7 +119,7 @@ class Stage:
         self._build()
         self._place_cameras()
         self._overlay()
-        self._pixels = vtk.vtkUnsignedCharArray()
+        self._pixels = vtkUnsignedCharArray()
         self.texts = {}
         self._zone_chunk = self._chart_chunk = None
         self._warm = False
