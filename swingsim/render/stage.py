@@ -461,6 +461,13 @@ class Stage:
         self.caution_chars = layout_mod.chars_per_line(L.caution.width - 2 * pad, f["caution"])
         self.line_chars = self.banner_chars = self.caution_chars
         self._shown_labels = [[] for _ in self.views]
+        # The rectangle read back from OpenGL each frame: around every pixel the bands leave
+        # uncovered (the views'), so the frame is the same as one read back whole.
+        rows_, cols_ = np.nonzero(ch.uncovered())
+        if len(rows_):
+            self._views_rect = (int(rows_.min()), int(rows_.max()) + 1, int(cols_.min()), int(cols_.max()) + 1)
+        else:
+            self._views_rect = (0, 1, 0, 1)
 
     def _legend_swatches(self) -> list:
         """Small swatches of the legend: the no-go zone in red and white stripes, the others plain."""
@@ -723,14 +730,19 @@ class Stage:
             self._warm = True
         rw.Render()
         w, h = self.render_size
-        rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
-        img = np.ascontiguousarray(vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1])
         if overlay:
-            self.chrome.apply(img)
+            # only the views' rectangle is read back; the bands come from the prepared picture
+            y0, y1, x0, x1 = self._views_rect
+            rw.GetPixelData(x0, h - y1, x1 - 1, h - 1 - y0, 0, self._pixels, 0)  # OpenGL rows: from the bottom
+            img = self.chrome.frame_with(vtk_to_numpy(self._pixels).reshape(y1 - y0, x1 - x0, 3)[::-1],
+                                         self._views_rect)
             k = self.ss
             for shown in self._shown_labels:
                 for j, lb in shown:
                     self.labels[j][4].put(img, int(round(lb.x0 * k)), int(round(lb.y0 * k)))
+        else:
+            rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
+            img = np.ascontiguousarray(vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1])
         if self.ss == 1:
             return img
         k = self.ss  # supersampled: the mean of each k x k block (a box filter), rounded
