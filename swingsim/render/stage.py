@@ -114,6 +114,7 @@ class Stage:
             ren.SetViewport(*box.viewport(self.size))
         self.scene3d = scene3d.build(traj, load_mesh=load_mesh)
         self.lay = self.scene3d.layout
+        self._projection = {}  # view index -> ((camera state), its 4x4 projection matrix)
         self.labels = []  # 3D-anchored labels: (world position [m], RGBA image, role, text, Sticker)
         self._ground_marks = []  # points of the ground arrows, for the fitted views
         self._build()
@@ -121,7 +122,7 @@ class Stage:
         self._overlay()
         self._pixels = vtkUnsignedCharArray()
         self.texts = {}
-        self._zone_chunk = self._chart_chunk = None
+        self._zone_chunk = self._chart_chunk = self._crane_chunk = None
         self._warm = False
         self._cam_set = [False] * len(self.views)
         self._readout_slot = None
@@ -595,9 +596,12 @@ class Stage:
         scene = self.traj.scene
         out = {}
         if scene.crane.kind in overlay.SLEWING_KINDS:
-            pose = self.traj.motion.pose(np.array([t]))
-            out["radius_m"] = float(pose.radius_m[0])
-            out["slew_deg"] = math.degrees(float(pose.jib_angle_rad[0]) - self._slew0)
+            hit = self._crane_chunk.get(t) if self._crane_chunk is not None else None
+            if hit is None:
+                pose = self.traj.motion.pose(np.array([t]))
+                hit = (float(pose.radius_m[0]), float(pose.jib_angle_rad[0]))
+            out["radius_m"] = hit[0]
+            out["slew_deg"] = math.degrees(hit[1] - self._slew0)
         hook = row.get("hook")
         if hook is not None and np.ndim(hook) == 1:
             out["hook_height_m"], out["height_label"] = float(hook[2]), "hook height"
@@ -669,9 +673,13 @@ class Stage:
         samples : dict
             ``Trajectory.sample`` at the chunk's instants (with ``t``).
         """
-        self._zone_chunk = self._chart_chunk = None
+        self._zone_chunk = self._chart_chunk = self._crane_chunk = None
         scene = self.traj.scene
         ts = np.atleast_1d(np.asarray(samples["t"], dtype=float))
+        if scene.crane.kind in overlay.SLEWING_KINDS:  # the readout's radius and slew, for the chunk at once
+            pose = self.traj.motion.pose(ts)
+            self._crane_chunk = {float(t): (float(r), float(a))
+                                 for t, r, a in zip(ts, pose.radius_m, pose.jib_angle_rad)}
         if scene.crane.chart is not None:
             series = chart_series(self.traj, ts, samples)
             self._chart_chunk = {float(t): float(u) for t, u in zip(ts, series["utilisation_pct"])}
@@ -769,8 +777,14 @@ class Stage:
         x0, y0, x1, y1 = ren.GetViewport()
         vw, vh = (x1 - x0) * w, (y1 - y0) * h
         cam = ren.GetActiveCamera()
-        m = cam.GetCompositeProjectionTransformMatrix(vw / vh, -1, 1)
-        matrix = np.array([[m.GetElement(i, j) for j in range(4)] for i in range(4)])
+        key = (view_index, cam.GetMTime(), vw / vh)
+        cached = self._projection.get(view_index)
+        if cached is not None and cached[0] == key:  # the camera has not moved: the same matrix
+            matrix = cached[1]
+        else:
+            m = cam.GetCompositeProjectionTransformMatrix(vw / vh, -1, 1)
+            matrix = np.array([[m.GetElement(i, j) for j in range(4)] for i in range(4)])
+            self._projection[view_index] = (key, matrix)
         pts = np.asarray(points, dtype=float).reshape(-1, 3)
         q = np.column_stack([pts, np.ones(len(pts))]) @ matrix.T
         ndc = q[:, :3] / q[:, 3:4]
