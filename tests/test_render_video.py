@@ -543,3 +543,34 @@ def test_bridle_legs_without_hook_meet_at_the_models_pin():
             np.testing.assert_allclose(leg, traj.scene.rigging.leg_length_m, rtol=1e-9)
     finally:
         stage.close()
+
+
+def test_mp4_writer_feeds_every_frame_in_order(tmp_path):
+    """Frames go to ffmpeg from a feeder thread: read back with ffmpeg's own decoder
+    (imageio-ffmpeg), every frame is there, in the order written, with its grey level
+    (H.264 at CRF 20 keeps flat grey within a few levels: common practice)."""
+    from swingsim.render.writers import Mp4Writer
+
+    levels = [int(v) for v in np.linspace(16, 235, 25)]
+    w = Mp4Writer(tmp_path / "grey.mp4", (64, 48), 25.0)
+    for v in levels:
+        w.write(np.full((48, 64, 3), v, dtype=np.uint8))
+    path = w.close()
+    _meta, frames = _frames_mp4(path)
+    assert len(frames) == len(levels)
+    means = [float(f.mean()) for f in frames]
+    assert np.allclose(means, levels, atol=3.0)
+
+
+def test_mp4_writer_encoder_failure_is_one_clear_error(tmp_path):
+    """libx264 refuses odd frame sizes for yuv420p (4:2:0 halves both sides; ffmpeg's
+    libx264 wrapper reports it): the error surfaces from the feeder thread as one
+    RuntimeError naming ffmpeg, and no file or temporary is left."""
+    from swingsim.render.writers import Mp4Writer
+
+    w = Mp4Writer(tmp_path / "odd.mp4", (65, 49), 25.0)
+    with pytest.raises(RuntimeError, match="ffmpeg"):
+        for _ in range(200):
+            w.write(np.zeros((49, 65, 3), dtype=np.uint8))
+        w.close()
+    assert list(tmp_path.iterdir()) == []

@@ -28,10 +28,14 @@ QUALITIES = ("standard", "high")
 #: under 2/100 s to about 1/10 s (common practice), so GIFs are kept to 50 frames a second.
 GIF_MAX_FPS = 50
 #: Below this many frames one process draws everything: starting a worker costs about
-#: 1.5 s of CPU, and one process already renders 1280x720 at well over 30 frames/s
-#: on 2 cores; from about 15 s of video on, two workers are faster
-#: (benchmarks/bench_render.py: 20 s clip, 56 frames/s in one process, 70 with two).
+#: a second of CPU.
 PARALLEL_MIN_FRAMES = 450
+#: Workers are started on their own only with more CPUs than this.  One process already
+#: keeps two cores busy (the renderer's thread and its rasteriser threads, the encoder
+#: fed from a thread), and on 2 cores it beat two workers also on a 20 s clip
+#: (1280x720, 30 fps: 52-58 frames/s against 32-48, 22-25 ms CPU a frame against 29-31,
+#: alternating runs in one session on a shared machine).
+PARALLEL_MIN_CPUS = 3
 
 
 def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:
@@ -189,7 +193,8 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
     stills : bool
         Also write PNG stills at peak swing, at the end of the last move and when settled.
     workers : int or None
-        Worker processes for MP4 (None: one per CPU when the clip is long enough).
+        Worker processes for MP4 (None: one per CPU when the clip is long enough and the
+        machine has at least :data:`PARALLEL_MIN_CPUS` CPUs; else one process).
     overwrite : bool
         Replace existing outputs; when False, an existing output is an InputError.
     quality : {"standard", "high"}
@@ -221,7 +226,8 @@ def render_scene(traj, summary, out_dir, *, size=(1280, 720), fps=30, fmt="mp4",
     video_len = len(times) / fps
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
-    nproc = workers if workers is not None else (os.cpu_count() or 1)
+    cpus = os.cpu_count() or 1
+    nproc = workers if workers is not None else (cpus if cpus >= PARALLEL_MIN_CPUS else 1)
     parallel = fmt == "mp4" and nproc > 1 and len(times) >= (PARALLEL_MIN_FRAMES if workers is None else 2)
     written = []
     if parallel:

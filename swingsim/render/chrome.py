@@ -12,8 +12,11 @@ which cost software rendering more than the 3D scene itself.
 from __future__ import annotations
 
 import numpy as np
-import vtk
+# the few VTK modules used, not the whole ``vtk`` package (importing it costs ~0.5 s a render)
+import vtkmodules.vtkRenderingFreeType  # noqa: F401  (registers the FreeType text renderer)
 from vtkmodules.util.numpy_support import vtk_to_numpy
+from vtkmodules.vtkCommonDataModel import vtkImageData
+from vtkmodules.vtkRenderingCore import vtkTextProperty, vtkTextRenderer
 
 from swingsim.render import layout as layout_mod
 from swingsim.render.palette import rgb
@@ -50,7 +53,7 @@ def rasterise(text: str, font_px: int, colour: str, *, bold=False, mono=False, a
     """
     if not text:
         return np.zeros((0, 0, 4), dtype=np.uint8)
-    tp = vtk.vtkTextProperty()
+    tp = vtkTextProperty()
     tp.SetFontSize(int(font_px))
     tp.SetColor(*rgb(colour))
     tp.SetBold(bool(bold))
@@ -61,9 +64,9 @@ def rasterise(text: str, font_px: int, colour: str, *, bold=False, mono=False, a
     if background is not None:
         tp.SetBackgroundColor(*rgb(background))
         tp.SetBackgroundOpacity(float(background_opacity))
-    img = vtk.vtkImageData()
+    img = vtkImageData()
     dims = [0, 0]
-    vtk.vtkTextRenderer.GetInstance().RenderString(tp, text, img, dims, 72)
+    vtkTextRenderer.GetInstance().RenderString(tp, text, img, dims, 72)
     nx, ny, _ = img.GetDimensions()
     a = vtk_to_numpy(img.GetPointData().GetScalars()).reshape(ny, nx, -1)
     return np.ascontiguousarray(a[:dims[1], :dims[0]][::-1])
@@ -298,6 +301,49 @@ class Chrome:
             self.extents[key + ":cut"] = entry[2]
         else:
             self.extents.pop(key + ":cut", None)
+
+    def frame_with(self, rendered: np.ndarray, rect: tuple) -> np.ndarray:
+        """A new frame: the static picture with a rendered rectangle put in and the current texts on.
+
+        The same pixels as :meth:`apply` on a whole rendered frame whose pixels outside
+        ``rect`` all lie under the static bands (what :meth:`uncovered` checks), with
+        only ``rect`` read back from OpenGL.
+
+        Parameters
+        ----------
+        rendered : numpy.ndarray
+            (rows, columns, 3) uint8 of the rectangle, rows from the top (may be a view).
+        rect : tuple of int
+            (y0, y1, x0, x1) of the rectangle in the frame [drawn px].
+
+        Returns
+        -------
+        numpy.ndarray
+            (rows, columns, 3) uint8 at the drawn size, a new array.
+        """
+        frame = self.picture.copy()
+        ry0, ry1, rx0, rx1 = rect
+        frame[ry0:ry1, rx0:rx1] = rendered
+        for y0, y1, x0, x1 in self._static:  # the bands inside the rectangle (a split's divider)
+            if y0 < ry1 and ry0 < y1 and x0 < rx1 and rx0 < x1:
+                frame[y0:y1, x0:x1] = self.picture[y0:y1, x0:x1]
+        for key, img in self._current.items():
+            y0, y1, x0, x1 = self.px(self._boxes[key][0])
+            frame[y0:y1, x0:x1] = img
+        return frame
+
+    def uncovered(self) -> np.ndarray:
+        """Where the static bands do not cover the frame (there the 3D views show).
+
+        Returns
+        -------
+        numpy.ndarray
+            (rows, columns) bool at the drawn size.
+        """
+        mask = np.ones(self.picture.shape[:2], dtype=bool)
+        for y0, y1, x0, x1 in self._static:
+            mask[y0:y1, x0:x1] = False
+        return mask
 
     def apply(self, frame: np.ndarray) -> np.ndarray:
         """Put the bands and the current texts onto a rendered frame (in place).

@@ -42,12 +42,12 @@ def read_load_mesh(scene) -> Mesh | None:
     import warnings
 
     import pyvista as pv
-    import vtk
+    from vtkmodules.vtkCommonCore import vtkObject
 
     p = Path(scene.load.mesh_file)
     full = p if p.is_absolute() else Path(scene.base_dir) / p
-    shown = vtk.vtkObject.GetGlobalWarningDisplay()
-    vtk.vtkObject.GlobalWarningDisplayOff()  # a bad file is reported once, below, not by VTK too
+    shown = vtkObject.GetGlobalWarningDisplay()
+    vtkObject.GlobalWarningDisplayOff()  # a bad file is reported once, below, not by VTK too
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
@@ -56,7 +56,7 @@ def read_load_mesh(scene) -> Mesh | None:
         raise SceneError(scene.file, "load.mesh_file", f"cannot be read as a mesh ({type(exc).__name__})",
                          scene.load.mesh_file) from None
     finally:
-        vtk.vtkObject.SetGlobalWarningDisplay(shown)
+        vtkObject.SetGlobalWarningDisplay(shown)
     if not isinstance(mesh, pv.PolyData):
         mesh = mesh.extract_surface()
     if mesh.n_points == 0:

@@ -12,8 +12,8 @@ import math
 
 import numpy as np
 import pyvista as pv
-import vtk
 from vtkmodules.util.numpy_support import vtk_to_numpy
+from vtkmodules.vtkCommonCore import vtkUnsignedCharArray
 
 from swingsim import scene3d
 from swingsim.metrics.chart import chart_series
@@ -114,14 +114,15 @@ class Stage:
             ren.SetViewport(*box.viewport(self.size))
         self.scene3d = scene3d.build(traj, load_mesh=load_mesh)
         self.lay = self.scene3d.layout
+        self._projection = {}  # view index -> ((camera state), its 4x4 projection matrix)
         self.labels = []  # 3D-anchored labels: (world position [m], RGBA image, role, text, Sticker)
         self._ground_marks = []  # points of the ground arrows, for the fitted views
         self._build()
         self._place_cameras()
         self._overlay()
-        self._pixels = vtk.vtkUnsignedCharArray()
+        self._pixels = vtkUnsignedCharArray()
         self.texts = {}
-        self._zone_chunk = self._chart_chunk = None
+        self._zone_chunk = self._chart_chunk = self._crane_chunk = None
         self._warm = False
         self._cam_set = [False] * len(self.views)
         self._readout_slot = None
@@ -461,6 +462,13 @@ class Stage:
         self.caution_chars = layout_mod.chars_per_line(L.caution.width - 2 * pad, f["caution"])
         self.line_chars = self.banner_chars = self.caution_chars
         self._shown_labels = [[] for _ in self.views]
+        # The rectangle read back from OpenGL each frame: around every pixel the bands leave
+        # uncovered (the views'), so the frame is the same as one read back whole.
+        rows_, cols_ = np.nonzero(ch.uncovered())
+        if len(rows_):
+            self._views_rect = (int(rows_.min()), int(rows_.max()) + 1, int(cols_.min()), int(cols_.max()) + 1)
+        else:
+            self._views_rect = (0, 1, 0, 1)
 
     def _legend_swatches(self) -> list:
         """Small swatches of the legend: the no-go zone in red and white stripes, the others plain."""
@@ -588,9 +596,12 @@ class Stage:
         scene = self.traj.scene
         out = {}
         if scene.crane.kind in overlay.SLEWING_KINDS:
-            pose = self.traj.motion.pose(np.array([t]))
-            out["radius_m"] = float(pose.radius_m[0])
-            out["slew_deg"] = math.degrees(float(pose.jib_angle_rad[0]) - self._slew0)
+            hit = self._crane_chunk.get(t) if self._crane_chunk is not None else None
+            if hit is None:
+                pose = self.traj.motion.pose(np.array([t]))
+                hit = (float(pose.radius_m[0]), float(pose.jib_angle_rad[0]))
+            out["radius_m"] = hit[0]
+            out["slew_deg"] = math.degrees(hit[1] - self._slew0)
         hook = row.get("hook")
         if hook is not None and np.ndim(hook) == 1:
             out["hook_height_m"], out["height_label"] = float(hook[2]), "hook height"
@@ -662,9 +673,13 @@ class Stage:
         samples : dict
             ``Trajectory.sample`` at the chunk's instants (with ``t``).
         """
-        self._zone_chunk = self._chart_chunk = None
+        self._zone_chunk = self._chart_chunk = self._crane_chunk = None
         scene = self.traj.scene
         ts = np.atleast_1d(np.asarray(samples["t"], dtype=float))
+        if scene.crane.kind in overlay.SLEWING_KINDS:  # the readout's radius and slew, for the chunk at once
+            pose = self.traj.motion.pose(ts)
+            self._crane_chunk = {float(t): (float(r), float(a))
+                                 for t, r, a in zip(ts, pose.radius_m, pose.jib_angle_rad)}
         if scene.crane.chart is not None:
             series = chart_series(self.traj, ts, samples)
             self._chart_chunk = {float(t): float(u) for t, u in zip(ts, series["utilisation_pct"])}
@@ -723,14 +738,19 @@ class Stage:
             self._warm = True
         rw.Render()
         w, h = self.render_size
-        rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
-        img = np.ascontiguousarray(vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1])
         if overlay:
-            self.chrome.apply(img)
+            # only the views' rectangle is read back; the bands come from the prepared picture
+            y0, y1, x0, x1 = self._views_rect
+            rw.GetPixelData(x0, h - y1, x1 - 1, h - 1 - y0, 0, self._pixels, 0)  # OpenGL rows: from the bottom
+            img = self.chrome.frame_with(vtk_to_numpy(self._pixels).reshape(y1 - y0, x1 - x0, 3)[::-1],
+                                         self._views_rect)
             k = self.ss
             for shown in self._shown_labels:
                 for j, lb in shown:
                     self.labels[j][4].put(img, int(round(lb.x0 * k)), int(round(lb.y0 * k)))
+        else:
+            rw.GetPixelData(0, 0, w - 1, h - 1, 0, self._pixels, 0)
+            img = np.ascontiguousarray(vtk_to_numpy(self._pixels).reshape(h, w, 3)[::-1])
         if self.ss == 1:
             return img
         k = self.ss  # supersampled: the mean of each k x k block (a box filter), rounded
@@ -757,8 +777,14 @@ class Stage:
         x0, y0, x1, y1 = ren.GetViewport()
         vw, vh = (x1 - x0) * w, (y1 - y0) * h
         cam = ren.GetActiveCamera()
-        m = cam.GetCompositeProjectionTransformMatrix(vw / vh, -1, 1)
-        matrix = np.array([[m.GetElement(i, j) for j in range(4)] for i in range(4)])
+        key = (view_index, cam.GetMTime(), vw / vh)
+        cached = self._projection.get(view_index)
+        if cached is not None and cached[0] == key:  # the camera has not moved: the same matrix
+            matrix = cached[1]
+        else:
+            m = cam.GetCompositeProjectionTransformMatrix(vw / vh, -1, 1)
+            matrix = np.array([[m.GetElement(i, j) for j in range(4)] for i in range(4)])
+            self._projection[view_index] = (key, matrix)
         pts = np.asarray(points, dtype=float).reshape(-1, 3)
         q = np.column_stack([pts, np.ones(len(pts))]) @ matrix.T
         ndc = q[:, :3] / q[:, 3:4]
