@@ -40,7 +40,7 @@ from __future__ import annotations
 
 import json
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import NamedTuple
 
@@ -48,18 +48,18 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.batch import engine as batch
+from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
 from swingsim.io.files import atomic_write_bytes, atomic_write_text, staged_outputs
 from swingsim.metrics import cautions
-from swingsim.metrics.single import summarize
 from swingsim.report.plots_plan import PlanCurves, plan_figure_png
 from swingsim.scene.edit import with_move
 from swingsim.simulation import prepare, simulate
-from swingsim.study import plan_words
+from swingsim.study import plan_reduced, plan_words
 from swingsim.study.plan_drive import MAX_RATE_HZ, speed_reference, speed_reference_csv
 
 __all__ = ["Candidate", "MoveKeys", "PlanSearch", "PlanReport", "SEARCH_MARGIN", "LINEAR_SCREEN", "SEARCH_RUN_ON_PERIODS", "linear_residual_deg", "linear_residual_hoisting_deg",
-           "VERIFY_RUN_ON_PERIODS", "check_rate", "unshaped_candidate", "plan_move", "candidate_moves", "rope_lengths", "check_request",
+           "VERIFY_RUN_ON_PERIODS", "FULL_MODEL_CANDIDATES", "check_rate", "unshaped_candidate", "plan_move", "candidate_moves", "rope_lengths", "check_request",
            "hoist_before", "build_candidate", "evaluate", "verify", "move_keys", "write_plan"]
 
 #: The search keeps this share of the bound in hand, for rope lengths between its samples.
@@ -77,6 +77,9 @@ _EI_TOLERANCES = (0.05, 0.1, 0.2)
 #: times the bound at some rope length are not simulated: at the small swings concerned the
 #: nonlinear residual differs from the linear one by far less, and damping only lowers it.
 LINEAR_SCREEN = 2.0
+#: For a rigged scene (:mod:`swingsim.study.plan_reduced`): how many of the search model's passing
+#: candidates, quickest first, the full model verifies at most before the plan gives up.
+FULL_MODEL_CANDIDATES = 12
 #: Variants (candidates x rope lengths) integrated together in one block of the best-first search.
 _BLOCK_RUNS = 120
 
@@ -120,7 +123,8 @@ class Candidate:
     acceleration [m/s^2 or deg/s^2].  :func:`build_candidate` fills in the profile,
     ``start_s``, ``end_s``, ``ramp_up_s``, ``ramp_down_s`` [s] and ``run_s`` (simulated
     time [s]); :func:`evaluate` the residual swing and peak rope angle [deg] at each
-    rope length (``[inf]`` when the move is not a valid scene).
+    rope length (``[inf]`` when the move is not a valid scene); :func:`verify` the number
+    of runs it made (``runs``).
     """
 
     kind: str
@@ -142,6 +146,7 @@ class Candidate:
     peak_accel: float = math.nan
     last_s: float = math.nan
     motion: object = None
+    runs: int = 0
 
     @property
     def duration_s(self) -> float:
@@ -184,6 +189,12 @@ def rope_lengths(low: float, high: float, n: int) -> list[float]:
 def _period(g, L):
     """Small-angle period of a simple pendulum, 2 pi sqrt(L / g) [s]."""
     return 2.0 * math.pi * math.sqrt(L / g)
+
+
+def _first_mode_period(scene):
+    """Rope length [m] -> the full model's first swing period [s] (the model built once)."""
+    model = select_model(scene)
+    return lambda L: max(model.mode_periods_s(L))
 
 
 def _accel_limit(raw, k: MoveKeys) -> float:
@@ -484,7 +495,7 @@ def linear_residual_hoisting_deg(cands, lengths, low: float, g: float, zeta: flo
 
 
 def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_periods: float,
-                    lengths=None) -> Candidate:
+                    lengths=None, swing_period=None) -> Candidate:
     """Build a candidate's profile once: its times, ramps, the time to simulate and a linear estimate.
 
     Parameters
@@ -503,6 +514,9 @@ def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_
         Rope lengths [m] at which to estimate the residual swing of the linearised
         pendulum (:func:`linear_residual_deg`), for a point-mass scene that does not
         hoist; ``c.linear_deg`` stays None otherwise.
+    swing_period : callable, optional
+        Rope length [m] -> the swing period the run goes on for [s]; the simple
+        pendulum's by default (a rigged scene passes its first mode's).
 
     Returns
     -------
@@ -530,7 +544,7 @@ def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_
     longest = high
     if hoists:
         longest = float(np.max(motion.evaluate(np.linspace(0.0, last, 401))["L"])) + (high - low)
-    c.run_s = last + run_on_periods * _period(g, longest)
+    c.run_s = last + run_on_periods * (swing_period(longest) if swing_period else _period(g, longest))
     c.last_s, c.motion = last, motion
     if lengths is not None and not hoists and batch.supported(sc):
         n = int(max(501, math.ceil(last / (_period(g, min(lengths)) / 100.0)) + 1))
@@ -624,7 +638,7 @@ def _quickest_first(cands):
 
 
 def plan_move(scene, index: int, max_residual_deg: float, low: float, high: float,
-              n_lengths: int = 9, progress=None, **kw) -> PlanSearch:
+              n_lengths: int = 9, progress=None, exhaustive: bool = False, **kw) -> PlanSearch:
     """Best-first search for the quickest move within the bound over the rope range.
 
     Candidates are simulated in order of move time, a block at a time; the first
@@ -643,6 +657,10 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
     progress : tqdm.tqdm, optional
         A progress bar: its ``total`` grows by the runs each search stage may need,
         ``update(n)`` after each chunk of n runs.
+    exhaustive : bool, optional
+        Simulate every candidate the linear screen keeps, not only up to the first
+        block with one within the bound: ``passed`` then ranks them all (the search
+        model of a rigged scene, whose winners the full model verifies in turn).
     **kw
         Passed on to :func:`swingsim.batch.engine.run_batch`.
 
@@ -679,14 +697,14 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
                                                   or max(c.linear_deg) <= LINEAR_SCREEN * max_residual_deg)]
     todo = _quickest_first(screened)
     _grow(progress, len(todo) * len(lengths))
-    block = max(4, _BLOCK_RUNS // len(lengths))
+    block = max(1, len(todo)) if exhaustive else max(4, _BLOCK_RUNS // len(lengths))
     done: list = []
     passed = []
-    while todo and not passed:
+    while todo and (exhaustive or not passed):
         now, todo = todo[:block], todo[block:]
         evaluate(scene, index, now, lengths, progress, **kw)
         done += now
-        passed = [c for c in now if c.worst_residual_deg <= max_residual_deg]
+        passed += [c for c in now if c.worst_residual_deg <= max_residual_deg]
     if passed:
         done += _refine(scene, index, _quickest_first(passed)[0], low, high, lengths, max_residual_deg,
                         done, progress, **kw)
@@ -757,12 +775,17 @@ def _refine(scene, index, best, low, high, lengths, bound, done, progress, **kw)
     return evaluate(scene, index, more, lengths, progress, **kw)
 
 
-def verify(scene, index, c: Candidate, low: float, high: float, lengths, single: bool = True) -> list[dict]:
-    """Simulate a candidate at each rope length: batch engine at all, single-run solver at the ends and the worst.
+def verify(scene, index, c: Candidate, low: float, high: float, lengths, single: bool = True,
+           swing_period=None, order=None, stop_over: float | None = None, progress=None) -> list[dict]:
+    """Simulate a candidate at each rope length with the scene's own model.
 
-    Runs go on for :data:`VERIFY_RUN_ON_PERIODS` swing periods of the longest rope
-    after the last move.  Where the single-run solver (scipy DOP853 at tight
-    tolerance) ran, its numbers are the ones reported.
+    Where the batch engine integrates the scene it runs every length, and the
+    single-run solver (scipy DOP853 at tight tolerance) runs again at both ends and
+    the worst; otherwise the single-run solver runs every length.  Runs go on for
+    :data:`VERIFY_RUN_ON_PERIODS` swing periods of the longest rope after the last
+    move.  A single run is measured from its rope direction alone
+    (:func:`swingsim.study.plan_reduced.rope_angles`: the numbers of ``summary.json``).
+    Where the single-run solver ran, its numbers are the ones reported.
 
     Parameters
     ----------
@@ -775,31 +798,53 @@ def verify(scene, index, c: Candidate, low: float, high: float, lengths, single:
     lengths : list of float
         Rope lengths at the move's start to simulate at [m].
     single : bool, optional
-        Also run the single-run solver at both ends and the worst length.
+        Also run the single-run solver at both ends and the worst length (batch engine only).
+    swing_period : callable, optional
+        Rope length [m] -> swing period [s] the runs go on for (see :func:`build_candidate`).
+    order : list of int, optional
+        The order to run the lengths in with the single-run solver (most at risk first).
+    stop_over : float, optional
+        Stop the single-run solver at the first length whose residual swing exceeds this [deg];
+        the lengths not run are reported with ``solver`` ``not run`` and ``valid`` False.
+    progress : tqdm.tqdm, optional
+        Advanced by one after each single run.
 
     Returns
     -------
     list of dict
         One per length: ``rope_length_m`` [m, at the move's start], ``residual_swing_deg``
-        [deg], ``peak_rope_angle_deg`` [deg], ``valid``, ``solver`` (``batch`` or
-        ``single``) and ``simulated_s`` (the run's length [s]).
+        [deg], ``peak_rope_angle_deg`` [deg], ``valid``, ``solver`` (``batch``, ``single``
+        or ``not run``) and ``simulated_s`` (the run's length [s]).
     """
-    build_candidate(scene, index, c, low, high, VERIFY_RUN_ON_PERIODS)
+    build_candidate(scene, index, c, low, high, VERIFY_RUN_ON_PERIODS, swing_period=swing_period)
     delta = hoist_before(scene, index)
     scenes = _scenes(scene, index, c, lengths, delta)
-    res = []
-    for L, s in zip(lengths, batch.run_batch(scenes)):
-        res.append({"rope_length_m": L, "residual_swing_deg": s["residual_swing_deg"],
-                    "peak_rope_angle_deg": s["peak_rope_angle_deg"], "valid": s["valid"],
-                    "solver": s["engine"], "simulated_s": c.run_s})
-    worst = max(range(len(res)), key=lambda i: -1.0 if res[i]["residual_swing_deg"] is None
-                else res[i]["residual_swing_deg"])
-    for i in sorted({0, len(res) - 1, worst}) if single else ():
+    c.runs = 0
+    if batch.supported(scenes[0]):
+        c.runs = len(scenes)
+        res = []
+        for L, s in zip(lengths, batch.run_batch(scenes)):
+            res.append({"rope_length_m": L, "residual_swing_deg": s["residual_swing_deg"],
+                        "peak_rope_angle_deg": s["peak_rope_angle_deg"], "valid": s["valid"],
+                        "solver": s["engine"], "simulated_s": c.run_s})
+        worst = max(range(len(res)), key=lambda i: -1.0 if res[i]["residual_swing_deg"] is None
+                    else res[i]["residual_swing_deg"])
+        rerun = sorted({0, len(res) - 1, worst}) if single else []
+    else:
+        res = [{"rope_length_m": L, "residual_swing_deg": None, "peak_rope_angle_deg": math.nan, "valid": False,
+                "solver": "not run", "simulated_s": c.run_s} for L in lengths]
+        rerun = list(order) if order is not None else list(range(len(lengths)))
+    for i in rerun:
         if res[i]["solver"] == "single":
             continue
-        s = summarize(simulate(scenes[i])).data
-        res[i].update({"residual_swing_deg": s["residual_swing_deg"], "valid": s["valid"],
-                       "peak_rope_angle_deg": s["peak_rope_angle_deg"], "solver": "single"})
+        s = plan_reduced.rope_angles(simulate(scenes[i]))
+        c.runs += 1
+        res[i].update(s, solver="single")
+        if progress is not None:
+            progress.update(1)
+        r = s["residual_swing_deg"]
+        if stop_over is not None and (r is None or not s["valid"] or r > stop_over):
+            break
     c.residuals_deg = [math.inf if r["residual_swing_deg"] is None or not r["valid"] else r["residual_swing_deg"]
                        for r in res]
     c.peaks_deg = [r["peak_rope_angle_deg"] for r in res]
@@ -871,19 +916,63 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
     with staged_outputs(out) as stage:
         staged = stage.path
         chosen = verified = None
-        search = plan_move(scene, index, bound * SEARCH_MARGIN, low, high, progress=progress)
-        fine = rope_lengths(low, high, 4 * len(search.rope_lengths_m) - 3)
-        for c in search.passed[:5]:
-            ver = verify(scene, index, c, low, high, fine)
-            if all(v["valid"] and v["residual_swing_deg"] is not None and v["residual_swing_deg"] <= bound
-                   for v in ver):
-                chosen, verified = c, ver
-                break
-        unshaped = unshaped_candidate(scene, index)
-        unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False)
+        rejected = []  # (candidate, its verification) the full model refused, rigged scenes
+
+        def within(ver):
+            return all(v["valid"] and v["residual_swing_deg"] is not None and v["residual_swing_deg"] <= bound
+                       for v in ver)
+
+        if plan_reduced.needs_search_model(scene):
+            # search on the reduced model, verify its best in turn with the full model
+            model_name = select_model(scene).name
+            search_sc = plan_reduced.search_scene(scene)
+            swing_period = _first_mode_period(scene)
+            search = plan_move(search_sc, index, bound * SEARCH_MARGIN, plan_reduced.equivalent_length(scene, low),
+                               plan_reduced.equivalent_length(scene, high), progress=progress, exhaustive=True)
+            fine = rope_lengths(low, high, len(search.rope_lengths_m))
+            for c in search.passed[:FULL_MODEL_CANDIDATES]:
+                trial = replace(c, residuals_deg=[], peaks_deg=[])
+                # the lengths most at risk on the search model first: a failing candidate stops early
+                order = sorted(range(len(fine)), key=lambda i: -c.residuals_deg[i])
+                _grow(progress, len(fine))
+                ver = verify(scene, index, trial, low, high, fine, swing_period=swing_period, order=order,
+                             stop_over=bound, progress=progress)
+                if within(ver):
+                    chosen, verified = trial, ver
+                    break
+                rejected.append((trial, ver))
+            unshaped = unshaped_candidate(scene, index)
+            _grow(progress, len(fine))
+            unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False, swing_period=swing_period,
+                                  progress=progress)
+            search_words = plan_reduced.SEARCH_MODEL_WORDS
+            # a tuning period read as the hoist rope length at which the full model swings with it
+            eq = [plan_reduced.equivalent_length(scene, x) for x in fine]
+
+            def rope_for(T):  # piecewise linear in the equivalent length, straight on past the ends
+                x = plan_words.rope_for_period(T, g)
+                if len(fine) == 1 or eq[-1] <= eq[0]:
+                    return fine[0] + x - eq[0]
+                i = min(max(int(np.searchsorted(eq, x)) - 1, 0), len(eq) - 2)
+                return fine[i] + (x - eq[i]) * (fine[i + 1] - fine[i]) / (eq[i + 1] - eq[i])
+            verify_words = f"the scene's full model ({model_name})"
+        else:
+            search = plan_move(scene, index, bound * SEARCH_MARGIN, low, high, progress=progress)
+            fine = rope_lengths(low, high, 4 * len(search.rope_lengths_m) - 3)
+            for c in search.passed[:5]:
+                ver = verify(scene, index, c, low, high, fine)
+                if within(ver):
+                    chosen, verified = c, ver
+                    break
+            unshaped = unshaped_candidate(scene, index)
+            unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False)
+            search_words = "the scene's own model (point mass), batch engine"
+            rope_for = None
+            verify_words = "the same model"
+        full_runs = unshaped.runs + sum(c.runs for c in [chosen] + [c for c, _ in rejected] if c is not None)
 
         def words(c):
-            return plan_words.describe(c, a_lim, k.unit, g)
+            return plan_words.describe(c, a_lim, k.unit, g, rope_for)
 
         head = [cautions.CAUTION, "",
                 f"Plan for move {index} ({scene.moves[index].name}) of {scene.name}: residual swing at most "
@@ -893,13 +982,28 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
         if others:
             head.append("The scene's other moves are kept as given: " + ", ".join(others) + ".")
         lines = list(head)
+        lines.append(f"Search model: {search_words}, at {len(search.rope_lengths_m)} rope lengths. Verifying "
+                     f"model: {verify_words}; only a move it verified is written.")
         lines.append(f"Unshaped move ({words(unshaped)}): {unshaped.duration_s:.1f} s, residual swing "
                      f"{min(unshaped.residuals_deg):.3f} to {max(unshaped.residuals_deg):.3f} deg over the range.")
         result = {"scene": scene.name, "move": index, "max_residual_deg": bound, "rope_range_m": [low, high],
+                  "search_model": search_words, "verifying_model": verify_words,
+                  "search_rope_lengths_m": search.rope_lengths_m,
+                  "rejected_by_verification": [{"description": words(c), "duration_s": c.duration_s,
+                                                "verified": ver} for c, ver in rejected],
                   "rope_range_at": "the planned move's start", "caution": cautions.CAUTION,
                   "unshaped": {"description": words(unshaped), "duration_s": unshaped.duration_s,
                                "move": unshaped.move, "verified": unshaped_ver}}
         files = []
+        if rejected:
+            lines += ["", f"Passed the search model but not the full model ({len(rejected)}, quickest first; "
+                      "each stops at its first length over the bound):"]
+            for c, ver in rejected:
+                over = [v for v in ver if v["solver"] != "not run" and not within([v])]
+                at = (f"{_fmt_res(over[0]['residual_swing_deg'])} deg at {over[0]['rope_length_m']:.2f} m"
+                      if over else "-")
+                lines.append(f"  {c.duration_s:6.1f} s  {at}  {words(c)}")
+        result["full_model_runs"] = full_runs
         if chosen is None:
             lines += ["", f"No profile in the search meets {bound:g} deg over the whole range within the move's "
                       "limits. Narrow the rope range, allow more residual swing, or plan the move in stages."]
@@ -914,10 +1018,12 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                              "than the bound by itself; plan it first (plan-move --move on it).")
             result["plan"] = None
         else:
-            sentence = plan_words.summary_sentence(chosen, unshaped.duration_s, a_lim, k.unit, g)
+            sentence = plan_words.summary_sentence(chosen, unshaped.duration_s, a_lim, k.unit, g, rope_for)
+            engines = ("single-run solver (*) at each" if all(v["solver"] == "single" for v in verified)
+                       else "batch engine at all, single-run solver (*) at both ends and the worst")
             lines += ["", "Planned: " + sentence,
-                      f"Verified by simulating it (nonlinear model) at {len(verified)} rope lengths: batch engine "
-                      "at all, single-run solver (*) at both ends and the worst:"]
+                      f"Verified by simulating it with {verify_words} (nonlinear) at {len(verified)} rope lengths: "
+                      f"{engines}:"]
             for v in verified:
                 star = "*" if v["solver"] == "single" else " "
                 lines.append(f"  rope {v['rope_length_m']:7.2f} m{star} residual swing "
@@ -925,7 +1031,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                              f"{v['peak_rope_angle_deg']:.2f} deg")
             # the scene snippet: the planned move as scene keys (exact; the scene rebuilds the profile)
             snippet = dict(chosen.move)
-            toml = [f"# Planned by swingsim plan-move: {plan_words.describe(chosen, a_lim, k.unit, g)}.",
+            toml = [f"# Planned by swingsim plan-move: {words(chosen)}.",
                     f"# Residual swing <= {bound:g} deg for rope lengths {low:g} to {high:g} m at the move's start "
                     "(verified by simulation).",
                     "# " + cautions.CAUTION_SHORT,
@@ -946,7 +1052,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                                 [v["residual_swing_deg"] for v in unshaped_ver], bound)
             atomic_write_bytes(staged / name_png, plan_figure_png(
                 curves, f"plan-move: {scene.moves[index].name} ({scene.name})",
-                "planned: " + plan_words.describe(chosen, a_lim, k.unit, g)))
+                "planned: " + words(chosen)))
             lines += ["", f"Speed reference for the drive: {name_csv} ({len(ref.t_s)} rows at {rate_hz:g} Hz; "
                       f"{', '.join(ref.header)}; the last row at {ref.t_s[-1]:.3f} s holds the target and zero "
                       "speed). Check it against the crane's drive and its own limits before use.",
@@ -955,7 +1061,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
             files += [(name_toml, f"the planned move as scene keys, to replace move {index}"),
                       (name_csv, f"speed reference for the drive, {rate_hz:g} Hz"),
                       (name_png, "plot: planned vs unshaped profile, residual swing across the rope range")]
-            result["plan"] = {"description": plan_words.describe(chosen, a_lim, k.unit, g), "sentence": sentence,
+            result["plan"] = {"description": words(chosen), "sentence": sentence,
                               "duration_s": chosen.duration_s, "move": chosen.move, "verified": verified,
                               "speed_reference_file": name_csv, "rate_hz": rate_hz, "plot_file": name_png,
                               "snippet_file": name_toml}
@@ -964,7 +1070,8 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
         table = [f"# the search bound is {inner:.3g} deg ({100 * SEARCH_MARGIN:.0f} % of {bound:g} deg, for rope "
                  "lengths between those simulated)",
                  "description,move_time_s,worst_residual_deg,within_search_bound"]
-        lines += ["", f"Candidates simulated ({len(search.candidates)}, quickest first; {search.skipped} slower "
+        lines += ["", f"Candidates simulated on the search model ({len(search.candidates)}, quickest first; "
+                  f"{search.skipped} slower "
                   f"ones not needed; {search.screened_out} left out because the linearised swing exceeds "
                   f"{LINEAR_SCREEN:g} x the bound), worst residual swing at {len(search.rope_lengths_m)} rope "
                   f"lengths against the search bound {inner:.3g} deg ({100 * SEARCH_MARGIN:.0f} % of {bound:g} deg)"
