@@ -52,6 +52,7 @@ from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
 from swingsim.io.files import atomic_write_bytes, atomic_write_text, staged_outputs
 from swingsim.metrics import cautions
+from swingsim.motion.registry import build_motion, needs_swing_period
 from swingsim.report.plots_plan import PlanCurves, plan_figure_png
 from swingsim.scene.edit import with_move
 from swingsim.simulation import prepare, simulate
@@ -60,7 +61,7 @@ from swingsim.study.plan_drive import MAX_RATE_HZ, speed_reference, speed_refere
 
 __all__ = ["Candidate", "MoveKeys", "PlanSearch", "PlanReport", "SEARCH_MARGIN", "LINEAR_SCREEN", "SEARCH_RUN_ON_PERIODS", "linear_residual_deg", "linear_residual_hoisting_deg",
            "VERIFY_RUN_ON_PERIODS", "FULL_MODEL_CANDIDATES", "check_rate", "unshaped_candidate", "plan_move", "candidate_moves", "rope_lengths", "check_request",
-           "hoist_before", "build_candidate", "evaluate", "verify", "move_keys", "write_plan"]
+           "hoist_before", "swing_without_move", "build_candidate", "evaluate", "verify", "move_keys", "write_plan"]
 
 #: The search keeps this share of the bound in hand, for rope lengths between its samples.
 SEARCH_MARGIN = 0.9
@@ -184,6 +185,14 @@ def rope_lengths(low: float, high: float, n: int) -> list[float]:
     if high == low:
         return [float(low)]
     return [float(x) for x in np.linspace(low, high, n)]
+
+
+def _motion_of(scene):
+    """A scene's motion; its model is built too only when a profile needs the swing period.
+
+    (A model can be costly to build, e.g. turbulent wind synthesised over the whole run.)
+    """
+    return prepare(scene)[1] if needs_swing_period(scene) else build_motion(scene)
 
 
 def _period(g, L):
@@ -320,7 +329,7 @@ def hoist_before(scene, index: int) -> float:
     """
     if not any(m.axis == "hoist" for m in scene.moves):
         return 0.0
-    _, motion = prepare(scene)
+    motion = _motion_of(scene)
     start = float(scene.moves[index].start_s)
     return float(motion.evaluate(np.array([start]))["L"][0]) - float(scene.rope.length_m)
 
@@ -527,7 +536,7 @@ def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_
     try:
         sc = with_move(scene, index, c.move, rope_length_m=low - delta, duration_s=scene.duration_s + 1e4,
                        validate_motion=False)
-        _, motion = prepare(sc)
+        motion = _motion_of(sc)
     except InputError:
         c.residuals_deg = [math.inf]
         return c
@@ -630,6 +639,60 @@ class PlanSearch(NamedTuple):
     passed: list
     #: The smallest worst-case residual swing of the linearised pendulum over the candidates [deg] (inf: none).
     least_linear_deg: float = math.inf
+    #: The residual swing without the planned move (:func:`swing_without_move`) at each length [deg],
+    #: when it stopped the search (else None).
+    without_move_deg: list | None = None
+
+
+#: A stand-in for the planned move when measuring the swing without it: this many metres
+#: (degrees for slew), far too little to swing the load.
+_NULL_TRAVEL = 1e-4
+
+
+def swing_without_move(scene, index: int, cands, lengths, **kw) -> list[float] | None:
+    """Residual swing at each rope length with the planned move taken out: what no profile of it removes.
+
+    The move is replaced by a stand-in of :data:`_NULL_TRAVEL` ending when the slowest
+    candidate ends, so the residual swing is measured over the window that every
+    candidate's own window holds (after the slowest move's end).  What swings the load
+    then is the wind and the scene's other moves.
+
+    Parameters
+    ----------
+    scene, index
+        The scene and the planned move (from 0).
+    cands : list of Candidate
+        Built candidates (the slowest sets the window and the run's length).
+    lengths : list of float
+        Rope lengths at the move's start [m].
+    **kw
+        Passed on to :func:`swingsim.batch.engine.run_batch`.
+
+    Returns
+    -------
+    list of float or None
+        The residual swing at each length [deg]; None when the scene has no wind and no
+        other move (nothing else swings the load) or no candidate was built.
+    """
+    usable = [c for c in cands if c.usable]
+    if not usable or (len(scene.moves) == 1 and scene.wind.speed_m_s <= 0.0):
+        return None
+    slowest = max(usable, key=lambda c: c.end_s)
+    keep, _, a_max = _command(scene, index)
+    k = move_keys(keep["axis"])
+    d = math.copysign(_NULL_TRAVEL, float(keep[k.distance]))
+    a = a_max * (math.pi / 180.0 if keep["axis"] == "slew" else 1.0)
+    ramp = 2.0 * math.sqrt(_NULL_TRAVEL * (math.pi / 180.0 if keep["axis"] == "slew" else 1.0) / a)
+    null = {key: v for key, v in keep.items() if key != k.jerk}
+    null.update({k.distance: d, "profile": "trapezoid", "start_s": max(0.0, slowest.end_s - ramp)})
+    stand_in = Candidate("command", "trapezoid", null, a_max)
+    stand_in.run_s = slowest.run_s
+    try:
+        scenes = _scenes(scene, index, stand_in, lengths, hoist_before(scene, index))
+    except InputError:
+        return None
+    return [math.inf if s.get("residual_swing_deg") is None or not s.get("valid", True) else
+            float(s["residual_swing_deg"]) for s in batch.run_batch(scenes, **kw)]
 
 
 def _quickest_first(cands):
@@ -696,6 +759,13 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
     screened = [c for c in cands if c.usable and (c.linear_deg is None
                                                   or max(c.linear_deg) <= LINEAR_SCREEN * max_residual_deg)]
     todo = _quickest_first(screened)
+    linear = [max(c.linear_deg) for c in cands if c.usable and c.linear_deg is not None]
+    # the wind and the other moves alone: when they leave more than the screen's factor times the
+    # bound after every candidate would end, no profile of this move meets it
+    others = swing_without_move(scene, index, cands, lengths, **kw) if todo else None
+    if others is not None and max(others) > LINEAR_SCREEN * max_residual_deg:
+        return PlanSearch(None, [], lengths, len(todo), sum(1 for c in cands if c.usable) - len(screened), [],
+                          min(linear, default=math.inf), others)
     _grow(progress, len(todo) * len(lengths))
     block = max(1, len(todo)) if exhaustive else max(4, _BLOCK_RUNS // len(lengths))
     done: list = []
@@ -710,7 +780,6 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
                         done, progress, **kw)
     ok = _quickest_first([c for c in done if c.worst_residual_deg <= max_residual_deg])
     _grow(progress, -len(todo) * len(lengths))  # the slower candidates are not needed
-    linear = [max(c.linear_deg) for c in cands if c.usable and c.linear_deg is not None]
     return PlanSearch(ok[0] if ok else None, _quickest_first(done), lengths, len(todo),
                       sum(1 for c in cands if c.usable) - len(screened), ok, min(linear, default=math.inf))
 
@@ -1008,7 +1077,17 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
             lines += ["", f"No profile in the search meets {bound:g} deg over the whole range within the move's "
                       "limits. Narrow the rope range, allow more residual swing, or plan the move in stages."]
             least = min((c.worst_residual_deg for c in search.candidates), default=math.inf)
-            if math.isfinite(least):
+            if search.without_move_deg is not None:
+                w = search.without_move_deg
+                i = int(np.argmax(w))
+                ls = fine if len(fine) == len(w) else search.rope_lengths_m
+                lines.append(f"Without this move (a {_NULL_TRAVEL:g} {k.unit} stand-in ending when the slowest "
+                             f"candidate would end) the load still swings {_fmt_res(w[i])} deg after it at "
+                             f"{ls[i]:.2f} m rope: the wind and the scene's other moves, which no profile of this "
+                             f"move removes (more than {LINEAR_SCREEN:g} x the search bound). The search "
+                             "stopped there.")
+                result["swing_without_move_deg"] = [_finite(x) for x in w]
+            elif math.isfinite(least):
                 lines.append(f"The least worst-case residual swing simulated: {least:.3f} deg.")
             elif math.isfinite(search.least_linear_deg):
                 lines.append(f"By the linearised pendulum the least worst-case residual swing of any candidate is "

@@ -30,6 +30,7 @@ import math
 
 import numpy as np
 
+from swingsim.batch import engine as batch
 from swingsim.dynamics.registry import select_model
 from swingsim.metrics import definitions
 from swingsim.metrics.single import _refine_max, metric_times
@@ -47,7 +48,7 @@ _ELASTIC_ROPE = ("diameter_m", "falls", "modulus_GPa", "fill_factor", "lead_leng
 
 
 def needs_search_model(scene) -> bool:
-    """Whether plan-move searches on the reduced model: any scene the point-mass model does not fit.
+    """Whether plan-move searches on the reduced model: a scene the batch engine's point-mass path does not take.
 
     Parameters
     ----------
@@ -57,9 +58,10 @@ def needs_search_model(scene) -> bool:
     Returns
     -------
     bool
-        True for a hook block, a rigid load, rigging or an elastic rope.
+        True for a hook block, a rigid load, rigging or an elastic rope, and for a
+        luffing boom's radius move (which the batch engine leaves to the single-run solver).
     """
-    return select_model(scene).name != "point-mass"
+    return select_model(scene).name != "point-mass" or not batch.supported(scene)
 
 
 def equivalent_length(scene, rope_length_m: float) -> float:
