@@ -845,7 +845,8 @@ def _refine(scene, index, best, low, high, lengths, bound, done, progress, **kw)
 
 
 def verify(scene, index, c: Candidate, low: float, high: float, lengths, single: bool = True,
-           swing_period=None, order=None, stop_over: float | None = None, progress=None) -> list[dict]:
+           swing_period=None, order=None, stop_over: float | None = None, progress=None,
+           use_batch: bool = True) -> list[dict]:
     """Simulate a candidate at each rope length with the scene's own model.
 
     Where the batch engine integrates the scene it runs every length, and the
@@ -873,10 +874,14 @@ def verify(scene, index, c: Candidate, low: float, high: float, lengths, single:
     order : list of int, optional
         The order to run the lengths in with the single-run solver (most at risk first).
     stop_over : float, optional
-        Stop the single-run solver at the first length whose residual swing exceeds this [deg];
-        the lengths not run are reported with ``solver`` ``not run`` and ``valid`` False.
+        Stop at the first single run whose residual swing exceeds this [deg] (the batch engine
+        is not run then); the lengths not run are reported with ``solver`` ``not run`` and
+        ``valid`` False.
     progress : tqdm.tqdm, optional
         Advanced by one after each single run.
+    use_batch : bool, optional
+        Use the batch engine where it takes the scene (with ``stop_over``, after a single run at
+        the first length of ``order`` within it); False: the single-run solver at every length.
 
     Returns
     -------
@@ -889,30 +894,38 @@ def verify(scene, index, c: Candidate, low: float, high: float, lengths, single:
     delta = hoist_before(scene, index)
     scenes = _scenes(scene, index, c, lengths, delta)
     c.runs = 0
-    if batch.supported(scenes[0]):
-        c.runs = len(scenes)
-        res = []
-        for L, s in zip(lengths, batch.run_batch(scenes)):
-            res.append({"rope_length_m": L, "residual_swing_deg": s["residual_swing_deg"],
-                        "peak_rope_angle_deg": s["peak_rope_angle_deg"], "valid": s["valid"],
-                        "solver": s["engine"], "simulated_s": c.run_s})
-        worst = max(range(len(res)), key=lambda i: -1.0 if res[i]["residual_swing_deg"] is None
-                    else res[i]["residual_swing_deg"])
-        rerun = sorted({0, len(res) - 1, worst}) if single else []
-    else:
-        res = [{"rope_length_m": L, "residual_swing_deg": None, "peak_rope_angle_deg": math.nan, "valid": False,
-                "solver": "not run", "simulated_s": c.run_s} for L in lengths]
-        rerun = list(order) if order is not None else list(range(len(lengths)))
-    for i in rerun:
-        if res[i]["solver"] == "single":
-            continue
+    res = [{"rope_length_m": L, "residual_swing_deg": None, "peak_rope_angle_deg": math.nan, "valid": False,
+            "solver": "not run", "simulated_s": c.run_s} for L in lengths]
+    order = list(order) if order is not None else list(range(len(lengths)))
+
+    def run_single(i) -> bool:
+        """The single-run solver at length i; whether the search may go on (False: over stop_over)."""
         s = plan_reduced.rope_angles(simulate(scenes[i]))
         c.runs += 1
         res[i].update(s, solver="single")
         if progress is not None:
             progress.update(1)
         r = s["residual_swing_deg"]
-        if stop_over is not None and (r is None or not s["valid"] or r > stop_over):
+        return stop_over is None or (r is not None and s["valid"] and r <= stop_over)
+
+    if use_batch and batch.supported(scenes[0]):
+        # with a bound to stop at, the length most at risk first on its own: a failing candidate costs one run
+        if stop_over is not None and not run_single(order[0]):
+            rerun = []
+        else:
+            c.runs += len(scenes)
+            for i, s in enumerate(batch.run_batch(scenes)):
+                if res[i]["solver"] != "single":
+                    res[i].update({"residual_swing_deg": s["residual_swing_deg"],
+                                   "peak_rope_angle_deg": s["peak_rope_angle_deg"], "valid": s["valid"],
+                                   "solver": s["engine"]})
+            worst = max(range(len(res)), key=lambda i: -1.0 if res[i]["residual_swing_deg"] is None
+                        else res[i]["residual_swing_deg"])
+            rerun = sorted({0, len(res) - 1, worst}) if single else []
+    else:
+        rerun = order
+    for i in rerun:
+        if res[i]["solver"] != "single" and not run_single(i):
             break
     c.residuals_deg = [math.inf if r["residual_swing_deg"] is None or not r["valid"] else r["residual_swing_deg"]
                        for r in res]
@@ -1013,7 +1026,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
             unshaped = unshaped_candidate(scene, index)
             _grow(progress, len(fine))
             unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False, swing_period=swing_period,
-                                  progress=progress)
+                                  progress=progress, use_batch=False)
             search_words = plan_reduced.SEARCH_MODEL_WORDS
             # a tuning period read as the hoist rope length at which the full model swings with it
             eq = [plan_reduced.equivalent_length(scene, x) for x in fine]
