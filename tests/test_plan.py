@@ -414,3 +414,42 @@ def test_equivalent_length_of_a_point_mass_scene_is_its_rope(tmp_path):
     path = tmp_path / "pm.toml"
     path.write_text(SCENE)
     assert equivalent_length(load_scene(path), 6.5) == pytest.approx(6.5, rel=1e-12)
+
+
+def test_swing_without_the_move_matches_a_run_of_the_other_move_alone(tmp_path):
+    """The swing no profile of move 0 removes: a brisk second travel after every candidate ends.
+
+    Checked against single runs (swingsim.simulate, scipy DOP853) of the scene with move 0 left
+    out: the residual swing after the last move is then the second move's alone.  The 0.1 mm
+    stand-in adds well under 0.01 deg (its peak speed sqrt(a d) ~ 7 mm/s).
+    """
+    later = """
+[[moves]]
+label = "second travel"
+axis = "x"
+profile = "trapezoid"
+start_s = 60.0
+distance_m = 3.0
+speed_m_s = 1.0
+accel_m_s2 = 0.5
+"""
+    path = tmp_path / "two.toml"
+    path.write_text(SCENE.replace("duration_s = 30.0", "duration_s = 80.0") + later)
+    scene = load_scene(path)
+    cands = planning.candidate_moves(scene, 0, 5.0, 9.0)
+    for c in cands:
+        planning.build_candidate(scene, 0, c, 5.0, 9.0, planning.SEARCH_RUN_ON_PERIODS)
+    assert max(c.end_s for c in cands if c.usable) < 60.0  # every candidate ends before the second move
+    lengths = [5.0, 9.0]
+    without = planning.swing_without_move(scene, 0, cands, lengths)
+    slowest = max((c for c in cands if c.usable), key=lambda c: c.end_s)
+    for L, w in zip(lengths, without):
+        d = dict(scene.raw, moves=[tomllib.loads(later)["moves"][0]], rope={"length_m": L},
+                 duration_s=slowest.run_s)
+        s = summarize(simulate(scene_from_dict(d, file=str(path), base_dir=tmp_path))).data
+        assert s["residual_swing_deg"] > 0.3  # the brisk move swings the load
+        assert w == pytest.approx(s["residual_swing_deg"], abs=0.02)
+    # one move and no wind: nothing else swings the load
+    path.write_text(SCENE)
+    one = load_scene(path)
+    assert planning.swing_without_move(one, 0, cands, lengths) is None
