@@ -1114,7 +1114,8 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
             engines = ("single-run solver (*) at each" if all(v["solver"] == "single" for v in verified)
                        else "batch engine at all, single-run solver (*) at both ends and the worst")
             lines += ["", "Planned: " + sentence,
-                      f"Verified by simulating it with {verify_words} (nonlinear) at {len(verified)} rope lengths: "
+                      f"Verified by simulating it (nonlinear, {select_model(scene).name} model) at {len(verified)} "
+                      "rope lengths: "
                       f"{engines}:"]
             for v in verified:
                 star = "*" if v["solver"] == "single" else " "
