@@ -26,7 +26,6 @@ import argparse
 import sys
 from pathlib import Path
 
-from swingsim.batch import engine as batch
 from swingsim.cli.options import add_allow_implausible, add_output_arguments, add_scene_argument, out_folder
 from swingsim.errors import InputError
 from swingsim.io.files import locked_out_dir, reported_write_errors
@@ -34,6 +33,7 @@ from swingsim.scene import load_scene
 from swingsim.scene.plausibility import check_limit, check_plausible
 from swingsim.scene.read import PLAIN_NUMBER
 from swingsim.study import plan as planning
+from swingsim.study import plan_reduced
 
 
 def _parse_range(text: str):
@@ -109,9 +109,9 @@ def main(args: argparse.Namespace) -> int:
     if not args.quiet:
         from tqdm import tqdm
 
-        if not batch.supported(scene):
-            print("swingsim: note: the batch engine does not integrate this scene's model (or a luffing boom) "
-                  "yet; every run of the search uses the single-run solver and takes much longer", file=sys.stderr)
+        if plan_reduced.needs_search_model(scene):
+            print("swingsim: note: the search runs on the load's equivalent pendulum (batch engine); its best "
+                  "candidates are then verified in turn with the scene's full model", file=sys.stderr)
         bar = tqdm(total=0, unit="run", desc="plan-move", file=sys.stderr, mininterval=0.5)
     try:
         with locked_out_dir(out, args.force) as folder, reported_write_errors(folder):

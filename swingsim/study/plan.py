@@ -40,7 +40,7 @@ from __future__ import annotations
 
 import json
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import NamedTuple
 
@@ -48,19 +48,20 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.batch import engine as batch
+from swingsim.dynamics.registry import select_model
 from swingsim.errors import InputError
 from swingsim.io.files import atomic_write_bytes, atomic_write_text, staged_outputs
 from swingsim.metrics import cautions
-from swingsim.metrics.single import summarize
+from swingsim.motion.registry import build_motion, needs_swing_period
 from swingsim.report.plots_plan import PlanCurves, plan_figure_png
 from swingsim.scene.edit import with_move
 from swingsim.simulation import prepare, simulate
-from swingsim.study import plan_words
+from swingsim.study import plan_reduced, plan_words
 from swingsim.study.plan_drive import MAX_RATE_HZ, speed_reference, speed_reference_csv
 
 __all__ = ["Candidate", "MoveKeys", "PlanSearch", "PlanReport", "SEARCH_MARGIN", "LINEAR_SCREEN", "SEARCH_RUN_ON_PERIODS", "linear_residual_deg", "linear_residual_hoisting_deg",
-           "VERIFY_RUN_ON_PERIODS", "check_rate", "unshaped_candidate", "plan_move", "candidate_moves", "rope_lengths", "check_request",
-           "hoist_before", "build_candidate", "evaluate", "verify", "move_keys", "write_plan"]
+           "VERIFY_RUN_ON_PERIODS", "FULL_MODEL_CANDIDATES", "check_rate", "unshaped_candidate", "plan_move", "candidate_moves", "rope_lengths", "check_request",
+           "hoist_before", "swing_without_move", "build_candidate", "evaluate", "verify", "move_keys", "write_plan"]
 
 #: The search keeps this share of the bound in hand, for rope lengths between its samples.
 SEARCH_MARGIN = 0.9
@@ -77,6 +78,9 @@ _EI_TOLERANCES = (0.05, 0.1, 0.2)
 #: times the bound at some rope length are not simulated: at the small swings concerned the
 #: nonlinear residual differs from the linear one by far less, and damping only lowers it.
 LINEAR_SCREEN = 2.0
+#: For a rigged scene (:mod:`swingsim.study.plan_reduced`): how many of the search model's passing
+#: candidates, quickest first, the full model verifies at most before the plan gives up.
+FULL_MODEL_CANDIDATES = 12
 #: Variants (candidates x rope lengths) integrated together in one block of the best-first search.
 _BLOCK_RUNS = 120
 
@@ -120,7 +124,8 @@ class Candidate:
     acceleration [m/s^2 or deg/s^2].  :func:`build_candidate` fills in the profile,
     ``start_s``, ``end_s``, ``ramp_up_s``, ``ramp_down_s`` [s] and ``run_s`` (simulated
     time [s]); :func:`evaluate` the residual swing and peak rope angle [deg] at each
-    rope length (``[inf]`` when the move is not a valid scene).
+    rope length (``[inf]`` when the move is not a valid scene); :func:`verify` the number
+    of runs it made (``runs``).
     """
 
     kind: str
@@ -142,6 +147,7 @@ class Candidate:
     peak_accel: float = math.nan
     last_s: float = math.nan
     motion: object = None
+    runs: int = 0
 
     @property
     def duration_s(self) -> float:
@@ -181,9 +187,23 @@ def rope_lengths(low: float, high: float, n: int) -> list[float]:
     return [float(x) for x in np.linspace(low, high, n)]
 
 
+def _motion_of(scene):
+    """A scene's motion; its model is built too only when a profile needs the swing period.
+
+    (A model can be costly to build, e.g. turbulent wind synthesised over the whole run.)
+    """
+    return prepare(scene)[1] if needs_swing_period(scene) else build_motion(scene)
+
+
 def _period(g, L):
     """Small-angle period of a simple pendulum, 2 pi sqrt(L / g) [s]."""
     return 2.0 * math.pi * math.sqrt(L / g)
+
+
+def _first_mode_period(scene):
+    """Rope length [m] -> the full model's first swing period [s] (the model built once)."""
+    model = select_model(scene)
+    return lambda L: max(model.mode_periods_s(L))
 
 
 def _accel_limit(raw, k: MoveKeys) -> float:
@@ -309,7 +329,7 @@ def hoist_before(scene, index: int) -> float:
     """
     if not any(m.axis == "hoist" for m in scene.moves):
         return 0.0
-    _, motion = prepare(scene)
+    motion = _motion_of(scene)
     start = float(scene.moves[index].start_s)
     return float(motion.evaluate(np.array([start]))["L"][0]) - float(scene.rope.length_m)
 
@@ -484,7 +504,7 @@ def linear_residual_hoisting_deg(cands, lengths, low: float, g: float, zeta: flo
 
 
 def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_periods: float,
-                    lengths=None) -> Candidate:
+                    lengths=None, swing_period=None) -> Candidate:
     """Build a candidate's profile once: its times, ramps, the time to simulate and a linear estimate.
 
     Parameters
@@ -503,6 +523,9 @@ def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_
         Rope lengths [m] at which to estimate the residual swing of the linearised
         pendulum (:func:`linear_residual_deg`), for a point-mass scene that does not
         hoist; ``c.linear_deg`` stays None otherwise.
+    swing_period : callable, optional
+        Rope length [m] -> the swing period the run goes on for [s]; the simple
+        pendulum's by default (a rigged scene passes its first mode's).
 
     Returns
     -------
@@ -513,7 +536,7 @@ def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_
     try:
         sc = with_move(scene, index, c.move, rope_length_m=low - delta, duration_s=scene.duration_s + 1e4,
                        validate_motion=False)
-        _, motion = prepare(sc)
+        motion = _motion_of(sc)
     except InputError:
         c.residuals_deg = [math.inf]
         return c
@@ -530,7 +553,7 @@ def build_candidate(scene, index, c: Candidate, low: float, high: float, run_on_
     longest = high
     if hoists:
         longest = float(np.max(motion.evaluate(np.linspace(0.0, last, 401))["L"])) + (high - low)
-    c.run_s = last + run_on_periods * _period(g, longest)
+    c.run_s = last + run_on_periods * (swing_period(longest) if swing_period else _period(g, longest))
     c.last_s, c.motion = last, motion
     if lengths is not None and not hoists and batch.supported(sc):
         n = int(max(501, math.ceil(last / (_period(g, min(lengths)) / 100.0)) + 1))
@@ -616,6 +639,60 @@ class PlanSearch(NamedTuple):
     passed: list
     #: The smallest worst-case residual swing of the linearised pendulum over the candidates [deg] (inf: none).
     least_linear_deg: float = math.inf
+    #: The residual swing without the planned move (:func:`swing_without_move`) at each length [deg],
+    #: when it stopped the search (else None).
+    without_move_deg: list | None = None
+
+
+#: A stand-in for the planned move when measuring the swing without it: this many metres
+#: (degrees for slew), far too little to swing the load.
+_NULL_TRAVEL = 1e-4
+
+
+def swing_without_move(scene, index: int, cands, lengths, **kw) -> list[float] | None:
+    """Residual swing at each rope length with the planned move taken out: what no profile of it removes.
+
+    The move is replaced by a stand-in of :data:`_NULL_TRAVEL` ending when the slowest
+    candidate ends, so the residual swing is measured over the window that every
+    candidate's own window holds (after the slowest move's end).  What swings the load
+    then is the wind and the scene's other moves.
+
+    Parameters
+    ----------
+    scene, index
+        The scene and the planned move (from 0).
+    cands : list of Candidate
+        Built candidates (the slowest sets the window and the run's length).
+    lengths : list of float
+        Rope lengths at the move's start [m].
+    **kw
+        Passed on to :func:`swingsim.batch.engine.run_batch`.
+
+    Returns
+    -------
+    list of float or None
+        The residual swing at each length [deg]; None when the scene has no wind and no
+        other move (nothing else swings the load) or no candidate was built.
+    """
+    usable = [c for c in cands if c.usable]
+    if not usable or (len(scene.moves) == 1 and scene.wind.speed_m_s <= 0.0):
+        return None
+    slowest = max(usable, key=lambda c: c.end_s)
+    keep, _, a_max = _command(scene, index)
+    k = move_keys(keep["axis"])
+    d = math.copysign(_NULL_TRAVEL, float(keep[k.distance]))
+    a = a_max * (math.pi / 180.0 if keep["axis"] == "slew" else 1.0)
+    ramp = 2.0 * math.sqrt(_NULL_TRAVEL * (math.pi / 180.0 if keep["axis"] == "slew" else 1.0) / a)
+    null = {key: v for key, v in keep.items() if key != k.jerk}
+    null.update({k.distance: d, "profile": "trapezoid", "start_s": max(0.0, slowest.end_s - ramp)})
+    stand_in = Candidate("command", "trapezoid", null, a_max)
+    stand_in.run_s = slowest.run_s
+    try:
+        scenes = _scenes(scene, index, stand_in, lengths, hoist_before(scene, index))
+    except InputError:
+        return None
+    return [math.inf if s.get("residual_swing_deg") is None or not s.get("valid", True) else
+            float(s["residual_swing_deg"]) for s in batch.run_batch(scenes, **kw)]
 
 
 def _quickest_first(cands):
@@ -624,7 +701,7 @@ def _quickest_first(cands):
 
 
 def plan_move(scene, index: int, max_residual_deg: float, low: float, high: float,
-              n_lengths: int = 9, progress=None, **kw) -> PlanSearch:
+              n_lengths: int = 9, progress=None, exhaustive: bool = False, **kw) -> PlanSearch:
     """Best-first search for the quickest move within the bound over the rope range.
 
     Candidates are simulated in order of move time, a block at a time; the first
@@ -643,6 +720,10 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
     progress : tqdm.tqdm, optional
         A progress bar: its ``total`` grows by the runs each search stage may need,
         ``update(n)`` after each chunk of n runs.
+    exhaustive : bool, optional
+        Simulate every candidate the linear screen keeps, not only up to the first
+        block with one within the bound: ``passed`` then ranks them all (the search
+        model of a rigged scene, whose winners the full model verifies in turn).
     **kw
         Passed on to :func:`swingsim.batch.engine.run_batch`.
 
@@ -678,21 +759,27 @@ def plan_move(scene, index: int, max_residual_deg: float, low: float, high: floa
     screened = [c for c in cands if c.usable and (c.linear_deg is None
                                                   or max(c.linear_deg) <= LINEAR_SCREEN * max_residual_deg)]
     todo = _quickest_first(screened)
+    linear = [max(c.linear_deg) for c in cands if c.usable and c.linear_deg is not None]
+    # the wind and the other moves alone: when they leave more than the screen's factor times the
+    # bound after every candidate would end, no profile of this move meets it
+    others = swing_without_move(scene, index, cands, lengths, **kw) if todo else None
+    if others is not None and max(others) > LINEAR_SCREEN * max_residual_deg:
+        return PlanSearch(None, [], lengths, len(todo), sum(1 for c in cands if c.usable) - len(screened), [],
+                          min(linear, default=math.inf), others)
     _grow(progress, len(todo) * len(lengths))
-    block = max(4, _BLOCK_RUNS // len(lengths))
+    block = max(1, len(todo)) if exhaustive else max(4, _BLOCK_RUNS // len(lengths))
     done: list = []
     passed = []
-    while todo and not passed:
+    while todo and (exhaustive or not passed):
         now, todo = todo[:block], todo[block:]
         evaluate(scene, index, now, lengths, progress, **kw)
         done += now
-        passed = [c for c in now if c.worst_residual_deg <= max_residual_deg]
+        passed += [c for c in now if c.worst_residual_deg <= max_residual_deg]
     if passed:
         done += _refine(scene, index, _quickest_first(passed)[0], low, high, lengths, max_residual_deg,
                         done, progress, **kw)
     ok = _quickest_first([c for c in done if c.worst_residual_deg <= max_residual_deg])
     _grow(progress, -len(todo) * len(lengths))  # the slower candidates are not needed
-    linear = [max(c.linear_deg) for c in cands if c.usable and c.linear_deg is not None]
     return PlanSearch(ok[0] if ok else None, _quickest_first(done), lengths, len(todo),
                       sum(1 for c in cands if c.usable) - len(screened), ok, min(linear, default=math.inf))
 
@@ -757,12 +844,18 @@ def _refine(scene, index, best, low, high, lengths, bound, done, progress, **kw)
     return evaluate(scene, index, more, lengths, progress, **kw)
 
 
-def verify(scene, index, c: Candidate, low: float, high: float, lengths, single: bool = True) -> list[dict]:
-    """Simulate a candidate at each rope length: batch engine at all, single-run solver at the ends and the worst.
+def verify(scene, index, c: Candidate, low: float, high: float, lengths, single: bool = True,
+           swing_period=None, order=None, stop_over: float | None = None, progress=None,
+           use_batch: bool = True) -> list[dict]:
+    """Simulate a candidate at each rope length with the scene's own model.
 
-    Runs go on for :data:`VERIFY_RUN_ON_PERIODS` swing periods of the longest rope
-    after the last move.  Where the single-run solver (scipy DOP853 at tight
-    tolerance) ran, its numbers are the ones reported.
+    Where the batch engine integrates the scene it runs every length, and the
+    single-run solver (scipy DOP853 at tight tolerance) runs again at both ends and
+    the worst; otherwise the single-run solver runs every length.  Runs go on for
+    :data:`VERIFY_RUN_ON_PERIODS` swing periods of the longest rope after the last
+    move.  A single run is measured from its rope direction alone
+    (:func:`swingsim.study.plan_reduced.rope_angles`: the numbers of ``summary.json``).
+    Where the single-run solver ran, its numbers are the ones reported.
 
     Parameters
     ----------
@@ -775,31 +868,65 @@ def verify(scene, index, c: Candidate, low: float, high: float, lengths, single:
     lengths : list of float
         Rope lengths at the move's start to simulate at [m].
     single : bool, optional
-        Also run the single-run solver at both ends and the worst length.
+        Also run the single-run solver at both ends and the worst length (batch engine only).
+    swing_period : callable, optional
+        Rope length [m] -> swing period [s] the runs go on for (see :func:`build_candidate`).
+    order : list of int, optional
+        The order to run the lengths in with the single-run solver (most at risk first).
+    stop_over : float, optional
+        Stop at the first single run whose residual swing exceeds this [deg] (the batch engine
+        is not run then); the lengths not run are reported with ``solver`` ``not run`` and
+        ``valid`` False.
+    progress : tqdm.tqdm, optional
+        Advanced by one after each single run.
+    use_batch : bool, optional
+        Use the batch engine where it takes the scene (with ``stop_over``, after a single run at
+        the first length of ``order`` within it); False: the single-run solver at every length.
 
     Returns
     -------
     list of dict
         One per length: ``rope_length_m`` [m, at the move's start], ``residual_swing_deg``
-        [deg], ``peak_rope_angle_deg`` [deg], ``valid``, ``solver`` (``batch`` or
-        ``single``) and ``simulated_s`` (the run's length [s]).
+        [deg], ``peak_rope_angle_deg`` [deg], ``valid``, ``solver`` (``batch``, ``single``
+        or ``not run``) and ``simulated_s`` (the run's length [s]).
     """
-    build_candidate(scene, index, c, low, high, VERIFY_RUN_ON_PERIODS)
+    build_candidate(scene, index, c, low, high, VERIFY_RUN_ON_PERIODS, swing_period=swing_period)
     delta = hoist_before(scene, index)
     scenes = _scenes(scene, index, c, lengths, delta)
-    res = []
-    for L, s in zip(lengths, batch.run_batch(scenes)):
-        res.append({"rope_length_m": L, "residual_swing_deg": s["residual_swing_deg"],
-                    "peak_rope_angle_deg": s["peak_rope_angle_deg"], "valid": s["valid"],
-                    "solver": s["engine"], "simulated_s": c.run_s})
-    worst = max(range(len(res)), key=lambda i: -1.0 if res[i]["residual_swing_deg"] is None
-                else res[i]["residual_swing_deg"])
-    for i in sorted({0, len(res) - 1, worst}) if single else ():
-        if res[i]["solver"] == "single":
-            continue
-        s = summarize(simulate(scenes[i])).data
-        res[i].update({"residual_swing_deg": s["residual_swing_deg"], "valid": s["valid"],
-                       "peak_rope_angle_deg": s["peak_rope_angle_deg"], "solver": "single"})
+    c.runs = 0
+    res = [{"rope_length_m": L, "residual_swing_deg": None, "peak_rope_angle_deg": math.nan, "valid": False,
+            "solver": "not run", "simulated_s": c.run_s} for L in lengths]
+    order = list(order) if order is not None else list(range(len(lengths)))
+
+    def run_single(i) -> bool:
+        """The single-run solver at length i; whether the search may go on (False: over stop_over)."""
+        s = plan_reduced.rope_angles(simulate(scenes[i]))
+        c.runs += 1
+        res[i].update(s, solver="single")
+        if progress is not None:
+            progress.update(1)
+        r = s["residual_swing_deg"]
+        return stop_over is None or (r is not None and s["valid"] and r <= stop_over)
+
+    if use_batch and batch.supported(scenes[0]):
+        # with a bound to stop at, the length most at risk first on its own: a failing candidate costs one run
+        if stop_over is not None and not run_single(order[0]):
+            rerun = []
+        else:
+            c.runs += len(scenes)
+            for i, s in enumerate(batch.run_batch(scenes)):
+                if res[i]["solver"] != "single":
+                    res[i].update({"residual_swing_deg": s["residual_swing_deg"],
+                                   "peak_rope_angle_deg": s["peak_rope_angle_deg"], "valid": s["valid"],
+                                   "solver": s["engine"]})
+            worst = max(range(len(res)), key=lambda i: -1.0 if res[i]["residual_swing_deg"] is None
+                        else res[i]["residual_swing_deg"])
+            rerun = sorted({0, len(res) - 1, worst}) if single else []
+    else:
+        rerun = order
+    for i in rerun:
+        if res[i]["solver"] != "single" and not run_single(i):
+            break
     c.residuals_deg = [math.inf if r["residual_swing_deg"] is None or not r["valid"] else r["residual_swing_deg"]
                        for r in res]
     c.peaks_deg = [r["peak_rope_angle_deg"] for r in res]
@@ -871,19 +998,63 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
     with staged_outputs(out) as stage:
         staged = stage.path
         chosen = verified = None
-        search = plan_move(scene, index, bound * SEARCH_MARGIN, low, high, progress=progress)
-        fine = rope_lengths(low, high, 4 * len(search.rope_lengths_m) - 3)
-        for c in search.passed[:5]:
-            ver = verify(scene, index, c, low, high, fine)
-            if all(v["valid"] and v["residual_swing_deg"] is not None and v["residual_swing_deg"] <= bound
-                   for v in ver):
-                chosen, verified = c, ver
-                break
-        unshaped = unshaped_candidate(scene, index)
-        unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False)
+        rejected = []  # (candidate, its verification) the full model refused, rigged scenes
+
+        def within(ver):
+            return all(v["valid"] and v["residual_swing_deg"] is not None and v["residual_swing_deg"] <= bound
+                       for v in ver)
+
+        if plan_reduced.needs_search_model(scene):
+            # search on the reduced model, verify its best in turn with the full model
+            model_name = select_model(scene).name
+            search_sc = plan_reduced.search_scene(scene)
+            swing_period = _first_mode_period(scene)
+            search = plan_move(search_sc, index, bound * SEARCH_MARGIN, plan_reduced.equivalent_length(scene, low),
+                               plan_reduced.equivalent_length(scene, high), progress=progress, exhaustive=True)
+            fine = rope_lengths(low, high, len(search.rope_lengths_m))
+            for c in search.passed[:FULL_MODEL_CANDIDATES]:
+                trial = replace(c, residuals_deg=[], peaks_deg=[])
+                # the lengths most at risk on the search model first: a failing candidate stops early
+                order = sorted(range(len(fine)), key=lambda i: -c.residuals_deg[i])
+                _grow(progress, len(fine))
+                ver = verify(scene, index, trial, low, high, fine, swing_period=swing_period, order=order,
+                             stop_over=bound, progress=progress)
+                if within(ver):
+                    chosen, verified = trial, ver
+                    break
+                rejected.append((trial, ver))
+            unshaped = unshaped_candidate(scene, index)
+            _grow(progress, len(fine))
+            unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False, swing_period=swing_period,
+                                  progress=progress, use_batch=False)
+            search_words = plan_reduced.SEARCH_MODEL_WORDS
+            # a tuning period read as the hoist rope length at which the full model swings with it
+            eq = [plan_reduced.equivalent_length(scene, x) for x in fine]
+
+            def rope_for(T):  # piecewise linear in the equivalent length, straight on past the ends
+                x = plan_words.rope_for_period(T, g)
+                if len(fine) == 1 or eq[-1] <= eq[0]:
+                    return fine[0] + x - eq[0]
+                i = min(max(int(np.searchsorted(eq, x)) - 1, 0), len(eq) - 2)
+                return fine[i] + (x - eq[i]) * (fine[i + 1] - fine[i]) / (eq[i + 1] - eq[i])
+            verify_words = f"the scene's full model ({model_name})"
+        else:
+            search = plan_move(scene, index, bound * SEARCH_MARGIN, low, high, progress=progress)
+            fine = rope_lengths(low, high, 4 * len(search.rope_lengths_m) - 3)
+            for c in search.passed[:5]:
+                ver = verify(scene, index, c, low, high, fine)
+                if within(ver):
+                    chosen, verified = c, ver
+                    break
+            unshaped = unshaped_candidate(scene, index)
+            unshaped_ver = verify(scene, index, unshaped, low, high, fine, single=False)
+            search_words = "the scene's own model (point mass), batch engine"
+            rope_for = None
+            verify_words = "the same model"
+        full_runs = unshaped.runs + sum(c.runs for c in [chosen] + [c for c, _ in rejected] if c is not None)
 
         def words(c):
-            return plan_words.describe(c, a_lim, k.unit, g)
+            return plan_words.describe(c, a_lim, k.unit, g, rope_for)
 
         head = [cautions.CAUTION, "",
                 f"Plan for move {index} ({scene.moves[index].name}) of {scene.name}: residual swing at most "
@@ -893,18 +1064,43 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
         if others:
             head.append("The scene's other moves are kept as given: " + ", ".join(others) + ".")
         lines = list(head)
+        lines.append(f"Search model: {search_words}, at {len(search.rope_lengths_m)} rope lengths. Verifying "
+                     f"model: {verify_words}; only a move it verified is written.")
         lines.append(f"Unshaped move ({words(unshaped)}): {unshaped.duration_s:.1f} s, residual swing "
                      f"{min(unshaped.residuals_deg):.3f} to {max(unshaped.residuals_deg):.3f} deg over the range.")
         result = {"scene": scene.name, "move": index, "max_residual_deg": bound, "rope_range_m": [low, high],
+                  "search_model": search_words, "verifying_model": verify_words,
+                  "search_rope_lengths_m": search.rope_lengths_m,
+                  "rejected_by_verification": [{"description": words(c), "duration_s": c.duration_s,
+                                                "verified": ver} for c, ver in rejected],
                   "rope_range_at": "the planned move's start", "caution": cautions.CAUTION,
                   "unshaped": {"description": words(unshaped), "duration_s": unshaped.duration_s,
                                "move": unshaped.move, "verified": unshaped_ver}}
         files = []
+        if rejected:
+            lines += ["", f"Passed the search model but not the full model ({len(rejected)}, quickest first; "
+                      "each stops at its first length over the bound):"]
+            for c, ver in rejected:
+                over = [v for v in ver if v["solver"] != "not run" and not within([v])]
+                at = (f"{_fmt_res(over[0]['residual_swing_deg'])} deg at {over[0]['rope_length_m']:.2f} m"
+                      if over else "-")
+                lines.append(f"  {c.duration_s:6.1f} s  {at}  {words(c)}")
+        result["full_model_runs"] = full_runs
         if chosen is None:
             lines += ["", f"No profile in the search meets {bound:g} deg over the whole range within the move's "
                       "limits. Narrow the rope range, allow more residual swing, or plan the move in stages."]
             least = min((c.worst_residual_deg for c in search.candidates), default=math.inf)
-            if math.isfinite(least):
+            if search.without_move_deg is not None:
+                w = search.without_move_deg
+                i = int(np.argmax(w))
+                ls = fine if len(fine) == len(w) else search.rope_lengths_m
+                lines.append(f"Without this move (a {_NULL_TRAVEL:g} {k.unit} stand-in ending when the slowest "
+                             f"candidate would end) the load still swings {_fmt_res(w[i])} deg after it at "
+                             f"{ls[i]:.2f} m rope: the wind and the scene's other moves, which no profile of this "
+                             f"move removes (more than {LINEAR_SCREEN:g} x the search bound). The search "
+                             "stopped there.")
+                result["swing_without_move_deg"] = [_finite(x) for x in w]
+            elif math.isfinite(least):
                 lines.append(f"The least worst-case residual swing simulated: {least:.3f} deg.")
             elif math.isfinite(search.least_linear_deg):
                 lines.append(f"By the linearised pendulum the least worst-case residual swing of any candidate is "
@@ -914,10 +1110,13 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                              "than the bound by itself; plan it first (plan-move --move on it).")
             result["plan"] = None
         else:
-            sentence = plan_words.summary_sentence(chosen, unshaped.duration_s, a_lim, k.unit, g)
+            sentence = plan_words.summary_sentence(chosen, unshaped.duration_s, a_lim, k.unit, g, rope_for)
+            engines = ("single-run solver (*) at each" if all(v["solver"] == "single" for v in verified)
+                       else "batch engine at all, single-run solver (*) at both ends and the worst")
             lines += ["", "Planned: " + sentence,
-                      f"Verified by simulating it (nonlinear model) at {len(verified)} rope lengths: batch engine "
-                      "at all, single-run solver (*) at both ends and the worst:"]
+                      f"Verified by simulating it (nonlinear, {select_model(scene).name} model) at {len(verified)} "
+                      "rope lengths: "
+                      f"{engines}:"]
             for v in verified:
                 star = "*" if v["solver"] == "single" else " "
                 lines.append(f"  rope {v['rope_length_m']:7.2f} m{star} residual swing "
@@ -925,7 +1124,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                              f"{v['peak_rope_angle_deg']:.2f} deg")
             # the scene snippet: the planned move as scene keys (exact; the scene rebuilds the profile)
             snippet = dict(chosen.move)
-            toml = [f"# Planned by swingsim plan-move: {plan_words.describe(chosen, a_lim, k.unit, g)}.",
+            toml = [f"# Planned by swingsim plan-move: {words(chosen)}.",
                     f"# Residual swing <= {bound:g} deg for rope lengths {low:g} to {high:g} m at the move's start "
                     "(verified by simulation).",
                     "# " + cautions.CAUTION_SHORT,
@@ -946,7 +1145,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
                                 [v["residual_swing_deg"] for v in unshaped_ver], bound)
             atomic_write_bytes(staged / name_png, plan_figure_png(
                 curves, f"plan-move: {scene.moves[index].name} ({scene.name})",
-                "planned: " + plan_words.describe(chosen, a_lim, k.unit, g)))
+                "planned: " + words(chosen)))
             lines += ["", f"Speed reference for the drive: {name_csv} ({len(ref.t_s)} rows at {rate_hz:g} Hz; "
                       f"{', '.join(ref.header)}; the last row at {ref.t_s[-1]:.3f} s holds the target and zero "
                       "speed). Check it against the crane's drive and its own limits before use.",
@@ -955,7 +1154,7 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
             files += [(name_toml, f"the planned move as scene keys, to replace move {index}"),
                       (name_csv, f"speed reference for the drive, {rate_hz:g} Hz"),
                       (name_png, "plot: planned vs unshaped profile, residual swing across the rope range")]
-            result["plan"] = {"description": plan_words.describe(chosen, a_lim, k.unit, g), "sentence": sentence,
+            result["plan"] = {"description": words(chosen), "sentence": sentence,
                               "duration_s": chosen.duration_s, "move": chosen.move, "verified": verified,
                               "speed_reference_file": name_csv, "rate_hz": rate_hz, "plot_file": name_png,
                               "snippet_file": name_toml}
@@ -964,7 +1163,8 @@ def write_plan(scene, index, max_residual_deg, low, high, out, *, rate_hz: float
         table = [f"# the search bound is {inner:.3g} deg ({100 * SEARCH_MARGIN:.0f} % of {bound:g} deg, for rope "
                  "lengths between those simulated)",
                  "description,move_time_s,worst_residual_deg,within_search_bound"]
-        lines += ["", f"Candidates simulated ({len(search.candidates)}, quickest first; {search.skipped} slower "
+        lines += ["", f"Candidates simulated on the search model ({len(search.candidates)}, quickest first; "
+                  f"{search.skipped} slower "
                   f"ones not needed; {search.screened_out} left out because the linearised swing exceeds "
                   f"{LINEAR_SCREEN:g} x the bound), worst residual swing at {len(search.rope_lengths_m)} rope "
                   f"lengths against the search bound {inner:.3g} deg ({100 * SEARCH_MARGIN:.0f} % of {bound:g} deg)"

@@ -51,7 +51,7 @@ def _ramps(c) -> str:
     return f"{up:.1f} s to speed up and {down:.1f} s to slow down"
 
 
-def describe(c, accel_limit: float, unit: str, g: float) -> str:
+def describe(c, accel_limit: float, unit: str, g: float, rope_for=None) -> str:
     """One candidate in plain words (without its move time, which the tables give apart).
 
     Parameters
@@ -65,6 +65,10 @@ def describe(c, accel_limit: float, unit: str, g: float) -> str:
         ``"m"``, or ``"deg"`` for slew.
     g : float
         Gravity [m/s^2], for the rope length a period stands for.
+    rope_for : callable, optional
+        Swing period [s] -> the hoist rope length [m] at which the scene swings
+        with that period; the simple pendulum's (:func:`rope_for_period`) by default.
+        A rigged scene passes its first swing mode's.
 
     Returns
     -------
@@ -80,7 +84,8 @@ def describe(c, accel_limit: float, unit: str, g: float) -> str:
     if c.kind == "command":
         return f"plain {c.base} speed ramps, {_ramps(c)}; {acc}"
     periods = c.periods_s
-    ropes = " and ".join(f"{rope_for_period(T, g):.1f} m" for T in periods)
+    rope_for = rope_for or (lambda T: rope_for_period(T, g))
+    ropes = " and ".join(f"{rope_for(T):.1f} m" for T in periods)
     if c.kind == "whole-period":
         T = periods[0]
         n = max(1, round(c.ramp_up_s / T)) if c.base == "trapezoid" else None
@@ -101,7 +106,7 @@ def describe(c, accel_limit: float, unit: str, g: float) -> str:
     return f"speed-up and slow-down each {shaped}, {tuned}, {_ramps(c)}; {acc}"
 
 
-def summary_sentence(c, unshaped_s: float, accel_limit: float, unit: str, g: float) -> str:
+def summary_sentence(c, unshaped_s: float, accel_limit: float, unit: str, g: float, rope_for=None) -> str:
     """The winner in one sentence, with its move time against the unshaped move's.
 
     Parameters
@@ -110,8 +115,8 @@ def summary_sentence(c, unshaped_s: float, accel_limit: float, unit: str, g: flo
         The chosen candidate (built).
     unshaped_s : float
         How long the unshaped move takes [s].
-    accel_limit, unit, g
-        As for :func:`describe` ([m/s^2 or deg/s^2], -, [m/s^2]).
+    accel_limit, unit, g, rope_for
+        As for :func:`describe` ([m/s^2 or deg/s^2], -, [m/s^2], [s] -> [m]).
 
     Returns
     -------
@@ -121,5 +126,5 @@ def summary_sentence(c, unshaped_s: float, accel_limit: float, unit: str, g: flo
     d = c.duration_s - unshaped_s
     more = (f"{d:.1f} s more than" if d >= 0.05 else f"{-d:.1f} s less than" if d <= -0.05
             else "as long as")
-    return (f"{describe(c, accel_limit, unit, g)}. The move takes {c.duration_s:.1f} s, "
+    return (f"{describe(c, accel_limit, unit, g, rope_for)}. The move takes {c.duration_s:.1f} s, "
             f"{more} the unshaped move ({unshaped_s:.1f} s).")
