@@ -30,12 +30,12 @@ GIF_MAX_FPS = 50
 #: Below this many frames one process draws everything: starting a worker costs about
 #: a second of CPU.
 PARALLEL_MIN_FRAMES = 450
-#: Workers are started on their own only with more CPUs than this.  One process already
-#: keeps two cores busy (the renderer's thread and its rasteriser threads, the encoder
-#: fed from a thread), and on 2 cores it beat two workers also on a 20 s clip
-#: (1280x720, 30 fps: 52-58 frames/s against 32-48, 22-25 ms CPU a frame against 29-31,
-#: alternating runs in one session on a shared machine).
-PARALLEL_MIN_CPUS = 3
+#: Workers are started on their own only with at least this many CPUs (and PARALLEL_MIN_FRAMES
+#: frames).  Measured on an idle 2-core machine (benchmarks/bench_render.py, 30 s clip at
+#: 1280x720, 30 fps): one process 51.9 frames/s, two workers 62.4 frames/s; on a busy shared
+#: machine one process did better (52-58 against 32-48 frames/s on a 20 s clip), so a user
+#: sharing cores can pass ``workers=1``.
+PARALLEL_MIN_CPUS = 2
 
 
 def frame_times(t0: float, t1: float, fps: float, speed: float) -> np.ndarray:
