@@ -112,6 +112,39 @@ def test_second_command_into_a_busy_folder_is_refused(tmp_path):
     assert not out.exists()  # the lock leaves no file behind
 
 
+def test_a_refused_command_leaves_the_busy_folder_to_its_holder(tmp_path, monkeypatch):
+    """Both commands find no folder and create it; the one refused for the lock must not remove it.
+
+    The race seen on a loaded CI machine (one run in some hundred): the loser
+    removed the still-empty folder it thought it had created, and the winner's
+    staging then failed with "no such file or directory".
+    """
+    import fcntl
+
+    from swingsim.errors import InputError
+    from swingsim.io import files
+
+    out = tmp_path / "out"
+    real = files._lock_folder
+    held = []
+
+    def other_command_locks_first(path, what):
+        fd = os.open(path, os.O_RDONLY | os.O_DIRECTORY)  # the winner's lock, taken in between
+        fcntl.flock(fd, fcntl.LOCK_EX)
+        held.append(fd)
+        return real(path, what)
+
+    monkeypatch.setattr(files, "_lock_folder", other_command_locks_first)
+    try:
+        with pytest.raises(InputError, match="another swingsim command"):
+            with files.locked_out_dir(out, force=False):
+                pass
+        assert out.is_dir()  # still there for the command that holds it
+    finally:
+        for fd in held:
+            os.close(fd)
+
+
 def test_two_runs_started_at_once_do_not_mix(tmp_path):
     out = tmp_path / "out"
     other = _scene_with_title(tmp_path, "the other scene")

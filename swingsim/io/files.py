@@ -282,15 +282,34 @@ def reported_write_errors(out: Path | str, what: str = "--out"):
 
 
 def _lock_folder(out: Path, what: str) -> int:
-    """An exclusive ``flock`` on the folder itself (no lock file is left behind); the descriptor."""
-    fd = os.open(out, os.O_RDONLY | os.O_DIRECTORY)
-    try:
-        fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
-    except BlockingIOError:
-        os.close(fd)
-        raise InputError(str(out), "", f"another swingsim command is writing into this {what} folder; "
-                         "wait for it to finish or choose another folder") from None
-    return fd
+    """An exclusive ``flock`` on the folder itself (no lock file is left behind); the descriptor.
+
+    The lock is taken on the folder that ``out`` names *after* locking: when a
+    command that created the folder removed it again between our ``open`` and
+    our ``flock`` (it was refused and cleaned up), the folder is created anew and
+    locked again, so a run never writes into a removed folder.
+    """
+    for _ in range(5):
+        try:
+            fd = os.open(out, os.O_RDONLY | os.O_DIRECTORY)
+        except FileNotFoundError:
+            out.mkdir(parents=True, exist_ok=True)
+            continue
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except BlockingIOError:
+            os.close(fd)
+            raise InputError(str(out), "", f"another swingsim command is writing into this {what} folder; "
+                             "wait for it to finish or choose another folder") from None
+        try:
+            same = os.stat(out).st_ino == os.fstat(fd).st_ino
+        except FileNotFoundError:
+            same = False
+        if same:
+            return fd
+        os.close(fd)  # locked a folder that was removed meanwhile: take the one there now
+        out.mkdir(parents=True, exist_ok=True)
+    raise InputError(str(out), "", f"{what} folder keeps disappearing; is another program removing it?")
 
 
 @contextlib.contextmanager
@@ -324,18 +343,18 @@ def locked_out_dir(out: Path | str, force: bool, what: str = "--out"):
         out.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise InputError(str(out), "", f"{what} folder cannot be created: {exc.strerror or exc}") from None
+    fd = _lock_folder(out, what)
     try:
-        fd = _lock_folder(out, what)
-        try:
-            check_out_dir(out, force, what)
-            clean_partials(out)
-            yield out
-        finally:
-            os.close(fd)
+        check_out_dir(out, force, what)
+        clean_partials(out)
+        yield out
     finally:
         if created:
+            # Only while holding the lock: a command refused because another one
+            # holds the folder must not remove it from under that one.
             with contextlib.suppress(OSError):
                 out.rmdir()  # only when empty
+        os.close(fd)
 
 
 @contextlib.contextmanager
