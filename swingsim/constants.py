@@ -69,3 +69,7 @@ SAMPLE_HZ = 50.0
 #: Metallic area of a stranded wire rope over the area of its circle [-] (from
 #: memory; Feyrer, *Wire Ropes*, typical 0.5-0.65).  Only a default.
 ROPE_FILL_FACTOR = 0.58
+#: Elastic stretch of a hoist rope under the hanging weight, assumed when a scene with
+#: ground contact gives no rope stiffness [-] (our assumption: steel wire rope at its
+#: working load stretches elastically by some tenths of a percent, from memory).
+ASSUMED_ROPE_STRAIN = 0.004

@@ -145,7 +145,8 @@ def test_every_key_documented():
                 # a quantity's unit is in its name
                 assert any(name.endswith(u) for u in ("_s", "_m", "_kg", "_m2", "_m_s", "_m_s2", "_m_s3",
                                                       "_deg", "_deg_s", "_deg_s2", "_deg_s3", "_hz", "_kN",
-                                                      "_kg_m3", "_m_s2", "_kN_per_m", "_kg_m2", "_GPa", "_pct", "_N_m_per_rad")), name
+                                                      "_kg_m3", "_m_s2", "_kN_per_m", "_kg_m2", "_GPa", "_pct", "_N_m_per_rad",
+                                                      "_N", "_N_per_m", "_N_s_per_m")), name
 
 
 def test_reference_doc_in_sync():

@@ -92,6 +92,7 @@ import numpy as np
 
 from swingsim import constants
 from swingsim.dynamics.base import LinearSwing, ModelDefaults, SwingModel
+from swingsim.dynamics.contact import PointForces
 from swingsim.dynamics.pendulum import direction_from_projected, projected_angles, starts_in_steady_wind
 from swingsim.dynamics.wind import rope_end_wind, wind_field
 from swingsim.dynamics.rigging import load_inertia, rigging_geometry, rotation, rotation_z, tilt_to_align
@@ -109,7 +110,7 @@ def _turn(cc, sc, v):
 
 
 #: Names under which this model is listed in ``swingsim.dynamics.registry.MODELS``.
-MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load")
+MODEL_NAMES = ("hook-load", "rigid-load", "elastic-rope", "sling-load", "point-load")
 
 
 def model_name(scene) -> str | None:
@@ -125,16 +126,20 @@ def model_name(scene) -> str | None:
     str or None
         ``hook-load``: a hook block; ``rigid-load``: a rigid load on the rope's end;
         ``elastic-rope``: a point load on an elastic rope; ``sling-load``: a point
-        load on a sling leg below the rope's end (no hook block); None otherwise.
+        load on a sling leg below the rope's end (no hook block); ``point-load``: a
+        point load on the rope's end held by tag lines; None otherwise.  A scene with
+        ``[ground]`` has an elastic rope (it goes slack over a landed load).
     """
     if scene.hook is not None:
         return "hook-load"
     if scene.rigid_load:
         return "rigid-load"
-    if scene.rope.elastic:
+    if scene.rope.elastic or getattr(scene, "ground", None) is not None:
         return "elastic-rope"
     if scene.rigging is not None:
         return "sling-load"
+    if getattr(scene, "tag_lines", ()):
+        return "point-load"
     return None
 
 
@@ -392,6 +397,11 @@ class Structure(NamedTuple):
         None when the heading is held (locked, no torsion stiffness).
     wind_center : bool
         The load's wind drag acts at a centre of pressure away from its CG.
+    load_points : tuple of tuple
+        Points of the load where applied forces act (tag line attachments, the corners
+        that touch the ground), load axes from the CG [m]; for a point load, offsets
+        from it that do not turn.  Their forces come from the ``point_forces`` function
+        of :func:`equations_of_motion`.
     """
 
     n_coordinates: int
@@ -402,6 +412,7 @@ class Structure(NamedTuple):
     rope_end_is_hook: bool
     yaw_index: object = None
     wind_center: bool = False
+    load_points: tuple = ()
 
 
 #: Parameters of :func:`equations_of_motion` (see :meth:`HookLoadModel.equation_parameters`).
@@ -410,7 +421,8 @@ PARAMETER_NAMES = ("g", "zeta", "rope_drag_k", "end_drag_k", "load_drag_k", "end
                    "I0", "I1", "I2", "yaw_start_rad", "yaw_stiffness_N_m_per_rad", "wc0", "wc1", "wc2")
 
 
-def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithmetic, details=False):
+def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithmetic, details=False,
+                        point_forces=None):
     """Generalised accelerations of the hook-and-load model (module Notes), one state or many.
 
     The single-run solver calls it with floats (:class:`FloatArithmetic`), the batch
@@ -445,6 +457,13 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
     details : bool
         Also return the hoist rope's tension, the leg's (below a hook block), the
         load's position and velocity.
+    point_forces : callable, optional
+        ``point_forces(positions, velocities) -> forces``: the forces [N] (world axes,
+        one 3-sequence per point) at the points ``structure.load_points``, given their
+        positions relative to the suspension point [m] and their velocities [m/s]
+        (3-sequences of floats or arrays): tag lines and ground contact
+        (:mod:`swingsim.dynamics.contact`).  Each acts on the load at its point: on the
+        CG's coordinates and, through the load's frame, on its rotation.
 
     Returns
     -------
@@ -453,7 +472,8 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         plus ``(n,)``); with ``details`` a dict with ``qdd``, ``rope_tension_N`` (the
         elastic rope's clamped at zero), ``rope_tension_raw_N`` (elastic: before the
         clamp), ``leg_tension_N`` (leg below a hook block, else None), ``load_pos_m``
-        (relative to the suspension point) and ``load_vel_m_s`` (tuples of 3).
+        (relative to the suspension point), ``load_vel_m_s`` (tuples of 3) and
+        ``point_forces_N`` (the forces at ``structure.load_points``, or None).
     """
     nq, ia, il, link2 = structure.n_coordinates, structure.tilt_index, structure.rope_length_index, \
         structure.leg_below_hook
@@ -626,6 +646,29 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         rows += [Gx_, Gy_, Gz_]
         fvec += [FGx - m * gbx, FGy - m * gby, FGz - m * gbz]
         masses += [m, m, m]
+    applied_at_points = None
+    if structure.load_points and point_forces is not None:
+        # forces at points of the load (tag lines, ground contact): on the load's rows (the
+        # rope's end for a point load hanging there), and their moments through the load's frame
+        at_points = LoadFrame(ops, (a, b), (da, db), yaw, dyaw, ia, iy) if body else None
+        pos, vel, rhos = [], [], []
+        for p_b in structure.load_points:
+            if body:
+                rho, rho_d = at_points.point(p_b)[:2]
+            else:
+                rho, rho_d = p_b, (0.0, 0.0, 0.0)
+            rhos.append(rho)
+            pos.append((Gx + rho[0], Gy + rho[1], Gz + rho[2]))
+            vel.append((Gdx + rho_d[0], Gdy + rho_d[1], Gdz + rho_d[2]))
+        applied_at_points = point_forces(pos, vel)
+        row = 3 if (body or link2) else 0
+        for rho, F in zip(rhos, applied_at_points):
+            fvec[row] = fvec[row] + F[0]
+            fvec[row + 1] = fvec[row + 1] + F[1]
+            fvec[row + 2] = fvec[row + 2] + F[2]
+            if body:
+                for k, x in at_points.generalised_force(rho, F).items():
+                    load_moments[k] = load_moments.get(k, 0.0) + x
     inertial, generalised = {}, {}
     n_points = len(rows) // 3  # the bodies' rows (x, y, z of each), before any rotation's
     if body:
@@ -688,7 +731,7 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
     if link2:  # the leg pulls the load along -n2: T2 = n2 . (F_G - m a_G)
         leg_T = n2[0] * rest[3] + n2[1] * rest[4] + n2[2] * rest[5]
     return {"qdd": qdd, "rope_tension_N": rope_T, "rope_tension_raw_N": T_raw, "leg_tension_N": leg_T,
-            "load_pos_m": (Gx, Gy, Gz), "load_vel_m_s": (Gdx, Gdy, Gdz)}
+            "load_pos_m": (Gx, Gy, Gz), "load_vel_m_s": (Gdx, Gdy, Gdz), "point_forces_N": applied_at_points}
 
 
 class HookLoadModel(ModelDefaults, SwingModel):
@@ -837,9 +880,20 @@ class HookLoadModel(ModelDefaults, SwingModel):
             self.cg_from_pivot_b = np.zeros(3)
             self.attach_points_b = np.zeros((1, 3))
         self.hanging_mass_kg = self.load_mass_kg + self.hook_mass_kg
+        self.ground = getattr(scene, "ground", None)
+        #: the rope's stiffness is this model's assumption (a scene with [ground] and a rope without one)
+        self.rope_stiffness_assumed = False
+        if self.ground is not None and not rope.elastic:
+            # ground contact needs a rope that can go slack: the hanging weight stretches it by
+            # constants.ASSUMED_ROPE_STRAIN (said in the summary)
+            rope = replace(rope, stiffness_kN_per_m=self.hanging_mass_kg * g
+                           / (constants.ASSUMED_ROPE_STRAIN * rope.length_m) / 1e3)
+            self.rope_stiffness_assumed = True
         self.elastic_rope = elastic_rope(rope, self.hanging_mass_kg * g, self.hanging_mass_kg)
         self.rope_is_elastic = self.elastic_rope is not None
         self.starts_resting = self.rope_is_elastic and scene.start.rope_preload == "lift-off"
+        #: the load starts resting on the ground (start.on_ground) and lifts off as the forces say
+        self.starts_on_ground = bool(getattr(scene.start, "on_ground", False))
         #: instant the load lifts off [s] (rope_preload = lift-off); set by initial_state
         self.lift_off_time_s = None
         #: instants where the solver must restart (read by swingsim.simulation.simulate)
@@ -893,11 +947,53 @@ class HookLoadModel(ModelDefaults, SwingModel):
                                        0.0 if (self.rigid_load or self.leg_below_hook) else self.load_mass_kg) > 0.0,
                                    self.has_hook_block, self.yaw_index,
                                    bool(self.rigid_load and self._load_drag_k and np.any(self.wind_center_b)))
+        #: tag lines and ground contact (None without either): forces at points of the load
+        self.contacts = self._point_force_set(scene)
+        if self.contacts is not None:
+            self.structure = self.structure._replace(load_points=self.contacts.points_b)
         self._par = self.equation_parameters()
+
+    def _point_force_set(self, scene):
+        """The scene's tag lines and ground contact as one :class:`PointForces` (None without either)."""
+        lines = tuple(getattr(scene, "tag_lines", ()))
+        if not lines and self.ground is None:
+            return None
+        ground = None
+        if self.ground is not None:
+            gr = self.ground
+            points = self.contact_points_b()
+            n_bottom = 4 if len(points) == 8 else 1
+            m = self.load_mass_kg if (self.rigid_load or self.leg_below_hook) else self.hanging_mass_kg
+            K = gr.stiffness_kN_per_m * 1e3 if gr.stiffness_kN_per_m else m * self.gravity_m_s2 / gr.settlement_m
+            C = 2.0 * gr.damping_ratio * math.sqrt(K * m)
+            #: the support's whole stiffness [N/m] and damping [N s/m] under the load
+            self.ground_stiffness_N_per_m, self.ground_damping_N_s_per_m = K, C
+            ground = (gr.z_m, K / n_bottom, C / n_bottom, gr.friction_coefficient, gr.slip_speed_m_s, points)
+        return PointForces(lines, ground)
+
+    def contact_points_b(self) -> np.ndarray:
+        """The load's points that touch the ground: a box's 8 corners, a point load's bottom.
+
+        Returns
+        -------
+        ndarray (k, 3)
+            Load axes from the CG [m] (a point load: its bottom, half its size_m height below it).
+        """
+        corners = self.load_corners_b()
+        if corners is not None:
+            return corners
+        size = self.scene.load.size_m
+        return np.array([[0.0, 0.0, -0.5 * size[2] if size else 0.0]])
+
+    def _point_forces(self, t, support):
+        """The ``point_forces`` function of the equations at one instant (None without any)."""
+        return None if self.contacts is None else self.contacts.at(support)
 
     # -- set-up ------------------------------------------------------------------
     def initial_state(self, motion) -> np.ndarray:
         sw = self.scene.start
+        if self.starts_on_ground:
+            return self._resting_on_ground_state(motion)
         e0 = motion.evaluate(np.array([0.0]))
         L0 = float(e0["L"][0])
         self._rest_support_z = float(e0["p"][0][2])  # where the rest in the mean wind hangs from
@@ -970,6 +1066,129 @@ class HookLoadModel(ModelDefaults, SwingModel):
             self.extra_breakpoints = tuple(sorted(set(self.extra_breakpoints) | (
                 {self.lift_off_time_s} if math.isfinite(self.lift_off_time_s) else set())))
         return np.array(q + qd, dtype=float)
+
+    # -- the load on the ground, tag lines ----------------------------------------------
+    def _resting_geometry(self, support) -> dict:
+        """The system with the load resting level on the ground at t = 0 (``start.on_ground``).
+
+        The load's CG stands ``start.load_offset_m`` in plan from the plumb below the
+        suspension point, its lowest contact points on the ground pressed in by its weight;
+        the rigging and the rope run straight from the load's pivot to the suspension point.
+        """
+        p = np.asarray(support, float)
+        dx, dy = self.scene.start.load_offset_m
+        R = rotation_z(self.yaw_start_rad) if self.rigid_load else np.eye(3)
+        low = float(np.min((self.contact_points_b() @ R.T)[:, 2]))
+        m = self.load_mass_kg if (self.rigid_load or self.leg_below_hook) else self.hanging_mass_kg
+        settle = m * self.gravity_m_s2 / self.ground_stiffness_N_per_m
+        G = np.array([p[0] + dx, p[1] + dy, self.ground.z_m - low - settle])
+        P = G - R @ self.cg_from_pivot_b
+        le = float(np.linalg.norm(P - p))
+        n1 = (P - p) / le
+        return {"G": G, "P": P, "n1": n1, "ell": le - self.rope_end_leg_m}
+
+    def resting_rope_length_m(self, support) -> float:
+        """The rope length (as ``rope.length_m`` counts it) that reaches the load resting on the ground.
+
+        Parameters
+        ----------
+        support : sequence of 3
+            The suspension point at t = 0, site axes [m].
+
+        Returns
+        -------
+        float
+            From the suspension point to the hook (or the rope's end) [m].
+        """
+        return self._resting_geometry(support)["ell"]
+
+    def _resting_on_ground_state(self, motion) -> np.ndarray:
+        """Initial state of ``start.on_ground``: at rest, the rope just taut and unstretched by the load.
+
+        The rope carries only a hook block's weight (the load rests on the ground);
+        ``start.rope_slack_m`` more rope is paid out.  Sets the unstretched rope length
+        the hoist then reels in.
+        """
+        e0 = motion.evaluate(np.array([0.0]))
+        support = e0["p"][0]
+        self._rest_support_z = float(support[2])
+        geo = self._resting_geometry(support)
+        n1, ell = geo["n1"], geo["ell"]
+        k = self.hanging_rope.stiffness(self.hanging_rope.unstretched(float(e0["L"][0])))
+        carried = self.hook_mass_kg * self.gravity_m_s2 if (self.rigid_load or self.leg_below_hook) else 0.0
+        lam_start = ell - carried / k + self.scene.start.rope_slack_m
+        self.elastic_rope = replace(self.hanging_rope,
+                                    lambda0_m=lam_start - (float(e0["L"][0]) - self.hanging_rope.loaded_length_m))
+        q = [float(n1[0]), float(n1[1])]
+        if self.leg_below_hook:
+            q += [float(n1[0]), float(n1[1])]
+        if self.rigid_load:
+            q += [0.0, 0.0]
+            if self.yaw_index is not None:
+                q.append(self.yaw_start_rad)
+        q.append(ell)
+        qd = [0.0] * len(q)
+        if self.yaw_index is not None:
+            qd[self.yaw_index] = math.radians(self.scene.start.yaw_rate_deg_s)
+        return np.array(q + qd, dtype=float)
+
+    def _points_at(self, y, kin_state, t=0.0):
+        """World positions of the load's points (tag line attachments, contact points) at one state."""
+        ev = self._eval(np.asarray(y, float), kin_state, full=True, t=t)
+        R = ev["R"]
+        pts = np.asarray(self.structure.load_points, float).reshape(-1, 3)
+        rel = pts @ R.T if self.rigid_load else pts
+        return ev["G"][None, :] + rel
+
+    def _start_points(self, motion) -> np.ndarray:
+        y0 = self.initial_state(motion)
+        e = motion.evaluate(np.array([0.0]))
+        kin_state = tuple(float(e[k][0, j]) for k in ("p", "dp", "ddp") for j in range(3)) + (
+            float(e["L"][0]), float(e["dL"][0]), float(e["ddL"][0]), float(e["slew_rate"][0]))
+        return self._points_at(y0, kin_state)
+
+    def lowest_point_at_start_m(self, motion) -> float:
+        """Height of the load's lowest contact point at t = 0 [m] (inf without ground contact).
+
+        Parameters
+        ----------
+        motion : Motion
+            The scene's motion (its position at t = 0 counts).
+
+        Returns
+        -------
+        float
+            The lowest of the points :meth:`contact_points_b` at the start [m].
+        """
+        if self.contacts is None or self.contacts.n_contacts == 0:
+            return math.inf
+        return float(np.min(self._start_points(motion)[self.contacts.n_tag_lines:, 2]))
+
+    def tag_line_distances_at_start_m(self, motion) -> list:
+        """Distance from each tag line's attachment to its anchor at t = 0 [m].
+
+        Parameters
+        ----------
+        motion : Motion
+            The scene's motion.
+
+        Returns
+        -------
+        list of float
+            One per tag line [m].
+        """
+        if self.contacts is None or not self.contacts.n_tag_lines:
+            return []
+        pts = self._start_points(motion)
+        return [float(np.linalg.norm(np.asarray(line.anchor_m, float) - pts[j]))
+                for j, line in enumerate(self.contacts.tag_lines)]
+
+    def touches_ground(self, t, y, kin_state) -> bool:
+        """Whether any contact point of the load is on (in) the ground at one state."""
+        if self.contacts is None or not self.contacts.n_contacts:
+            return False
+        pts = self._points_at(y, kin_state, t)[self.contacts.n_tag_lines:]
+        return bool(np.any(pts[:, 2] < self.ground.z_m))
 
     def _find_lift_off_time(self, motion) -> float:
         """First instant the rope's pull reaches the weight of everything it lifts [s] (inf if never).
@@ -1218,7 +1437,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
                kin_state[9], kin_state[10], kin_state[11], om_s)
         return equations_of_motion(yl[:nq], yl[nq:], kin, self._par, self.elastic_rope,
                                    self.wind_velocity_m_s() if self.wind is None
-                                   else self._varying_wind(t, float(kin_state[2])), self.structure)
+                                   else self._varying_wind(t, float(kin_state[2])), self.structure,
+                                   point_forces=None if self.contacts is None
+                                   else self.contacts.at((kin_state[0], kin_state[1], kin_state[2])))
 
     def _varying_wind(self, t, pz):
         """The wind for :func:`equations_of_motion` when it varies: a function of the rope end's height.
@@ -1249,12 +1470,13 @@ class HookLoadModel(ModelDefaults, SwingModel):
         """
         return self._wind_x_m_s, self._wind_y_m_s
 
-    def _eval(self, y, kin_state, full=False, applied=True, t=0.0):
+    def _eval(self, y, kin_state, full=False, applied=True, t=0.0, contacts=True):
         """Accelerations (and, with ``full``, everything the outputs need) at one instant.
 
         ``kin_state`` is a :class:`~swingsim.motion.kinematics.SuspensionState` (or its
         first 12 entries, slew rate then 0); ``applied=False`` leaves out damping,
-        drag and wind (for the linearisation).
+        drag and wind (for the linearisation), and with them (or ``contacts=False``) the
+        tag lines and the ground: the swing hanging free.
         """
         nq = self.n_coordinates
         q, qd = y[:nq], y[nq:]
@@ -1388,6 +1610,21 @@ class HookLoadModel(ModelDefaults, SwingModel):
             pts_J.append(JG)
             pts_b.append(bG)
             pts_F.append(FG)
+        point_F = None
+        if applied and contacts and self.contacts is not None:
+            # tag lines and ground contact at points of the load (the same law as the fast path)
+            on = FG if (self.rigid_load or self.leg_below_hook) else FH  # the load's own force vector
+            rhos = [R @ np.asarray(p_b, float) if self.rigid_load else np.asarray(p_b, float)
+                    for p_b in self.structure.load_points]
+            spin = om if self.rigid_load else np.zeros(3)
+            rel = np.array((px, py, pz))
+            point_F = self._point_forces(t, (px, py, pz))(
+                [tuple(G - rel + r) for r in rhos], [tuple(Gd + np.array(_cx(spin, r))) for r in rhos])
+            point_F = [np.asarray(F, float) for F in point_F]
+            for r, F in zip(rhos, point_F):
+                on += F
+                if self.rigid_load:
+                    moment += _cx(r, F)
         if len(pts_m) == 1:
             J0 = pts_J[0]
             M = pts_m[0] * (J0.T @ J0)
@@ -1401,15 +1638,14 @@ class HookLoadModel(ModelDefaults, SwingModel):
             Iom = Iw @ om
             M += Jw.T @ Iw @ Jw
             Qv -= Jw.T @ (Iw @ bw + _cx(om, Iom))
-            if self.structure.wind_center:
-                Qv += Jw.T @ moment
+            Qv += Jw.T @ moment
             if iy is not None and self.yaw_stiffness_N_m_per_rad:  # the reeving's torsion (locked swivel)
                 Qv[iy] -= self.yaw_stiffness_N_m_per_rad * (c - self.yaw_start_rad)
         qdd = np.linalg.solve(M, Qv)
         if not full:
             return qdd
         out = {"qdd": qdd, "M": M, "Q": Qv, "H": np.array(H), "Hd": np.array(Hd), "G": G, "Gd": Gd,
-               "n1": np.array([u1, v1, -w1]), "ell": ell, "dell": dell}
+               "n1": np.array([u1, v1, -w1]), "ell": ell, "dell": dell, "point_forces": point_F}
         aH = JH @ qdd + bH
         aG = JG @ qdd + bG
         if self.rope_is_elastic:
@@ -1544,9 +1780,13 @@ class HookLoadModel(ModelDefaults, SwingModel):
 
         il, nq, rope = self.rope_length_index, self.n_coordinates, self.elastic_rope
 
+        grounded = self.contacts is not None and self.contacts.n_contacts > 0
+
         def slack(t, y):
             if t_lift is not None and t <= t_lift:
                 return 1.0  # a slack rope before lift-off is the set-up, not a failure
+            if grounded and self.touches_ground(t, y, kin(t)):
+                return 1.0  # a slack rope over a load resting on the ground is normal practice
             if self.rope_is_elastic:  # the spring law alone, no dynamics needed
                 k = kin(t)
                 return rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
@@ -1653,7 +1893,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
             yp, ym = y0.copy(), y0.copy()
             yp[nq + j] += h
             ym[nq + j] -= h
-            C[:, j] = -(ev(yp, kin_state, full=True)["Q"] - ev(ym, kin_state, full=True)["Q"]) / (2 * h)
+            # the swing hanging free: tag lines and the ground left out
+            C[:, j] = -(ev(yp, kin_state, full=True, contacts=False)["Q"]
+                        - ev(ym, kin_state, full=True, contacts=False)["Q"]) / (2 * h)
             yp, ym = y0.copy(), y0.copy()
             yp[j] += h
             ym[j] -= h
@@ -1750,6 +1992,7 @@ class HookLoadModel(ModelDefaults, SwingModel):
         yaw = np.empty(N) if self.rigid_load else None
         ell = np.empty(N)
         energy = np.empty(N)
+        point_F = np.zeros((N, len(self.structure.load_points), 3))
         for i in range(N):
             kin_state = tuple(float(e[kk][i, j]) for kk in keys for j in range(3)) + (
                 float(e["L"][i]), float(e["dL"][i]), float(e["ddL"][i]), float(e["slew_rate"][i]))
@@ -1768,6 +2011,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
                 yaw[i] = evaluation["yaw"]
             ell[i] = evaluation["ell"]
             energy[i] = evaluation["energy"]
+            if evaluation.get("point_forces") is not None:
+                point_F[i] = evaluation["point_forces"]
         attach = res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, self.attach_points_b) if self.rigid_load \
             else res["G"][:, None, :].copy()
         out = {
@@ -1811,6 +2056,26 @@ class HookLoadModel(ModelDefaults, SwingModel):
             lam = np.array([self.elastic_rope.unstretched(x) for x in e["L"]])
             out["rope_stretch_m"] = ell - lam
             columns["rope_stretch_m"] = out["rope_stretch_m"]
+        if self.contacts is not None:
+            nl = self.contacts.n_tag_lines
+            pts = np.asarray(self.structure.load_points, float).reshape(-1, 3)
+            world = (res["G"][:, None, :] + np.einsum("nij,kj->nki", rot, pts)) if self.rigid_load \
+                else res["G"][:, None, :] + pts[None, :, :]
+            if nl:
+                tension = np.linalg.norm(point_F[:, :nl], axis=2)
+                out["tag_line_tension_N"] = tension
+                out["tag_line_attach"] = world[:, :nl]
+                out["tag_line_anchor"] = np.array([line.anchor_m for line in self.contacts.tag_lines], float)
+                for j in range(nl):
+                    columns[f"tag_line_{j + 1}_N"] = tension[:, j]
+            if self.contacts.n_contacts:
+                ground = point_F[:, nl:]
+                out["ground_normal_N"] = ground[:, :, 2].sum(axis=1)
+                out["ground_friction_N"] = np.hypot(ground[:, :, 0].sum(axis=1), ground[:, :, 1].sum(axis=1))
+                out["contact_points"] = world[:, nl:]
+                out["contact_normal_N"] = ground[:, :, 2]
+                columns["ground_reaction_kN"] = out["ground_normal_N"] / 1e3
+                columns["ground_friction_kN"] = out["ground_friction_N"] / 1e3
         out["extra_columns"] = columns
         return out
 

@@ -163,6 +163,8 @@ class Start:
     rope_slack_m: float = 0.0
     yaw_deg: float = 0.0
     yaw_rate_deg_s: float = 0.0
+    on_ground: bool = False
+    load_offset_m: tuple = (0.0, 0.0)
 
 
 @dataclass(frozen=True)
@@ -320,6 +322,35 @@ class Zone:
     margin_m: float
 
 
+@dataclass(frozen=True)
+class TagLine:
+    """A tag line (``[[tag_lines]]``): from a point on the load to where a person holds it."""
+
+    attach_m: tuple
+    anchor_m: tuple
+    length_m: float
+    max_pull_N: float
+    stiffness_N_per_m: float
+    damping_N_s_per_m: float
+    label: str = ""
+
+    def name(self, index: int) -> str:
+        """The line's label, or ``tag line <index + 1>``."""
+        return self.label or f"tag line {index + 1}"
+
+
+@dataclass(frozen=True)
+class Ground:
+    """The surface the load starts on or lands on (``[ground]``); stiffness None: from the settlement."""
+
+    z_m: float
+    friction_coefficient: float
+    stiffness_kN_per_m: float | None
+    settlement_m: float
+    damping_ratio: float
+    slip_speed_m_s: float
+
+
 @dataclass(frozen=True, eq=False)
 class Scene:
     """A validated lift scene (SI units; angles in degrees as in the file).
@@ -351,6 +382,8 @@ class Scene:
     rigging: Rigging | None = None
     site: Site = field(default_factory=Site)
     swivel: Swivel = field(default_factory=Swivel)
+    tag_lines: tuple = ()
+    ground: Ground | None = None
 
     @property
     def rigid_load(self) -> bool:

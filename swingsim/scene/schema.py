@@ -425,6 +425,33 @@ TABLES: dict[str, dict[str, Key]] = {
         "yaw_rate_deg_s": Key("float", "Rigid load with a free swivel (or a torsion spring): rate of turn "
                               "about the vertical at t = 0, counter-clockwise seen from above [deg/s].",
                               default=0.0, ge=-360.0, le=360.0),
+        "on_ground": Key("bool", "The load starts resting on the [ground], level, the hoist rope just taut "
+                         "(slack by rope_slack_m) and unstretched: the hoist loads the rope, the load "
+                         "drags, slides or lifts as the forces say. rope.length_m must then be the "
+                         "length that reaches the resting load (swingsim check says it).", default=False),
+        "load_offset_m": Key("vec2", "start.on_ground only: the load's centre of gravity in plan from the "
+                             "plumb below the suspension point [dx, dy] [m]: a hook not plumb over the "
+                             "load makes it drag and swing as it lifts off.", default=(0.0, 0.0)),
+    },
+    "ground": {
+        "z_m": Key("float", "Height of the surface the load starts on or lands on [m] (site axes); with "
+                   "[ground] the hoist rope is elastic (it goes slack over a landed load) and the load's "
+                   "corners touch the ground.", default=0.0),
+        "friction_coefficient": Key("float", "Coulomb friction coefficient between the load and the "
+                                    "ground [-] (default 0.5; from memory, steel on dry timber about "
+                                    "0.4-0.6: take the site's value).", default=0.5, ge=0.0, le=2.0),
+        "stiffness_kN_per_m": Key("float", "Vertical stiffness of the support under the whole load "
+                                  "[kN/m], shared by its contact points; default from settlement_m.",
+                                  gt=0.0),
+        "settlement_m": Key("float", "How far the load settles into its support under its own weight "
+                            "[m] when stiffness_kN_per_m is not given (default 5 mm: our choice, about "
+                            "timber dunnage).", default=0.005, gt=0.0, le=0.5),
+        "damping_ratio": Key("float", "Damping of the load bouncing on its support, a fraction of "
+                             "critical [-] (default 0.5, our choice).", default=0.5, ge=0.0, le=2.0),
+        "slip_speed_m_s": Key("float", "Sliding speed below which friction is taken as growing with "
+                              "the speed (regularised Coulomb friction) [m/s]; a pull below the "
+                              "friction limit creeps at about this speed times the pull's fraction of "
+                              "it (see docs/models.md).", default=0.002, gt=0.0, le=0.1),
     },
     "damping": {
         "ratio": Key("float", "Equivalent viscous damping ratio of the swing [-].", default=0.0, ge=0.0, lt=1.0),
@@ -590,7 +617,25 @@ GUST = {
                          "toward, from +x toward +y [deg]; the mean wind's by default."),
 }
 
-ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE}
+#: One tag line (``[[tag_lines]]``).
+TAG_LINE = {
+    "attach_m": Key("vec3", "Where the line is tied to the load, load axes from its centre of gravity "
+                    "[m] (a point load: an offset that does not turn).", required=True),
+    "anchor_m": Key("vec3", "Where the person holding the line stands, site axes [m] (the hand's "
+                    "height: about 1 m above the ground).", required=True),
+    "length_m": Key("float", "Length of line between the load and the hand [m]; slack while the two "
+                    "are closer.", required=True, gt=0.0),
+    "max_pull_N": Key("float", "Pull one person can hold [N] (default 250 N: common practice, from "
+                      "memory, 200-300 N); a caution when the line pulls harder: the person must let "
+                      "go, never be pulled along.", default=250.0, gt=0.0),
+    "stiffness_N_per_m": Key("float", "Stiffness of the line with the person holding it [N/m] (default: "
+                             "our choice).", default=5000.0, gt=0.0),
+    "damping_N_s_per_m": Key("float", "Damping of the line with the person holding it [N s/m] "
+                             "(default: our choice).", default=500.0, ge=0.0),
+    "label": Key("str", "Name of the line (who holds it) on plots and in the summary.", default=""),
+}
+
+ARRAYS: dict[str, dict[str, Key]] = {"moves": MOVE, "zones": ZONE, "tag_lines": TAG_LINE}
 
 #: Arrays of tables inside a table: (table, key) -> the entry's keys.
 NESTED_ARRAYS: dict[tuple[str, str], dict[str, Key]] = {("wind", "gusts"): GUST}

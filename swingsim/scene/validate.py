@@ -12,6 +12,7 @@ is bad input.
 from __future__ import annotations
 
 import copy
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -24,8 +25,8 @@ from swingsim.motion.limits import SLEWING_KINDS
 from swingsim.motion.registry import PROFILES, build_motion, needs_swing_period
 from swingsim.scene import schema
 from swingsim.scene.geometry import check_crane
-from swingsim.scene.model import (Crane, Gust, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start, Swivel,
-                                  View, Wind, Zone, models_rigid_load, slew_centre)
+from swingsim.scene.model import (Crane, Ground, Gust, Hook, Limits, Load, Move, Rigging, Rope, Scene, Site, Start,
+                                  Swivel, TagLine, View, Wind, Zone, models_rigid_load, slew_centre)
 from swingsim.scene.read import KeyReader, line_of_key, read_chart, read_document, read_table, suggest
 from swingsim.scene.site import wind_toward_deg
 
@@ -144,6 +145,9 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
             raise r.err(f"zones[{i}].max_m", "must exceed min_m in every coordinate", list(v["max_m"]))
         zones.append(Zone(**v))
 
+    tag_lines = _read_tag_lines(r, data)
+    ground = _read_ground(r, data)
+
     hook_t = r.table(data, "hook", schema.TABLES["hook"]) if "hook" in data else None
     swivel = _read_swivel(r, data, hook_t)
     if hook_t is not None:  # the hook block's own keys; without mass_kg there is no hook block
@@ -161,9 +165,10 @@ def scene_from_dict(data: dict, *, file: str = "<scene>", base_dir: Path | str =
         start=start_o, moves=tuple(moves), damping_ratio=damping["ratio"],
         wind=wind, sample_hz=output["sample_hz"], limits=Limits(**limits),
         zones=tuple(zones), file=file, base_dir=base_dir, raw=copy.deepcopy(data), view=view,
-        hook=hook_o, rigging=rig_o, site=site, swivel=swivel,
+        hook=hook_o, rigging=rig_o, site=site, swivel=swivel, tag_lines=tag_lines, ground=ground,
     )
     _check_heading_keys(r, scene)
+    _check_ground_and_lines(r, scene)
     if validate_motion:
         # a move that cannot be built is bad input; a profile tuned to the swing period is
         # built with the period of the model the scene selects, as the run will
@@ -339,6 +344,90 @@ def _per_leg(r, values, n, key):
 SWIVEL_KEYS = ("swivel", "torsion_stiffness_N_m_per_rad")
 
 
+def _read_tag_lines(r: KeyReader, data: dict) -> tuple:
+    """The ``[[tag_lines]]`` array, each line's keys read on their own."""
+    raw = data.get("tag_lines", [])
+    if not isinstance(raw, list) or any(not isinstance(t, dict) for t in raw):
+        raise r.err("tag_lines", "expected an array of tables [[tag_lines]]", raw)
+    lines = []
+    for i, t in enumerate(raw):
+        where = f"tag_lines[{i}]."
+        r.check_unknown(t, schema.TAG_LINE, where)
+        lines.append(TagLine(**{k: r.value(t, k, key, where + k) for k, key in schema.TAG_LINE.items()}))
+    return tuple(lines)
+
+
+def _read_ground(r: KeyReader, data: dict):
+    """The ``[ground]`` table, or None without one."""
+    if "ground" not in data:
+        return None
+    return Ground(**r.table(data, "ground", schema.TABLES["ground"]))
+
+
+def _check_ground_and_lines(r: KeyReader, scene: Scene) -> None:
+    """Ground contact and tag lines against the load, the rigging and the start.
+
+    The geometry of the load resting on the ground, or hanging above it, comes from the
+    model the scene selects (the one place that knows the rigging's geometry).
+    """
+    start, ground = scene.start, scene.ground
+    if start.on_ground and ground is None:
+        raise r.err("start.on_ground", "needs a [ground] table (at least ground.z_m) for the load to rest on",
+                    True)
+    if any(start.load_offset_m) and not start.on_ground:
+        raise r.err("start.load_offset_m", "only with start.on_ground = true (where the load rests from the "
+                    "plumb)", list(start.load_offset_m))
+    if start.on_ground:
+        if start.rope_preload == "lift-off":
+            raise r.err("start.rope_preload", "give either start.on_ground = true (the load rests on the "
+                        "[ground] and lifts off as the forces say) or rope_preload = \"lift-off\" (held "
+                        "plumb until the rope carries it), not both", start.rope_preload)
+        for k in ("swing_deg", "swing_rate_deg_s"):
+            if any(getattr(start, k)):
+                raise r.err(f"start.{k}", "must be zero with start.on_ground = true (the load rests on the "
+                            "ground)", list(getattr(start, k)))
+        if scene.hook is not None and scene.rigid_load is False and scene.rigging is not None \
+                and scene.rigging.kind == "single":
+            raise r.err("start.on_ground", "a hook block on a single sling leg over a load resting on the "
+                        "ground is not modelled (the block would stand on the leg); hang the load on a "
+                        "bridle, give it load.size_m as a rigid load, or start it hanging", True)
+    if ground is not None and scene.rigid_load and scene.load.size_m is None:
+        raise r.err("ground", "a rigid load touches the ground with the corners of its box: give load.size_m")
+    if ground is None and not scene.tag_lines:
+        return
+    if ground is not None and scene.hook is not None and not scene.rigid_load and scene.rigging is not None \
+            and scene.rigging.kind == "single":
+        raise r.err("ground", "landing a point load on a single leg below a hook block is not modelled (the "
+                    "block would stand on the leg); give the load load.size_m (a rigid load) or a bridle")
+    model = select_model(scene)
+    still = build_motion(replace(scene, moves=()))  # where the suspension point is at t = 0
+    if ground is not None:
+        if start.on_ground:
+            need = model.resting_rope_length_m(still.evaluate(np.array([0.0]))["p"][0])
+            if abs(need - scene.rope.length_m) > max(0.02, 0.002 * need):
+                raise r.err("rope.length_m", f"with start.on_ground the rope must reach the load resting on the "
+                            f"ground at z = {ground.z_m:g} m: set rope.length_m = {need:.3f} (or move ground.z_m)",
+                            scene.rope.length_m)
+        else:
+            low = model.lowest_point_at_start_m(still)
+            if low < ground.z_m:
+                raise r.err("ground.z_m", f"the load hangs with its lowest point at z = {low:.3f} m at t = 0, "
+                            "below the ground; lower ground.z_m, shorten rope.length_m, or start it "
+                            "resting with start.on_ground = true", ground.z_m)
+    for i, (line, d) in enumerate(zip(scene.tag_lines, model.tag_line_distances_at_start_m(still))):
+        if scene.rigid_load and scene.load.size_m is not None:
+            half = 0.5 * np.asarray(scene.load.size_m, float) + 0.01
+            box = np.asarray(line.attach_m, float) + np.asarray(scene.load.cg_offset_m, float)
+            if np.any(np.abs(box) > half):
+                raise r.err(f"tag_lines[{i}].attach_m", "must lie on the load: inside its size_m box, in load "
+                            "axes from the centre of gravity", list(line.attach_m))
+        pull = line.stiffness_N_per_m * (d - line.length_m)
+        if pull > line.max_pull_N:
+            raise r.err(f"tag_lines[{i}].length_m", f"the line is {d - line.length_m:.2f} m too short to reach "
+                        f"the load at t = 0 (it would pull {pull / 1e3:.1f} kN at once); give at least "
+                        f"{d:.2f} m", line.length_m)
+
+
 def _read_swivel(r, data, hook_t) -> Swivel:
     """The swivel of ``[hook]``, and a hook block's mass required when its other keys are given."""
     if hook_t is None:
@@ -391,8 +480,9 @@ def _read_hook_rigging(r, hook_t, rig_t, rope, load, start, g):
     if start.rope_preload != "static" and not rope.elastic:
         raise r.err("start.rope_preload", "only for an elastic rope (set rope.stiffness_kN_per_m "
                     "or rope.modulus_GPa)", start.rope_preload)
-    if start.rope_slack_m and start.rope_preload != "lift-off":
-        raise r.err("start.rope_slack_m", "only with start.rope_preload = 'lift-off'", start.rope_slack_m)
+    if start.rope_slack_m and start.rope_preload != "lift-off" and not start.on_ground:
+        raise r.err("start.rope_slack_m", "only with start.rope_preload = 'lift-off' or start.on_ground = true",
+                    start.rope_slack_m)
     if start.rope_preload == "lift-off":
         for k in ("swing_deg", "swing_rate_deg_s"):
             if any(getattr(start, k)):
