@@ -28,7 +28,8 @@ rope, that leg or the load's tilt reaching the model's angle limit, or a state
 that is not finite, as seen on the dense samples.  The single-run solver then
 stops at the event and reports it.  A load that rests for lift-off
 (``start.rope_preload = "lift-off"``; its equations change at an instant found by
-root finding) and a boom that luffs are not taken at all (:func:`supported`).
+root finding), a boom that luffs, and a scene with tag lines or ground contact (the
+ground's friction is stiff) are not taken at all (:func:`supported`).
 
 Memory is bounded by integrating a group in slices of at most about 6 million
 stored step values and measuring it a few rows at a time.
@@ -76,8 +77,9 @@ def supported(scene) -> bool:
     -------
     bool
         True for a scene of the hook-and-load model (hook block, rigid load,
-        elastic rope, sling leg), unless its load rests for lift-off or a boom
-        crane luffs (these go to the single-run solver).  A wind varying in time
+        elastic rope, sling leg), unless its load rests for lift-off, a boom
+        crane luffs, or it has tag lines or ground contact (these go to the
+        single-run solver).  A wind varying in time
         or height (gusts, turbulence, a profile) is taken.
     """
     if scene.crane.has_boom and any(m.axis == "radius" for m in scene.moves):
@@ -86,7 +88,9 @@ def supported(scene) -> bool:
         model = select_model(scene)
     except Exception:  # a model that cannot build: leave it to simulate, which reports it
         return False
-    return isinstance(model, HookLoadModel) and not model.starts_resting
+    # tag lines and ground contact go to the single-run solver: the ground's friction is stiff
+    # (LSODA there), and the lines' geometry is not among the swept parameters
+    return isinstance(model, HookLoadModel) and not model.starts_resting and model.contacts is None
 
 
 def _prepare(scene, steps_per_period) -> PreparedVariant:

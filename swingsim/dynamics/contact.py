@@ -185,22 +185,12 @@ class PointForces:
         Returns
         -------
         callable
-            ``(positions, velocities) -> forces`` (module Notes).
+            ``(positions, velocities) -> forces`` (module Notes); its ``clear_of_ground(z)``
+            says whether a load whose CG is at height ``z`` relative to the support is
+            surely off the ground (then the contact points need not be evaluated, and the
+            forces for the points not given are zero).
         """
-        px, py, pz = support
-
-        def forces(positions, velocities):
-            out = []
-            for line, x, v in zip(self.tag_lines, positions, velocities):
-                out.append(tag_line_force((x[0] + px, x[1] + py, x[2] + pz), v, line.anchor_m, line.length_m,
-                                          line.stiffness_N_per_m, line.damping_N_s_per_m)[0])
-            if self.ground is not None:
-                z, k, c, mu, vs = self.ground[:5]
-                for x, v in zip(positions[self.n_tag_lines:], velocities[self.n_tag_lines:]):
-                    out.append(ground_force((x[0] + px, x[1] + py, x[2] + pz), v, z, k, c, mu, vs)[0])
-            return out
-
-        return forces
+        return _AtSupport(self, support)
 
     def split(self, forces):
         """Tag line tensions and the ground's normal force from the forces at the points.
@@ -223,3 +213,34 @@ class PointForces:
         fx = sum(F[0] for F in ground) if ground else 0.0
         fy = sum(F[1] for F in ground) if ground else 0.0
         return tensions, normal, math.hypot(fx, fy)
+
+
+class _AtSupport:
+    """:meth:`PointForces.at`: the forces at the load's points with the support at one place."""
+
+    def __init__(self, owner, support):
+        self.owner = owner
+        self.px, self.py, self.pz = (float(x) for x in support)
+        self.n_tag_lines = owner.n_tag_lines
+        g = owner.ground
+        #: the farthest a contact point lies from the CG [m]
+        self._reach = 0.0 if g is None else max(math.sqrt(sum(x * x for x in p)) for p in g[5])
+        self._ground_z = None if g is None else g[0]
+
+    def clear_of_ground(self, cg_z) -> bool:
+        """Whether every contact point is surely above the ground (no forces there), for a float CG height."""
+        return self._ground_z is None or cg_z + self.pz - self._reach > self._ground_z + 1e-9
+
+    def __call__(self, positions, velocities):
+        o, px, py, pz = self.owner, self.px, self.py, self.pz
+        out = []
+        for line, x, v in zip(o.tag_lines, positions, velocities):
+            out.append(tag_line_force((x[0] + px, x[1] + py, x[2] + pz), v, line.anchor_m, line.length_m,
+                                      line.stiffness_N_per_m, line.damping_N_s_per_m)[0])
+        if o.ground is not None:
+            z, k, c, mu, vs = o.ground[:5]
+            for x, v in zip(positions[o.n_tag_lines:], velocities[o.n_tag_lines:]):
+                out.append(ground_force((x[0] + px, x[1] + py, x[2] + pz), v, z, k, c, mu, vs)[0])
+        zero = (0.0, 0.0, 0.0)
+        out.extend(zero for _ in range(len(o.points_b) - len(out)))  # points left out: clear of the ground
+        return out

@@ -354,6 +354,22 @@ class LoadFrame:
         bias_cross, spin = _cx(self.omega_bias, rho), _cx(self.omega, rho_dot)
         return rho, rho_dot, jac, tuple(x + y for x, y in zip(bias_cross, spin))
 
+    def offset(self, p_b):
+        r"""A point fixed on the load: its world offset from the CG and that offset's rate.
+
+        Parameters
+        ----------
+        p_b : sequence of 3
+            The point in load axes, from the CG [m].
+
+        Returns
+        -------
+        tuple
+            ``(rho, rho_dot)`` [m, m/s] (the first two items of :meth:`point`).
+        """
+        rho = tuple(row[0] * p_b[0] + row[1] * p_b[1] + row[2] * p_b[2] for row in self.rows)
+        return rho, _cx(self.omega, rho)
+
     def generalised_force(self, rho, force):
         """The rotational generalised forces of a force applied at a point of the load.
 
@@ -649,12 +665,17 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
     applied_at_points = None
     if structure.load_points and point_forces is not None:
         # forces at points of the load (tag lines, ground contact): on the load's rows (the
-        # rope's end for a point load hanging there), and their moments through the load's frame
+        # rope's end for a point load hanging there), their moment about the CG through the
+        # load's frame
         at_points = LoadFrame(ops, (a, b), (da, db), yaw, dyaw, ia, iy) if body else None
+        points = structure.load_points
+        if ops is FloatArithmetic and getattr(point_forces, "clear_of_ground", None) is not None \
+                and point_forces.clear_of_ground(Gz):
+            points = points[:point_forces.n_tag_lines]  # the contact points are surely off the ground
         pos, vel, rhos = [], [], []
-        for p_b in structure.load_points:
+        for p_b in points:
             if body:
-                rho, rho_d = at_points.point(p_b)[:2]
+                rho, rho_d = at_points.offset(p_b)
             else:
                 rho, rho_d = p_b, (0.0, 0.0, 0.0)
             rhos.append(rho)
@@ -662,13 +683,18 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
             vel.append((Gdx + rho_d[0], Gdy + rho_d[1], Gdz + rho_d[2]))
         applied_at_points = point_forces(pos, vel)
         row = 3 if (body or link2) else 0
+        mx = my = mz = 0.0
         for rho, F in zip(rhos, applied_at_points):
             fvec[row] = fvec[row] + F[0]
             fvec[row + 1] = fvec[row + 1] + F[1]
             fvec[row + 2] = fvec[row + 2] + F[2]
             if body:
-                for k, x in at_points.generalised_force(rho, F).items():
-                    load_moments[k] = load_moments.get(k, 0.0) + x
+                mx = mx + rho[1] * F[2] - rho[2] * F[1]
+                my = my + rho[2] * F[0] - rho[0] * F[2]
+                mz = mz + rho[0] * F[1] - rho[1] * F[0]
+        if body:  # the moment about the CG, through the angular velocity's Jacobian
+            for k, col in at_points.columns.items():
+                load_moments[k] = load_moments.get(k, 0.0) + col[0] * mx + col[1] * my + col[2] * mz
     inertial, generalised = {}, {}
     n_points = len(rows) // 3  # the bodies' rows (x, y, z of each), before any rotation's
     if body:
@@ -951,6 +977,9 @@ class HookLoadModel(ModelDefaults, SwingModel):
         self.contacts = self._point_force_set(scene)
         if self.contacts is not None:
             self.structure = self.structure._replace(load_points=self.contacts.points_b)
+        #: scipy's method for this model: the ground's friction is stiff, so LSODA (switching to BDF
+        #: while the load stands on the ground) with ground contact, DOP853 otherwise
+        self.solver_method = "LSODA" if (self.contacts is not None and self.contacts.n_contacts) else "DOP853"
         self._par = self.equation_parameters()
 
     def _point_force_set(self, scene):
@@ -1291,7 +1320,8 @@ class HookLoadModel(ModelDefaults, SwingModel):
         else:  # the heading stays the start's; the other coordinates balance (zero generalised forces)
             def residual(q):
                 full = np.insert(q, iy, self.yaw_start_rad)
-                Q = self._eval(np.concatenate([full, zeros]), kin_state, full=True, t=None)["Q"]
+                Q = self._eval(np.concatenate([full, zeros]), kin_state, full=True, t=None,
+                               contacts=False)["Q"]
                 return np.delete(Q, iy)
 
         solution = root(residual, np.array(guess), method="hybr", options={"xtol": 1e-15})

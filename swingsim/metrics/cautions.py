@@ -67,7 +67,8 @@ def rigid_rope_hides_snatch(scene) -> bool:
     bool
         True when the rope is inextensible and a move hoists.
     """
-    return not scene.rope.elastic and any(m.axis == "hoist" for m in scene.moves)
+    return (not scene.rope.elastic and getattr(scene, "ground", None) is None
+            and any(m.axis == "hoist" for m in scene.moves))
 
 
 def model_limits(scene) -> list[str]:
@@ -111,7 +112,13 @@ def model_limits(scene) -> list[str]:
                    "[[wind.gusts]] and profile model that).")
     out.append("The crane structure is rigid: no boom, jib or mast deflection, no slew or travel "
                "drive flexibility; the crane moves exactly as the moves prescribe.")
-    if scene.start.rope_preload == "lift-off":
+    if getattr(scene, "ground", None) is not None:
+        out.append("The ground is a flat plane at ground.z_m touched by the load's box corners (not its "
+                   "edges or faces, not the hook block or the rigging), with a compliant support and "
+                   "regularised Coulomb friction: a load pulled below the friction limit creeps slowly "
+                   "instead of sticking (see docs/models.md). Zones are checked for clearance, not "
+                   "collided with.")
+    elif scene.start.rope_preload == "lift-off":
         out.append("Before lift-off the load rests plumb on its support; after lift-off there is no "
                    "ground contact: a load that comes down again passes through the ground.")
     else:

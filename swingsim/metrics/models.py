@@ -33,6 +33,7 @@ from typing import NamedTuple
 import numpy as np
 
 from swingsim.metrics.cautions import force_text
+from swingsim.metrics.contact import CONTACT_FRACTION, contact_text
 
 #: Leg angle from vertical above which a caution is raised [deg].  Common practice: slings
 #: at less than 30 deg from horizontal (60 deg from vertical) are not to be used, and legs
@@ -156,6 +157,13 @@ def measured_mode_periods(t, q, qd, rest, modes, periods, t_from) -> MeasuredMod
     return MeasuredModes(out, reasons)
 
 
+def _hanging(model, s) -> np.ndarray:
+    """Samples where the load hangs (not pressed on the ground): the rigging's tensions count only there."""
+    if "ground_normal_N" not in s:
+        return np.ones(len(s["rope_tension_N"]), dtype=bool)
+    return s["ground_normal_N"] <= CONTACT_FRACTION * model.load_mass_kg * model.gravity_m_s2
+
+
 def model_metrics(traj, t, s) -> dict:
     """Extra summary keys for a hook-and-load trajectory (empty for the point-mass model).
 
@@ -190,9 +198,11 @@ def model_metrics(traj, t, s) -> dict:
     wll = model.leg_wll_N
     rows = []
     leg_dirs = model.leg_angles_at_rest_deg()
+    hangs = _hanging(model, s)
     for j in range(legs.shape[1]):
         pk, pk_t = _peak(t, legs[:, j])
-        mn_i = int(np.argmin(legs[:, j]))
+        # slack legs over a load resting on the ground are normal: the minimum counts while it hangs
+        mn_i = int(np.argmin(np.where(hangs, legs[:, j], np.inf))) if hangs.any() else int(np.argmin(legs[:, j]))
         rows.append({
             "leg": j + 1,
             "peak_kN": pk / 1e3, "peak_time_s": pk_t,
@@ -405,6 +415,7 @@ def model_summary_lines(d: dict) -> list[str]:
         w.append(f"  Elastic rope: {d['rope_stiffness_kN_per_m']:.0f} kN/m ({d['rope_stiffness_from']}); "
                  f"bounce period {d['bounce_period_s']:.3f} s; peak stretch {1000 * d['peak_rope_stretch_m']:.1f} mm "
                  f"(static {1000 * d['static_rope_stretch_m']:.1f} mm)")
+    w.extend(contact_text(d))
     if "lift_off_s" in d:
         w.append("  Lift-off: " + ("the hoist never pulls the weight into the rope" if d["lift_off_s"] is None
                                    else f"at t = {d['lift_off_s']:.2f} s"))

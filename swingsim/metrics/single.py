@@ -20,6 +20,7 @@ from swingsim._version import __version__
 from swingsim.metrics import cautions, definitions
 from swingsim.metrics.chart import chart_metrics, chart_warnings
 from swingsim.metrics.definitions import angle_between, rope_angle_rad
+from swingsim.metrics.contact import contact_metrics, contact_warnings
 from swingsim.metrics.models import model_metrics, model_warnings
 from swingsim.metrics.resonance import resonance_metrics
 from swingsim.metrics.zones import zone_summaries
@@ -255,6 +256,8 @@ def summarize(traj) -> Summary:
         data["invalid_reason"] = traj.message
     # -- hook block, rigging, rigid load, elastic rope (metrics_models.py; empty for point mass) --
     data.update(model_metrics(traj, t, s))
+    # -- tag lines, lift-off and landing (metrics/contact.py; empty without them) --
+    data.update(contact_metrics(traj, t, s, np.degrees(swing)))
     # -- rated capacity chart: utilisation, side and out-load at the tip (metrics/chart.py; empty without a chart) --
     data.update(chart_metrics(traj, t, s))
     # -- the wind at the load: peak gust against the in-service limit (metrics/wind.py) --
@@ -262,7 +265,7 @@ def summarize(traj) -> Summary:
     # -- frequency response, moves' rhythms and resonance (metrics/resonance.py) --
     data.update(resonance_metrics(traj))
     data["cautions"] = ([cautions.CAUTION] + cautions.scenario_warnings(data, scene)
-                        + model_warnings(data, scene) + chart_warnings(data, scene)
+                        + model_warnings(data, scene) + contact_warnings(data, scene) + chart_warnings(data, scene)
                         + gust_warnings(data, scene) + cautions.resonance_warnings(data))
     summary = Summary(data)
     final_check(traj, summary, s)

@@ -1,5 +1,10 @@
 """Integrate one scene: scipy ``solve_ivp`` (DOP853), restarted at every breakpoint.
 
+A model may name another of scipy's methods in its ``solver_method``: ground contact
+is stiff (its regularised friction), and there the hook-and-load model asks for LSODA,
+which switches between Adams and BDF steps as the stiffness comes and goes (Petzold,
+SIAM J. Sci. Stat. Comput. 4, 1983).
+
 Stopping and restarting exactly at each profile breakpoint keeps the jumps in
 acceleration (or jerk) of the crane's motion out of the integrator's error
 estimate, so they are not smeared.  The result is a :class:`Trajectory` with a
@@ -84,7 +89,8 @@ def simulate(scene, *, rtol: float = constants.RTOL, atol: float = constants.ATO
                     traj.t_end_s = t0
                 return traj
         with np.errstate(all="ignore"):
-            res = solve_ivp(rhs, (t0, t1), y, method="DOP853", rtol=rtol, atol=atol,
+            res = solve_ivp(rhs, (t0, t1), y, method=getattr(model, "solver_method", "DOP853"), rtol=rtol,
+                            atol=atol,
                             max_step=model.max_step_s, dense_output=True, events=[events[n] for n in names])
         traj.nfev += res.nfev
         if res.status == -1 or not np.all(np.isfinite(res.y)):
