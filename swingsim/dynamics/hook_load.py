@@ -1213,7 +1213,22 @@ class HookLoadModel(ModelDefaults, SwingModel):
                 for j, line in enumerate(self.contacts.tag_lines)]
 
     def touches_ground(self, t, y, kin_state) -> bool:
-        """Whether any contact point of the load is on (in) the ground at one state."""
+        """Whether any contact point of the load is on (in) the ground at one state.
+
+        Parameters
+        ----------
+        t : float
+            Time [s].
+        y : array_like
+            State, ordered as :attr:`state_names`.
+        kin_state : tuple
+            The suspension point's state (``Motion.local``'s ``kin(t)``).
+
+        Returns
+        -------
+        bool
+            True when a point of :meth:`contact_points_b` is below ``ground.z_m``.
+        """
         if self.contacts is None or not self.contacts.n_contacts:
             return False
         pts = self._points_at(y, kin_state, t)[self.contacts.n_tag_lines:]

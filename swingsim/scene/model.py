@@ -335,7 +335,18 @@ class TagLine:
     label: str = ""
 
     def name(self, index: int) -> str:
-        """The line's label, or ``tag line <index + 1>``."""
+        """The line's label, or ``tag line <index + 1>``.
+
+        Parameters
+        ----------
+        index : int
+            The line's place in ``[[tag_lines]]``, from 0.
+
+        Returns
+        -------
+        str
+            What the summary, plots and video call it.
+        """
         return self.label or f"tag line {index + 1}"
 
 
