@@ -289,7 +289,10 @@ def _supported_row(table, i, verdicts) -> bool:
         if gs.crane.has_boom and any(mv.axis == "radius" for mv in ms.moves):
             got = False
         else:
-            got = _point_mass(gs)
+            # the model depends on the group only: built once per group, not per move combination
+            got = verdicts.get(("group", key[0]))
+            if got is None:
+                got = verdicts[("group", key[0])] = _point_mass(gs)
         verdicts[key] = got
     return got
 
