@@ -84,16 +84,18 @@ sensitivity = false
 """
 
 
-REMAINING_LIMIT = """remaining limit (what 100x would need): the run is now about a third fixed cost and two thirds
-numpy work.  Fixed: the interpreter and imports (numpy, swingsim, then matplotlib for the report:
-about 1 s CPU) and the report's four figures (matplotlib builds every tick, label and line as a
-Python object: about 0.5 s whatever the number of variants).  Variable: the engine's fixed-step
-DOP853 (13 right-hand sides per step, each some 80 numpy operations on arrays of one chunk, so
-Python's per-operation overhead is about half of it), then the dense samples and the measuring.
-100x (about 3 s CPU here) would need the right-hand side and the stage sums compiled into one
-loop per variant (a few operations per step instead of ~1,000 array calls) and the figures drawn
-without matplotlib's object model; fewer steps per period would cut the engine proportionally but
-the 60 deg swings of tests/test_batch.py leave no accuracy margin for that."""
+REMAINING_LIMIT = """remaining limit (what 100x would need): about 3.1-3.8 s CPU end to end, of which the batch
+engine is some 70 %.  Fixed: the interpreter and imports (numpy and swingsim: about 0.3 s; neither
+scipy nor matplotlib is imported: the report's figures are drawn by swingsim.report.raster on Pillow,
+about 0.2 s for the four), loading the sweep (one validated scene per group and per move
+combination, 425 here: about 0.2 s).  Variable: the engine's fixed-step DOP853 (about 1.2 s: 13
+right-hand sides per step, each some 60 numpy operations on the arrays of one chunk; compute-bound,
+since halving or doubling the chunk changes little; no work on padding: a chunk runs longest runs
+first and a step integrates only the variants still running), the dense samples and the measuring
+(about 0.8 s), comparison.csv (about 0.2 s: repr of 230,000 floats and a CRC-32 per row).  100x
+needs roughly 2.8 s here: the right-hand side and the stage sums compiled into one loop per
+variant (a few operations per step instead of ~800 array calls), or fewer steps per period, which
+the 60 deg swings of tests/test_batch.py do not allow (no accuracy margin at 12 steps)."""
 
 
 def write_study(folder: Path, n_l=25, n_a=20, n_v=20) -> Path:
@@ -159,9 +161,7 @@ def phases(sweep: Path, out: Path):
     from swingsim.study import compare as cmp
     from swingsim.study.variants import load_sweep
 
-    import matplotlib.figure  # noqa: F401  (the report's first import, timed apart)
-
-    spent = {"imports (swingsim, numpy, matplotlib; scipy is not needed)": c() - t0}
+    spent = {"imports (swingsim, numpy, Pillow for the figures; neither scipy nor matplotlib is needed)": c() - t0}
 
     def timed(name, fn):
         def run(*a, **kw):

@@ -195,6 +195,8 @@ def _step_grids(variants):
         Step start times (the last column and the padding: the run's end) [s].
     sg : ndarray (B, N)
         Segment of each step (the padding: the last segment).
+    total : ndarray of int (B,)
+        Each variant's number of real steps.
     """
     B = len(variants)
     S = max(len(v.cuts) - 1 for v in variants)
@@ -226,7 +228,7 @@ def _step_grids(variants):
         t = c0 + (c1 - c0) * ((k[None, :] - first) / nn)
     end = cuts[np.arange(B), nseg][:, None]
     tg = np.concatenate([np.where(inside, t, end), end], axis=1)
-    return tg, seg
+    return tg, seg, total
 
 
 def _prepare_row(table, i, steps_per_period, cache) -> _Variant:
@@ -287,7 +289,10 @@ def _supported_row(table, i, verdicts) -> bool:
         if gs.crane.has_boom and any(mv.axis == "radius" for mv in ms.moves):
             got = False
         else:
-            got = _point_mass(gs)
+            # the model depends on the group only: built once per group, not per move combination
+            got = verdicts.get(("group", key[0]))
+            if got is None:
+                got = verdicts[("group", key[0])] = _point_mass(gs)
         verdicts[key] = got
     return got
 
@@ -333,9 +338,14 @@ def _rhs(y, kin, par, t=None):
 # one chunk
 
 
-def _integrate(variants) -> dense.IntegratedChunk:
+def _integrate(variants, grids=None) -> dense.IntegratedChunk:
+    """Integrate a chunk; ``grids`` are its :func:`_step_grids` when already made.
+
+    When the variants come longest run first (as :func:`_chunk_batch` orders them), a
+    step integrates only the variants that still have a real step (no work on padding).
+    """
     B = len(variants)
-    tg, sg = _step_grids(variants)
+    tg, sg, total = _step_grids(variants) if grids is None else grids
     nseg = max(len(v.cuts) - 1 for v in variants)
     coef = np.zeros((B, nseg, len(AXES), 4))
     t0s = np.zeros((B, nseg))
@@ -346,8 +356,25 @@ def _integrate(variants) -> dense.IntegratedChunk:
     kin = chunk_kinematics(variants)
     par = _force_parameters(variants)
     y0 = np.stack([v.y0 for v in variants], axis=1)  # (4, B)
-    Y, A0, A1 = integrate_steps(y0, (tg, sg, coef, t0s), kin, lambda y, k, t: _rhs(y, k, par, t))
+    active = restrict = None
+    if B > 1 and np.all(total[1:] <= total[:-1]):
+        active = np.count_nonzero(total[None, :] > np.arange(tg.shape[1] - 1)[:, None], axis=1)
+
+        def restrict(m):
+            rows = np.arange(m)
+            par_m = parameter_rows(par, rows, 1)
+            return kin.rows(rows), lambda y, k, t: _rhs(y, k, par_m, t)
+
+    Y, A0, A1 = integrate_steps(y0, (tg, sg, coef, t0s), kin, lambda y, k, t: _rhs(y, k, par, t),
+                                active, restrict)
     return dense.IntegratedChunk(tg, sg, coef, t0s, Y, A0, A1, kin, par)
+
+
+def _steps_upto(run: dense.IntegratedChunk, n: int) -> dense.IntegratedChunk:
+    """The first ``n`` steps of a chunk (views): every row of interest has at most ``n`` real steps."""
+    return dense.IntegratedChunk(run.step_times[:, :n + 1], run.step_segment[:, :n], run.segment_coef,
+                                 run.segment_start, run.states[:n + 1], run.accel_start[:n], run.accel_end[:n],
+                                 run.kinematics, run.forces)
 
 
 def _facts(vs) -> VariantFacts:
@@ -361,16 +388,26 @@ _MEASURE_ROWS = 256
 
 
 def _chunk_batch(variants, samples_per_step):
-    run = _integrate(variants)
-    sums, oks = [], []
-    for i in range(0, len(variants), _MEASURE_ROWS):
-        sel = np.arange(i, min(i + _MEASURE_ROWS, len(variants)))
-        block = measure_block(dense.sample(run, sel, samples_per_step), _facts([variants[j] for j in sel]),
+    # longest runs first: a step integrates only the variants that still have one, and a block
+    # of rows is measured over its own longest run (the padding of shorter runs costs nothing);
+    # a variant's numbers do not depend on its place in the chunk
+    grids = _step_grids(variants)
+    order = np.argsort(-grids[2], kind="stable")
+    vs = [variants[j] for j in order]
+    tg, sg, total = (a[order] for a in grids)
+    run = _integrate(vs, (tg, sg, total))
+    sums, oks = [None] * len(vs), []
+    for i in range(0, len(vs), _MEASURE_ROWS):
+        sel = np.arange(i, min(i + _MEASURE_ROWS, len(vs)))
+        part = _steps_upto(run, int(total[sel].max()))
+        block = measure_block(dense.sample(part, sel, samples_per_step), _facts([vs[j] for j in sel]),
                               parameter_rows(run.forces, sel, 2),
-                              lambda t0, sel=sel: dense.refine_peak_sq(run, sel, t0))
-        sums.extend(block.summaries)
+                              lambda t0, sel=sel, part=part: dense.refine_peak_sq(part, sel, t0))
+        for j, s in zip(sel, block.summaries):
+            sums[order[j]] = s
         oks.append(block.ok)
-    ok = np.concatenate(oks)
+    ok = np.empty(len(vs), dtype=bool)
+    ok[order] = np.concatenate(oks)
     for k, s in enumerate(sums):
         s.update({"valid": True, "status": "ok", "model": "point-mass", "engine": "batch"})
         if not _all_finite(s):

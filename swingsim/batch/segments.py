@@ -324,7 +324,7 @@ def parameter_rows(par: dict, sel, ndim: int) -> dict:
     return out
 
 
-def integrate_steps(y0, grids, kinematics, rhs):
+def integrate_steps(y0, grids, kinematics, rhs, active=None, restrict=None):
     """Fixed steps of the order-8 tableau over a chunk, each variant on its own grid.
 
     Parameters
@@ -339,6 +339,15 @@ def integrate_steps(y0, grids, kinematics, rhs):
         ``rhs(y, kin, t) -> dy/dt`` for states (2 n, B), the motion ``kin`` at the same
         instants (SuspensionRates) and those instants ``t`` (B,) [s] (a varying wind
         reads them) [state units / s].
+    active : ndarray of int (N,), optional
+        Rows that still have a real step at each step (non-increasing): the chunk's
+        rows sorted by their number of steps, longest first.  Step ``k`` then
+        integrates only the first ``active[k]`` rows; the others (their zero-length
+        padding) keep their state, and their accelerations repeat their last end
+        acceleration (the padding has zero length: the dense output never reads them).
+        Every row is integrated at every step when None.
+    restrict : callable, optional
+        ``restrict(m) -> (kinematics, rhs)`` for the first ``m`` rows (needed with ``active``).
 
     Returns
     -------
@@ -359,18 +368,35 @@ def integrate_steps(y0, grids, kinematics, rhs):
     y = y0
     Y[0] = y
     K = np.empty((nst, n2, B))
+    parts = {B: (kinematics, rhs)}  # the first m rows' kinematics and right-hand side, per m
     with np.errstate(all="ignore"):
         for k in range(N):
-            t0 = tg[:, k]
-            h = tg[:, k + 1] - t0
-            c = coef[ar, sg[:, k]]
-            tau0 = t0 - t0s[ar, sg[:, k]]
+            m = B if active is None else int(active[k])
+            if m < B:
+                # rows m.. have finished (their padding): they keep their state
+                if m == 0:
+                    Y[k + 1] = Y[k]
+                    A0[k] = A1[k] = A1[k - 1]
+                    continue
+                Y[k + 1, :, m:] = Y[k, :, m:]
+                A0[k, :, m:] = A1[k, :, m:] = A1[k - 1, :, m:]
+                if m not in parts:
+                    parts[m] = restrict(m)
+                y = Y[k, :, :m]
+            kin_m, rhs_m = parts[m]
+            Km = K if m == B else K[:, :, :m]
+            arm = ar if m == B else ar[:m]
+            seg = sg[:m, k]
+            t0 = tg[:m, k]
+            h = tg[:m, k + 1] - t0
+            c = coef[arm, seg]
+            tau0 = t0 - t0s[arm, seg]
             for s in range(nst):
-                ys = y if s == 0 else y + h * combine(A_NZ[s], K)
-                K[s] = rhs(ys, kinematics(c, tau0 + rk8.C[s] * h), t0 + rk8.C[s] * h)
-            y = y + h * combine(B_NZ, K)
-            Y[k + 1] = y
-            A0[k] = K[0, nq:]
+                ys = y if s == 0 else y + h * combine(A_NZ[s], Km)
+                Km[s] = rhs_m(ys, kin_m(c, tau0 + rk8.C[s] * h), t0 + rk8.C[s] * h)
+            y = y + h * combine(B_NZ, Km)
+            Y[k + 1, :, :m] = y
+            A0[k, :, :m] = Km[0, nq:]
             # accelerations at the step's end on the step's own segment (left limit)
-            A1[k] = rhs(y, kinematics(c, tau0 + h), t0 + h)[nq:]
+            A1[k, :, :m] = rhs_m(y, kin_m(c, tau0 + h), t0 + h)[nq:]
     return Y, A0, A1

@@ -7,8 +7,8 @@ the keys a profile did not use, a heat map over the two varied numbers with the
 most values, plots of residual swing and move time against each varied quantity,
 the shaper sensitivity to rope-length error, and how to read them.  Plots
 (:mod:`swingsim.report.plots_compare`) are PNG images embedded as base64 data
-URIs, drawn with matplotlib (Agg backend), aggregated so that they draw fast at
-any number of variants.
+URIs, drawn by the small raster plotter :mod:`swingsim.report.raster` (no
+matplotlib), aggregated so that they draw fast at any number of variants.
 """
 
 from __future__ import annotations
@@ -20,7 +20,6 @@ from swingsim.constants import newton_to_tonnes_force
 from swingsim.metrics import cautions
 from swingsim.report.plots_compare import (format_number, heatmap_figure, heatmap_keys, quantity_figure,
                                            sensitivity_figure)
-from swingsim.report.style import literal_text
 
 _CSS = """
 body{font-family:system-ui,-apple-system,'Segoe UI',sans-serif;margin:1.5rem auto;max-width:72rem;
@@ -203,33 +202,33 @@ def comparison_html(sweep, results, ranking, sensitivity=None, max_rows=100) -> 
                  "below the scene's settle angle. Angles below 0.01 deg print as &lt; 0.01.</p>")
     parts.append(f"<p class=\"meta\">{e(cautions.TONNE_FORCE_NOTE)}</p>")
 
-    with literal_text():  # user text (names, keys) drawn as it is
-        pair = heatmap_keys(t, sweep.keys)
-        if pair:
-            img = heatmap_figure(t, results, *pair)
-            parts.append("<h2>Residual swing and move time over two varied quantities</h2>")
-            parts.append(f'<figure class="plot"><img alt="heat maps over {e(pair[0])} and {e(pair[1])}" '
-                         f'src="data:image/png;base64,{img}"><figcaption>Each cell: the worst case over every '
-                         "other compared value. Left: largest rope angle after the last move ends; right: when "
-                         "the last move ends.</figcaption></figure>")
-        parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
-        for k in sweep.keys:
-            if len(t.codes([k])[1]) < 2:
-                continue  # one value only: nothing to draw against
-            img = quantity_figure(t, results, k, sweep.keys)
-            parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
-                         f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
-                         f"move ends; right: when the last move ends; against <code>{e(k)}</code>.</figcaption>"
-                         "</figure>")
-        if sensitivity:
-            img = sensitivity_figure(sensitivity)
-            parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
-            parts.append(f'<figure class="plot"><img alt="sensitivity of the residual swing to rope length" '
-                         f'src="data:image/png;base64,{img}"><figcaption>{e(sensitivity["move"])}: every profile '
-                         f"tuned to the base scene's rope of {sensitivity['design_length_m']:g} m, simulated "
-                         "(nonlinear model) with the rope from 30% shorter to 30% longer. A real rope length "
-                         "differs from the plan by the hook block, slings and rigging; shapers that are "
-                         "flat here tolerate that best.</figcaption></figure>")
+    # the plots (swingsim.report.raster) draw user text (names, keys) as it is: no maths markup
+    pair = heatmap_keys(t, sweep.keys)
+    if pair:
+        img = heatmap_figure(t, results, *pair)
+        parts.append("<h2>Residual swing and move time over two varied quantities</h2>")
+        parts.append(f'<figure class="plot"><img alt="heat maps over {e(pair[0])} and {e(pair[1])}" '
+                     f'src="data:image/png;base64,{img}"><figcaption>Each cell: the worst case over every '
+                     "other compared value. Left: largest rope angle after the last move ends; right: when "
+                     "the last move ends.</figcaption></figure>")
+    parts.append('<h2>Residual swing and move time against each varied quantity</h2>')
+    for k in sweep.keys:
+        if len(t.codes([k])[1]) < 2:
+            continue  # one value only: nothing to draw against
+        img = quantity_figure(t, results, k, sweep.keys)
+        parts.append(f'<figure class="plot"><img alt="residual swing and move time against {e(k)}" '
+                     f'src="data:image/png;base64,{img}"><figcaption>Left: largest rope angle after the last '
+                     f"move ends; right: when the last move ends; against <code>{e(k)}</code>.</figcaption>"
+                     "</figure>")
+    if sensitivity:
+        img = sensitivity_figure(sensitivity)
+        parts.append('<h2>Input shaping: sensitivity to the rope length</h2>')
+        parts.append(f'<figure class="plot"><img alt="sensitivity of the residual swing to rope length" '
+                     f'src="data:image/png;base64,{img}"><figcaption>{e(sensitivity["move"])}: every profile '
+                     f"tuned to the base scene's rope of {sensitivity['design_length_m']:g} m, simulated "
+                     "(nonlinear model) with the rope from 30% shorter to 30% longer. A real rope length "
+                     "differs from the plan by the hook block, slings and rigging; shapers that are "
+                     "flat here tolerate that best.</figcaption></figure>")
     parts.append(f'<p class="caution">{e(cautions.CAUTION)}</p>')
     parts.append("</body></html>")
     return "\n".join(parts)
