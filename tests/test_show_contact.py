@@ -244,7 +244,7 @@ def test_video_readout_gives_the_pull_and_the_weight_on_the_ground(frames):
     pull = s1["tag_line_tension_N"][0, 0]
     assert f"tag line 1 {pull:7.0f} N" in pulled["readout"]
     assert "on ground     0.00 t" in pulled["readout"]
-    assert "TAG LINE 1 pull" in pulled["notes"] and "250 N" in pulled["notes"]
+    assert f"TAG LINE 1 {pull:.0f} N > 250 N: let go" in " ".join(pulled["notes"].split())
     assert "TAG LINE" not in rest["notes"]
 
 
@@ -274,3 +274,20 @@ def test_viewer_shows_the_pull_and_colours_the_line(browser, exported, traj):
     assert math.isclose(shown, pull, rel_tol=0.02) and "over limit" in status["tag_readouts"][0]
     assert status["tag_colours"] == [PALETTE["warn"]]
     assert status["readouts"]["ground"] == "0.00 t"
+
+
+@pytest.mark.parametrize("size", [(640, 360), (1280, 720)], ids=lambda s: f"{s[0]}x{s[1]}")
+def test_the_tag_line_note_fits_the_notes_with_the_fullest_panel(size):
+    from swingsim.metrics.cautions import CAUTION
+    from swingsim.render import layout as L
+    from swingsim.render.overlay import contact_notes, readout_rows
+    from swingsim.render.stage import LEGEND_MAX
+
+    # a gantry in wind with a chart, three tag lines and the ground; the legend at its most
+    lay = L.compute_layout(size, 1, CAUTION, readout_rows=readout_rows("gantry", True, True, 3, True),
+                           legend_rows=LEGEND_MAX)
+    pad = lay.text_boxes["pad"]
+    chars = L.chars_per_line(lay.notes.width - 2 * pad, lay.fonts["notes"])
+    note = contact_notes({"tag_lines": [("tag line 3", 1654.0, 250.0)]})
+    kept = L.fit_lines(note + "\nmove 0 (hoist): ends", chars, lay.notes_lines)
+    assert kept.split("\n")[0].startswith("TAG LINE 3 1654 N") and "let go" in kept

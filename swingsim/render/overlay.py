@@ -122,8 +122,9 @@ def clock_text(t_s: float, speed: float) -> str:
     return f"t = {t_s:6.2f} s{tag}"
 
 
-#: Tag lines given a readout row each; more are shown as one row, the largest pull.
-TAG_LINE_ROWS = 2
+#: Tag lines given a readout row each; more are shown as one row, the largest pull (the picture's
+#: colours say which line): the notes keep room for the cautions at 640x360 with the fullest readout.
+TAG_LINE_ROWS = 1
 
 
 def _contact_rows(contact: dict | None) -> list:
@@ -154,13 +155,13 @@ def contact_notes(contact: dict | None) -> str:
     Returns
     -------
     str
-        E.g. ``TAG LINE 1 pull 310 N over 250 N: let go, do not be pulled``; empty when every
-        line is within its ``max_pull_N``.
+        E.g. ``TAG LINE 1 310 N > 250 N: let go`` (the person must let go, not be pulled); empty
+        when every line is within its ``max_pull_N``.
     """
     out = []
     for name, pull, limit in (contact or {}).get("tag_lines") or ():
         if pull > limit:
-            out.append(f"{name.upper()} pull {pull:.0f} N over {limit:.0f} N: let go, do not be pulled")
+            out.append(f"{name.upper()} {pull:.0f} N > {limit:.0f} N: let go")
     return "\n".join(out)
 
 

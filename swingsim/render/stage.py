@@ -39,6 +39,8 @@ SUPERSAMPLE = {"standard": 1, "high": 2}
 LEGEND = (("exclusion", "no-go zone"), ("obstacle", "obstacle"), ("envelope", "swing envelope"),
           ("trail", "load path, last 6 s"), ("tag_line", "tag line, pull held"),
           ("contact", "load bears on ground"))
+#: Most entries of the legend (with both zone kinds, tag lines and ground contact there would be six).
+LEGEND_MAX = 5
 
 
 def _polydata(mesh, part: str) -> pv.PolyData:
@@ -105,8 +107,11 @@ class Stage:
                                     len(self.tag_line_specs), self.has_ground)
         kinds = {z.kind for z in scene.zones}
         shown = kinds | ({"tag_line"} if self.tag_line_specs else set()) | ({"contact"} if self.has_ground else set())
-        self.legend = tuple((key, words) for key, words in LEGEND
-                            if key not in ("exclusion", "obstacle", "tag_line", "contact") or key in shown)
+        legend = [(key, words) for key, words in LEGEND
+                  if key not in ("exclusion", "obstacle", "tag_line", "contact") or key in shown]
+        if len(legend) > LEGEND_MAX:  # the contact marks' entry gives way to the notes' room
+            legend = [e for e in legend if e[0] != "contact"]
+        self.legend = tuple(legend)
         self.layout = layout_mod.compute_layout(self.size, len(self.views), overlay.caution_banner_text(),
                                                 rows, len(self.legend), overlay.clock_text(9999.99, speed))
         # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
