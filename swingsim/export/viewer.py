@@ -24,7 +24,7 @@ import numpy as np
 from swingsim._version import __version__
 from swingsim.metrics.cautions import CAUTION
 from swingsim.render import facts, views
-from swingsim.render.palette import PALETTE
+from swingsim.render.palette import PALETTE, TAG_LINE_NEAR_SHARE
 from swingsim.report.tables import timeseries_columns
 from swingsim.scene3d import build
 
@@ -43,7 +43,9 @@ SERIES_COLUMNS = {
 FIT_ASPECT = 16.0 / 9.0
 #: Palette colours the page's panels and plot use.
 PAGE_COLOURS = ("sky", "text", "panel", "banner", "load", "hook", "crane", "crane_dark", "warn",
-                "envelope", "sling", "exclusion", "grid_major")
+                "envelope", "sling", "exclusion", "grid_major", "tag_line", "near", "contact")
+#: Decimals kept of each tag line's pull (``tag_line_<j>_N``) and of the ground's reaction (kN).
+TAG_LINE_DECIMALS, GROUND_DECIMALS = 1, 3
 #: Summary keys shown in the page's facts panel, with their labels and units.
 SUMMARY_FACTS = (
     ("peak_rope_angle_deg", "Peak rope angle", "deg", 1),
@@ -85,7 +87,21 @@ def _series(traj) -> dict:
     rows = int(min(SERIES_MAX_ROWS, max(2, math.floor((t1 - t0) * SERIES_RATE_HZ) + 1)))
     t = np.linspace(t0, t1, rows)
     cols = timeseries_columns(traj, t)
-    return {name: _round_list(cols[name], nd) for name, nd in SERIES_COLUMNS.items() if name in cols}
+    out = {name: _round_list(cols[name], nd) for name, nd in SERIES_COLUMNS.items() if name in cols}
+    for j in range(len(getattr(traj.scene, "tag_lines", ()))):
+        name = f"tag_line_{j + 1}_N"
+        if name in cols:
+            out[name] = _round_list(cols[name], TAG_LINE_DECIMALS)
+    if "ground_reaction_kN" in cols:
+        out["ground_reaction_kN"] = _round_list(cols["ground_reaction_kN"], GROUND_DECIMALS)
+    return out
+
+
+def _tag_lines(traj) -> list:
+    """Each tag line's name, limit and where the page finds it (series column, glTF nodes)."""
+    return [{"name": line.name(j), "max_pull_N": float(line.max_pull_N), "column": f"tag_line_{j + 1}_N",
+             "node": f"tag_line_{j + 1}", "person": f"tag_person_{j + 1}"}
+            for j, line in enumerate(getattr(traj.scene, "tag_lines", ()))]
 
 
 def _camera_json(cam: views.Camera) -> dict:
@@ -140,7 +156,10 @@ def page_data(traj, summary, scene3d=None) -> dict:
         ``title``, ``caution``, ``version``, ``colours`` (palette name -> ``#rrggbb``),
         ``series`` (column of timeseries.csv -> values, :data:`SERIES_COLUMNS`), ``events``
         (``t_s`` [s], ``label``, ``kind``), ``facts`` (summary numbers), ``views`` (named view ->
-        camera in glTF axes [m]), ``settle_deg`` [deg] and ``fit_aspect`` [-].
+        camera in glTF axes [m]), ``settle_deg`` [deg], ``fit_aspect`` [-], ``tag_lines`` (per
+        line: ``name``, ``max_pull_N`` [N], its series ``column`` and glTF ``node`` and ``person``),
+        ``tag_near_share`` (the share of ``max_pull_N`` from which a pull shows amber [-]) and
+        ``ground`` (whether the scene has a ``[ground]``: the series then has ``ground_reaction_kN``).
     """
     scene3d = build(traj) if scene3d is None else scene3d
     return {
@@ -154,6 +173,9 @@ def page_data(traj, summary, scene3d=None) -> dict:
         "views": _views(traj, scene3d),
         "settle_deg": float(traj.scene.limits.settle_deg),
         "fit_aspect": FIT_ASPECT,
+        "tag_lines": _tag_lines(traj),
+        "tag_near_share": TAG_LINE_NEAR_SHARE,
+        "ground": getattr(traj.scene, "ground", None) is not None,
     }
 
 

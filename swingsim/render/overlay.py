@@ -122,8 +122,51 @@ def clock_text(t_s: float, speed: float) -> str:
     return f"t = {t_s:6.2f} s{tag}"
 
 
+#: Tag lines given a readout row each; more are shown as one row, the largest pull (the picture's
+#: colours say which line): the notes keep room for the cautions at 640x360 with the fullest readout.
+TAG_LINE_ROWS = 1
+
+
+def _contact_rows(contact: dict | None) -> list:
+    """Readout rows of the tag lines' pulls [N] and the ground's reaction [t]."""
+    from swingsim.constants import newton_to_tonnes_force
+
+    rows = []
+    c = contact or {}
+    lines = c.get("tag_lines") or ()
+    if len(lines) > TAG_LINE_ROWS:
+        rows.append(("tag max", f"{max(pull for _name, pull, _limit in lines):6.0f}", "N"))
+    else:
+        rows += [(name[:11], f"{pull:6.0f}", "N") if pull > 0.0 else (name[:11], " slack", "")
+                 for name, pull, _limit in lines]
+    if c.get("ground_N") is not None:
+        rows.append(("on ground", f"{newton_to_tonnes_force(c['ground_N']):6.2f}", "t"))
+    return rows
+
+
+def contact_notes(contact: dict | None) -> str:
+    """The notes' lines for tag lines pulled beyond what one person can hold, one a line.
+
+    Parameters
+    ----------
+    contact : dict or None
+        As for :func:`frame_text`.
+
+    Returns
+    -------
+    str
+        E.g. ``TAG LINE 1 310 N > 250 N: let go`` (the person must let go, not be pulled); empty
+        when every line is within its ``max_pull_N``.
+    """
+    out = []
+    for name, pull, limit in (contact or {}).get("tag_lines") or ():
+        if pull > limit:
+            out.append(f"{name.upper()} {pull:.0f} N > {limit:.0f} N: let go")
+    return "\n".join(out)
+
+
 def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_m: float,
-                  chart_pct: float | None = None, crane: dict | None = None) -> str:
+                  chart_pct: float | None = None, crane: dict | None = None, contact: dict | None = None) -> str:
     """The numbers panel: one row each of READOUT_CHARS (label 11, value 7, space, unit 3)."""
     from swingsim.constants import newton_to_tonnes_force
 
@@ -144,10 +187,11 @@ def _readout_text(angle_deg: float, speed_m_s: float, hook_load_kN: float, rope_
         rows.append((f"wind {c['wind_from']}" if c.get("wind_from") else "wind", f"{c['wind_m_s']:6.1f}", "m/s"))
     if chart_pct is not None:
         rows.append(("of chart", f"{chart_pct:6.1f}" if math.isfinite(chart_pct) else "   off", "%"))
+    rows += _contact_rows(contact)
     return "\n".join(f"{a:<11}{b:>7} {c_:<3}".rstrip() for a, b, c_ in rows)
 
 
-def readout_rows(crane_kind: str, wind: bool, chart: bool) -> int:
+def readout_rows(crane_kind: str, wind: bool, chart: bool, tag_lines: int = 0, ground: bool = False) -> int:
     """How many rows the numbers panel has for a lift (the layout sizes the panel from it).
 
     Parameters
@@ -158,6 +202,10 @@ def readout_rows(crane_kind: str, wind: bool, chart: bool) -> int:
         Whether the wind rows are shown.
     chart : bool
         Whether the scene has a capacity chart.
+    tag_lines : int
+        Number of tag lines: a row each, or one row when more than :data:`TAG_LINE_ROWS`.
+    ground : bool
+        Whether the scene has a ``[ground]`` (a row of its reaction on the load).
 
     Returns
     -------
@@ -168,6 +216,8 @@ def readout_rows(crane_kind: str, wind: bool, chart: bool) -> int:
     n += 2 if crane_kind in SLEWING_KINDS else 0
     n += 1 if wind else 0  # speed and where it comes from in one row
     n += 1 if chart else 0
+    n += tag_lines if tag_lines <= TAG_LINE_ROWS else 1
+    n += 1 if ground else 0
     return n
 
 
@@ -287,7 +337,8 @@ def _stopped_text(t_s: float, facts, hold_s: float = 1.5) -> str:
 
 def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, row: dict,
                events, zone_states, line_chars: int = 200, banner_chars: int = 70, facts=None,
-               chart_pct: float | None = None, crane: dict | None = None) -> FrameText:
+               chart_pct: float | None = None, crane: dict | None = None,
+               contact: dict | None = None) -> FrameText:
     """All the words of the frame at simulated time ``t_s``.
 
     Parameters
@@ -319,13 +370,18 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
         Numbers of the crane and site at this instant: ``radius_m``, ``slew_deg`` (from the
         start), ``hook_height_m`` with its ``height_label``, ``wind_m_s`` and ``wind_from``
         (a compass point); each shown when present.
+    contact : dict, optional
+        Forces at points of the load at this instant: ``tag_lines``, a list of
+        ``(name, pull [N], max_pull_N [N])`` per tag line, and ``ground_N``, the
+        ground's reaction on the load [N] (None without ``[ground]``).
 
     Returns
     -------
     FrameText
         Clock, readout (radius, slew, hook height, rope angle, load speed, hook load in t and kN,
-        rope length, wind, chart utilisation), events, zones, caution, banner, stop notice, and
-        the run's cautions for the notes (:func:`caution_notes`).
+        rope length, wind, chart utilisation, tag line pulls in N, the load's weight on the
+        ground in t), events, zones, caution, banner, stop notice, and the run's cautions for the
+        notes (:func:`caution_notes`, then a tag line pulled over its limit: :func:`contact_notes`).
     """
     from swingsim.render.facts import rope_angle_deg
 
@@ -334,11 +390,12 @@ def frame_text(t_s: float, video_t_s: float, video_len_s: float, speed: float, r
     ten = float(row["rope_tension_N"]) / 1000.0
     return FrameText(
         clock=clock_text(t_s, speed),
-        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct, crane),
+        readout=_readout_text(ang, spd, ten, float(row["rope_length"]), chart_pct, crane, contact),
         event=event_text(t_s, events),
         zone=zone_text(zone_states),
         caution=caution_line(line_chars),
         banner=_banner_text(banner_chars) if _banner_on(video_t_s, video_len_s) else "",
         stopped=_stopped_text(t_s, facts),
-        notes=caution_notes(t_s, facts, (crane or {}).get("wind_m_s")),
+        notes="\n".join(x for x in (caution_notes(t_s, facts, (crane or {}).get("wind_m_s")),
+                                     contact_notes(contact)) if x),
     )

@@ -28,6 +28,9 @@ PALETTE = {
     "label_grid": "#3d372b", "label_obstacle": "#2b3035", "label_exclusion": "#9b0000",
     # -- site bearings: the north arrow and the wind arrow on the ground --
     "north": "#111111", "wind": "#0b6e99",
+    # -- tag lines (and the person holding each) while the pull is well within what one can hold;
+    #    near the limit they turn "near", over it "warn" -- and the load's corners bearing on the ground --
+    "tag_line": "#0f8b8d", "contact": "#c2185b",
 }
 
 #: How each material of :class:`swingsim.scene3d.Body` is drawn: its palette colour, opacity,
@@ -47,7 +50,38 @@ STYLE = {
     "spreader": dict(_PLAIN, colour="hook", ambient=0.4, line_width=3),
     "load": dict(_PLAIN, colour="load", ambient=0.45, diffuse=0.7),
     "shadow": dict(_PLAIN, colour="shadow", opacity=0.35, lighting=False),
+    "tag_line": dict(_PLAIN, colour="tag_line", ambient=0.5),
+    "person": dict(_PLAIN, colour="tag_line", ambient=0.5),
+    "contact": dict(_PLAIN, colour="contact", lighting=False),
 }
+#: Share of a tag line's ``max_pull_N`` from which its pull shows amber (our own rule: a warning
+#: before the pull is more than the person can hold) [-].
+TAG_LINE_NEAR_SHARE = 0.8
+#: Palette colour of a tag line (and its person) by the state of its pull.
+TAG_LINE_COLOUR = {"slack": "tag_line", "held": "tag_line", "near": "near", "over": "warn"}
+
+
+def tag_line_state(pull_N, max_pull_N: float):
+    """How a tag line's pull stands against what one person can hold.
+
+    Parameters
+    ----------
+    pull_N : float or array_like
+        The line's tension [N].
+    max_pull_N : float
+        What one person can hold (``[[tag_lines]] max_pull_N``) [N].
+
+    Returns
+    -------
+    str or numpy.ndarray of str
+        "slack" (no pull), "held" (below :data:`TAG_LINE_NEAR_SHARE` of the limit),
+        "near" (from there up to the limit) or "over" (above the limit: the person
+        must let go); an array for an array of pulls.
+    """
+    p = np.asarray(pull_N, dtype=float)
+    out = np.select([p > max_pull_N, p >= TAG_LINE_NEAR_SHARE * max_pull_N, p > 0.0],
+                    ["over", "near", "held"], "slack")
+    return str(out) if out.ndim == 0 else out
 #: Labels: palette colour, height as a share of the frame's height, bold.
 LABEL_STYLE = {
     "grid": ("label_grid", 0.026, False),

@@ -23,7 +23,8 @@ from swingsim.render import layout as layout_mod
 from swingsim.render import overlay, views
 from swingsim.render.gl import RenderUnavailableError, _message
 from swingsim.render.palette import (LABEL_STYLE, NOGO_STRIPE_MAX_M, NOGO_STRIPE_MIN_M, NOGO_STRIPE_SHARE, PALETTE,
-                                     STYLE, envelope_image, ground_image, nogo_image, rgb)
+                                     STYLE, TAG_LINE_COLOUR, envelope_image, ground_image, nogo_image, rgb,
+                                     tag_line_state)
 from swingsim.scene.site import compass_point, scene_wind_from_bearing_deg, wind_from_bearing_deg
 from swingsim.scene3d.meshes import arrow
 from swingsim.scene3d.poses import SAMPLE_KEYS
@@ -36,7 +37,10 @@ TRAIL_N = 61
 SUPERSAMPLE = {"standard": 1, "high": 2}
 #: The legend of the side panel: palette key (its swatch) and words.
 LEGEND = (("exclusion", "no-go zone"), ("obstacle", "obstacle"), ("envelope", "swing envelope"),
-          ("trail", "load path, last 6 s"))
+          ("trail", "load path, last 6 s"), ("tag_line", "tag line, pull held"),
+          ("contact", "load bears on ground"))
+#: Most entries of the legend (with both zone kinds, tag lines and ground contact there would be six).
+LEGEND_MAX = 5
 
 
 def _polydata(mesh, part: str) -> pv.PolyData:
@@ -97,9 +101,17 @@ class Stage:
         self.render_size = (self.size[0] * self.ss, self.size[1] * self.ss)
         scene = traj.scene
         self.has_wind = scene.wind.speed_m_s > 0.0
-        rows = overlay.readout_rows(scene.crane.kind, self.has_wind, scene.crane.chart is not None)
+        self.tag_line_specs = tuple(getattr(scene, "tag_lines", ()))
+        self.has_ground = getattr(scene, "ground", None) is not None
+        rows = overlay.readout_rows(scene.crane.kind, self.has_wind, scene.crane.chart is not None,
+                                    len(self.tag_line_specs), self.has_ground)
         kinds = {z.kind for z in scene.zones}
-        self.legend = tuple((key, words) for key, words in LEGEND if key not in ("exclusion", "obstacle") or key in kinds)
+        shown = kinds | ({"tag_line"} if self.tag_line_specs else set()) | ({"contact"} if self.has_ground else set())
+        legend = [(key, words) for key, words in LEGEND
+                  if key not in ("exclusion", "obstacle", "tag_line", "contact") or key in shown]
+        if len(legend) > LEGEND_MAX:  # the contact marks' entry gives way to the notes' room
+            legend = [e for e in legend if e[0] != "contact"]
+        self.legend = tuple(legend)
         self.layout = layout_mod.compute_layout(self.size, len(self.views), overlay.caution_banner_text(),
                                                 rows, len(self.legend), overlay.clock_text(9999.99, speed))
         # Our own theme (the caller's global pyvista theme is left alone): no multisampling,
@@ -238,6 +250,16 @@ class Stage:
         self.shadow = self.actors["shadow"][0]
         self.beam_actors = tuple(self.moving.get("spreader", ()))
         self.beam_span = self.scene3d.spreader_span_m
+        # each tag line as a line of a few pixels too (its tube is thin at site scale), and its
+        # person; all three take the colour of the line's pull
+        self.tag_lines = []
+        for j, spec in enumerate(self.tag_line_specs):
+            line = pv.PolyData(np.zeros((2, 3)), lines=np.array([2, 0, 1]))
+            line_actor = self._add(line, PALETTE["tag_line"], line_width=3, lighting=False)
+            actors = [a for a in (*self.actors[f"tag_line_{j + 1}"], *self.actors[f"tag_person_{j + 1}"], line_actor)
+                      if a is not None]
+            self.tag_lines.append({"name": spec.name(j), "max_pull_N": float(spec.max_pull_N), "line": line,
+                                   "actors": actors, "state": "slack"})
 
     def _nogo_stripes(self, zone):
         """A no-go zone's box in translucent red and white diagonal stripes (our own barrier look)."""
@@ -321,7 +343,7 @@ class Stage:
         self._ground_marks.extend([v.min(axis=0), v.max(axis=0)])
         origin = v.min(axis=0)
         length = float(np.ptp(v[:, 1]))
-        centre = np.array([origin[0] - 3.0 * length, origin[1] + 1.0 * length, 0.12])
+        centre = np.array([origin[0] - 3.0 * length, origin[1] + 1.0 * length, self.lay.ground_z_m + 0.12])
         north = math.radians(scene.site.north_deg)
         d = np.array([math.cos(north), math.sin(north), 0.0])
         self._add(_polydata(arrow(centre - 0.5 * length * d, d, length), "faces"), PALETTE["north"],
@@ -546,6 +568,7 @@ class Stage:
         self.sling_lines.points[:] = np.concatenate(
             [frames.segments[f"sling_{i + 1}"][index] for i in range(len(self.slings))])
         self.sling_lines.Modified()
+        contact = self._update_tag_lines(frames, index, row)
         p = np.asarray(row["suspension"], dtype=float)
         load = np.asarray(row["load"], dtype=float)
         self._update_trail(t, load)
@@ -563,7 +586,8 @@ class Stage:
             self._shown_labels[i] = self._place_labels(i, load)
         crane = self._crane_numbers(t, row)
         ft = overlay.frame_text(t, video_t, self.video_len_s, self.speed, row, self.facts.events, states,
-                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row), crane)
+                                self.line_chars, self.banner_chars, self.facts, self._chart_pct(t, row), crane,
+                                contact)
         # The numbers panel refreshes READOUT_HZ times a second of video, like a digital
         # display (readable, and text is costly to rasterise); the clock and the picture
         # show every frame's own time.
@@ -585,6 +609,33 @@ class Stage:
         self.zone_states = states
         self.near_zones = [name for name, _state, _bodies in states]
         return ft
+
+    def _update_tag_lines(self, frames, index: int, row: dict) -> dict:
+        """Tag lines to their ends and to the colour of their pull; the forces for the readout.
+
+        Returns
+        -------
+        dict
+            ``tag_lines`` (name, pull [N], max_pull_N [N]) and ``ground_N`` [N] (None without
+            ``[ground]``), as :func:`swingsim.render.overlay.frame_text` takes them.
+        """
+        pulls = row.get("tag_line_tension_N")
+        pulls = np.zeros(len(self.tag_lines)) if pulls is None else np.asarray(pulls, dtype=float).reshape(-1)
+        out = []
+        for j, tl in enumerate(self.tag_lines):
+            tl["line"].points[:] = frames.segments[f"tag_line_{j + 1}"][index]
+            tl["line"].Modified()
+            pull = float(pulls[j])
+            state = tag_line_state(pull, tl["max_pull_N"])
+            if state != tl["state"]:
+                colour = rgb(PALETTE[TAG_LINE_COLOUR[state]])
+                for actor in tl["actors"]:
+                    actor.GetProperty().SetColor(*colour)
+                tl["state"] = state
+            out.append((tl["name"], pull, tl["max_pull_N"]))
+        ground = row.get("ground_normal_N")
+        ground_N = (float(ground) if ground is not None else 0.0) if self.has_ground else None
+        return {"tag_lines": out, "ground_N": ground_N}
 
     def _set(self, key: str, text: str):
         """Show words in one of the changing text boxes."""

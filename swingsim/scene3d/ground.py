@@ -64,20 +64,22 @@ class GroundGrid(NamedTuple):
                    math.floor(y0 / major) * major, math.ceil(y1 / major) * major, minor, major)
 
 
-def ground_mesh(grid: GroundGrid) -> Mesh:
-    """The ground rectangle at z = 0, textured by :func:`ground_texture`.
+def ground_mesh(grid: GroundGrid, z_m: float = 0.0) -> Mesh:
+    """The ground rectangle at height ``z_m``, textured by :func:`ground_texture`.
 
     Parameters
     ----------
     grid : GroundGrid
         The ground's extent.
+    z_m : float
+        Its height: ``[ground] z_m`` when the scene has one [m].
 
     Returns
     -------
     Mesh
         A rectangle with texture coordinates.
     """
-    return plane(grid.x0, grid.x1, grid.y0, grid.y1, 0.0)
+    return plane(grid.x0, grid.x1, grid.y0, grid.y1, float(z_m))
 
 
 def ground_texture(grid: GroundGrid) -> np.ndarray:
@@ -110,13 +112,15 @@ def ground_texture(grid: GroundGrid) -> np.ndarray:
     return img
 
 
-def grid_labels(grid: GroundGrid) -> list:
+def grid_labels(grid: GroundGrid, z_m: float = 0.0) -> list:
     """Labels of the major lines along the low-x and low-y edges: at most about five an edge.
 
     Parameters
     ----------
     grid : GroundGrid
         The ground's extent and its major spacing (the lines labelled).
+    z_m : float
+        The ground's height [m].
 
     Returns
     -------
@@ -126,14 +130,14 @@ def grid_labels(grid: GroundGrid) -> list:
     span = max(grid.x1 - grid.x0, grid.y1 - grid.y0)
     xs = np.arange(grid.x0, grid.x1 + 1e-6, grid.major_m)
     ys = np.arange(grid.y0 + grid.major_m, grid.y1 + 1e-6, grid.major_m)
-    labels = [Label((x, grid.y0 - 0.02 * span, 0.05), f"x {x:g} m", "grid")
+    labels = [Label((x, grid.y0 - 0.02 * span, z_m + 0.05), f"x {x:g} m", "grid")
               for x in xs[::max(1, int(np.ceil(len(xs) / 5)))]]
-    labels += [Label((grid.x0 - 0.02 * span, y, 0.05), f"y {y:g} m", "grid")
+    labels += [Label((grid.x0 - 0.02 * span, y, z_m + 0.05), f"y {y:g} m", "grid")
                for y in ys[::max(1, int(np.ceil(len(ys) / 5)))]]
     return labels
 
 
-def axis_arrows(origin_xy, length_m: float) -> tuple:
+def axis_arrows(origin_xy, length_m: float, z_m: float = 0.0) -> tuple:
     """Arrows along +x and +y on the ground at ``origin_xy``, and their labels.
 
     Parameters
@@ -142,13 +146,15 @@ def axis_arrows(origin_xy, length_m: float) -> tuple:
         Where the arrows start [m].
     length_m : float
         Arrow length [m].
+    z_m : float
+        The ground's height [m].
 
     Returns
     -------
     tuple
         ``(x_arrow, y_arrow, labels)``: two meshes and two :class:`Label`.
     """
-    o = np.array([origin_xy[0], origin_xy[1], 0.1])
+    o = np.array([origin_xy[0], origin_xy[1], z_m + 0.1])
     ax = arrow(o, (1.0, 0.0, 0.0), length_m)
     ay = arrow(o, (0.0, 1.0, 0.0), length_m)
     labels = [Label(tuple(o + (1.15 * length_m, 0, 0)), "+x", "axis_x"),
@@ -156,7 +162,7 @@ def axis_arrows(origin_xy, length_m: float) -> tuple:
     return ax, ay, labels
 
 
-def envelope(points_m, half_xy_m) -> tuple:
+def envelope(points_m, half_xy_m, z_m: float = 0.0) -> tuple:
     """Plan-view swing envelope: the ground the load passes over, as a class image [m].
 
     A ground cell is INSIDE when it lies under the load's upright footprint
@@ -170,11 +176,13 @@ def envelope(points_m, half_xy_m) -> tuple:
         The load's path [m] (z ignored).
     half_xy_m : sequence of 2 float
         Half the load's footprint along x and y [m] (at least 5 cm).
+    z_m : float
+        The ground's height [m].
 
     Returns
     -------
     tuple
-        ``(mesh, classes)``: a ground rectangle 3.5 cm above the ground with
+        ``(mesh, classes)``: a rectangle 3.5 cm above the ground with
         texture coordinates, and its (rows, columns) uint8 class image (row 0
         at the low-y edge).
 
@@ -212,4 +220,4 @@ def envelope(points_m, half_xy_m) -> tuple:
     inside = np.isfinite(dist).reshape(ny, nx)
     classes = np.where(inside, INSIDE, OUTSIDE).astype(np.uint8)
     classes[inside & ~binary_erosion(inside, iterations=2)] = EDGE
-    return plane(lo[0], lo[0] + nx * cell, lo[1], lo[1] + ny * cell, 0.035), classes
+    return plane(lo[0], lo[0] + nx * cell, lo[1], lo[1] + ny * cell, z_m + 0.035), classes

@@ -43,6 +43,9 @@ class Layout:
         A boom crane's foot pin in the slewing part's frame, (along the boom, 0,
         height above the ground) [m]: the scene's ``crane.boom_foot_m``, or a
         schematic pin when the scene gives no boom.
+    ground_z_m : float
+        Height of the drawn ground: the scene's ``[ground] z_m`` (the surface the load
+        starts on or lands on), 0 without a ``[ground]`` [m].
     """
 
     kind: str
@@ -56,6 +59,7 @@ class Layout:
     load_shape: str
     axes_xy_m: tuple = (0.0, 0.0)
     boom_foot_m: tuple = SCHEMATIC_BOOM_FOOT_M
+    ground_z_m: float = 0.0
 
 
 def default_load_size(mass_kg: float) -> tuple:
@@ -95,7 +99,8 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
         ``crane.cross_limits_m`` (or 4 m past the suspension point's y range, 10 m
         apart at least), from 8 m before to 8 m past the suspension point's x
         range or ``crane.travel_limits_m``; a boom crane's foot pin where the
-        scene puts it; the ground 8 m plus 15 % past everything.
+        scene puts it; the ground 8 m plus 15 % past everything (tag line anchors
+        included), at the height of ``[ground] z_m``.
     """
     scene = traj.scene
     t = np.linspace(0.0, traj.t_end_s, 400)
@@ -107,6 +112,8 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
     pts = [p[:, :2], load[:, :2], np.stack([crane.travel_x_m, crane.travel_y_m], -1)]
     for z in scene.zones:
         pts.append(np.array([z.min_m[:2], z.max_m[:2]]))
+    for line in getattr(scene, "tag_lines", ()):  # the people holding the tag lines stand on the ground too
+        pts.append(np.array([line.anchor_m[:2]], dtype=float))
     crane_keys = scene.crane
     kind = crane_keys.kind
     if kind in ("tower", "luffing"):  # the jib's sweep around the base's two extreme positions
@@ -128,7 +135,24 @@ def make_layout(traj, load_size_m, load_shape: str = "box") -> Layout:
                   rail_x_m=(x_lo, x_hi), rail_y_m=(y_lo, y_hi),
                   ground_m=(float(lo[0]), float(hi[0]), float(lo[1]), float(hi[1])),
                   load_size_m=tuple(load_size_m), load_shape=load_shape, axes_xy_m=axes_xy,
-                  boom_foot_m=_boom_foot(crane_keys))
+                  boom_foot_m=_boom_foot(crane_keys), ground_z_m=ground_height_m(scene))
+
+
+def ground_height_m(scene) -> float:
+    """Height of the ground the lift is drawn on: ``[ground] z_m``, or 0 without a ``[ground]`` [m].
+
+    Parameters
+    ----------
+    scene : swingsim.scene.Scene
+        The scene.
+
+    Returns
+    -------
+    float
+        The ground's height [m].
+    """
+    gr = getattr(scene, "ground", None)
+    return 0.0 if gr is None else float(gr.z_m)
 
 
 def _boom_foot(crane) -> tuple:

@@ -510,3 +510,57 @@ def zone_mesh(zone) -> Mesh:
     """
     (a, b, c), (d, e, f) = zone.min_m, zone.max_m
     return box(a, d, b, e, c, f, edges=True)
+
+
+#: Height of the figure drawn for a person holding a tag line [m] (a schematic adult).
+PERSON_HEIGHT_M = 1.75
+#: Height of a hand holding a tag line above the feet, when the anchor gives no ground to stand on [m].
+HAND_HEIGHT_M = 1.0
+
+
+def person_mesh(hand_m, ground_z_m: float) -> Mesh:
+    """A schematic standing person holding a tag line at ``hand_m``, in world coordinates.
+
+    The figure stands on the ground (at ``ground_z_m``) when the hand is a standing
+    person's reach above it (0.3 to 2.2 m), else with its feet
+    :data:`HAND_HEIGHT_M` below the hand (on a deck or a stack the scene does not
+    draw).  Legs, body and head are boxes; a flat disc under the feet marks the
+    standing place, seen from far off.
+
+    Parameters
+    ----------
+    hand_m : sequence of 3 float
+        Where the person holds the line: the tag line's ``anchor_m`` [m].
+    ground_z_m : float
+        The drawn ground's height [m].
+
+    Returns
+    -------
+    Mesh
+        The figure [m].
+    """
+    x, y, z = (float(v) for v in hand_m)
+    feet = ground_z_m if 0.3 <= z - ground_z_m <= 2.2 else z - HAND_HEIGHT_M
+    h = PERSON_HEIGHT_M
+    parts = [box(x - 0.15, x + 0.15, y - 0.1, y + 0.1, feet, feet + 0.48 * h),
+             box(x - 0.21, x + 0.21, y - 0.13, y + 0.13, feet + 0.48 * h, feet + 0.84 * h),
+             box(x - 0.11, x + 0.11, y - 0.11, y + 0.11, feet + 0.86 * h, feet + h),
+             cylinder((x, y, feet + 0.02), (x, y, feet + 0.05), 0.55, 16)]
+    return merge(parts)
+
+
+def contact_marker(size_m: float) -> Mesh:
+    """A flat square marking where a corner of the load bears on the ground, centred, 4 cm thick.
+
+    Parameters
+    ----------
+    size_m : float
+        Its side [m].
+
+    Returns
+    -------
+    Mesh
+        The square slab (bottom at z = 0).
+    """
+    s = 0.5 * size_m
+    return box(-s, s, -s, s, 0.0, 0.04)

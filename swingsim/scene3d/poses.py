@@ -19,7 +19,7 @@ from swingsim.scene3d import transforms
 
 #: The model outputs the rigging's poses are made from (``Trajectory.sample`` keys).
 SAMPLE_KEYS = ("suspension", "load", "hook", "load_rotation", "attach_points", "spreader_ends",
-               "spreader_lugs", "rope_length", "rope_dir")
+               "spreader_lugs", "rope_length", "rope_dir", "tag_line_attach", "contact_points", "contact_normal_N")
 #: How far the hook block's top and bottom are from its centre, as a share of its width [-].
 HOOK_HALF_HEIGHT = 0.7
 
@@ -39,6 +39,13 @@ class Rigging(NamedTuple):
         Number of sling bodies (legs not in use are hidden).
     spreader : bool
         Whether the model has a spreader beam (``spreader_ends`` in its outputs).
+    ground_z_m : float
+        Height of the drawn ground (``[ground] z_m``, else 0) [m]: the shadow and the
+        contact marks lie on it.
+    tag_anchors_m : numpy.ndarray
+        (k, 3) where each tag line is held (``[[tag_lines]] anchor_m``) [m]; (0, 3) without tag lines.
+    contact_count : int
+        Number of contact marks (the load's points that can touch the ground).
     """
 
     attach_local_m: np.ndarray
@@ -46,6 +53,9 @@ class Rigging(NamedTuple):
     hook_size_m: float
     sling_count: int
     spreader: bool
+    ground_z_m: float = 0.0
+    tag_anchors_m: np.ndarray = np.zeros((0, 3))
+    contact_count: int = 0
 
 
 class Frames(NamedTuple):
@@ -56,8 +66,8 @@ class Frames(NamedTuple):
     transforms : dict
         Body name -> (n, 4, 4) transforms (own frame to world).
     segments : dict
-        ``"rope"`` and ``"sling_1"``... -> (n, 2, 3) end points [m]; a hidden
-        sling's two ends are both at the sling apex.
+        ``"rope"``, ``"sling_1"``... and ``"tag_line_1"``... -> (n, 2, 3) end
+        points [m]; a hidden sling's two ends are both at the sling apex.
     """
 
     transforms: dict
@@ -202,5 +212,48 @@ def rigging_frames(rigging: Rigging, samples: dict) -> Frames:
         else:
             out[name] = transforms.hidden(apex)
             segments[name] = np.stack([apex, apex], 1)
-    out["shadow"] = transforms.rigid(transforms.yaw_only(rot), np.column_stack([load[:, :2], np.full(n, 0.05)]))
+    out["shadow"] = transforms.rigid(transforms.yaw_only(rot),
+                                     np.column_stack([load[:, :2], np.full(n, rigging.ground_z_m + 0.05)]))
+    _contact_frames(rigging, samples, n, load, out, segments)
     return Frames(out, segments)
+
+
+#: Height of the contact marks' underside above the ground: over the envelope and the shadow [m].
+CONTACT_MARK_LIFT_M = 0.065
+
+
+def _contact_frames(rigging: Rigging, samples: dict, n: int, load, out: dict, segments: dict) -> None:
+    """Tag lines (attachment on the load to the hand holding it) and the contact marks, into ``out``.
+
+    A tag line is ``tag_line_<j>``, a unit rod from the model's ``tag_line_attach``
+    to the scene's anchor; a contact mark ``contact_<i>`` sits on the ground under
+    the load's contact point ``i`` while the ground pushes on it
+    (``contact_normal_N`` above zero) and is hidden otherwise.  Without the
+    model's outputs (a model without these forces) the lines and marks are hidden.
+    """
+    k = len(rigging.tag_anchors_m)
+    if k:
+        attach = samples.get("tag_line_attach")
+        anchors = np.broadcast_to(np.asarray(rigging.tag_anchors_m, dtype=float), (n, k, 3))
+        if attach is None:
+            attach = anchors
+        attach = np.asarray(attach, dtype=float).reshape(n, k, 3)
+        for j in range(k):
+            name = f"tag_line_{j + 1}"
+            segments[name] = np.stack([attach[:, j], anchors[:, j]], 1)
+            out[name] = transforms.segment(attach[:, j], anchors[:, j])
+    if rigging.contact_count:
+        pts = samples.get("contact_points")
+        force = samples.get("contact_normal_N")
+        if pts is None or force is None:
+            pts = np.broadcast_to(load[:, None, :], (n, rigging.contact_count, 3))
+            force = np.zeros((n, rigging.contact_count))
+        pts = np.asarray(pts, dtype=float).reshape(n, -1, 3)
+        force = np.asarray(force, dtype=float).reshape(n, -1)
+        for i in range(rigging.contact_count):
+            if i < pts.shape[1]:
+                at = np.column_stack([pts[:, i, :2], np.full(n, rigging.ground_z_m + CONTACT_MARK_LIFT_M)])
+                on = force[:, i] > 0.0
+            else:
+                at, on = load, np.zeros(n, dtype=bool)
+            out[f"contact_{i + 1}"] = np.where(on[:, None, None], transforms.translation(at), transforms.hidden(at))

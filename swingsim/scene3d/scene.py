@@ -34,7 +34,8 @@ class Body:
     material : str
         What it is made of, for its colour: "ground", "axis_x", "axis_y", "crane",
         "crane_dark", "trolley", "obstacle", "exclusion", "envelope", "rope",
-        "spreader", "sling", "load", "hook" or "shadow".
+        "spreader", "sling", "load", "hook", "shadow", "tag_line" (a tag line),
+        "person" (who holds it) or "contact" (a corner of the load bearing on the ground).
     parent : str or None
         The body it is carried by (for grouping; poses are world transforms).
     texture : numpy.ndarray or None
@@ -155,7 +156,8 @@ class Scene3D:
         return self.frames(t).segments
 
     def interest_points(self, instants: int = 25) -> np.ndarray:
-        """Points a fitted camera must show: the load's path, the zones, the crane wherever it goes [m].
+        """Points a fitted camera must show: the load's path, the zones, the crane wherever it goes,
+        the people holding tag lines [m].
 
         Bodies that move together and share a material are boxed together, so
         the framing does not depend on how a part is split into bodies.
@@ -179,6 +181,8 @@ class Scene3D:
             m = mats.get(names[0], transforms.identity((len(t),)))
             pts.append(np.einsum("nij,kj->nki", m[:, :3, :3], corners).reshape(-1, 3)
                        + np.repeat(m[:, :3, 3], len(corners), axis=0))
+        # the people holding the tag lines, whole
+        pts += [body.mesh.corners() for name, body in self.bodies.items() if name.startswith("tag_person_")]
         for z in self.traj.scene.zones:
             pts.append([[x, y, h] for x in (z.min_m[0], z.max_m[0]) for y in (z.min_m[1], z.max_m[1])
                         for h in (z.min_m[2], z.max_m[2])])
@@ -203,17 +207,22 @@ def build(traj, *, load_mesh: meshes.Mesh | None = None) -> Scene3D:
         ``slewing_part``, ``jib``, ``counterweight``, ``gantry``, ``bridge``,
         ``boom``, ``trolley`` as the kind has them), ``zone_<name>``,
         ``envelope``, ``rope``, ``spreader`` (with one), ``sling_1``...,
-        ``load``, ``hook``, ``shadow``.
+        ``load``, ``hook``, ``shadow``; with ``[[tag_lines]]`` ``tag_line_1``...
+        (moving) and ``tag_person_1``... (the person holding each, still); with
+        ``[ground]`` ``contact_1``... (a mark under each of the load's contact
+        points, shown while it bears on the ground).  The ground and everything on
+        it lie at ``[ground] z_m`` when the scene has one.
     """
     scene = traj.scene
     size = scene.load.size_m or default_load_size(scene.load.mass_kg)
     layout = make_layout(traj, size, scene.load.shape if load_mesh is None else "mesh")
     bodies = {}
+    gz = layout.ground_z_m
     grid = ground.GroundGrid.covering(layout.ground_m)
-    bodies["ground"] = Body(ground.ground_mesh(grid), "ground", texture=ground.ground_texture(grid))
-    labels = ground.grid_labels(grid)
+    bodies["ground"] = Body(ground.ground_mesh(grid, gz), "ground", texture=ground.ground_texture(grid))
+    labels = ground.grid_labels(grid, gz)
     arrow_x, arrow_y, arrow_labels = ground.axis_arrows(
-        layout.axes_xy_m, max(2.0, 0.04 * max(grid.x1 - grid.x0, grid.y1 - grid.y0)))
+        layout.axes_xy_m, max(2.0, 0.04 * max(grid.x1 - grid.x0, grid.y1 - grid.y0)), gz)
     bodies["axis_x"], bodies["axis_y"] = Body(arrow_x, "axis_x"), Body(arrow_y, "axis_y")
     labels += arrow_labels
 
@@ -235,7 +244,7 @@ def build(traj, *, load_mesh: meshes.Mesh | None = None) -> Scene3D:
     path = traj.sample(path_t)
     load = meshes.load_mesh(scene.load.shape, layout.load_size_m) if load_mesh is None else load_mesh
     lb = load.bounds
-    plane, classes = ground.envelope(path["load"], (0.5 * (lb[1] - lb[0]), 0.5 * (lb[3] - lb[2])))
+    plane, classes = ground.envelope(path["load"], (0.5 * (lb[1] - lb[0]), 0.5 * (lb[3] - lb[2])), gz)
     bodies["envelope"] = Body(plane, "envelope", texture=classes)
 
     rope_r = max(0.03, 0.006 * scene.rope.length_m) if scene.rope.diameter_m is None \
@@ -254,8 +263,19 @@ def build(traj, *, load_mesh: meshes.Mesh | None = None) -> Scene3D:
     hook_size = max(0.25, 0.35 * min(layout.load_size_m))
     bodies["hook"] = Body(meshes.hook_mesh(hook_size), "hook", "rope", moves=True)
     bodies["shadow"] = Body(meshes.box(lb[0], lb[1], lb[2], lb[3], 0.0, 0.01), "shadow", "load", moves=True)
+    lines = tuple(getattr(scene, "tag_lines", ()))
+    anchors = np.array([line.anchor_m for line in lines], dtype=float).reshape(-1, 3)
+    for j, hand in enumerate(anchors):
+        bodies[f"tag_line_{j + 1}"] = Body(meshes.unit_rod(max(0.02, 0.5 * rope_r), 8), "tag_line", moves=True)
+        bodies[f"tag_person_{j + 1}"] = Body(meshes.person_mesh(hand, gz), "person")
+    contacts = path.get("contact_points")
+    n_contacts = 0 if contacts is None else int(np.asarray(contacts).shape[1])
+    mark = max(0.2, 0.04 * max(layout.load_size_m))
+    for i in range(n_contacts):
+        bodies[f"contact_{i + 1}"] = Body(meshes.contact_marker(mark), "contact", "load", moves=True)
 
     attach = meshes.top_attach_points(load, scene.load.shape if load_mesh is None else "box")
-    rigging = poses.Rigging(attach, meshes.rigging_height(attach), hook_size, sling_count, span is not None)
+    rigging = poses.Rigging(attach, meshes.rigging_height(attach), hook_size, sling_count, span is not None,
+                            gz, anchors, n_contacts)
     return Scene3D(traj, layout, bodies, labels, rigging, {k: p.role for k, p in parts.items()},
                    path_t, np.asarray(path["load"], dtype=float), span, list(groups.values()))

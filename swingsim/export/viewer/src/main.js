@@ -5,6 +5,7 @@ import { EVENT_COLOURS, SwingPlot } from "./plot.js";
 import { Series } from "./series.js";
 import { Stage, VIEW_NAMES, parseGlb } from "./stage.js";
 import * as status from "./status.js";
+import { tagLineState, TAG_LINE_COLOUR } from "./tags.js";
 import { SPEEDS, buildPage, formatTime } from "./ui.js";
 
 function readFragment() {
@@ -108,6 +109,20 @@ async function start() {
     ui.value.angle.textContent = format(series.at("rope_angle_deg", t), 2, "deg");
     ui.value.hookload.textContent = format(series.at("rope_tension_kN", t), 1, "kN");
     ui.value.speed.textContent = format(series.at("load_speed_m_s", t), 2, "m/s");
+    const pulls = [];
+    (data.tag_lines || []).forEach((line, j) => {
+      const pull = series.at(line.column, t);
+      const state = tagLineState(pull, line.max_pull_N, data.tag_near_share);
+      pulls.push({ pull, state });
+      const dd = ui.value.tag[j];
+      dd.textContent = pull === null ? "-" : state === "slack" ? "slack" : `${pull.toFixed(0)} N${state === "over" ? " over limit" : ""}`;
+      dd.style.color = state === "near" || state === "over" ? data.colours[TAG_LINE_COLOUR[state]] : "";
+    });
+    if (stage) stage.colourTagLines(pulls.map((p) => data.colours[TAG_LINE_COLOUR[p.state]]));
+    if (ui.value.ground) {
+      const kN = series.at("ground_reaction_kN", t);
+      ui.value.ground.textContent = kN === null ? "-" : `${(kN / 9.80665).toFixed(2)} t`;
+    }
     ui.clock.textContent = `${t.toFixed(2)} / ${range[1].toFixed(1)} s`;
     if (document.activeElement !== ui.slider) ui.slider.value = String(t);
     ui.play.textContent = state.playing ? "Pause" : "Play";
@@ -177,7 +192,9 @@ async function start() {
     drawn = key;
     showReadouts(state.t);
     plot.draw(state.t);
-    const report = { t: state.t, playing: state.playing, view: state.view, range };
+    const report = { t: state.t, playing: state.playing, view: state.view, range,
+      readouts: Object.fromEntries(Object.entries(ui.value).filter(([, v]) => v && v.textContent !== undefined).map(([k, v]) => [k, v.textContent])),
+      tag_readouts: ui.value.tag.map((v) => v.textContent) };
     if (stage) {
       stage.setTime(state.t);
       stage.track();

@@ -53,6 +53,21 @@ export class Stage {
     this.node = (name) => this.root.getObjectByName(name) || null;
     this.load = this.node("load");
     this.trolley = this.node("trolley");
+    // each tag line and its person get materials of their own, recoloured by the line's pull
+    this.tagLines = (data.tag_lines || []).map((line) => {
+      const meshes = [];
+      for (const name of [line.node, line.person]) {
+        const node = this.node(name);
+        if (!node) continue;
+        node.traverse((o) => {
+          if (o.isMesh) {
+            o.material = o.material.clone();
+            meshes.push(o);
+          }
+        });
+      }
+      return { meshes, colour: null };
+    });
 
     const box = new Box3().setFromObject(this.root);
     this.sceneRadius = box.isEmpty() ? 100 : box.getSize(new Vector3()).length() / 2;
@@ -191,6 +206,16 @@ export class Stage {
     this.followFocus = focus;
   }
 
+  // Colours each tag line and its person (CSS colours, one per line; unchanged ones are left).
+  colourTagLines(colours) {
+    this.tagLines.forEach((line, j) => {
+      const colour = colours[j];
+      if (!colour || colour === line.colour) return;
+      line.colour = colour;
+      for (const mesh of line.meshes) mesh.material.color.set(colour); // a CSS colour: three converts sRGB to linear
+    });
+  }
+
   render() {
     this.renderer.render(this.scene, this.camera);
     this.camera.updateMatrixWorld(true);
@@ -204,6 +229,7 @@ export class Stage {
       projection_matrix: Array.from(this.camera.projectionMatrix.elements),
       view_matrix: Array.from(this.camera.matrixWorldInverse.elements),
     };
+    out.tag_colours = this.tagLines.map((line) => line.colour);
     if (this.load) {
       const p = this.load.getWorldPosition(new Vector3());
       out.load_world = [p.x, p.y, p.z];

@@ -31,6 +31,19 @@ export function buildPage(data, range, eventColour) {
     value[key] = el("dd", { text: "-" });
     readouts.appendChild(value[key]);
   }
+  // a row per tag line (its pull, coloured by what one person can hold) and the load's weight on the ground
+  value.tag = [];
+  for (const line of data.tag_lines || []) {
+    readouts.appendChild(el("dt", { text: `${line.name.charAt(0).toUpperCase()}${line.name.slice(1)} pull` }));
+    const dd = el("dd", { text: "-", title: `what one person can hold: ${line.max_pull_N.toFixed(0)} N` });
+    value.tag.push(dd);
+    readouts.appendChild(dd);
+  }
+  if (data.ground) {
+    readouts.appendChild(el("dt", { text: "On the ground" }));
+    value.ground = el("dd", { text: "-" });
+    readouts.appendChild(value.ground);
+  }
   side.appendChild(readouts);
   const eventNow = el("div", { class: "event-now", "aria-live": "polite" });
   side.appendChild(eventNow);
