@@ -75,11 +75,22 @@ def model_lines(scene, model) -> list[str]:
         why.append(f'[rigging] kind = "{rig.kind}"')
     parts.append(load)
     rope = scene.rope
-    text = (f"{'elastic' if rope.elastic else 'rigid (inextensible)'} rope {rope.length_m:g} m"
+    ground = getattr(scene, "ground", None)
+    assumed = getattr(model, "rope_stiffness_assumed", False)
+    text = (f"{'elastic' if rope.elastic or assumed else 'rigid (inextensible)'} rope {rope.length_m:g} m"
+            + (" (stiffness assumed)" if assumed else "")
             + (f", {rope.falls} falls" if rope.falls > 1 else ""))
     if rope.elastic:
         why.append("rope.stiffness_kN_per_m is given" if rope.stiffness_kN_per_m is not None
                    else "rope.modulus_GPa is given")
+    if ground is not None:
+        parts.append(f"ground at z = {ground.z_m:g} m" + (", the load resting on it" if scene.start.on_ground else ""))
+        why.append("[ground] makes the rope elastic (it goes slack over a landed load)" if assumed
+                   else "[ground]: the load's corners touch the ground")
+    lines_ = getattr(scene, "tag_lines", ())
+    if lines_:
+        parts.append(f"{len(lines_)} tag line(s)")
+        why.append("[[tag_lines]] pull on the load")
     name = model_name_for(scene)
     lines = [f"model: {name}: " + " + ".join(parts) + f", {text}",
              "  why: " + ("; ".join(why) if why else "no hook block, rigging, rigid load or elastic rope: "

@@ -88,7 +88,8 @@ def _headline(summary) -> str:
         f"  peak rope angle {d['peak_rope_angle_deg']:.1f} deg at {d['peak_rope_angle_time_s']:.1f} s; "
         f"peak excursion {d['peak_excursion_m']:.2f} m",
         f"  swing at end of moves {d['swing_at_move_end_deg'] or 0:.1f} deg; "
-        + (f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
+        + (f"landed at {d['touchdown_time_s']:.1f} s" if d.get("on_ground_at_end") and d.get("touchdown_time_s")
+           else f"settles in {st:.1f} s" if st is not None else "does not settle within the run"),
         f"  peak hook load {force_text(d['peak_hook_load_kN'])}, line pull {force_text(d['peak_line_pull_kN'])} "
         f"(dynamic factor {d['dynamic_factor']:.2f})",
     ]

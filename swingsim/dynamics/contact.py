@@ -15,7 +15,8 @@ is at most the line's length ``l``; beyond, a spring and a dashpot in parallel,
 the force pulling the load toward the anchor.  ``k`` stands for the line's stretch
 and the give of the person's arms and stance together, ``c`` for the person damping
 the pull; their defaults (:data:`TAG_LINE_STIFFNESS_N_PER_M`,
-:data:`TAG_LINE_DAMPING_N_S_PER_M`) are our choice, not measured values.  A person
+:data:`TAG_LINE_DAMPING_N_S_PER_M`: a hold that gives about 0.15 m under 250 N) are our
+choice, not measured values.  A person
 can hold about 250 N on a tag line for a short time (common practice, from memory:
 site guidance puts a steady pull of one person at 200-300 N); beyond ``max_pull_N``
 the person must let go, and the model (which keeps holding) no longer says what
@@ -56,9 +57,9 @@ import math
 import numpy as np
 
 #: Default stiffness of a tag line with the person holding it [N/m] (our choice).
-TAG_LINE_STIFFNESS_N_PER_M = 5000.0
+TAG_LINE_STIFFNESS_N_PER_M = 1500.0
 #: Default damping of a tag line with the person holding it [N s/m] (our choice).
-TAG_LINE_DAMPING_N_S_PER_M = 500.0
+TAG_LINE_DAMPING_N_S_PER_M = 400.0
 #: What one person can hold on a tag line [N] (common practice, from memory: 200-300 N).
 TAG_LINE_MAX_PULL_N = 250.0
 #: Default settlement of the load into its support under its own weight [m] (our choice).

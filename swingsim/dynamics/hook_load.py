@@ -1830,12 +1830,14 @@ class HookLoadModel(ModelDefaults, SwingModel):
         def slack(t, y):
             if t_lift is not None and t <= t_lift:
                 return 1.0  # a slack rope before lift-off is the set-up, not a failure
-            if grounded and self.touches_ground(t, y, kin(t)):
-                return 1.0  # a slack rope over a load resting on the ground is normal practice
             if self.rope_is_elastic:  # the spring law alone, no dynamics needed
                 k = kin(t)
-                return rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
-            return ev(y, kin(t), full=True, t=t)["rope_T"]
+                value = rope.tension(y[il], y[nq + il], k[9], k[10]) + eps
+            else:
+                value = ev(y, kin(t), full=True, t=t)["rope_T"]
+            if value <= 0.0 and grounded and self.touches_ground(t, y, kin(t)):
+                return 1.0  # a slack rope over a load resting on the ground is normal practice
+            return value
 
         slack.terminal = True
         slack.direction = -1

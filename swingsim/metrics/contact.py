@@ -74,7 +74,7 @@ def contact_metrics(traj, t, s, swing_deg) -> dict:
         ``tag_lines`` (one row per line), ``peak_tag_line_pull_N``; with ground
         ``liftoff_time_s``, ``drag_distance_m``, ``peak_swing_after_liftoff_deg``,
         ``touchdown_time_s``, ``touchdown_speed_m_s`` and its parts,
-        ``touchdown_swing_deg``, ``ground_drift_m`` (module Definitions).
+        ``touchdown_swing_deg``, ``ground_drift_m``, ``on_ground_at_end`` (module Definitions).
     """
     scene, model = traj.scene, traj.model
     d: dict = {}
@@ -119,6 +119,7 @@ def contact_metrics(traj, t, s, swing_deg) -> dict:
         after = np.flatnonzero(on[start_air:])
         touch = int(start_air + after[0]) if len(after) else None
     d["touchdown_time_s"] = None if touch is None else float(t[touch])
+    d["on_ground_at_end"] = bool(on[-1])
     if lift is not None:
         end = touch if touch is not None else len(t)
         k = lift + int(np.argmax(swing_deg[lift:end]))

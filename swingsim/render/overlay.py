@@ -137,8 +137,9 @@ def _contact_rows(contact: dict | None) -> list:
     if len(lines) > TAG_LINE_ROWS:
         rows.append(("tag max", f"{max(pull for _name, pull, _limit in lines):6.0f}", "N"))
     else:
-        rows += [(name[:11], f"{pull:6.0f}", "N") if pull > 0.0 else (name[:11], " slack", "")
-                 for name, pull, _limit in lines]
+        # the panel's label is the line's number (its label would be cut off); the notes name it
+        rows += [(f"tag line {j + 1}", f"{pull:6.0f}", "N") if pull > 0.0 else (f"tag line {j + 1}", " slack", "")
+                 for j, (_name, pull, _limit) in enumerate(lines)]
     if c.get("ground_N") is not None:
         rows.append(("on ground", f"{newton_to_tonnes_force(c['ground_N']):6.2f}", "t"))
     return rows

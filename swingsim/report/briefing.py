@@ -17,6 +17,8 @@ it.  The file is deterministic: no creation date.
 
 from __future__ import annotations
 
+import math
+
 import io
 from pathlib import Path
 
@@ -358,6 +360,16 @@ def lift_paragraph(summary, scene) -> str:
                  f"{d['rest_rope_angle_deg']:.1f} deg downwind.")
     else:
         text += " No wind."
+    if getattr(scene.start, "on_ground", False):
+        off = math.hypot(*scene.start.load_offset_m)
+        text += (f" The load starts resting on the ground (z = {scene.ground.z_m:g} m)"
+                 + (f", its centre of gravity {off:.2f} m from the plumb below the hook." if off else ", plumb."))
+    elif getattr(scene, "ground", None) is not None:
+        text += f" The ground it can land on is at z = {scene.ground.z_m:g} m."
+    lines = getattr(scene, "tag_lines", ())
+    if lines:
+        text += (f" {len(lines)} tag line(s), held by hand: "
+                 + "; ".join(f"{line.name(j)} ({line.length_m:g} m)" for j, line in enumerate(lines)) + ".")
     text += f" Simulated for {d['simulated_until_s']:.1f} s with the {d['model']} model."
     return text
 
@@ -392,7 +404,21 @@ def key_numbers(summary, scene, names=None) -> list:
                  f"clearance {lim.clearance_m:.2f} m" if lim.clearance_m is not None else ""))
     settle = (f"{d['settle_time_s']:.1f} s after the last move" if d["settle_time_s"] is not None
               else "not within the simulated time")
-    rows.append((f"Settles below {d['settle_threshold_deg']:.1f} deg", settle, ""))
+    if d.get("on_ground_at_end") and d.get("touchdown_time_s") is not None:
+        rows.append(("Landed", f"at t = {d['touchdown_time_s']:.1f} s", "on the ground at the end"))
+    else:
+        rows.append((f"Settles below {d['settle_threshold_deg']:.1f} deg", settle, ""))
+    if d.get("starts_on_ground"):
+        lo = d.get("liftoff_time_s")
+        rows.append(("Lift-off", "never in the run" if lo is None else f"t = {lo:.2f} s",
+                     "" if lo is None else f"swing after it {d['peak_swing_after_liftoff_deg']:.1f} deg"))
+    if d.get("touchdown_time_s") is not None:
+        rows.append(("Touch-down", f"t = {d['touchdown_time_s']:.2f} s at {d['touchdown_speed_m_s']:.2f} m/s",
+                     f"swinging {d['touchdown_swing_deg']:.1f} deg, drifts {d['ground_drift_m']:.2f} m"))
+    for r in d.get("tag_lines") or []:
+        rows.append((f"Tag line {r['line']} peak pull", f"{r['peak_pull_N']:.0f} N at t = {r['peak_time_s']:.1f} s",
+                     f"one person holds {r['max_pull_N']:.0f} N" + (": CANNOT BE HELD"
+                                                                      if r["over_max_pull_from_s"] is not None else "")))
     rows.append(("Static hook load", force_text(d["static_rope_tension_kN"]), ""))
     hook_wll = scene.hook.wll_kN if scene.hook is not None else None
     rows.append(("Peak hook load", f"{force_text(d['peak_hook_load_kN'])} at t = {d['peak_rope_tension_time_s']:.1f} s",

@@ -311,7 +311,9 @@ def summary_text(summary, scene, mode_names=None) -> str:
     w.append(f"  Peak excursion from plumb line   {_fmt(d['peak_excursion_m'], 'm')}")
     w.append(f"  Swing when the last move ends    {_fmt(d['swing_at_move_end_deg'], 'deg', 1)}")
     w.append(f"  Residual rope angle after moves  {_fmt(d['residual_rope_angle_deg'], 'deg', 1)}")
-    if d["settle_time_s"] is None:
+    if d.get("on_ground_at_end") and d.get("touchdown_time_s") is not None:
+        w.append(f"  {'Landed':<33}at t = {_fmt(d['touchdown_time_s'], 's', 1)} (on the ground at the end)")
+    elif d["settle_time_s"] is None:
         w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}not within the simulated time")
     else:
         w.append(f"  {'Settles below %g deg' % d['settle_threshold_deg']:<33}{_fmt(d['settle_time_s'], 's', 1)} after the last move (t = {_fmt(d['settled_at_s'], 's', 1)})")
@@ -396,6 +398,8 @@ def zone_lines(zones) -> list:
 
 def _wind_start(d, scene) -> str:
     """How the run starts in the wind, as summary.txt says it."""
+    if getattr(scene.start, "on_ground", False):
+        return "the load starts resting on the ground, and the wind takes it as it lifts off."
     if scene.start.rope_preload == "lift-off":
         return "the load starts plumb, resting for lift-off, and the wind takes it as it lifts off."
     if scene.wind.onset == "step":

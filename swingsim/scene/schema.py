@@ -15,6 +15,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from swingsim import constants
+from swingsim.dynamics import contact
 
 
 @dataclass(frozen=True)
@@ -439,19 +440,21 @@ TABLES: dict[str, dict[str, Key]] = {
                    "corners touch the ground.", default=0.0),
         "friction_coefficient": Key("float", "Coulomb friction coefficient between the load and the "
                                     "ground [-] (default 0.5; from memory, steel on dry timber about "
-                                    "0.4-0.6: take the site's value).", default=0.5, ge=0.0, le=2.0),
+                                    "0.4-0.6: take the site's value).", default=contact.GROUND_FRICTION_COEFFICIENT,
+                                    ge=0.0, le=2.0),
         "stiffness_kN_per_m": Key("float", "Vertical stiffness of the support under the whole load "
                                   "[kN/m], shared by its contact points; default from settlement_m.",
                                   gt=0.0),
         "settlement_m": Key("float", "How far the load settles into its support under its own weight "
                             "[m] when stiffness_kN_per_m is not given (default 5 mm: our choice, about "
-                            "timber dunnage).", default=0.005, gt=0.0, le=0.5),
+                            "timber dunnage).", default=contact.GROUND_SETTLEMENT_M, gt=0.0, le=0.5),
         "damping_ratio": Key("float", "Damping of the load bouncing on its support, a fraction of "
-                             "critical [-] (default 0.5, our choice).", default=0.5, ge=0.0, le=2.0),
+                             "critical [-] (default 0.5, our choice).", default=contact.GROUND_DAMPING_RATIO,
+                             ge=0.0, le=2.0),
         "slip_speed_m_s": Key("float", "Sliding speed below which friction is taken as growing with "
                               "the speed (regularised Coulomb friction) [m/s]; a pull below the "
                               "friction limit creeps at about this speed times the pull's fraction of "
-                              "it (see docs/models.md).", default=0.002, gt=0.0, le=0.1),
+                              "it (see docs/models.md).", default=contact.GROUND_SLIP_SPEED_M_S, gt=0.0, le=0.1),
     },
     "damping": {
         "ratio": Key("float", "Equivalent viscous damping ratio of the swing [-].", default=0.0, ge=0.0, lt=1.0),
@@ -627,11 +630,11 @@ TAG_LINE = {
                     "are closer.", required=True, gt=0.0),
     "max_pull_N": Key("float", "Pull one person can hold [N] (default 250 N: common practice, from "
                       "memory, 200-300 N); a caution when the line pulls harder: the person must let "
-                      "go, never be pulled along.", default=250.0, gt=0.0),
+                      "go, never be pulled along.", default=contact.TAG_LINE_MAX_PULL_N, gt=0.0),
     "stiffness_N_per_m": Key("float", "Stiffness of the line with the person holding it [N/m] (default: "
-                             "our choice).", default=5000.0, gt=0.0),
+                             "our choice: the hold gives about 0.15 m under 250 N).", default=contact.TAG_LINE_STIFFNESS_N_PER_M, gt=0.0),
     "damping_N_s_per_m": Key("float", "Damping of the line with the person holding it [N s/m] "
-                             "(default: our choice).", default=500.0, ge=0.0),
+                             "(default: our choice).", default=contact.TAG_LINE_DAMPING_N_S_PER_M, ge=0.0),
     "label": Key("str", "Name of the line (who holds it) on plots and in the summary.", default=""),
 }
 
