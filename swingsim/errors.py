@@ -35,6 +35,8 @@ def quote(value, limit: int = QUOTE_LIMIT) -> str:
     str
         The quotation, at most ``limit`` characters.
     """
+    if isinstance(value, bool):  # as the scene file writes it (TOML)
+        return "true" if value else "false"
     shortener = reprlib.Repr()
     shortener.maxstring = shortener.maxother = limit
     shortener.maxlist = shortener.maxtuple = shortener.maxdict = 6

@@ -340,3 +340,22 @@ def test_on_ground_needs_the_resting_rope_length():
     with pytest.raises(SceneError) as e:
         _resting({"rope": {"length_m": 35.0}})
     assert "set rope.length_m = 39.505" in str(e.value)
+
+
+def test_contact_figure_draws_the_pulls_the_limit_and_the_ground():
+    from swingsim.report.plots_contact import contact_figure
+
+    sc = _resting({"tag_lines": [{"attach_m": [0.5, 0.0, 0.0], "anchor_m": [6.0, 0.0, 1.0], "length_m": 6.0,
+                                  "max_pull_N": 180.0}],
+                   "moves": [{"axis": "hoist", "profile": "trapezoid", "start_s": 1.0, "distance_m": 2.0,
+                              "speed_m_s": 0.4, "accel_m_s2": 0.4}]}, duration_s=10.0)
+    traj = simulate(sc)
+    summ = summarize(traj)
+    fig = contact_figure(traj, summ)
+    lines_ax, ground_ax = [a for a in fig.axes if a.get_ylabel() in ("tag line pull [N]", "force [kN]")]
+    limit = [ln for ln in lines_ax.get_lines() if "holds" in (ln.get_label() or "")]
+    assert limit and limit[0].get_ydata()[0] == 180.0
+    # the ground panel's curve is the summary's weight on the ground: the block's weight at t = 0
+    curve = [ln for ln in ground_ax.get_lines() if ln.get_label() == "load's weight on the ground"][0]
+    assert curve.get_ydata()[0] == pytest.approx(1000.0 * G0 / 1e3, rel=1e-6)
+    assert contact_figure(simulate(make_scene()), summarize(simulate(make_scene()))) is None

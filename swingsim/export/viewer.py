@@ -52,6 +52,8 @@ SUMMARY_FACTS = (
     ("peak_rope_angle_time_s", "Peak at", "s", 1),
     ("swing_at_move_end_deg", "Swing when the moves end", "deg", 1),
     ("settled_at_s", "Settled at", "s", 1),
+    ("liftoff_time_s", "Lift-off at", "s", 1),
+    ("touchdown_time_s", "Touch-down at", "s", 1),
     ("peak_rope_tension_kN", "Peak hook load", "kN", 1),
     ("peak_load_speed_m_s", "Peak load speed", "m/s", 2),
 )

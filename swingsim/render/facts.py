@@ -19,7 +19,7 @@ class Event:
 
     t_s: float
     label: str
-    kind: str  # "move_start", "move_end", "peak", "settled", "stopped"
+    kind: str  # "move_start", "move_end", "peak", "liftoff", "touchdown", "settled", "stopped"
 
 
 @dataclass(frozen=True)
@@ -111,7 +111,8 @@ def collect(traj, summary=None) -> Facts:
     Returns
     -------
     Facts
-        Move starts and ends, the peak swing, settling and an early stop, in time order.
+        Move starts and ends, the peak swing, lift-off and touch-down, settling (not for a
+        load landed at the end) and an early stop, in time order.
     """
     if summary is None:
         from swingsim.metrics.single import summarize
@@ -128,7 +129,12 @@ def collect(traj, summary=None) -> Facts:
         events.append(Event(float(prof.start_s), f"{move.name}: starts", "move_start"))
         events.append(Event(float(prof.end_s), f"{move.name}: ends", "move_end"))
     events.append(Event(float(peak_t), f"Peak swing {float(peak):.1f} deg", "peak"))
-    if settled is not None and math.isfinite(settled):
+    for key, word, kind in (("liftoff_time_s", "Lift-off", "liftoff"), ("touchdown_time_s", "Touch-down", "touchdown")):
+        at = _get(summary, key)
+        if at is not None:
+            events.append(Event(float(at), word, kind))
+    landed = _get(summary, "on_ground_at_end") and _get(summary, "touchdown_time_s") is not None
+    if settled is not None and math.isfinite(settled) and not landed:
         events.append(Event(float(settled), "Settled: swing below "
                             f"{scene.limits.settle_deg:g} deg", "settled"))
     else:

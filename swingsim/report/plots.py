@@ -12,6 +12,7 @@ import numpy as np
 
 from swingsim.io.files import atomic_write_bytes
 from swingsim.report.plots_chart import chart_figure
+from swingsim.report.plots_contact import contact_figure
 from swingsim.report.plots_response import response_figure
 from swingsim.report.plots_rigging import rigging_figure
 from swingsim.report.style import (ENVELOPE, GREY, INK, LIMIT, LOAD, ROPE, label_axes, literal_text, new_figure,
@@ -291,9 +292,11 @@ def _crane_reach(ax, crane):
 #: once for all plots; by the function itself when None), it returns the matplotlib figure
 #: with its title and the caution line, or None when the run's model has nothing to show
 #: (rigging.png, :func:`swingsim.report.plots_rigging.rigging_figure`, needs sling legs;
-#: chart.png, :func:`swingsim.report.plots_chart.chart_figure`, needs ``crane.chart_file``).
+#: chart.png, :func:`swingsim.report.plots_chart.chart_figure`, needs ``crane.chart_file``;
+#: contact.png, :func:`swingsim.report.plots_contact.contact_figure`, needs tag lines or ``[ground]``).
 FIGURES = {"swing.png": _swing_figure, "speed.png": _speed_figure, "plan.png": _plan_figure,
-           "rigging.png": rigging_figure, "chart.png": chart_figure, "response.png": response_figure}
+           "rigging.png": rigging_figure, "chart.png": chart_figure, "response.png": response_figure,
+           "contact.png": contact_figure}
 
 
 #: The plot formats ``--plots`` offers: raster for screens and slides, vector for print.
