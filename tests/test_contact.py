@@ -359,3 +359,23 @@ def test_contact_figure_draws_the_pulls_the_limit_and_the_ground():
     curve = [ln for ln in ground_ax.get_lines() if ln.get_label() == "load's weight on the ground"][0]
     assert curve.get_ydata()[0] == pytest.approx(1000.0 * G0 / 1e3, rel=1e-6)
     assert contact_figure(simulate(make_scene()), summarize(simulate(make_scene()))) is None
+
+
+def test_landing_while_swinging_is_cautioned_and_the_load_slides():
+    # a block swinging 6 deg is lowered onto the ground: it lands moving sideways and Coulomb
+    # friction (mu g deceleration) stops it within v^2 / (2 mu g) of where it lands
+    mu = 0.4
+    sc = make_scene({"load": dict(BLOCK), "rope": {"length_m": 20.0, "bounce_damping_ratio": 0.3,
+                                                   "stiffness_kN_per_m": 400.0},
+                     "ground": {"z_m": 0.0, "friction_coefficient": mu}, "start": {"swing_deg": [6.0, 0.0]},
+                     "moves": [{"axis": "hoist", "profile": "trapezoid", "start_s": 0.5, "distance_m": -20.0,
+                                "speed_m_s": 1.5, "accel_m_s2": 3.0}]}, duration_s=20.0)
+    traj = simulate(sc)
+    assert traj.valid
+    summ = summarize(traj)
+    assert summ["touchdown_time_s"] is not None
+    assert summ["touchdown_swing_deg"] > sc.limits.settle_deg
+    assert any("touches down" in c and "still swinging" in c for c in summ.cautions)
+    v = summ["touchdown_horizontal_speed_m_s"]
+    assert v > 0.05
+    assert summ["ground_drift_m"] <= 1.1 * v * v / (2.0 * mu * G0) + 0.01
