@@ -177,7 +177,19 @@ def test_person_under_the_load_is_a_caution():
                                  "length_m": 30.0}]}, duration_s=2.0)
     summ = summarize(simulate(sc))
     assert summ["tag_lines"][0]["person_under_load_from_s"] == 0.0
-    assert any("stands under the load" in c for c in summ.cautions)
+    assert any("runs under the load, or the person holding it stands there" in c for c in summ.cautions)
+
+
+def test_a_line_led_under_the_load_is_a_caution():
+    # tied at the west end's bottom, held east of the panel and below it: the line runs under it
+    sc = _bridle({"tag_lines": [{"attach_m": [-2.5, 0.0, -0.5], "anchor_m": [6.0, 0.0, 20.0],
+                                 "length_m": 14.0}]}, duration_s=2.0)
+    summ = summarize(simulate(sc))
+    assert summ["tag_lines"][0]["person_under_load_from_s"] == 0.0
+    # the same line led away from the load, to the west: no caution
+    sc = _bridle({"tag_lines": [{"attach_m": [-2.5, 0.0, -0.5], "anchor_m": [-8.0, 0.0, 20.0],
+                                 "length_m": 14.0}]}, duration_s=2.0)
+    assert summarize(simulate(sc))["tag_lines"][0]["person_under_load_from_s"] is None
 
 
 # -- the ground --------------------------------------------------------------------------------

@@ -22,7 +22,9 @@ Touch-down
 Tag line pull
     The line's tension; over ``max_pull_N`` the person holding it must let go.  A
     person "under the load" stands inside the load's plan outline widened by
-    :data:`UNDER_LOAD_MARGIN_M` while the load is above the hand.
+    :data:`UNDER_LOAD_MARGIN_M` while the load is above the hand; the line runs under it
+    when a point along it (a quarter, half or three quarters of the way to the hand) is
+    inside that outline and below the load's centre of gravity.
 """
 
 from __future__ import annotations
@@ -85,7 +87,8 @@ def contact_metrics(traj, t, s, swing_deg) -> dict:
         for j, line in enumerate(lines):
             i = int(np.argmax(pulls[:, j]))
             over = np.flatnonzero(pulls[:, j] > line.max_pull_N)
-            under = _under_load(s, np.asarray(line.anchor_m, float), model)
+            attach = s["tag_line_attach"][:, j] if "tag_line_attach" in s else None
+            under = _under_load(s, np.asarray(line.anchor_m, float), model, attach)
             ui = np.flatnonzero(under)
             rows.append({
                 "line": j + 1, "name": line.name(j),
@@ -141,21 +144,33 @@ def contact_metrics(traj, t, s, swing_deg) -> dict:
     return d
 
 
-def _under_load(s, anchor, model) -> np.ndarray:
-    """Samples where a person at ``anchor`` stands under the load (module Definitions)."""
+def _under_load(s, anchor, model, attach=None) -> np.ndarray:
+    """Samples where the hand at ``anchor``, or the line to it, is under the load (module Definitions).
+
+    The hand and three points along the line (a quarter, half and three quarters of the way
+    from the attachment) are tested against the load's plan outline widened by
+    :data:`UNDER_LOAD_MARGIN_M`, below the load's centre of gravity.
+    """
     G = s["load"]
     R = s.get("load_rotation")
-    rel = anchor[None, :] - G
-    if R is not None and model.rigid_load and model.scene.load.size_m is not None:
-        local = np.einsum("nji,nj->ni", R, rel)  # R^T (anchor - G)
-        half = 0.5 * np.asarray(model.scene.load.size_m, float)
-        inside = (np.abs(local[:, 0]) < half[0] + UNDER_LOAD_MARGIN_M) & \
-                 (np.abs(local[:, 1]) < half[1] + UNDER_LOAD_MARGIN_M)
-    else:
-        size = model.scene.load.size_m
-        r = 0.5 * max(size[:2]) if size else 0.0
-        inside = np.hypot(rel[:, 0], rel[:, 1]) < r + UNDER_LOAD_MARGIN_M
-    return inside & (G[:, 2] > anchor[2])
+    points = [np.broadcast_to(anchor, G.shape)]
+    if attach is not None:
+        points += [attach + f * (anchor[None, :] - attach) for f in (0.25, 0.5, 0.75)]
+    under = np.zeros(len(G), dtype=bool)
+    boxed = R is not None and model.rigid_load and model.scene.load.size_m is not None
+    for p in points:
+        rel = p - G
+        if boxed:
+            local = np.einsum("nji,nj->ni", R, rel)  # R^T (p - G)
+            half = 0.5 * np.asarray(model.scene.load.size_m, float)
+            inside = (np.abs(local[:, 0]) < half[0] + UNDER_LOAD_MARGIN_M) & \
+                     (np.abs(local[:, 1]) < half[1] + UNDER_LOAD_MARGIN_M)
+        else:
+            size = model.scene.load.size_m
+            r = 0.5 * max(size[:2]) if size else 0.0
+            inside = np.hypot(rel[:, 0], rel[:, 1]) < r + UNDER_LOAD_MARGIN_M
+        under |= inside & (G[:, 2] > p[:, 2])
+    return under
 
 
 def contact_warnings(s: dict, scene) -> list[str]:
@@ -183,9 +198,10 @@ def contact_warnings(s: dict, scene) -> list[str]:
                        "go, never be pulled along or wrap the line around a hand. Reduce the swing or the wind on "
                        "the load, or plan more hands or a fixed snubbing point as the lift plan says.")
         if r["person_under_load_from_s"] is not None:
-            out.append(f"The person holding {r['name']} stands under the load from t = "
-                       f"{r['person_under_load_from_s']:.1f} s: nobody may stand under a suspended load (common "
-                       "practice); give the line more length or move the person out from under its path.")
+            out.append(f"{name} runs under the load, or the person holding it stands there, from t = "
+                       f"{r['person_under_load_from_s']:.1f} s: nobody may stand or reach under a suspended load "
+                       "(common practice); tie the line where it leads away from the load and keep the person "
+                       "out from under its path.")
     if s.get("rope_stiffness_assumed"):
         out.append("Ground contact needs an elastic hoist rope: its stiffness is assumed here (the hanging "
                    "weight stretches it 0.4 %); the lift-off snatch and the bounce depend on it: give "
