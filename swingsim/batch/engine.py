@@ -86,6 +86,9 @@ SUMMARY_KEYS = (
     "peak_load_speed_m_s", "rope_length_start_m", "rope_length_end_m",
     "natural_period_s", "measured_period_s", "settle_time_s", "settled_at_s",
     "peak_hook_load_kN", "peak_line_pull_kN", "peak_leg_tension_kN", "peak_utilisation_pct",
+    # tag lines and the ground (single-run solver only; empty for other rows)
+    "peak_tag_line_pull_N", "liftoff_time_s", "drag_distance_m", "peak_swing_after_liftoff_deg",
+    "touchdown_time_s", "touchdown_speed_m_s", "touchdown_swing_deg", "ground_drift_m",
 )
 
 # ----------------------------------------------------------------------------

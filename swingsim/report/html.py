@@ -41,7 +41,7 @@ img{max-width:100%;height:auto;border:1px solid #e0e4e8}
 """
 
 _UNITS = (("_deg_s", "deg/s"), ("_deg", "deg"), ("_m_s", "m/s"), ("_kN", "kN"), ("_s", "s"),
-          ("_m", "m"), ("_kg", "kg"), ("_m_s2", "m/s²"), ("_t", "t"))
+          ("_m", "m"), ("_kg", "kg"), ("_m_s2", "m/s²"), ("_t", "t"), ("_N", "N"))
 
 
 def _head(key: str) -> str:

@@ -65,6 +65,8 @@ OBJECTIVE_KEYS = (
     "settled_at_s", "settle_time_s", "residual_rope_angle_deg", "residual_swing_deg",
     "peak_rope_angle_deg", "peak_excursion_m", "peak_rope_tension_kN", "dynamic_factor",
     "last_move_end_s", "swing_at_move_end_deg", "peak_load_speed_m_s",
+    "peak_tag_line_pull_N", "drag_distance_m", "peak_swing_after_liftoff_deg", "touchdown_speed_m_s",
+    "touchdown_swing_deg", "ground_drift_m",
 )
 
 #: Largest number of variants a sweep may expand to.
