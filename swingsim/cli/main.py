@@ -92,7 +92,7 @@ def main(argv=None) -> int:
     int
         The exit code: 0 done; 1 the run could not give a trustworthy result, or
         an internal fault; 2 bad input (one line on stderr); 130 interrupted
-        (SIGINT or SIGTERM).
+        (SIGINT or SIGTERM); 141 the output pipe was closed by its reader (nothing said).
     """
     parser = build_parser()
     args = parser.parse_args(argv)
@@ -115,6 +115,12 @@ def main(argv=None) -> int:
         sys.stderr.write(f"swingsim: interrupted; files finished before the stop: {done}; "
                          "no partial file was left under a final name\n")
         return 130
+    except BrokenPipeError:  # the reader of our output closed it (e.g. `swingsim check ... | head`)
+        try:  # no further writes to the closed pipe, not even at exit (Python's documented recipe)
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        except OSError:
+            pass
+        return 141  # as a shell reports a command ended by SIGPIPE (128 + 13)
     except OSError as exc:  # a path that cannot be read or written: one line naming it
         if is_user_fixable(exc):
             sys.stderr.write(f"swingsim: error: {os_error_input(exc).one_line()}\n")
