@@ -61,7 +61,7 @@ def test_good_scene_loads(tmp_path):
     (("mass_kg = 800.0", "mass_kg = inf"), ["load.mass_kg = inf", "finite"]),
     (("mass_kg = 800.0", "mass_kg = \"heavy\""), ["load.mass_kg = 'heavy'", "a number"]),
     (("mass_kg = 800.0", ""), ["load.mass_kg", "missing required key"]),
-    (("duration_s = 30.0", "duration_s = true"), ["duration_s = True", "a number"]),
+    (("duration_s = 30.0", "duration_s = true"), ["duration_s = true", "a number"]),
     (("suspension_m = [0.0, 0.0, 30.0]", "suspension_m = [0.0, 30.0]"), ["crane.suspension_m", "3 numbers"]),
     (('axis = "x"', 'axis = "z"'), ["moves[0].axis = 'z'", "one of 'x', 'y', 'slew', 'radius', 'hoist'"]),
     (('profile = "trapezoid"', 'profile = "trapezium"'), ["moves[0].profile", "did you mean 'trapezoid'"]),
