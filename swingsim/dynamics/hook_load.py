@@ -286,13 +286,12 @@ class ArrayArithmetic(FloatArithmetic):
 class LoadFrame:
     r"""The rigid load's attitude at one state, and points fixed on the load (one state or many).
 
-    :math:`R = R_z(c) R_x(a) R_y(b)` (module Notes), its world angular velocity
-    :math:`\omega = J_\omega \dot q` and bias :math:`b_\omega` (the angular acceleration at
-    :math:`\ddot q = 0`).  :meth:`point` gives a point fixed on the load with its velocity,
-    Jacobian and bias relative to the CG, :meth:`generalised_force` the generalised force of
-    a force applied there: a force at any point of the load (the wind's centre of pressure;
-    later a tag line's attachment, a corner on the ground) is one term.  Works on floats and
-    on arrays alike (``ops``).
+    :math:`R = R_z(c) R_x(a) R_y(b)` (module Notes) and its world angular velocity
+    :math:`\omega = J_\omega \dot q`.  :meth:`offset` gives a point fixed on the load, its offset from the
+    CG and that offset's velocity; :meth:`generalised_force` the generalised force of a force
+    applied there, and :attr:`columns` carry a moment about the CG into the coordinates: a
+    force at any point of the load (the wind's centre of pressure, a tag line's attachment, a
+    corner on the ground) is one term.  Works on floats and on arrays alike (``ops``).
 
     Parameters
     ----------
@@ -326,33 +325,6 @@ class LoadFrame:
         tilts = (cc * da - sc * db * ca, sc * da + cc * db * ca, db * sa)  # Rz (da ex + db Rx ey)
         #: world angular velocity [rad/s]
         self.omega = (tilts[0], tilts[1], tilts[2] + yaw_rate)
-        k = da * db
-        # d/dt (Rz v) = dc ez x Rz v + Rz dv/dt, with v the tilts' angular velocity
-        #: angular acceleration at zero generalised accelerations [rad/s^2]
-        self.omega_bias = (sc * k * sa - yaw_rate * tilts[1], -cc * k * sa + yaw_rate * tilts[0], k * ca)
-
-    def point(self, p_b):
-        r"""A point fixed on the load, relative to the CG: offset, velocity, Jacobian, bias.
-
-        Parameters
-        ----------
-        p_b : sequence of 3
-            The point in load axes, from the CG [m].
-
-        Returns
-        -------
-        tuple
-            ``(rho, rho_dot, jacobian, bias)``: world offset from the CG [m], its rate
-            :math:`\omega \times \rho` [m/s], ``{index: column}`` with column
-            :math:`\partial \dot\rho / \partial \dot q_k` [m per chart unit], and the
-            acceleration at zero generalised accelerations
-            :math:`b_\omega \times \rho + \omega \times (\omega \times \rho)` [m/s^2].
-        """
-        rho = tuple(row[0] * p_b[0] + row[1] * p_b[1] + row[2] * p_b[2] for row in self.rows)
-        rho_dot = _cx(self.omega, rho)
-        jac = {k: _cx(col, rho) for k, col in self.columns.items()}
-        bias_cross, spin = _cx(self.omega_bias, rho), _cx(self.omega, rho_dot)
-        return rho, rho_dot, jac, tuple(x + y for x, y in zip(bias_cross, spin))
 
     def offset(self, p_b):
         r"""A point fixed on the load: its world offset from the CG and that offset's rate.
@@ -365,7 +337,8 @@ class LoadFrame:
         Returns
         -------
         tuple
-            ``(rho, rho_dot)`` [m, m/s] (the first two items of :meth:`point`).
+            ``(rho, rho_dot)``: world offset from the CG [m] and its rate
+            :math:`\omega \times \rho` [m/s].
         """
         rho = tuple(row[0] * p_b[0] + row[1] * p_b[1] + row[2] * p_b[2] for row in self.rows)
         return rho, _cx(self.omega, rho)
@@ -376,7 +349,7 @@ class LoadFrame:
         Parameters
         ----------
         rho : sequence of 3
-            The point's world offset from the CG [m] (:meth:`point`).
+            The point's world offset from the CG [m] (:meth:`offset`).
         force : sequence of 3
             The force, world axes [N].
 
@@ -644,7 +617,7 @@ def equations_of_motion(q, qd, kin, par, rope, wind, structure, ops=FloatArithme
         if _on(k_load) and body and structure.wind_center:
             # the drag at the centre of pressure: its force on the CG, its moment through the load's frame
             frame = LoadFrame(ops, (a, b), (da, db), yaw, dyaw, ia, iy)
-            rho, rho_d = frame.point((par["wc0"], par["wc1"], par["wc2"]))[:2]
+            rho, rho_d = frame.offset((par["wc0"], par["wc1"], par["wc2"]))
             lwf = 1.0 if load_factor is None else load_factor(Gz + rho[2])
             rx, ry, rz = Gdx + rho_d[0] - lwf * wx, Gdy + rho_d[1] - lwf * wy, Gdz + rho_d[2]
             sp = k_load * sqrt(rx * rx + ry * ry + rz * rz)
