@@ -249,17 +249,7 @@ def test_video_readout_gives_the_pull_and_the_weight_on_the_ground(frames):
 
 
 # ----------------------------------------------------------------------------- the viewer
-@pytest.fixture(scope="module")
-def browser():
-    from test_export_viewer import CHROMIUM, Browser
-
-    if CHROMIUM is None:
-        if os.environ.get("CI"):
-            pytest.fail("headless Chromium must run in CI (.ci/run installs the Debian package chromium)")
-        pytest.skip("headless Chromium (Debian package chromium) is not installed")
-    b = Browser()
-    yield b
-    b.close()
+from test_export_viewer import browser  # noqa: E402,F401  (the shared headless-Chromium fixture)
 
 
 def test_viewer_shows_the_pull_and_colours_the_line(browser, exported, traj):
