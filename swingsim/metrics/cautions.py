@@ -122,7 +122,8 @@ def model_limits(scene) -> list[str]:
         out.append("Before lift-off the load rests plumb on its support; after lift-off there is no "
                    "ground contact: a load that comes down again passes through the ground.")
     else:
-        out.append("There is no ground or obstacle contact: zones are checked for clearance, not "
+        out.append("There is no ground contact (a [ground] table adds lift-off and landing) and no obstacle "
+                   "contact: zones are checked for clearance, not "
                    "collided with.")
     out.append("The rope's own mass is neglected (its drag is not, when rope.diameter_m is set).")
     return out
